@@ -1,0 +1,66 @@
+import { and, eq } from 'drizzle-orm'
+import { hashPassword } from '../../server/auth/password'
+import type { Database } from '../../server/db/client'
+import { courses, enrollments, labGroups, sections, users } from '../../server/db/schema'
+import {
+  DEFAULT_DEMO_PASSWORD,
+  DEMO_ADMIN,
+  DEMO_COURSE,
+  DEMO_INSTRUCTOR,
+  DEMO_SECTIONS,
+  DEMO_STUDENTS,
+} from './scenario'
+
+/** Inserts the demo course, people, sections and lab groups in one transaction, once. */
+export async function seedDemo(db: Database, password = DEFAULT_DEMO_PASSWORD): Promise<{ created: boolean; users: number; courseId: number }> {
+  const existing = await db
+    .select({ id: courses.id })
+    .from(courses)
+    .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.term, DEMO_COURSE.term)))
+  if (existing[0]) return { created: false, users: 0, courseId: existing[0].id }
+
+  // One hash per person (each with its own salt), computed before the transaction opens.
+  const people = [DEMO_ADMIN, DEMO_INSTRUCTOR, ...DEMO_SECTIONS.map((s) => s.ta), ...DEMO_STUDENTS]
+  const hashes = await Promise.all(people.map(() => hashPassword(password)))
+
+  const courseId = await db.transaction(async (tx) => {
+    const userIds = new Map<string, number>()
+    for (const [i, p] of people.entries()) {
+      const found = await tx.select({ id: users.id }).from(users).where(eq(users.email, p.email))
+      if (found[0]) {
+        userIds.set(p.email, found[0].id)
+        continue
+      }
+      const [row] = await tx
+        .insert(users)
+        .values({ email: p.email, displayName: p.displayName, passwordHash: hashes[i] ?? null, isSiteAdmin: p === DEMO_ADMIN })
+        .$returningId()
+      userIds.set(p.email, row!.id)
+    }
+    const id = (await tx.insert(courses).values(DEMO_COURSE).$returningId())[0]!.id
+    const uid = (email: string) => {
+      const v = userIds.get(email)
+      if (v === undefined) throw new Error(`seed: no user ${email}`)
+      return v
+    }
+    await tx.insert(enrollments).values({ userId: uid(DEMO_INSTRUCTOR.email), courseId: id, role: 'instructor' })
+    const sectionIds = new Map<string, number>()
+    for (const s of DEMO_SECTIONS) {
+      const sid = (await tx.insert(sections).values({ courseId: id, name: s.name, meets: s.meets }).$returningId())[0]!.id
+      sectionIds.set(s.name, sid)
+      await tx.insert(enrollments).values({ userId: uid(s.ta.email), courseId: id, role: 'ta', sectionId: sid })
+    }
+    const groupIds = new Map<string, number>()
+    for (const st of DEMO_STUDENTS) {
+      const sectionId = sectionIds.get(st.section) ?? null
+      let gid = groupIds.get(st.labGroup)
+      if (gid === undefined) {
+        gid = (await tx.insert(labGroups).values({ courseId: id, sectionId, name: `Group ${st.labGroup}` }).$returningId())[0]!.id
+        groupIds.set(st.labGroup, gid)
+      }
+      await tx.insert(enrollments).values({ userId: uid(st.email), courseId: id, role: 'student', sectionId, labGroupId: gid })
+    }
+    return id
+  })
+  return { created: true, users: people.length, courseId }
+}

@@ -1,0 +1,138 @@
+import { existsSync } from 'node:fs'
+import path from 'node:path'
+import cookieParser from 'cookie-parser'
+import express from 'express'
+import session from 'express-session'
+import MySQLStoreFactory from 'express-mysql-session'
+import helmet from 'helmet'
+import { pinoHttp } from 'pino-http'
+import { createCsrf } from './auth/csrf'
+import { createPassport } from './auth/passport'
+import type { Config } from './config'
+import { dbConnectionOptions } from './config'
+import type { Database } from './db/client'
+import type { Logger } from './logger'
+import { apiNotFound, errorHandler } from './middleware/error-handler'
+import { SESSION_COOKIE, authRoutes } from './routes/auth'
+import { courseRoutes } from './routes/courses'
+import { healthRoutes } from './routes/health'
+
+export interface AppDeps {
+  config: Config
+  db: Database
+  logger: Logger
+}
+
+export interface CreatedApp {
+  app: express.Express
+  /** Closes what the app itself opened (the session store's pool); the caller owns `db`. */
+  close: () => Promise<void>
+}
+
+/** Builds the Express app without listening, so tests drive it through supertest. */
+export function createApp({ config, db, logger }: AppDeps): CreatedApp {
+  const app = express()
+  const secureCookies = config.APP_URL.startsWith('https://')
+  if (config.TRUST_PROXY > 0) app.set('trust proxy', config.TRUST_PROXY)
+  app.disable('x-powered-by')
+
+  app.use(
+    pinoHttp({
+      logger,
+      // Health probes would drown the log.
+      autoLogging: { ignore: (req) => req.url === '/api/health' },
+      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
+    }),
+  )
+
+  // Content-Security-Policy: our own origin only. Styles allow inline attributes because
+  // PrimeVue's theme and KaTeX's layout set style attributes at run time.
+  // https://helmetjs.github.io/#content-security-policy
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: false,
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          baseUri: ["'self'"],
+          formAction: ["'self'"],
+          frameAncestors: ["'none'"],
+          ...(secureCookies ? { upgradeInsecureRequests: [] } : {}),
+        },
+      },
+      crossOriginEmbedderPolicy: false,
+    }),
+  )
+
+  app.use(express.json({ limit: '1mb' }))
+  app.use(express.urlencoded({ extended: false, limit: '100kb' }))
+  app.use(cookieParser())
+
+  // Sessions live in MariaDB so any replica can serve any request.
+  // https://github.com/chill117/express-mysql-session#usage
+  const MySQLStore = MySQLStoreFactory(session)
+  const store = new MySQLStore({
+    ...dbConnectionOptions(config),
+    createDatabaseTable: true,
+    clearExpired: true,
+    checkExpirationInterval: 15 * 60_000,
+    schema: { tableName: 'sessions', columnNames: { session_id: 'session_id', expires: 'expires', data: 'data' } },
+  })
+  app.use(
+    session({
+      name: SESSION_COOKIE,
+      secret: config.SESSION_SECRET,
+      store,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      cookie: {
+        httpOnly: true,
+        sameSite: 'lax',
+        secure: secureCookies,
+        maxAge: config.SESSION_MAX_AGE_HOURS * 3_600_000,
+      },
+    }),
+  )
+
+  const passport = createPassport(db, {
+    maxFailures: config.SIGNIN_MAX_FAILURES,
+    windowMinutes: config.SIGNIN_WINDOW_MINUTES,
+  })
+  app.use(passport.session())
+
+  const csrf = createCsrf(config.SESSION_SECRET, secureCookies)
+  const api = express.Router()
+  api.use('/health', healthRoutes(db))
+  // Every state-changing request below needs the CSRF header (GET/HEAD/OPTIONS do not).
+  api.use(csrf.protect)
+  api.use('/auth', authRoutes(passport, csrf))
+  api.use('/courses', courseRoutes(db))
+  api.use(apiNotFound)
+  app.use('/api', api)
+
+  const dist = path.resolve(config.CLIENT_DIST)
+  if (config.CLIENT_DIST && existsSync(path.join(dist, 'index.html'))) {
+    app.use(express.static(dist, { index: false, maxAge: '1h' }))
+    // Client-side routes: every other GET gets the single-page app.
+    app.use((req, res, next) => {
+      if (req.method !== 'GET' && req.method !== 'HEAD') return next()
+      res.sendFile(path.join(dist, 'index.html'))
+    })
+  }
+
+  app.use(errorHandler)
+
+  return {
+    app,
+    close: async () => {
+      await store.close()
+    },
+  }
+}

@@ -1,0 +1,6 @@
+export * from './users'
+export * from './courses'
+export * from './sections'
+export * from './lab-groups'
+export * from './enrollments'
+export * from './sign-in-failures'

@@ -1,0 +1,39 @@
+import type { Server } from 'node:http'
+import { createApp } from './app'
+import { ConfigError, dbConnectionOptions, loadConfig } from './config'
+import { createDb } from './db/client'
+import { createLogger } from './logger'
+
+// Entry point: read configuration, listen, and shut down cleanly on SIGINT/SIGTERM.
+let config
+try {
+  config = loadConfig()
+} catch (err) {
+  if (err instanceof ConfigError) {
+    process.stderr.write(`${err.message}\n`)
+    process.exit(78) // EX_CONFIG
+  }
+  throw err
+}
+
+const logger = createLogger(config.LOG_LEVEL)
+const dbHandle = createDb({ ...dbConnectionOptions(config), poolSize: config.DB_POOL_SIZE })
+const { app, close } = createApp({ config, db: dbHandle.db, logger })
+
+const server: Server = app.listen(config.PORT, config.HOST, () => {
+  logger.info({ url: `http://${config.HOST}:${config.PORT}`, appUrl: config.APP_URL }, 'Isentrope is listening')
+})
+
+let stopping = false
+async function shutdown(signal: string): Promise<void> {
+  if (stopping) return
+  stopping = true
+  logger.info({ signal }, 'shutting down')
+  server.close()
+  server.closeAllConnections()
+  await close().catch((err: unknown) => logger.warn({ err }, 'session store close failed'))
+  await dbHandle.close().catch((err: unknown) => logger.warn({ err }, 'database pool close failed'))
+  process.exit(0)
+}
+process.on('SIGINT', () => void shutdown('SIGINT'))
+process.on('SIGTERM', () => void shutdown('SIGTERM'))

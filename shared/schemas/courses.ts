@@ -1,0 +1,64 @@
+import { z } from 'zod'
+import type { CourseRole } from './auth'
+
+const isTimeZone = (tz: string): boolean => {
+  try {
+    new Intl.DateTimeFormat('en-US', { timeZone: tz })
+    return true
+  } catch {
+    return false
+  }
+}
+
+/** Creating a course (site administrators). */
+export const CreateCourseSchema = z.object({
+  code: z.string().trim().min(2, 'Course code needs at least 2 characters.').max(32, 'Course code: at most 32 characters.'),
+  title: z.string().trim().min(3, 'Title needs at least 3 characters.').max(200, 'Title: at most 200 characters.'),
+  term: z.string().trim().min(2, 'Term needs at least 2 characters.').max(40, 'Term: at most 40 characters.'),
+  institution: z.string().trim().min(2, 'Institution needs at least 2 characters.').max(200),
+  timeZone: z.string().trim().refine(isTimeZone, 'Time zone must be an IANA name such as America/Denver.'),
+})
+export type CreateCourse = z.infer<typeof CreateCourseSchema>
+
+/** `:courseId` and similar path parameters. */
+export const CourseIdParamsSchema = z.object({
+  courseId: z.coerce.number({ error: 'courseId must be a number.' }).int().positive('courseId must be a positive whole number.'),
+})
+
+export interface CourseSummary {
+  id: number
+  code: string
+  title: string
+  term: string
+  institution: string
+  timeZone: string
+  role: CourseRole
+  sectionName: string | null
+  labGroupName: string | null
+}
+
+export interface SectionSummary {
+  id: number
+  name: string
+  meets: string
+  studentCount: number
+  tas: string[]
+}
+
+export interface CourseHome {
+  course: CourseSummary
+  /** Staff only; an empty list for students. */
+  sections: SectionSummary[]
+  /** My lab-group partners (students), names only. */
+  labGroupMembers: string[]
+  counts: { students: number; tas: number; instructors: number }
+}
+
+export interface RosterEntry {
+  userId: number
+  displayName: string
+  email: string
+  role: CourseRole
+  sectionName: string | null
+  labGroupName: string | null
+}
