@@ -1,0 +1,117 @@
+/**
+ * Argument checks shared by the formula library.
+ *
+ * Every check throws a RangeError whose message names the argument, states the allowed range and
+ * shows the value received, e.g. `gamma must be a finite number greater than 1 (got 1)`. The
+ * functions may be called from JavaScript, from expressions typed by people or with values parsed
+ * from uploaded files, so the checks also reject non-numbers instead of trusting the types.
+ */
+
+/** Renders a received value for an error message: numbers as JavaScript prints them, others tagged with their type. */
+export function describeValue(value: unknown): string {
+  if (typeof value === 'number') return String(value)
+  if (typeof value === 'string') return `"${value}" (a string)`
+  if (value === null) return 'null'
+  if (Array.isArray(value)) return `an array of length ${value.length}`
+  return `${String(value)} (a ${typeof value})`
+}
+
+function isFiniteNumber(value: unknown): value is number {
+  return typeof value === 'number' && Number.isFinite(value)
+}
+
+function fail(name: string, allowed: string, value: unknown): never {
+  throw new RangeError(`${name} must be ${allowed} (got ${describeValue(value)})`)
+}
+
+/** Requires a finite number (rejects NaN, ±Infinity and non-numbers). */
+export function requireFinite(name: string, value: number): number {
+  if (!isFiniteNumber(value)) fail(name, 'a finite number', value)
+  return value
+}
+
+/** Requires a finite number greater than 0. */
+export function requirePositive(name: string, value: number): number {
+  if (!isFiniteNumber(value) || !(value > 0)) fail(name, 'a finite number greater than 0', value)
+  return value
+}
+
+/** Requires a finite number of at least 0. */
+export function requireNonNegative(name: string, value: number): number {
+  if (!isFiniteNumber(value) || !(value >= 0)) fail(name, 'a finite number of at least 0', value)
+  return value
+}
+
+/**
+ * Requires a finite number of at least `bound`. `boundText` describes the bound when it is not a
+ * plain constant (e.g. `throatArea (0.0001)`).
+ */
+export function requireAtLeast(name: string, value: number, bound: number, boundText = String(bound)): number {
+  if (!isFiniteNumber(value) || !(value >= bound)) fail(name, `a finite number of at least ${boundText}`, value)
+  return value
+}
+
+/** Requires a finite number strictly greater than `bound`. */
+export function requireGreaterThan(name: string, value: number, bound: number, boundText = String(bound)): number {
+  if (!isFiniteNumber(value) || !(value > bound)) fail(name, `a finite number greater than ${boundText}`, value)
+  return value
+}
+
+/** Bounds of an interval for {@link requireInterval}; `open` excludes the end point. */
+export interface IntervalEnd {
+  value: number
+  open: boolean
+  /** How the bound is named in the message; defaults to the number. */
+  text?: string
+}
+
+/** Requires a finite number inside an interval whose ends may each be open or closed. */
+export function requireInterval(name: string, value: number, lower: IntervalEnd, upper: IntervalEnd): number {
+  const lowerOk = lower.open ? value > lower.value : value >= lower.value
+  const upperOk = upper.open ? value < upper.value : value <= upper.value
+  if (!isFiniteNumber(value) || !lowerOk || !upperOk) {
+    const lowText = lower.text ?? String(lower.value)
+    const highText = upper.text ?? String(upper.value)
+    const low = lower.open ? `greater than ${lowText}` : `of at least ${lowText}`
+    const high = upper.open ? `less than ${highText}` : `at most ${highText}`
+    fail(name, `a finite number ${low} and ${high}`, value)
+  }
+  return value
+}
+
+/** Requires a ratio of specific heats: a finite number greater than 1. */
+export function requireGamma(gamma: number, name = 'gamma'): number {
+  return requireGreaterThan(name, gamma, 1)
+}
+
+/** Requires one of a fixed set of strings. */
+export function requireOneOf<T extends string>(name: string, value: unknown, options: readonly T[]): T {
+  if (typeof value !== 'string' || !(options as readonly string[]).includes(value)) {
+    fail(name, `one of ${options.map((o) => `'${o}'`).join(', ')}`, value)
+  }
+  return value as T
+}
+
+/** Requires an array of finite numbers with at least `minLength` entries; the message names the bad index. */
+export function requireSamples(name: string, values: readonly number[], minLength = 1): readonly number[] {
+  if (!Array.isArray(values)) fail(name, `an array of at least ${minLength} finite numbers`, values)
+  if (values.length < minLength) {
+    throw new RangeError(`${name} must have at least ${minLength} samples (got ${values.length})`)
+  }
+  values.forEach((v, i) => {
+    if (!isFiniteNumber(v)) fail(`${name}[${i}]`, 'a finite number', v)
+  })
+  return values
+}
+
+/** Requires two sample arrays of equal length. */
+export function requireSameLength(nameA: string, a: readonly unknown[], nameB: string, b: readonly unknown[]): void {
+  if (a.length !== b.length) {
+    throw new RangeError(`${nameA} and ${nameB} must have the same length (got ${a.length} and ${b.length})`)
+  }
+}
+
+/** Requires a plain object of named inputs (for the functions that take one). */
+export function requireObject(name: string, value: unknown): void {
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) fail(name, 'an object of named inputs', value)
+}
