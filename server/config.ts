@@ -37,7 +37,9 @@ const ConfigSchema = z
     APP_URL: z.string().url().default('http://127.0.0.1:3000'),
     LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
     DB_POOL_SIZE: z.coerce.number().int().positive().default(10),
-    SESSION_SECRET: z.string().min(32, 'SESSION_SECRET must be at least 32 characters'),
+    SESSION_SECRET: z
+      .string({ error: 'required: a random secret of at least 32 characters that signs session cookies' })
+      .min(32, 'SESSION_SECRET must be at least 32 characters'),
     SESSION_MAX_AGE_HOURS: z.coerce.number().positive().default(12),
     /** Trust X-Forwarded-* from this many proxies (a load balancer in front). */
     TRUST_PROXY: z.coerce.number().int().min(0).default(0),
@@ -53,7 +55,6 @@ const ConfigSchema = z
     /** Folder of the built client to serve; empty to serve the API only. */
     CLIENT_DIST: z.string().default('dist/client'),
   })
-  .superRefine(requireDb)
 
 export type Config = z.infer<typeof ConfigSchema>
 
@@ -69,7 +70,15 @@ function parseOrExplain<T>(schema: z.ZodType<T>, env: NodeJS.ProcessEnv): T {
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
-  return parseOrExplain(ConfigSchema, env)
+  // Both checks run so one message lists everything that is missing.
+  const db = DbEnvSchema.safeParse(env)
+  const all = ConfigSchema.safeParse(env)
+  if (!db.success || !all.success) {
+    const issues = [...(all.success ? [] : all.error.issues), ...(db.success ? [] : db.error.issues)]
+    const lines = [...new Set(issues.map((i) => `  - ${i.path.join('.') || '(root)'}: ${i.message}`))]
+    throw new ConfigError(`Isentrope cannot start: the configuration is incomplete.\n${lines.join('\n')}`)
+  }
+  return all.data
 }
 
 /** Only the database variables: for migrations and the seed, which need nothing else. */

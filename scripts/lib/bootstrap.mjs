@@ -203,7 +203,7 @@ export function startMaildev({ smtpPort, webPort, dir }) {
   const child = spawn(
     process.execPath,
     [
-      path.join(ROOT, 'node_modules', 'maildev', 'bin', 'maildev'),
+      path.join(ROOT, 'node_modules', 'maildev', 'dist', 'bin', 'maildev.js'),
       '--ip', '127.0.0.1',
       '--web-ip', '127.0.0.1',
       '--smtp', String(smtpPort),

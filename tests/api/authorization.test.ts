@@ -1,0 +1,152 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Client, Fixture, TestContext } from '../helpers/app'
+import { anonymous, seedFixture, signedInAs, startTestApp } from '../helpers/app'
+import { listRoutes } from '../helpers/routes'
+
+/**
+ * The authorization matrix: for every API route, the status each kind of caller gets.
+ * "outsider" is signed in but not enrolled in the fixture course. A course you are not in
+ * answers 404 (it does not exist for you); the wrong role in your own course answers 403.
+ */
+type Who = 'anon' | 'outsider' | 'student' | 'ta' | 'instructor' | 'admin'
+interface Case {
+  route: string
+  call: (c: Client, fx: Fixture) => Promise<{ status: number }>
+  expect: Record<Who, number>
+}
+
+const newCourse = () => ({
+  code: `N${Math.random().toString(36).slice(2, 8)}`,
+  title: 'Matrix-created course',
+  term: 'Test term',
+  institution: 'Test University (fictional)',
+  timeZone: 'America/Denver',
+})
+
+const CASES: Case[] = [
+  {
+    route: 'GET /api/health',
+    call: (c) => c.agent.get('/api/health'),
+    expect: { anon: 200, outsider: 200, student: 200, ta: 200, instructor: 200, admin: 200 },
+  },
+  {
+    route: 'GET /api/auth/session',
+    call: (c) => c.agent.get('/api/auth/session'),
+    expect: { anon: 200, outsider: 200, student: 200, ta: 200, instructor: 200, admin: 200 },
+  },
+  {
+    route: 'POST /api/auth/sign-in',
+    // Wrong password for whoever calls: only the credentials decide, never the caller's session.
+    call: (c) =>
+      c.agent
+        .post('/api/auth/sign-in')
+        .set('x-csrf-token', c.csrf)
+        .send({ email: `nobody-${Math.random().toString(36).slice(2)}@test.example`, password: 'wrong' }),
+    expect: { anon: 401, outsider: 401, student: 401, ta: 401, instructor: 401, admin: 401 },
+  },
+  {
+    route: 'POST /api/auth/sign-out',
+    call: (c) => c.agent.post('/api/auth/sign-out').set('x-csrf-token', c.csrf),
+    expect: { anon: 200, outsider: 200, student: 200, ta: 200, instructor: 200, admin: 200 },
+  },
+  {
+    route: 'GET /api/courses',
+    call: (c) => c.agent.get('/api/courses'),
+    expect: { anon: 401, outsider: 200, student: 200, ta: 200, instructor: 200, admin: 200 },
+  },
+  {
+    route: 'POST /api/courses',
+    call: (c) => c.agent.post('/api/courses').set('x-csrf-token', c.csrf).send(newCourse()),
+    expect: { anon: 401, outsider: 403, student: 403, ta: 403, instructor: 403, admin: 201 },
+  },
+  {
+    route: 'GET /api/courses/:courseId',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/roster',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/roster`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+]
+
+let ctx: TestContext
+let fx: Fixture
+
+beforeAll(async () => {
+  ctx = startTestApp()
+  fx = await seedFixture(ctx)
+})
+afterAll(async () => {
+  await ctx.close()
+})
+
+async function clientFor(who: Who): Promise<Client> {
+  if (who === 'anon') return anonymous(ctx)
+  return signedInAs(ctx, fx[who].email)
+}
+
+describe('authorization matrix', () => {
+  it('covers every API route the app registers', () => {
+    const registered = listRoutes(ctx.created.app).filter((r) => r.includes(' /api/'))
+    expect(registered).toEqual(CASES.map((c) => c.route).sort())
+  })
+
+  for (const c of CASES) {
+    for (const who of Object.keys(c.expect) as Who[]) {
+      it(`${c.route} as ${who} → ${c.expect[who]}`, async () => {
+        const client = await clientFor(who)
+        const res = await c.call(client, fx)
+        expect(res.status).toBe(c.expect[who])
+      })
+    }
+  }
+})
+
+describe('what each person can see', () => {
+  it('a student sees only their own courses', async () => {
+    const c = await signedInAs(ctx, fx.student.email)
+    const res = await c.agent.get('/api/courses').expect(200)
+    expect(res.body.map((x: { id: number }) => x.id)).toEqual([fx.courseId])
+  })
+
+  it('a student cannot read a course they are not in, even by guessing its id', async () => {
+    const c = await signedInAs(ctx, fx.student.email)
+    const res = await c.agent.get(`/api/courses/${fx.otherCourseId}`)
+    expect(res.status).toBe(404)
+    expect(res.body.error.code).toBe('not_found')
+  })
+
+  it('a student sees no section list or e-mail addresses on the course home', async () => {
+    const c = await signedInAs(ctx, fx.student.email)
+    const res = await c.agent.get(`/api/courses/${fx.courseId}`).expect(200)
+    expect(res.body.sections).toEqual([])
+    expect(JSON.stringify(res.body)).not.toContain('@test.example')
+  })
+
+  it('staff see the sections with their TAs', async () => {
+    const c = await signedInAs(ctx, fx.instructor.email)
+    const res = await c.agent.get(`/api/courses/${fx.courseId}`).expect(200)
+    expect(res.body.sections.map((s: { name: string }) => s.name)).toEqual(['A', 'B'])
+    expect(res.body.sections[0].tas).toHaveLength(1)
+    expect(res.body.counts).toEqual({ students: 2, tas: 1, instructors: 1 })
+  })
+
+  it('a site admin who creates a course becomes its instructor', async () => {
+    const c = await signedInAs(ctx, fx.admin.email)
+    const body = newCourse()
+    const res = await c.agent.post('/api/courses').set('x-csrf-token', c.csrf).send(body).expect(201)
+    expect(res.body).toMatchObject({ code: body.code, role: 'instructor' })
+    const dup = await c.agent.post('/api/courses').set('x-csrf-token', c.csrf).send(body)
+    expect(dup.status).toBe(409)
+    expect(dup.body.error.code).toBe('course_exists')
+  })
+
+  it('a non-numeric course id is a 400 that names the parameter', async () => {
+    const c = await signedInAs(ctx, fx.student.email)
+    const res = await c.agent.get('/api/courses/abc')
+    expect(res.status).toBe(400)
+    expect(res.body.error.message).toContain('courseId')
+  })
+})
