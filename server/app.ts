@@ -67,6 +67,8 @@ export function createApp({ config, db, logger }: AppDeps): CreatedApp {
         },
       },
       crossOriginEmbedderPolicy: false,
+      // HSTS only makes sense when the site is served over TLS.
+      strictTransportSecurity: secureCookies ? { maxAge: 31_536_000, includeSubDomains: true } : false,
     }),
   )
 
