@@ -112,7 +112,15 @@ export const SI_UNITS: Readonly<Record<UnitKind, UnitSymbol>> = {
 
 const SYMBOLS = Object.keys(UNITS) as UnitSymbol[]
 
-/** Whether a string is a symbol of the unit table (case-sensitive: 'mm' and 'Mm' differ). */
+/**
+ * Whether a string is a symbol of the unit table (case-sensitive: 'mm' and 'Mm' differ).
+ *
+ * @param symbol - the text to test, e.g. what a person typed after a number
+ * @returns true when it is a key of {@link UNITS}
+ * @example
+ * isUnitSymbol('psi')  // true
+ * isUnitSymbol('psig') // false: gauge readings go through gaugeToAbsolute
+ */
 export function isUnitSymbol(symbol: string): symbol is UnitSymbol {
   return Object.prototype.hasOwnProperty.call(UNITS, symbol)
 }
@@ -140,6 +148,8 @@ export function unitKind(symbol: UnitSymbol): UnitKind {
 /**
  * The unit symbols of one kind, in table order (for unit pickers).
  *
+ * @param kind - a unit kind
+ * @returns the symbols of that kind
  * @example
  * unitsOfKind('force') // ['N', 'kN', 'kgf', 'lbf']
  */

@@ -63,7 +63,21 @@ export function dischargeMassFlow(
   )
 }
 
-/** {@link dischargeMassFlow} without argument checks; a back pressure at or above p0 gives 0 (no reverse flow). */
+/**
+ * {@link dischargeMassFlow} without argument checks; same equations and source. A back pressure at
+ * or above p0 gives 0 (no reverse flow is modelled).
+ *
+ * @param p0 - upstream pressure, Pa absolute, > 0 (not checked)
+ * @param t0 - upstream temperature, K, > 0 (not checked)
+ * @param pb - back pressure, Pa absolute, ≥ 0 (not checked)
+ * @param area - m², > 0 (not checked)
+ * @param cd - discharge coefficient, in (0, 1] (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @param gasConstant - J/(kg·K), > 0 (not checked)
+ * @returns mass flow, kg/s, ≥ 0
+ * @example
+ * dischargeMassFlowUnchecked(2e5, 300, 1e5, 1e-5, 1, 1.4, 287) // ≈ 0.0046671 kg/s (just choked)
+ */
 export function dischargeMassFlowUnchecked(
   p0: number,
   t0: number,

@@ -50,7 +50,16 @@ export function isentropic(mach: number, gamma: number): IsentropicRatios {
   return isentropicUnchecked(mach, gamma)
 }
 
-/** {@link isentropic} without argument checks, for callers that have already checked them. */
+/**
+ * {@link isentropic} without argument checks, for library code that has already checked them.
+ * Same equations and source as {@link isentropic}.
+ *
+ * @param mach - Mach number, ≥ 0 (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns p/p0, T/T0, ρ/ρ0 and A/A*, dimensionless
+ * @example
+ * isentropicUnchecked(1, 1.4).pressureRatio // ≈ 0.528282
+ */
 export function isentropicUnchecked(mach: number, gamma: number): IsentropicRatios {
   const stagnationToStatic = 1 + 0.5 * (gamma - 1) * mach * mach
   const temperatureRatio = 1 / stagnationToStatic
@@ -61,14 +70,31 @@ export function isentropicUnchecked(mach: number, gamma: number): IsentropicRati
   return { pressureRatio, temperatureRatio, densityRatio, areaRatio }
 }
 
-/** A/A* at a Mach number, without argument checks. */
+/**
+ * A/A* = (1/M)·[(2/(γ+1))·(1 + (γ−1)/2·M²)]^((γ+1)/(2(γ−1))) without argument checks
+ * (NACA Report 1135, eq. 80, from memory).
+ *
+ * @param mach - Mach number, ≥ 0 (Infinity is returned at 0; not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns A/A*, dimensionless
+ * @example
+ * areaRatioUnchecked(3, 1.4) // ≈ 4.23457
+ */
 export function areaRatioUnchecked(mach: number, gamma: number): number {
   if (mach === 0) return Infinity
   const t = (2 / (gamma + 1)) * (1 + 0.5 * (gamma - 1) * mach * mach)
   return t ** ((gamma + 1) / (2 * (gamma - 1))) / mach
 }
 
-/** p/p0 at a Mach number, without argument checks. */
+/**
+ * p/p0 = (1 + (γ−1)/2·M²)^(−γ/(γ−1)) without argument checks (NACA Report 1135, eq. 44, from memory).
+ *
+ * @param mach - Mach number, ≥ 0 (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns p/p0, dimensionless
+ * @example
+ * pressureRatioUnchecked(2, 1.4) // ≈ 0.127805
+ */
 export function pressureRatioUnchecked(mach: number, gamma: number): number {
   return (1 + 0.5 * (gamma - 1) * mach * mach) ** (-gamma / (gamma - 1))
 }
@@ -112,7 +138,15 @@ export function machFromPressureRatio(pressureRatio: number, gamma: number): num
   return machFromPressureRatioUnchecked(pressureRatio, gamma)
 }
 
-/** {@link machFromPressureRatio} without argument checks. */
+/**
+ * {@link machFromPressureRatio} without argument checks; same equation and source.
+ *
+ * @param pressureRatio - p/p0 in (0, 1] (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns Mach number, dimensionless
+ * @example
+ * machFromPressureRatioUnchecked(0.528282, 1.4) // ≈ 1.0000
+ */
 export function machFromPressureRatioUnchecked(pressureRatio: number, gamma: number): number {
   // max() also turns the −0 that expm1(−0) gives at p/p0 = 1 into +0.
   return Math.sqrt(Math.max(0, (2 / (gamma - 1)) * Math.expm1((-(gamma - 1) / gamma) * Math.log(pressureRatio))))
@@ -168,6 +202,16 @@ const MAX_AREA_RATIO_ITERATIONS = 60
  * a step that would leave the bracket [0, asymptote] is replaced by bisection. It stops after a
  * Halley step smaller than 1e-5·min(1, |u|), after which the error in u = ln M (the relative error
  * in M) is of order (1e-5)³·min(1, |u|).
+ *
+ * Source: the area–Mach relation of NACA Report 1135, eq. 80 (from memory); Halley's method, e.g.
+ * Press et al., Numerical Recipes, 3rd ed., section 9.4 (from memory).
+ *
+ * @param areaRatio - A/A*, finite, ≥ 1 (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @param supersonic - true for the supersonic branch, false for the subsonic one
+ * @returns the Mach number and the number of Halley (or bisection) steps taken
+ * @example
+ * solveMachFromAreaRatio(4.2346, 1.4, true) // → { mach: ≈ 3.00001, iterations: 3 }
  */
 export function solveMachFromAreaRatio(areaRatio: number, gamma: number, supersonic: boolean): AreaRatioSolution {
   if (areaRatio === 1) return { mach: 1, iterations: 0 }

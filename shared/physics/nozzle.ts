@@ -112,7 +112,18 @@ export function chokedMassFlow(
   return chokedMassFlowUnchecked(chamberPressure, chamberTemperature, throatArea, gamma, gasConstant)
 }
 
-/** {@link chokedMassFlow} without argument checks. */
+/**
+ * {@link chokedMassFlow} without argument checks; same equation and source.
+ *
+ * @param p0 - chamber pressure, Pa absolute, > 0 (not checked)
+ * @param t0 - chamber temperature, K, > 0 (not checked)
+ * @param throatArea - m², > 0 (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @param gasConstant - J/(kg·K), > 0 (not checked)
+ * @returns mass flow, kg/s
+ * @example
+ * chokedMassFlowUnchecked(1e6, 300, 1e-4, 1.4, 287) // ≈ 0.23336 kg/s
+ */
 export function chokedMassFlowUnchecked(p0: number, t0: number, throatArea: number, gamma: number, gasConstant: number): number {
   return throatArea * p0 * Math.sqrt(gamma / (gasConstant * t0)) * (2 / (gamma + 1)) ** ((gamma + 1) / (2 * (gamma - 1)))
 }

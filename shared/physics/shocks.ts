@@ -48,7 +48,16 @@ export function normalShock(mach1: number, gamma: number): NormalShock {
   return normalShockUnchecked(mach1, gamma)
 }
 
-/** {@link normalShock} without argument checks (a Mach number a rounding error below 1 is treated as 1). */
+/**
+ * {@link normalShock} without argument checks; same equations and source. A Mach number a rounding
+ * error below 1 is treated as 1.
+ *
+ * @param mach1 - upstream Mach number, ≥ 1 (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns M2 and the ratios p2/p1, T2/T1, ρ2/ρ1, p02/p01
+ * @example
+ * normalShockUnchecked(3, 1.4).stagnationPressureRatio // ≈ 0.328344
+ */
 export function normalShockUnchecked(mach1: number, gamma: number): NormalShock {
   const m2 = Math.max(mach1 * mach1, 1)
   const mach2 = Math.sqrt((1 + 0.5 * (gamma - 1) * m2) / (gamma * m2 - 0.5 * (gamma - 1)))
@@ -59,7 +68,17 @@ export function normalShockUnchecked(mach1: number, gamma: number): NormalShock 
   return { mach2, pressureRatio, temperatureRatio, densityRatio, stagnationPressureRatio }
 }
 
-/** p02/p01 across a normal shock at upstream Mach `mach1` (NACA Report 1135, eq. 99), without checks. */
+/**
+ * Stagnation pressure ratio across a normal shock, without argument checks:
+ * p02/p01 = [(γ+1)M1²/((γ−1)M1² + 2)]^(γ/(γ−1)) · [(γ+1)/(2γM1² − (γ−1))]^(1/(γ−1)).
+ * Source: NACA Report 1135, eq. 99 (from memory).
+ *
+ * @param mach1 - upstream Mach number, ≥ 1 (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns p02/p01, dimensionless, in (0, 1]
+ * @example
+ * stagnationPressureRatioUnchecked(2, 1.4) // ≈ 0.720874
+ */
 export function stagnationPressureRatioUnchecked(mach1: number, gamma: number): number {
   const m2 = Math.max(mach1 * mach1, 1)
   const densityRatio = ((gamma + 1) * m2) / (2 + (gamma - 1) * m2)
@@ -68,8 +87,15 @@ export function stagnationPressureRatioUnchecked(mach1: number, gamma: number): 
 
 /**
  * Upstream Mach number of the normal shock with the given stagnation pressure ratio p02/p01
- * (inverse of NACA Report 1135 eq. 99), searched in [1, maxMach]; without argument checks.
- * The ratio falls monotonically from 1 at Mach 1, so a bracketed root finder is safe.
+ * (inverse of NACA Report 1135 eq. 99, from memory), searched in [1, maxMach] by Brent's method;
+ * without argument checks. The ratio falls monotonically from 1 at Mach 1, so the bracket is safe.
+ *
+ * @param ratio - p02/p01, dimensionless, in (0, 1]; values outside [p02/p01(maxMach), 1] are clamped
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @param maxMach - upper end of the search, ≥ 1
+ * @returns upstream Mach number, in [1, maxMach]
+ * @example
+ * machFromStagnationPressureRatioUnchecked(0.720874, 1.4, 10) // ≈ 2.0000
  */
 export function machFromStagnationPressureRatioUnchecked(ratio: number, gamma: number, maxMach: number): number {
   if (ratio >= 1) return 1
@@ -113,6 +139,13 @@ export interface MaxDeflection {
  * Flow deflection θ produced by an oblique shock of wave angle β (the θ–β–M relation), without
  * argument checks: tan θ = 2 cot β·(M1² sin²β − 1)/(M1²(γ + cos 2β) + 2), written with atan2 so
  * β = π/2 needs no cotangent. Source: NACA Report 1135, eq. 138; Anderson, eq. 4.17 (from memory).
+ *
+ * @param mach1 - upstream Mach number, ≥ 1 (not checked)
+ * @param waveAngle - wave angle β, rad, in [asin(1/M1), π/2] (not checked)
+ * @param gamma - ratio of specific heats, > 1 (not checked)
+ * @returns deflection θ, rad
+ * @example
+ * deflectionFromWaveAngleUnchecked(2, (39.3139 * Math.PI) / 180, 1.4) // ≈ 0.174533 rad (10°)
  */
 export function deflectionFromWaveAngleUnchecked(mach1: number, waveAngle: number, gamma: number): number {
   const m2 = mach1 * mach1
