@@ -1,0 +1,330 @@
+/**
+ * Module Markdown → sanitised HTML, the same function for the editor's preview in the browser and
+ * for the stored HTML on the server.
+ *
+ * - markdown-it with raw HTML off (any HTML in the Markdown is shown as text), links turned on for
+ *   bare URLs, and typographic quotes and dashes.
+ * - TeX between $…$ (inline) and $$…$$ (display) rendered by KaTeX with `trust: false` (no \href,
+ *   \url, \htmlStyle, \includegraphics …) and `throwOnError: false` (a TeX mistake shows as red text
+ *   with the error in its title, and {@link lintModuleBody} reports it).
+ * - A fenced block with the info string `calculator <kind>` becomes the placeholder the reading view
+ *   mounts a live calculator on: `<div class="isentrope-calculator" data-kind="nozzle"
+ *   data-defaults="{…json…}"></div>`. Its YAML body holds the calculator's starting inputs as
+ *   `name: value` lines (numbers, text or true/false).
+ * - The result is passed through sanitize-html with an allowlist (Markdown's tags, KaTeX's HTML,
+ *   MathML and SVG, the calculator placeholder); links may only be http, https, mailto or relative.
+ */
+import katex from 'katex'
+import MarkdownIt from 'markdown-it'
+import texmath from 'markdown-it-texmath'
+import sanitizeHtml from 'sanitize-html'
+import { parseDocument } from 'yaml'
+import type { ModuleIssue } from './front-matter'
+
+/** The live calculators a module can embed. */
+export const CALCULATOR_KINDS = ['isentropic', 'normal-shock', 'nozzle', 'blowdown'] as const
+export type CalculatorKind = (typeof CALCULATOR_KINDS)[number]
+
+/** Starting inputs of an embedded calculator. */
+export type CalculatorDefaults = Record<string, number | string | boolean>
+
+type CalculatorBlock = { ok: true; kind: CalculatorKind; defaults: CalculatorDefaults } | { ok: false; message: string }
+
+const CALCULATOR_INFO = /^calculator(?:\s|$)/
+const DEFAULT_NAME = /^[A-Za-z][A-Za-z0-9_]*$/
+const MAX_DEFAULTS = 40
+
+function isCalculatorKind(kind: string): kind is CalculatorKind {
+  return (CALCULATOR_KINDS as readonly string[]).includes(kind)
+}
+
+/** Reads a `calculator <kind>` block: its kind and its YAML of default inputs. */
+function readCalculatorBlock(info: string, content: string): CalculatorBlock {
+  const words = info.trim().split(/\s+/)
+  const kind = words[1]
+  const kinds = CALCULATOR_KINDS.join(', ')
+  if (kind === undefined) return { ok: false, message: `say which calculator, e.g. "calculator nozzle"; the kinds are ${kinds}` }
+  if (!isCalculatorKind(kind)) return { ok: false, message: `there is no calculator "${kind}"; the kinds are ${kinds}` }
+  if (words.length > 2) return { ok: false, message: `write only "calculator ${kind}" after the three backticks` }
+
+  const doc = parseDocument(content, { prettyErrors: false, uniqueKeys: true })
+  const problem = doc.errors[0] ?? doc.warnings[0]
+  if (problem) return { ok: false, message: `its inputs cannot be read as YAML: ${problem.message}` }
+  let data: unknown
+  try {
+    data = doc.toJS({ maxAliasCount: 10 })
+  } catch (error) {
+    return { ok: false, message: `its inputs cannot be read as YAML: ${(error as Error).message}` }
+  }
+  if (data === null || data === undefined) return { ok: true, kind, defaults: {} }
+  if (typeof data !== 'object' || Array.isArray(data)) {
+    return { ok: false, message: 'write its inputs as "name: value" lines, e.g. "chamberPressure: 500000"' }
+  }
+  const entries = Object.entries(data)
+  if (entries.length > MAX_DEFAULTS) return { ok: false, message: `a calculator takes at most ${MAX_DEFAULTS} inputs` }
+  const defaults: CalculatorDefaults = {}
+  for (const [name, value] of entries) {
+    if (!DEFAULT_NAME.test(name)) return { ok: false, message: `"${name}" is not an input name (letters, digits and _)` }
+    const fine =
+      (typeof value === 'number' && Number.isFinite(value)) ||
+      typeof value === 'boolean' ||
+      (typeof value === 'string' && value.length <= 200)
+    if (!fine) return { ok: false, message: `the input "${name}" must be a number, a short text or true/false` }
+    defaults[name] = value as number | string | boolean
+  }
+  return { ok: true, kind, defaults }
+}
+
+const KATEX_OPTIONS = {
+  throwOnError: false,
+  // No \href, \url, \includegraphics, \htmlClass, \htmlId, \htmlStyle, \htmlData.
+  trust: false,
+  output: 'htmlAndMathml',
+  // Non-standard TeX (e.g. Unicode letters in math) renders without console warnings.
+  strict: 'ignore',
+  // Bounds on what one formula can cost: sizes in em and macro expansions.
+  maxSize: 20,
+  maxExpand: 1000,
+} as const
+
+function createMarkdown() {
+  const md = new MarkdownIt({ html: false, linkify: true, typographer: true })
+  // markdown-it's own check lets data:image URLs through; we allow only web and mail links and
+  // relative ones. sanitize-html checks the same again on the output.
+  md.validateLink = (url: string) => {
+    const scheme = /^\s*([a-zA-Z][a-zA-Z0-9+.-]*):/.exec(url)
+    if (!scheme) return !/^\s*\/\//.test(url)
+    return ['http', 'https', 'mailto'].includes((scheme[1] as string).toLowerCase())
+  }
+  // katexOptions is copied because texmath writes into the object it is given.
+  md.use(texmath, { engine: katex, delimiters: 'dollars', katexOptions: { ...KATEX_OPTIONS } })
+
+  const fence = md.renderer.rules.fence
+  md.renderer.rules.fence = (tokens, idx, options, env, self) => {
+    const token = tokens[idx]
+    if (token && CALCULATOR_INFO.test(token.info.trim())) {
+      const block = readCalculatorBlock(token.info, token.content)
+      if (!block.ok) {
+        return `<div class="isentrope-module-error" role="note"><strong>Calculator block:</strong> ${md.utils.escapeHtml(block.message)}</div>\n`
+      }
+      const json = md.utils.escapeHtml(JSON.stringify(block.defaults))
+      return `<div class="isentrope-calculator" data-kind="${block.kind}" data-defaults="${json}"></div>\n`
+    }
+    return fence ? fence(tokens, idx, options, env, self) : self.renderToken(tokens, idx, options)
+  }
+  return md
+}
+
+const markdown = createMarkdown()
+
+// CSS values KaTeX writes into style attributes: lengths, colours, and a few keywords.
+const NUMBER = String.raw`-?(?:\d+(?:\.\d+)?|\.\d+)`
+const LENGTH = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt|mu|%)?$`)
+const LENGTHS = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt|mu|%)?(?:\s+${NUMBER}(?:em|ex|px|pt|mu|%)?){0,3}$`)
+const WIDTH = new RegExp(String.raw`^(?:${NUMBER}(?:em|ex|px|pt|mu|%)?|calc\(100% - ${NUMBER}em\))$`)
+const COLOR = /^(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}|rgba?\(\s*[\d.]+%?\s*,\s*[\d.]+%?\s*,\s*[\d.]+%?\s*(?:,\s*[\d.]+\s*)?\))$/
+const BORDER_STYLE = /^(?:solid|dashed|dotted|none)$/
+const BORDER = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt)?\s+(?:solid|dashed|dotted)(?:\s+(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}))?$`)
+
+const KATEX_STYLES: Record<string, RegExp[]> = {
+  'background-color': [COLOR],
+  border: [BORDER],
+  'border-bottom-width': [LENGTH],
+  'border-color': [COLOR],
+  'border-right-style': [BORDER_STYLE],
+  'border-right-width': [LENGTH],
+  'border-style': [BORDER_STYLE],
+  'border-top-width': [LENGTH],
+  'border-width': [LENGTH],
+  bottom: [LENGTH],
+  color: [COLOR],
+  height: [LENGTH],
+  left: [LENGTH],
+  margin: [LENGTHS],
+  'margin-left': [LENGTH],
+  'margin-right': [LENGTH],
+  'margin-top': [LENGTH],
+  'min-width': [LENGTH],
+  'padding-left': [LENGTH],
+  position: [/^relative$/],
+  'text-shadow': [LENGTHS],
+  top: [LENGTH],
+  'vertical-align': [LENGTH],
+  width: [WIDTH],
+}
+
+const MATHML_TAGS = [
+  'math',
+  'semantics',
+  'annotation',
+  'mrow',
+  'mi',
+  'mo',
+  'mn',
+  'ms',
+  'mtext',
+  'mspace',
+  'msup',
+  'msub',
+  'msubsup',
+  'mfrac',
+  'msqrt',
+  'mroot',
+  'mover',
+  'munder',
+  'munderover',
+  'mtable',
+  'mtr',
+  'mtd',
+  'mlabeledtr',
+  'mpadded',
+  'mphantom',
+  'mstyle',
+  'menclose',
+]
+
+// Presentation attributes only; no href (a link on any MathML element in some browsers).
+const MATHML_ATTRIBUTES = [
+  'mathvariant',
+  'mathcolor',
+  'mathbackground',
+  'mathsize',
+  'displaystyle',
+  'scriptlevel',
+  'stretchy',
+  'fence',
+  'separator',
+  'lspace',
+  'rspace',
+  'minsize',
+  'maxsize',
+  'symmetric',
+  'largeop',
+  'movablelimits',
+  'form',
+  'accent',
+  'accentunder',
+  'linethickness',
+  'columnalign',
+  'rowalign',
+  'columnspacing',
+  'rowspacing',
+  'columnlines',
+  'rowlines',
+  'frame',
+  'framespacing',
+  'equalrows',
+  'equalcolumns',
+  'width',
+  'height',
+  'depth',
+  'voffset',
+  'notation',
+  'linebreak',
+]
+
+const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
+  allowedTags: [
+    // Markdown
+    'p', 'h1', 'h2', 'h3', 'h4', 'h5', 'h6', 'blockquote', 'ul', 'ol', 'li', 'strong', 'em', 's', 'del',
+    'code', 'pre', 'hr', 'br', 'a', 'img', 'table', 'thead', 'tbody', 'tr', 'th', 'td',
+    // markdown-it-texmath's wrappers and KaTeX's HTML
+    'section', 'eqn', 'eq', 'span',
+    // KaTeX's SVG (square roots, stretchy arrows and accents)
+    'svg', 'path', 'line',
+    // the calculator placeholder and inline error boxes
+    'div',
+    ...MATHML_TAGS,
+  ],
+  allowedAttributes: {
+    a: ['href', 'title', 'rel'],
+    img: ['src', 'alt', 'title'],
+    ol: ['start'],
+    th: ['style'],
+    td: ['style'],
+    code: ['class'],
+    span: ['class', 'style', 'aria-hidden', 'title'],
+    section: ['class'],
+    div: ['class', 'role', 'data-kind', 'data-defaults'],
+    svg: ['xmlns', 'width', 'height', 'viewbox', 'preserveaspectratio', 'style'],
+    path: ['d'],
+    line: ['x1', 'y1', 'x2', 'y2', 'stroke-width'],
+    math: ['xmlns', 'display', ...MATHML_ATTRIBUTES],
+    annotation: ['encoding'],
+    ...Object.fromEntries(MATHML_TAGS.filter((t) => t !== 'math' && t !== 'annotation').map((t) => [t, MATHML_ATTRIBUTES])),
+    mpadded: [...MATHML_ATTRIBUTES, 'style'],
+  },
+  allowedClasses: {
+    code: ['language-*'],
+    div: ['isentrope-calculator', 'isentrope-module-error'],
+    section: ['eqno'],
+  },
+  allowedStyles: {
+    span: KATEX_STYLES,
+    svg: { width: [WIDTH], height: [LENGTH], 'min-width': [LENGTH] },
+    // \fcolorbox draws its frame with a style on <mpadded>.
+    mpadded: { border: [BORDER], 'background-color': [COLOR] },
+    th: { 'text-align': [/^(?:left|right|center)$/] },
+    td: { 'text-align': [/^(?:left|right|center)$/] },
+  },
+  allowedSchemes: ['http', 'https', 'mailto'],
+  allowedSchemesByTag: { img: ['http', 'https'] },
+  allowedSchemesAppliedToAttributes: ['href', 'src', 'cite'],
+  allowProtocolRelative: false,
+  disallowedTagsMode: 'discard',
+  transformTags: {
+    // External links: no referrer, no ranking credit for whatever a module links to.
+    a: (tagName, attribs) => {
+      const href = attribs.href ?? ''
+      const external = /^https?:/i.test(href)
+      const { rel: _rel, ...rest } = attribs
+      return { tagName, attribs: external ? { ...rest, rel: 'nofollow noopener noreferrer' } : rest }
+    },
+  },
+}
+
+/**
+ * Renders a module's Markdown body to sanitised HTML. Pure and deterministic: the same input gives
+ * the same output in the browser and on the server.
+ */
+export function renderModule(markdownText: string): string {
+  return sanitizeHtml(markdown.render(markdownText), SANITIZE_OPTIONS)
+}
+
+/**
+ * Problems in a module body that still render, but wrongly: calculator blocks with an unknown kind
+ * or unreadable inputs, and TeX that KaTeX cannot typeset. Lines count from 1 at the body's first
+ * line; add the body's starting line to point into the whole source.
+ */
+export function lintModuleBody(body: string): ModuleIssue[] {
+  const issues: ModuleIssue[] = []
+  const tokens = markdown.parse(body, {})
+  const lineOf = (map: [number, number] | null | undefined) => (map ? map[0] + 1 : undefined)
+  const add = (message: string, line: number | undefined) =>
+    issues.push(line === undefined ? { path: 'body', message } : { path: 'body', message, line })
+
+  const checkTex = (tex: string, displayMode: boolean, line: number | undefined) => {
+    try {
+      katex.renderToString(tex, { ...KATEX_OPTIONS, displayMode, throwOnError: true })
+    } catch (error) {
+      add(`TeX error in $${tex.length > 60 ? `${tex.slice(0, 60)}…` : tex}$: ${(error as Error).message}`, line)
+    }
+  }
+
+  for (const token of tokens) {
+    const line = lineOf(token.map)
+    if (token.type === 'fence' && CALCULATOR_INFO.test(token.info.trim())) {
+      const block = readCalculatorBlock(token.info, token.content)
+      if (!block.ok) add(`calculator block: ${block.message}`, line)
+    } else if (token.type === 'math_block' || token.type === 'math_block_eqno') {
+      checkTex(token.content, true, line)
+    } else if (token.type === 'inline') {
+      for (const child of token.children ?? []) {
+        if (child.type === 'math_inline' || child.type === 'math_inline_double') {
+          checkTex(child.content, child.type === 'math_inline_double', line)
+        }
+      }
+    }
+  }
+  return issues
+}

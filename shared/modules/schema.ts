@@ -1,0 +1,326 @@
+/**
+ * The front matter of a lab module: the single source of its type.
+ *
+ * A module is Markdown with YAML front matter. The front matter names the module, its due date and
+ * submission policy and, optionally, an assignment: the data a submission carries (tables with
+ * named, unit-bearing columns and scalar measurements), the results a student reports (each with an
+ * expected-value expression over the submission's own data, a tolerance and points) and review
+ * rules (expressions that flag a submission for staff, with a reason).
+ *
+ * Messages are written to be read by an instructor editing YAML: they say what is wrong in plain
+ * words; `front-matter.ts` adds the module name, the path and the line.
+ */
+import { z } from 'zod'
+import { RESERVED_NAMES } from './expression-names'
+import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, isDataUnit, isPressureUnit, isResultUnit } from './quantities'
+import { UNITS } from '../units'
+
+/** Longest expression accepted; a lab formula is a line or two, and the limit bounds parsing work. */
+export const MAX_EXPRESSION_LENGTH = 2000
+
+const KEY_PATTERN = /^[a-z][a-zA-Z0-9_]*$/
+
+const KeySchema = z
+  .string()
+  .max(40, 'a key has at most 40 characters')
+  .regex(KEY_PATTERN, 'a key starts with a lower-case letter and has only letters, digits and _ (for example chamber_pressure)')
+  .refine((k) => !RESERVED_NAMES.has(k), {
+    message: 'this key is the name of a function, constant or keyword of the expressions; choose another (for example add a suffix)',
+  })
+
+const TableKeySchema = z
+  .string()
+  .max(40, 'a key has at most 40 characters')
+  .regex(KEY_PATTERN, 'a key starts with a lower-case letter and has only letters, digits and _ (for example run_log)')
+
+const LabelSchema = z.string().trim().min(1, 'the label must not be empty').max(200, 'a label has at most 200 characters')
+
+const LOCAL_DATE_TIME = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/
+
+/** Whether a string is a real local date and time written like 2027-02-09T17:00 (seconds optional). */
+export function isLocalDateTime(text: string): boolean {
+  const m = LOCAL_DATE_TIME.exec(text)
+  if (!m) return false
+  const [year, month, day, hour, minute, second] = m.slice(1).map((x) => Number(x ?? 0)) as [
+    number,
+    number,
+    number,
+    number,
+    number,
+    number,
+  ]
+  if (month < 1 || month > 12 || hour > 23 || minute > 59 || second > 59) return false
+  // Day 0 of the next month is the last day of this one.
+  const daysInMonth = new Date(Date.UTC(year, month, 0)).getUTCDate()
+  return day >= 1 && day <= daysInMonth
+}
+
+/** A local date-time made comparable as text: seconds always present. */
+function comparableLocal(text: string): string {
+  return text.length === 16 ? `${text}:00` : text
+}
+
+/** Whether a string is an IANA time-zone name the platform knows (e.g. America/Denver). */
+export function isTimeZone(name: string): boolean {
+  try {
+    new Intl.DateTimeFormat('en-US', { timeZone: name })
+    return true
+  } catch {
+    return false
+  }
+}
+
+const LocalDateTimeSchema = z
+  .string()
+  .refine(isLocalDateTime, 'write a local date and time like 2027-02-09T17:00 (24-hour clock, no time zone)')
+
+const TimeZoneSchema = z.string().refine(isTimeZone, 'write an IANA time-zone name such as America/Denver')
+
+export const DueSchema = z.strictObject({
+  /** Local wall-clock time in `timeZone`. */
+  at: LocalDateTimeSchema,
+  /** IANA zone; when left out, the course's time zone is used. */
+  timeZone: TimeZoneSchema.optional(),
+})
+
+export const LateSchema = z.strictObject({
+  /** Last local time a late submission is accepted; left out means no limit. */
+  acceptUntil: LocalDateTimeSchema.optional(),
+  /** Fraction of the points taken off per day late, 0–1 (0.1 = 10 % a day). */
+  penaltyPerDay: z
+    .number()
+    .min(0, 'the penalty per day is a fraction from 0 to 1 (0.1 = 10 % a day)')
+    .max(1, 'the penalty per day is a fraction from 0 to 1 (0.1 = 10 % a day)'),
+})
+
+const PressureSenseSchema = z.enum(['gauge', 'absolute'])
+
+const dataUnitMessage = `use a unit symbol of the unit table (${Object.keys(UNITS).join(', ')}) or ${DIMENSIONLESS} for a dimensionless number`
+const DataUnitSchema = z.string().refine(isDataUnit, dataUnitMessage)
+const ResultUnitSchema = z
+  .string()
+  .refine(isResultUnit, `${dataUnitMessage}; results may also use ${Object.keys(RESULT_ONLY_UNITS).join(', ')}`)
+
+/** A pressure unit needs to say gauge or absolute; any other unit must not. */
+function checkPressureSense(value: { unit: string; pressure?: 'gauge' | 'absolute' | undefined }, ctx: z.RefinementCtx): void {
+  if (isPressureUnit(value.unit) && value.pressure === undefined) {
+    ctx.addIssue({
+      code: 'custom',
+      path: ['pressure'],
+      message: `a pressure in ${value.unit} must say whether it is read as gauge or absolute: add "pressure: gauge" or "pressure: absolute"`,
+    })
+  }
+  if (!isPressureUnit(value.unit) && value.pressure !== undefined && isDataUnit(value.unit)) {
+    ctx.addIssue({
+      code: 'custom',
+      path: ['pressure'],
+      message: `"pressure" applies only to pressure units, and ${value.unit} is not one; remove it`,
+    })
+  }
+}
+
+export const ColumnSchema = z
+  .strictObject({
+    key: KeySchema,
+    label: LabelSchema,
+    unit: DataUnitSchema,
+    pressure: PressureSenseSchema.optional(),
+    /** The column that holds the sample times. */
+    role: z.literal('time').optional(),
+  })
+  .superRefine((column, ctx) => {
+    checkPressureSense(column, ctx)
+    if (column.role === 'time' && dataUnitKind(column.unit) !== 'time') {
+      ctx.addIssue({ code: 'custom', path: ['unit'], message: `the time column must be in s or ms, not ${column.unit}` })
+    }
+  })
+
+export const TableSchema = z
+  .strictObject({
+    // The table's own key is not a name in expressions (its columns are), so it may be any key.
+    key: TableKeySchema,
+    label: LabelSchema,
+    /** Fewest data rows a submission's table must have. */
+    minRows: z.number().int('must be a whole number').min(2, 'a table needs at least 2 rows').default(10),
+    columns: z.array(ColumnSchema).min(1, 'a table needs at least one column'),
+  })
+  .superRefine((table, ctx) => {
+    const timeColumns = table.columns.flatMap((c, i) => (c.role === 'time' ? [i] : []))
+    for (const i of timeColumns.slice(1)) {
+      ctx.addIssue({ code: 'custom', path: ['columns', i, 'role'], message: 'a table has at most one column with role: time' })
+    }
+  })
+
+export const MeasurementSchema = z
+  .strictObject({
+    key: KeySchema,
+    label: LabelSchema,
+    unit: DataUnitSchema,
+    /** Smallest plausible value, in `unit`; a submission outside [min, max] is refused at the form. */
+    min: z.number().optional(),
+    /** Largest plausible value, in `unit`. */
+    max: z.number().optional(),
+    pressure: PressureSenseSchema.optional(),
+    /**
+     * The barometric (ambient) pressure of the test: gauge readings of the submission are made
+     * absolute with it before any expression sees them.
+     */
+    role: z.literal('ambient-pressure').optional(),
+  })
+  .superRefine((m, ctx) => {
+    checkPressureSense(m, ctx)
+    if (m.min !== undefined && m.max !== undefined && m.min > m.max) {
+      ctx.addIssue({ code: 'custom', path: ['max'], message: `max (${m.max}) is below min (${m.min})` })
+    }
+    if (m.role === 'ambient-pressure' && !(isPressureUnit(m.unit) && m.pressure === 'absolute')) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['role'],
+        message: 'the ambient pressure must be an absolute pressure (a barometer reading): give a pressure unit and "pressure: absolute"',
+      })
+    }
+  })
+
+const ExpressionTextSchema = z
+  .string()
+  .trim()
+  .min(1, 'the expression is empty')
+  .max(MAX_EXPRESSION_LENGTH, `an expression has at most ${MAX_EXPRESSION_LENGTH} characters`)
+
+export const ToleranceSchema = z
+  .strictObject({
+    /** Fraction of |expected| (0.05 = 5 %). */
+    relative: z
+      .number()
+      .min(0, 'a relative tolerance is a fraction from 0 to 1 (0.05 = 5 %)')
+      .max(1, 'a relative tolerance is a fraction from 0 to 1 (0.05 = 5 %); write 0.05 for 5 %')
+      .optional(),
+    /** In the result's unit. */
+    absolute: z.number().min(0, 'an absolute tolerance cannot be negative').optional(),
+  })
+  .refine((t) => t.relative !== undefined || t.absolute !== undefined, {
+    message: 'give a relative tolerance, an absolute tolerance, or both',
+  })
+
+export const PartialCreditSchema = z.strictObject({
+  /** Multiple of the tolerance within which partial credit is given (2 = within twice the tolerance). */
+  within: z.number().gt(1, 'a multiple of the tolerance, greater than 1 (2 = within twice the tolerance)'),
+  /** Fraction of the points given there, 0–1. */
+  fraction: z.number().min(0, 'a fraction of the points, from 0 to 1').max(1, 'a fraction of the points, from 0 to 1'),
+})
+
+export const ResultSpecSchema = z.strictObject({
+  key: KeySchema,
+  label: LabelSchema,
+  unit: ResultUnitSchema,
+  /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
+  expected: ExpressionTextSchema,
+  tolerance: ToleranceSchema,
+  points: z.number().positive('points must be greater than 0'),
+  partial: PartialCreditSchema.optional(),
+})
+
+export const ReviewRuleSchema = z.strictObject({
+  key: KeySchema,
+  /** Boolean expression over the data and the reported results; true flags the submission. */
+  when: ExpressionTextSchema,
+  /** What staff read in the review queue. */
+  reason: z.string().trim().min(1, 'say in words why the rule flags a submission').max(500, 'a reason has at most 500 characters'),
+})
+
+export const AssignmentSchema = z
+  .strictObject({
+    tables: z.array(TableSchema).default([]),
+    measurements: z.array(MeasurementSchema).default([]),
+    results: z.array(ResultSpecSchema).default([]),
+    reviewRules: z.array(ReviewRuleSchema).default([]),
+  })
+  .superRefine((a, ctx) => {
+    // Table keys, column keys, measurement keys and result keys share one namespace: the expressions'.
+    const seen = new Map<string, string>()
+    const claim = (key: string, path: (string | number)[]) => {
+      const where = path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${p}`)).join('').slice(1)
+      const first = seen.get(key)
+      if (first !== undefined) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [...path, 'key'],
+          message: `the key "${key}" is already used at assignment.${first}; keys of tables, columns, measurements and results must all differ`,
+        })
+      } else {
+        seen.set(key, where)
+      }
+    }
+    a.tables.forEach((t, i) => {
+      claim(t.key, ['tables', i])
+      t.columns.forEach((c, j) => claim(c.key, ['tables', i, 'columns', j]))
+    })
+    a.measurements.forEach((m, i) => claim(m.key, ['measurements', i]))
+    a.results.forEach((r, i) => claim(r.key, ['results', i]))
+
+    const ruleKeys = new Set<string>()
+    a.reviewRules.forEach((r, i) => {
+      if (ruleKeys.has(r.key)) {
+        ctx.addIssue({ code: 'custom', path: ['reviewRules', i, 'key'], message: `another review rule already has the key "${r.key}"` })
+      }
+      ruleKeys.add(r.key)
+    })
+
+    const ambient = a.measurements.flatMap((m, i) => (m.role === 'ambient-pressure' ? [i] : []))
+    for (const i of ambient.slice(1)) {
+      ctx.addIssue({ code: 'custom', path: ['measurements', i, 'role'], message: 'only one measurement can be the ambient pressure' })
+    }
+    const gauge =
+      a.tables.some((t) => t.columns.some((c) => c.pressure === 'gauge')) || a.measurements.some((m) => m.pressure === 'gauge')
+    if (gauge && ambient.length === 0) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['measurements'],
+        message:
+          'gauge pressures are made absolute with the ambient pressure, so the assignment needs a measurement with "role: ambient-pressure" (an absolute barometer reading)',
+      })
+    }
+  })
+
+export const RESULTS_VISIBILITY = ['immediately', 'after-due', 'after-release'] as const
+
+export const FrontMatterSchema = z
+  .strictObject({
+    title: z.string().trim().min(1, 'the title must not be empty').max(200, 'a title has at most 200 characters'),
+    summary: z.string().trim().max(1000, 'a summary has at most 1000 characters').optional(),
+    due: DueSchema.optional(),
+    attempts: z.number().int('must be a whole number').positive('must be at least 1').max(100, 'must be at most 100').default(3),
+    late: LateSchema.optional(),
+    /** When students see their graded results. */
+    results: z.enum(RESULTS_VISIBILITY).default('immediately'),
+    /** Whether a student sees the expected value next to their own. */
+    showExpected: z.boolean().default(false),
+    /** One member submits for the whole lab group. */
+    groupSubmission: z.boolean().default(false),
+    assignment: AssignmentSchema.optional(),
+  })
+  .superRefine((fm, ctx) => {
+    if (fm.late && !fm.due) {
+      ctx.addIssue({ code: 'custom', path: ['late'], message: 'late submissions need a due date: add "due" or remove "late"' })
+    }
+    if (fm.late?.acceptUntil && fm.due && comparableLocal(fm.late.acceptUntil) <= comparableLocal(fm.due.at)) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['late', 'acceptUntil'],
+        message: `acceptUntil (${fm.late.acceptUntil}) must be after the due date (${fm.due.at})`,
+      })
+    }
+    if (fm.results === 'after-due' && !fm.due) {
+      ctx.addIssue({ code: 'custom', path: ['results'], message: 'results shown "after-due" need a due date' })
+    }
+  })
+
+export type ModuleFrontMatter = z.output<typeof FrontMatterSchema>
+export type Assignment = z.output<typeof AssignmentSchema>
+export type TableSpec = z.output<typeof TableSchema>
+export type ColumnSpec = z.output<typeof ColumnSchema>
+export type MeasurementSpec = z.output<typeof MeasurementSchema>
+export type ResultSpec = z.output<typeof ResultSpecSchema>
+export type ReviewRule = z.output<typeof ReviewRuleSchema>
+export type Tolerance = z.output<typeof ToleranceSchema>
+export type ResultsVisibility = (typeof RESULTS_VISIBILITY)[number]

@@ -1,0 +1,186 @@
+/**
+ * What an expression sees: a submission's data turned into SI, with gauge pressures made absolute.
+ *
+ * Conventions (the same for the server's grading and the editor's trial runs):
+ * - every table column becomes an array of numbers under its column key, every measurement a
+ *   number under its key; review rules also see each reported result under its key;
+ * - values are converted from their declared unit to SI (Pa, N, m, m², m³, K, kg, s; results in
+ *   N·s, kg/s, m/s, rad as declared in `quantities.ts`);
+ * - pressures are absolute: a column or measurement declared `pressure: gauge` gets the submission's
+ *   ambient pressure (the measurement with `role: ambient-pressure`, itself absolute) added to every
+ *   value. A reported result in a pressure unit is taken as absolute.
+ */
+import { gaugeToAbsolute } from '../units'
+import { DIMENSIONLESS, dataUnitKind, valueFromSI, valueToSI } from './quantities'
+import type { Assignment, ColumnSpec, MeasurementSpec } from './schema'
+
+/** Values an expression can see by name. */
+export type ExpressionValue = number | boolean | readonly number[]
+export type ExpressionScope = Readonly<Record<string, ExpressionValue>>
+
+/** A submission's data as typed or uploaded, each value in the unit its spec declares. */
+export interface SubmissionData {
+  /** Table key → column key → samples. */
+  tables: Readonly<Record<string, Readonly<Record<string, readonly number[]>>>>
+  /** Measurement key → value. */
+  measurements: Readonly<Record<string, number>>
+  /** Result key → reported value (only review rules see these). */
+  results?: Readonly<Record<string, number>>
+}
+
+/** A submission whose data cannot be turned into a scope; the message says which value and why. */
+export class ScopeError extends Error {
+  constructor(message: string) {
+    super(message)
+    this.name = 'ScopeError'
+  }
+}
+
+const STANDARD_AMBIENT = 101325
+
+function convert(value: number, unit: string, gauge: boolean, ambient: number | undefined, what: string): number {
+  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ScopeError(`${what} is not a finite number (got ${String(value)})`)
+  let si: number
+  try {
+    si = valueToSI(value, unit)
+    if (gauge) {
+      if (ambient === undefined) throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
+      si = gaugeToAbsolute(si, ambient)
+    }
+  } catch (error) {
+    if (error instanceof ScopeError) throw error
+    throw new ScopeError(`${what}: ${(error as Error).message}`)
+  }
+  return si
+}
+
+function ambientOf(assignment: Assignment, data: SubmissionData): number | undefined {
+  const spec = assignment.measurements.find((m) => m.role === 'ambient-pressure')
+  if (!spec) return undefined
+  const value = data.measurements[spec.key]
+  if (value === undefined) throw new ScopeError(`the ambient pressure "${spec.key}" is missing`)
+  return convert(value, spec.unit, false, undefined, `measurement "${spec.key}"`)
+}
+
+/**
+ * The scope of an assignment's expressions for one submission.
+ *
+ * @param assignment - the validated assignment spec
+ * @param data - the submission's values in their declared units
+ * @param options.withResults - add the reported results (review rules see them; expected-value
+ *   expressions must not)
+ * @throws ScopeError naming the missing or unusable value
+ */
+export function buildExpressionScope(
+  assignment: Assignment,
+  data: SubmissionData,
+  options: { withResults?: boolean } = {},
+): Record<string, ExpressionValue> {
+  const scope: Record<string, ExpressionValue> = Object.create(null) as Record<string, ExpressionValue>
+  const ambient = ambientOf(assignment, data)
+  for (const table of assignment.tables) {
+    const columns = data.tables[table.key]
+    if (!columns) throw new ScopeError(`the table "${table.key}" is missing`)
+    let length: number | undefined
+    for (const column of table.columns) {
+      const samples = columns[column.key]
+      if (!Array.isArray(samples)) throw new ScopeError(`the column "${column.key}" of table "${table.key}" is missing`)
+      if (length !== undefined && samples.length !== length) {
+        throw new ScopeError(`the columns of table "${table.key}" have different lengths (${length} and ${samples.length})`)
+      }
+      length = samples.length
+      const gauge = column.pressure === 'gauge'
+      scope[column.key] = samples.map((v, i) => convert(v, column.unit, gauge, ambient, `${column.key}[row ${i + 1}]`))
+    }
+  }
+  for (const m of assignment.measurements) {
+    const value = data.measurements[m.key]
+    if (value === undefined) throw new ScopeError(`the measurement "${m.key}" is missing`)
+    scope[m.key] = convert(value, m.unit, m.pressure === 'gauge', ambient, `measurement "${m.key}"`)
+  }
+  if (options.withResults) {
+    for (const r of assignment.results) {
+      const value = data.results?.[r.key]
+      if (value === undefined) throw new ScopeError(`the reported result "${r.key}" is missing`)
+      scope[r.key] = convert(value, r.unit, false, ambient, `result "${r.key}"`)
+    }
+  }
+  return scope
+}
+
+/** Number of rows of synthetic tables (or the table's minRows, if larger, up to 2000). */
+const SYNTHETIC_ROWS = 41
+
+/** SI value of a quantity of each kind for synthetic data (pressures absolute). */
+const TYPICAL_SI: Record<string, number> = {
+  pressure: 3e5,
+  force: 50,
+  length: 0.01,
+  area: 1e-4,
+  volume: 0.05,
+  temperature: 293.15,
+  mass: 0.1,
+  time: 1,
+  dimensionless: 1,
+}
+
+function syntheticColumn(column: ColumnSpec, rows: number, pressureIndex: number, ambient: number): number[] {
+  const kind = dataUnitKind(column.unit) ?? 'dimensionless'
+  const out: number[] = []
+  for (let i = 0; i < rows; i++) {
+    const f = i / (rows - 1)
+    let si: number
+    if (column.role === 'time' || kind === 'time') si = i * 0.05
+    // A blow-down: 6 bar falling to 2 bar absolute, each further pressure column 3 % below the last
+    // (a chamber reads a little below the receiver that feeds it).
+    else if (kind === 'pressure') si = (6e5 - 4e5 * f) * 0.97 ** pressureIndex
+    else if (kind === 'force') si = 60 - 45 * f
+    else si = TYPICAL_SI[kind] ?? 1
+    if (column.pressure === 'gauge') si -= ambient
+    out.push(column.unit === DIMENSIONLESS ? si : valueFromSI(si, column.unit))
+  }
+  return out
+}
+
+function syntheticMeasurement(m: MeasurementSpec, ambient: number): number {
+  if (m.min !== undefined && m.max !== undefined) return (m.min + m.max) / 2
+  if (m.min !== undefined) return m.min > 0 ? m.min * 1.5 : m.min + 1
+  if (m.max !== undefined) return m.max > 0 ? m.max / 2 : m.max - 1
+  const kind = dataUnitKind(m.unit) ?? 'dimensionless'
+  let si = m.role === 'ambient-pressure' ? STANDARD_AMBIENT : (TYPICAL_SI[kind] ?? 1)
+  if (m.pressure === 'gauge') si -= ambient
+  return valueFromSI(si, m.unit)
+}
+
+/**
+ * Made-up but plausible data for an assignment, in the declared units, for trial runs of its
+ * expressions: times 0, 0.05, 0.1 … s; pressures falling from 6 to 2 bar absolute; thrust falling
+ * from 60 to 15 N; measurements in the middle of their min–max range (so a spec with ranges gets
+ * sensible trial values, e.g. an exit diameter larger than the throat's), otherwise a typical value
+ * of their kind. Results are left out; the caller fills them from the expected values.
+ */
+export function syntheticSubmission(assignment: Assignment): SubmissionData {
+  const ambientSpec = assignment.measurements.find((m) => m.role === 'ambient-pressure')
+  const measurements: Record<string, number> = {}
+  let ambient = STANDARD_AMBIENT
+  if (ambientSpec) {
+    measurements[ambientSpec.key] = syntheticMeasurement(ambientSpec, STANDARD_AMBIENT)
+    ambient = valueToSI(measurements[ambientSpec.key] as number, ambientSpec.unit)
+  }
+  for (const m of assignment.measurements) {
+    if (m !== ambientSpec) measurements[m.key] = syntheticMeasurement(m, ambient)
+  }
+  const tables: Record<string, Record<string, number[]>> = {}
+  let pressureIndex = 0
+  for (const table of assignment.tables) {
+    const rows = Math.min(Math.max(table.minRows, SYNTHETIC_ROWS), 2000)
+    const columns: Record<string, number[]> = {}
+    for (const column of table.columns) {
+      const isPressure = dataUnitKind(column.unit) === 'pressure'
+      columns[column.key] = syntheticColumn(column, rows, pressureIndex, ambient)
+      if (isPressure) pressureIndex++
+    }
+    tables[table.key] = columns
+  }
+  return { tables, measurements }
+}
