@@ -1,0 +1,269 @@
+import { onBeforeUnmount, ref, shallowRef, watch } from 'vue'
+import type { Ref, ShallowRef, WatchSource } from 'vue'
+import { UNITS, fromSI, gaugeToAbsolute, toSI } from '@shared/units'
+import type { UnitSymbol } from '@shared/units'
+
+/**
+ * Helpers shared by the live calculators (src/components/calculators/): reading what a person
+ * typed, turning the formula library's RangeErrors into a plain sentence at the input they concern,
+ * and re-computing a short moment after the last keystroke.
+ *
+ * The formula library is the one place where the allowed ranges are checked. The calculators do
+ * not re-check them; they run the library and, when it refuses, say in plain words which input is
+ * out of range and why.
+ */
+
+/** A problem with one input of a calculator, shown next to that input. */
+export class FieldError extends Error {
+  constructor(
+    /** The calculator's key for the input, e.g. 'exitDiameter'. */
+    readonly field: string,
+    message: string,
+  ) {
+    super(message)
+    this.name = 'FieldError'
+  }
+}
+
+// Decimal numbers with an optional exponent; no hex, no "Infinity", no thousands separators.
+const NUMBER_PATTERN = /^[-+]?(?:\d+\.?\d*|\.\d+)(?:e[-+]?\d+)?$/i
+
+/**
+ * Reads a number a person typed. A lone decimal comma ("2,5") is read as a decimal point.
+ *
+ * @param field - the calculator's key for the input, for the error
+ * @param text - what was typed
+ * @param what - the input named in words, e.g. 'throat diameter'
+ * @throws FieldError when the text is empty or not a finite decimal number
+ */
+export function readNumber(field: string, text: string | number, what: string): number {
+  const typed = String(text).trim().replace(/\s+/g, '')
+  if (typed === '') throw new FieldError(field, `Enter the ${what}.`)
+  const normalised = /^[-+]?\d*,\d+$/.test(typed) ? typed.replace(',', '.') : typed
+  const value = NUMBER_PATTERN.test(normalised) ? Number(normalised) : NaN
+  if (!Number.isFinite(value)) {
+    throw new FieldError(field, `Enter the ${what} as a number, for example 4 or 0.25.`)
+  }
+  return value
+}
+
+/** The argument a formula-library RangeError names ("exitArea must be …" → 'exitArea'), or null. */
+export function libraryArgument(error: unknown): string | null {
+  if (!(error instanceof RangeError)) return null
+  const match = /^([A-Za-z][\w[\]]*) must\b/.exec(error.message)
+  return match?.[1] ?? null
+}
+
+/** For each library argument name, the input it comes from and the plain sentence to show there. */
+export type ArgumentFields = Record<string, { field: string; message: () => string }>
+
+/**
+ * Runs formula-library code and, when it throws a RangeError about an argument listed in
+ * `argumentFields`, rethrows it as a FieldError at that input with the plain sentence. Other errors
+ * pass through unchanged (the calculator then shows the library's own message).
+ */
+export function withArgumentFields<T>(argumentFields: ArgumentFields, run: () => T): T {
+  try {
+    return run()
+  } catch (error) {
+    const argument = libraryArgument(error)
+    const entry = argument === null ? undefined : argumentFields[argument]
+    if (entry) throw new FieldError(entry.field, entry.message())
+    throw error
+  }
+}
+
+/**
+ * Runs formula-library code that concerns a single input (a unit conversion, a diameter to an
+ * area) and rethrows any RangeError as a FieldError at that input.
+ */
+export function forField<T>(field: string, message: string, run: () => T): T {
+  try {
+    return run()
+  } catch (error) {
+    if (error instanceof RangeError) throw new FieldError(field, message)
+    throw error
+  }
+}
+
+/** Whether a pressure reading is gauge (relative to ambient) or absolute. */
+export type PressureReading = 'gauge' | 'absolute'
+
+/** The two readings, for the gauge/absolute pickers. */
+export const PRESSURE_READINGS: readonly { label: string; value: PressureReading }[] = [
+  { label: 'gauge', value: 'gauge' },
+  { label: 'absolute', value: 'absolute' },
+]
+
+/**
+ * An absolute pressure in Pa from a typed value, its unit and its reading, converted by the unit
+ * table and, for a gauge reading, gaugeToAbsolute with the given ambient pressure.
+ */
+export function absolutePressure(value: number, unit: UnitSymbol, reading: PressureReading, ambient: number): number {
+  const si = toSI(value, unit)
+  return reading === 'gauge' ? gaugeToAbsolute(si, ambient) : si
+}
+
+/** How a unit symbol is written on the page (°C rather than degC, m³ rather than m3). */
+export function unitLabel(unit: UnitSymbol): string {
+  const written: Partial<Record<UnitSymbol, string>> = {
+    degC: '°C',
+    degF: '°F',
+    m2: 'm²',
+    mm2: 'mm²',
+    cm2: 'cm²',
+    in2: 'in²',
+    m3: 'm³',
+  }
+  return written[unit] ?? unit
+}
+
+/** Options of a unit picker: the symbols given, each with its written label and its name as a hint. */
+export function unitOptions(units: readonly UnitSymbol[]): { label: string; value: UnitSymbol; name: string }[] {
+  return units.map((u) => ({ label: unitLabel(u), value: u, name: UNITS[u].name }))
+}
+
+const SUPERSCRIPT: Record<string, string> = {
+  '-': '⁻',
+  '0': '⁰',
+  '1': '¹',
+  '2': '²',
+  '3': '³',
+  '4': '⁴',
+  '5': '⁵',
+  '6': '⁶',
+  '7': '⁷',
+  '8': '⁸',
+  '9': '⁹',
+}
+
+/**
+ * A result for display with a fixed number of significant figures (trailing zeros kept, so
+ * "0.12780" shows five). Very small or very large magnitudes are written as "2.3563 × 10⁻⁵".
+ */
+export function formatNumber(value: number, significant = 5): string {
+  if (Number.isNaN(value)) return '—'
+  if (value === Infinity) return '∞'
+  if (value === -Infinity) return '−∞'
+  if (value === 0) return '0'
+  const magnitude = Math.abs(value)
+  if (magnitude < 1e-3 || magnitude >= 1e9) {
+    const [mantissa, exponent] = value.toExponential(significant - 1).split('e')
+    const power = String(Number(exponent))
+      .split('')
+      .map((c) => SUPERSCRIPT[c] ?? c)
+      .join('')
+    return `${mantissa?.replace('-', '−')} × 10${power}`
+  }
+  return new Intl.NumberFormat('en-US', {
+    minimumSignificantDigits: significant,
+    maximumSignificantDigits: significant,
+  })
+    .format(value)
+    .replace('-', '−')
+}
+
+/** Like {@link formatNumber} without trailing zeros, for echoing a value the person typed ("20 s", not "20.00 s"). */
+export function formatCompact(value: number, significant = 5): string {
+  const text = formatNumber(value, significant)
+  return text.includes('×') || !text.includes('.') ? text : text.replace(/\.?0+$/, '')
+}
+
+/** A pressure in Pa absolute written in the given unit, e.g. "701.33 kPa". */
+export function formatPressure(pascal: number, unit: UnitSymbol, significant = 5): string {
+  return `${formatNumber(fromSI(pascal, unit), significant)} ${unitLabel(unit)}`
+}
+
+/** What {@link useLiveCalculation} exposes to a calculator. */
+export interface LiveCalculation<R> {
+  /** The latest result, or null while an input is out of range. */
+  result: ShallowRef<R | null>
+  /** Plain-words problems by input key; at most one input is marked at a time. */
+  fieldErrors: Ref<Record<string, string>>
+  /** A problem not tied to one input (shown above the results), or ''. */
+  formError: Ref<string>
+  /** True between an edit and the re-computation it triggers (drives aria-busy on the results). */
+  pending: Ref<boolean>
+}
+
+/**
+ * Computes a calculator's results from its inputs now and again a short moment after each edit.
+ *
+ * `compute` throws a FieldError for a problem at one input (see {@link withArgumentFields}); any
+ * other error is shown whole above the results, so nothing fails silently.
+ *
+ * @param source - the inputs to watch (deeply)
+ * @param compute - turns the current inputs into results, or throws
+ * @param delayMs - how long after the last edit to re-compute
+ */
+export function useLiveCalculation<R>(source: WatchSource, compute: () => R, delayMs = 200): LiveCalculation<R> {
+  const result = shallowRef<R | null>(null)
+  const fieldErrors = ref<Record<string, string>>({})
+  const formError = ref('')
+  const pending = ref(false)
+  let timer: ReturnType<typeof setTimeout> | undefined
+
+  function run(): void {
+    timer = undefined
+    try {
+      result.value = compute()
+      fieldErrors.value = {}
+      formError.value = ''
+    } catch (error) {
+      result.value = null
+      if (error instanceof FieldError) {
+        fieldErrors.value = { [error.field]: error.message }
+        formError.value = ''
+      } else {
+        fieldErrors.value = {}
+        formError.value =
+          error instanceof RangeError
+            ? `The formula library cannot use these inputs: ${error.message}.`
+            : `The calculation failed: ${error instanceof Error ? error.message : String(error)}.`
+      }
+    } finally {
+      pending.value = false
+    }
+  }
+
+  watch(
+    source,
+    () => {
+      pending.value = true
+      if (timer !== undefined) clearTimeout(timer)
+      timer = setTimeout(run, delayMs)
+    },
+    { deep: true },
+  )
+  onBeforeUnmount(() => {
+    if (timer !== undefined) clearTimeout(timer)
+  })
+  run()
+  return { result, fieldErrors, formError, pending }
+}
+
+/**
+ * Reads a calculator's `defaults` prop: a number (or a numeric string) for a numeric input, as the
+ * text the input starts with; anything else keeps the built-in default.
+ */
+export function defaultNumber(
+  defaults: Partial<Record<string, number | string>> | undefined,
+  key: string,
+  fallback: number,
+): string {
+  const given = defaults?.[key]
+  if (typeof given === 'number' && Number.isFinite(given)) return String(given)
+  if (typeof given === 'string' && given.trim() !== '') return given.trim()
+  return String(fallback)
+}
+
+/** Reads a choice from a calculator's `defaults` prop, keeping the built-in default unless it is one of `allowed`. */
+export function defaultChoice<T extends string>(
+  defaults: Partial<Record<string, number | string>> | undefined,
+  key: string,
+  allowed: readonly T[],
+  fallback: T,
+): T {
+  const given = defaults?.[key]
+  return typeof given === 'string' && (allowed as readonly string[]).includes(given) ? (given as T) : fallback
+}
