@@ -36,6 +36,12 @@ const router = createRouter({
       meta: { title: 'Roster' },
     },
     {
+      path: '/calculators',
+      name: 'calculators',
+      component: () => import('@/views/CalculatorsView.vue'),
+      meta: { title: 'Calculators' },
+    },
+    {
       path: '/:pathMatch(.*)*',
       name: 'not-found',
       component: () => import('@/views/NotFoundView.vue'),
