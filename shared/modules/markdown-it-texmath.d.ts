@@ -1,6 +1,6 @@
 // markdown-it-texmath ships no type declarations; this covers the one call render.ts makes.
 declare module 'markdown-it-texmath' {
-  import type { PluginWithOptions } from 'markdown-it'
+  import type { MarkdownIt } from 'markdown-it'
 
   interface TexmathOptions {
     /** The TeX renderer, e.g. KaTeX (an object with renderToString). */
@@ -11,6 +11,6 @@ declare module 'markdown-it-texmath' {
     katexOptions?: Record<string, unknown>
   }
 
-  const texmath: PluginWithOptions<TexmathOptions>
+  function texmath(md: MarkdownIt, options?: TexmathOptions): void
   export default texmath
 }

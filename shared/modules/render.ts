@@ -16,6 +16,7 @@
  */
 import katex from 'katex'
 import MarkdownIt from 'markdown-it'
+import type { Env } from 'markdown-it'
 import texmath from 'markdown-it-texmath'
 import sanitizeHtml from 'sanitize-html'
 import { parseDocument } from 'yaml'
@@ -75,6 +76,15 @@ function readCalculatorBlock(info: string, content: string): CalculatorBlock {
   return { ok: true, kind, defaults }
 }
 
+/** Most formulas typeset per module; the rest are shown as TeX source (and lintModuleBody says so). */
+export const MAX_FORMULAS = 1000
+
+/** The token types markdown-it-texmath produces for $…$ and $$…$$. */
+const MATH_TOKENS = ['math_inline', 'math_inline_double', 'math_block', 'math_block_eqno'] as const
+
+/** Per-render state passed through markdown-it. */
+type RenderEnv = Env & { formulas?: number }
+
 const KATEX_OPTIONS = {
   throwOnError: false,
   // No \href, \url, \includegraphics, \htmlClass, \htmlId, \htmlStyle, \htmlData.
@@ -98,6 +108,19 @@ function createMarkdown() {
   }
   // katexOptions is copied because texmath writes into the object it is given.
   md.use(texmath, { engine: katex, delimiters: 'dollars', katexOptions: { ...KATEX_OPTIONS } })
+
+  // Each formula costs about half a millisecond to typeset and a few kilobytes of HTML to sanitise;
+  // past MAX_FORMULAS the TeX is shown as code so one huge module cannot hold the server for seconds.
+  for (const name of MATH_TOKENS) {
+    const typeset = md.renderer.rules[name]
+    if (!typeset) continue
+    md.renderer.rules[name] = (tokens, idx, options, env, self) => {
+      const state = (env ?? {}) as RenderEnv
+      state.formulas = (state.formulas ?? 0) + 1
+      if (state.formulas > MAX_FORMULAS) return `<code>${md.utils.escapeHtml(tokens[idx]?.content ?? '')}</code>`
+      return typeset(tokens, idx, options, env, self)
+    }
+  }
 
   const fence = md.renderer.rules.fence
   md.renderer.rules.fence = (tokens, idx, options, env, self) => {
@@ -288,7 +311,8 @@ const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
  * the same output in the browser and on the server.
  */
 export function renderModule(markdownText: string): string {
-  return sanitizeHtml(markdown.render(markdownText), SANITIZE_OPTIONS)
+  const env: RenderEnv = {}
+  return sanitizeHtml(markdown.render(markdownText, env), SANITIZE_OPTIONS)
 }
 
 /**
@@ -303,7 +327,13 @@ export function lintModuleBody(body: string): ModuleIssue[] {
   const add = (message: string, line: number | undefined) =>
     issues.push(line === undefined ? { path: 'body', message } : { path: 'body', message, line })
 
+  let formulas = 0
   const checkTex = (tex: string, displayMode: boolean, line: number | undefined) => {
+    formulas++
+    if (formulas === MAX_FORMULAS + 1) {
+      add(`more than ${MAX_FORMULAS} formulas: from here on they are shown as TeX source; split the module`, line)
+    }
+    if (formulas > MAX_FORMULAS) return
     try {
       katex.renderToString(tex, { ...KATEX_OPTIONS, displayMode, throwOnError: true })
     } catch (error) {

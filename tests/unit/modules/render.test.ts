@@ -1,6 +1,6 @@
 import katex from 'katex'
 import { describe, expect, it } from 'vitest'
-import { lintModuleBody, renderModule } from '../../../shared/modules/render'
+import { MAX_FORMULAS, lintModuleBody, renderModule } from '../../../shared/modules/render'
 import { decodeEntities, scanTags, urlScheme } from './html-scan'
 
 const FORBIDDEN_TAGS = new Set([
@@ -140,6 +140,16 @@ describe('renderModule: equations', () => {
     const html = renderModule('Broken $\\frac{1}{$ here, fine $x$ there.')
     expect(html).toContain('katex-error')
     expect(html).toContain('class="katex"')
+  })
+
+  it('typesets at most MAX_FORMULAS formulas and shows the rest as TeX source', () => {
+    const body = Array.from({ length: MAX_FORMULAS + 2 }, (_, i) => `$y_{${i}}$`).join(' ')
+    const html = renderModule(body)
+    expect((html.match(/class="katex"/g) ?? []).length).toBe(MAX_FORMULAS)
+    expect(html).toContain(`<code>y_{${MAX_FORMULAS + 1}}</code>`)
+    const issues = lintModuleBody(body)
+    expect(issues).toHaveLength(1)
+    expect(issues[0]?.message).toContain(`more than ${MAX_FORMULAS} formulas`)
   })
 
   it('does not carry macro definitions from one render into the next', () => {
