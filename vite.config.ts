@@ -7,12 +7,13 @@ import vue from '@vitejs/plugin-vue'
 export default defineConfig({
   plugins: [vue()],
   resolve: {
-    alias: {
-      '@': fileURLToPath(new URL('./src', import.meta.url)),
-      '@shared': fileURLToPath(new URL('./shared', import.meta.url)),
+    alias: [
+      { find: '@', replacement: fileURLToPath(new URL('./src', import.meta.url)) },
+      { find: '@shared', replacement: fileURLToPath(new URL('./shared', import.meta.url)) },
       // markdown-it-texmath's CommonJS fallback would otherwise pull in a second KaTeX copy.
-      katex: 'katex/dist/katex.mjs',
-    },
+      // Exact match only, so `katex/dist/katex.min.css` still resolves.
+      { find: /^katex$/, replacement: 'katex/dist/katex.mjs' },
+    ],
   },
   server: { host: '127.0.0.1', proxy: { '/api': 'http://127.0.0.1:3000' } },
   preview: { host: '127.0.0.1' },

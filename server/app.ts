@@ -16,11 +16,14 @@ import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseRoutes } from './routes/courses'
 import { healthRoutes } from './routes/health'
+import { moduleRoutes } from './routes/modules'
 
 export interface AppDeps {
   config: Config
   db: Database
   logger: Logger
+  /** Called after something queued mail, so the outbox worker can send it without waiting. */
+  onMailQueued?: () => void
 }
 
 export interface CreatedApp {
@@ -30,7 +33,7 @@ export interface CreatedApp {
 }
 
 /** Builds the Express app without listening, so tests drive it through supertest. */
-export function createApp({ config, db, logger }: AppDeps): CreatedApp {
+export function createApp({ config, db, logger, onMailQueued }: AppDeps): CreatedApp {
   const app = express()
   const secureCookies = config.APP_URL.startsWith('https://')
   if (config.TRUST_PROXY > 0) app.set('trust proxy', config.TRUST_PROXY)
@@ -72,7 +75,11 @@ export function createApp({ config, db, logger }: AppDeps): CreatedApp {
     }),
   )
 
-  app.use(express.json({ limit: '1mb' }))
+  // 1 MB for ordinary JSON; the module routes parse their own bodies with a larger limit for
+  // Markdown sources.
+  const smallJson = express.json({ limit: '1mb' })
+  const MODULE_ROUTES = /^\/api\/courses\/[^/]+\/modules(\/|$)/
+  app.use((req, res, next) => (MODULE_ROUTES.test(req.path) ? next() : smallJson(req, res, next)))
   app.use(express.urlencoded({ extended: false, limit: '100kb' }))
   app.use(cookieParser())
 
@@ -115,6 +122,7 @@ export function createApp({ config, db, logger }: AppDeps): CreatedApp {
   // Every state-changing request below needs the CSRF header (GET/HEAD/OPTIONS do not).
   api.use(csrf.protect)
   api.use('/auth', authRoutes(passport, csrf))
+  api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
   api.use(apiNotFound)
   app.use('/api', api)

@@ -48,6 +48,8 @@ const ConfigSchema = z
     SMTP_USER: z.string().optional(),
     SMTP_PASSWORD: z.string().optional(),
     MAIL_FROM: z.string().default('Isentrope <no-reply@isentrope.example>'),
+    /** How often the outbox worker looks for mail to send; 0 turns the worker off in this process. */
+    MAIL_POLL_MS: z.coerce.number().int().min(0).default(2000),
     /** Sign-in: failures per e-mail address allowed in the window before refusing. */
     SIGNIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
     SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),

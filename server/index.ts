@@ -3,6 +3,8 @@ import { createApp } from './app'
 import { ConfigError, dbConnectionOptions, loadConfig } from './config'
 import { createDb } from './db/client'
 import { createLogger } from './logger'
+import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from './mail/outbox-worker'
+import { createSmtpSender } from './mail/transport'
 
 // Entry point: read configuration, listen, and shut down cleanly on SIGINT/SIGTERM.
 let config
@@ -18,7 +20,11 @@ try {
 
 const logger = createLogger(config.LOG_LEVEL)
 const dbHandle = createDb({ ...dbConnectionOptions(config), poolSize: config.DB_POOL_SIZE })
-const { app, close } = createApp({ config, db: dbHandle.db, logger })
+const worker =
+  config.MAIL_POLL_MS > 0
+    ? startOutboxWorker(dbHandle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: config.MAIL_POLL_MS })
+    : null
+const { app, close } = createApp({ config, db: dbHandle.db, logger, onMailQueued: () => worker?.kick() })
 
 const server: Server = app.listen(config.PORT, config.HOST, () => {
   logger.info({ url: `http://${config.HOST}:${config.PORT}`, appUrl: config.APP_URL }, 'Isentrope is listening')
@@ -31,6 +37,7 @@ async function shutdown(signal: string): Promise<void> {
   logger.info({ signal }, 'shutting down')
   server.close()
   server.closeAllConnections()
+  await worker?.stop().catch((err: unknown) => logger.warn({ err }, 'outbox worker stop failed'))
   await close().catch((err: unknown) => logger.warn({ err }, 'session store close failed'))
   await dbHandle.close().catch((err: unknown) => logger.warn({ err }, 'database pool close failed'))
   process.exit(0)

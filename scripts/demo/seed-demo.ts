@@ -1,7 +1,11 @@
+import { readFileSync, readdirSync } from 'node:fs'
+import path from 'node:path'
 import { and, eq } from 'drizzle-orm'
 import { hashPassword } from '../../server/auth/password'
 import type { Database } from '../../server/db/client'
 import { courses, enrollments, labGroups, sections, users } from '../../server/db/schema'
+import { insertModuleWithVersion, markPublished } from '../../server/repositories/modules'
+import { toVersion } from '../../server/services/module-service'
 import {
   DEFAULT_DEMO_PASSWORD,
   DEMO_ADMIN,
@@ -60,7 +64,28 @@ export async function seedDemo(db: Database, password = DEFAULT_DEMO_PASSWORD): 
       }
       await tx.insert(enrollments).values({ userId: uid(st.email), courseId: id, role: 'student', sectionId, labGroupId: gid })
     }
+    await seedModules(tx, id, uid(DEMO_INSTRUCTOR.email))
     return id
   })
   return { created: true, users: people.length, courseId }
+}
+
+const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
+
+/**
+ * The demo course's modules from content/*.md, in file-name order. The first is published
+ * (without e-mail: nobody is waiting for it at seed time); the others stay drafts.
+ */
+async function seedModules(tx: Parameters<Parameters<Database['transaction']>[0]>[0], courseId: number, instructorId: number) {
+  const files = readdirSync(CONTENT)
+    .filter((f) => f.endsWith('.md'))
+    .sort()
+  for (const [i, file] of files.entries()) {
+    const source = readFileSync(path.join(CONTENT, file), 'utf8')
+    const v = toVersion(source, file, DEMO_COURSE.timeZone)
+    if (!v.valid) throw new Error(`seed: content/${file} has problems: ${v.issues.map((x) => `${x.path}: ${x.message}`).join('; ')}`)
+    const slug = file.replace(/^\d+-/, '').replace(/\.md$/, '')
+    const { moduleId, versionId } = await insertModuleWithVersion(tx, { courseId, slug, position: i + 1, createdBy: instructorId }, v)
+    if (i === 0) await markPublished(tx, moduleId, versionId, null, instructorId)
+  }
 }

@@ -36,6 +36,20 @@ const router = createRouter({
       meta: { title: 'Roster' },
     },
     {
+      path: '/courses/:courseId(\\d+)/modules/:moduleId(\\d+)',
+      name: 'module-read',
+      component: () => import('@/views/ModuleReadView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId), moduleId: Number(r.params.moduleId) }),
+      meta: { title: 'Module' },
+    },
+    {
+      path: '/courses/:courseId(\\d+)/modules/:moduleId(\\d+)/edit',
+      name: 'module-edit',
+      component: () => import('@/views/ModuleEditorView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId), moduleId: Number(r.params.moduleId) }),
+      meta: { title: 'Edit module' },
+    },
+    {
       path: '/calculators',
       name: 'calculators',
       component: () => import('@/views/CalculatorsView.vue'),

@@ -1,6 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, seedFixture, signedInAs, startTestApp } from '../helpers/app'
+import type { CreatedModule } from '../helpers/modules'
+import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
 import { listRoutes } from '../helpers/routes'
 
 /**
@@ -22,6 +24,11 @@ const newCourse = () => ({
   institution: 'Test University (fictional)',
   timeZone: 'America/Denver',
 })
+
+// Modules made in beforeAll: one published (read by everyone), one for the unpublish row.
+const mods: { published?: CreatedModule; toUnpublish?: CreatedModule } = {}
+const M = (fx: Fixture) => `/api/courses/${fx.courseId}/modules`
+const pub = () => mods.published!.id
 
 const CASES: Case[] = [
   {
@@ -69,6 +76,79 @@ const CASES: Case[] = [
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/roster`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
+  {
+    route: 'GET /api/courses/:courseId/modules',
+    call: (c, fx) => c.agent.get(M(fx)),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/modules',
+    call: (c, fx) => c.agent.post(M(fx)).set('x-csrf-token', c.csrf).send({ source: moduleSource('Matrix module') }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/edit',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/edit`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'PUT /api/courses/:courseId/modules/:moduleId',
+    call: async (c, fx) => {
+      // The caller's own view of the current version, when they may see it (else any id).
+      const ed = await c.agent.get(`${M(fx)}/${pub()}/edit`)
+      const baseVersionId = ed.status === 200 ? (ed.body.current.id as number) : 1
+      return c.agent
+        .put(`${M(fx)}/${pub()}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ source: moduleSource('Published for the matrix', `Edited at ${Date.now()}.`), baseVersionId })
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/modules/:moduleId/publish',
+    call: async (c, fx) => {
+      // The instructor publishes a fresh module of their own; others try the same on the published one.
+      if ((await c.agent.get(`${M(fx)}/${pub()}/edit`)).status === 200) {
+        const me = await c.agent.get('/api/auth/session')
+        if (me.body.user?.email === fx.instructor.email) {
+          const m = await createModuleAs(c, fx.courseId, moduleSource('Publish row'))
+          return c.agent.post(`${M(fx)}/${m.id}/publish`).set('x-csrf-token', c.csrf).send({ versionId: m.versionId })
+        }
+      }
+      return c.agent.post(`${M(fx)}/${pub()}/publish`).set('x-csrf-token', c.csrf).send({ versionId: 1 })
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/modules/:moduleId/unpublish',
+    call: (c, fx) => c.agent.post(`${M(fx)}/${mods.toUnpublish!.id}/unpublish`).set('x-csrf-token', c.csrf),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/versions',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/versions`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/versions/:versionId',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/versions/${mods.published!.versionId}`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/diff',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/diff?from=${mods.published!.versionId}&to=${mods.published!.versionId}`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/export',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/export`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
 ]
 
 let ctx: TestContext
@@ -77,6 +157,11 @@ let fx: Fixture
 beforeAll(async () => {
   ctx = startTestApp()
   fx = await seedFixture(ctx)
+  const inst = await signedInAs(ctx, fx.instructor.email)
+  mods.published = await createModuleAs(inst, fx.courseId, moduleSource('Published for the matrix'))
+  await publishAs(inst, fx.courseId, mods.published)
+  mods.toUnpublish = await createModuleAs(inst, fx.courseId, moduleSource('To unpublish'))
+  await publishAs(inst, fx.courseId, mods.toUnpublish)
 })
 afterAll(async () => {
   await ctx.close()

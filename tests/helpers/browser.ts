@@ -1,4 +1,5 @@
 import { mkdirSync } from 'node:fs'
+import { createServer } from 'node:http'
 import type { Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import path from 'node:path'
@@ -8,6 +9,8 @@ import { createApp } from '../../server/app'
 import { dbConnectionOptions } from '../../server/config'
 import { createDb } from '../../server/db/client'
 import { createLogger } from '../../server/logger'
+import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from '../../server/mail/outbox-worker'
+import { createSmtpSender } from '../../server/mail/transport'
 import { testConfig } from './app'
 
 /** Debian's Chromium, never a downloaded browser; playwright gives it a fresh temporary profile. */
@@ -31,21 +34,27 @@ export async function launchBrowser(): Promise<{ browser: Browser; close: () => 
   }
 }
 
-/** The real app (API + built client) on 127.0.0.1 and a free port. */
+/** The real app (API + built client) on 127.0.0.1 and a free port, with its mail worker running. */
 export async function serveApp(): Promise<{ url: string; db: ReturnType<typeof createDb>; close: () => Promise<void> }> {
-  const config = testConfig({ CLIENT_DIST: 'dist/client' })
-  const handle = createDb(dbConnectionOptions(config))
-  const created = createApp({ config, db: handle.db, logger: createLogger(config.LOG_LEVEL) })
-  const server: Server = await new Promise((resolve) => {
-    const s = created.app.listen(0, '127.0.0.1', () => resolve(s))
-  })
+  // Listen first so the app's public URL (used in e-mail links) has the real port.
+  const server: Server = createServer()
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', () => resolve()))
   const { port } = server.address() as AddressInfo
+  const url = `http://127.0.0.1:${port}`
+  const config = testConfig({ CLIENT_DIST: 'dist/client', APP_URL: url })
+  const handle = createDb(dbConnectionOptions(config))
+  const logger = createLogger(config.LOG_LEVEL)
+  // The real outbox worker, polling fast so journeys see their e-mail within a second or two.
+  const worker = startOutboxWorker(handle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: 300 })
+  const created = createApp({ config, db: handle.db, logger, onMailQueued: () => worker.kick() })
+  server.on('request', created.app)
   return {
-    url: `http://127.0.0.1:${port}`,
+    url,
     db: handle,
     close: async () => {
       server.closeAllConnections()
       await new Promise<void>((r) => server.close(() => r()))
+      await worker.stop()
       await created.close()
       await handle.close()
     },

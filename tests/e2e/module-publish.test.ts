@@ -1,0 +1,87 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser, Page } from 'playwright-core'
+import { seedDemo } from '../../scripts/demo/seed-demo'
+import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { launchBrowser, screenshotPath, serveApp } from '../helpers/browser'
+import { waitForMail } from '../helpers/maildev'
+
+let app: Awaited<ReturnType<typeof serveApp>>
+let chrome: Awaited<ReturnType<typeof launchBrowser>>
+let browser: Browser
+
+beforeAll(async () => {
+  app = await serveApp()
+  await seedDemo(app.db.db)
+  chrome = await launchBrowser()
+  browser = chrome.browser
+})
+afterAll(async () => {
+  await chrome?.close()
+  await app?.close()
+})
+
+async function signIn(page: Page, email: string) {
+  await page.goto(`${app.url}/sign-in`)
+  await page.getByLabel('E-mail address').fill(email)
+  await page.getByLabel('Password', { exact: true }).fill(DEFAULT_DEMO_PASSWORD)
+  await page.getByRole('button', { name: 'Sign in' }).click()
+  await page.getByRole('heading', { name: 'My courses' }).waitFor()
+}
+
+describe('journey 1: an instructor publishes a module and students are e-mailed', () => {
+  it('edits a draft, sees the equation in the preview, publishes, and a student opens it from the e-mail', async () => {
+    const page = await browser.newPage({ viewport: { width: 1400, height: 900 } })
+    await signIn(page, DEMO_INSTRUCTOR.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    const list = page.getByTestId('module-list')
+    await list.waitFor()
+    // The first draft module in the list.
+    const draft = list.locator('li').filter({ hasText: 'Draft' }).first()
+    const title = (await draft.locator('a.title').innerText()).trim()
+    await draft.getByRole('link', { name: /^Edit/ }).click()
+    await page.getByLabel('Markdown with YAML front matter').waitFor()
+
+    const preview = page.getByTestId('module-preview')
+    await preview.locator('.katex').first().waitFor()
+    const before = await preview.locator('.katex').count()
+    const marker = `Added in the browser check ${Date.now()}`
+    const source = page.getByLabel('Markdown with YAML front matter')
+    await source.press('ControlOrMeta+End')
+    await source.pressSequentially(`\n\n${marker}: $c^* = p_0 A_t / \\dot m$.\n`, { delay: 2 })
+    // The preview renders the new equation (KaTeX output) as the text changes.
+    await preview.getByText(marker).waitFor()
+    await expect.poll(() => preview.locator('.katex').count()).toBe(before + 1)
+
+    await page.getByRole('button', { name: 'Save draft' }).click()
+    await page.getByText(/Saved as version \d+ \(draft\)/).waitFor()
+    await page.getByRole('button', { name: 'Publish…' }).click()
+    const dialog = page.getByRole('alertdialog').or(page.getByRole('dialog'))
+    await dialog.getByText(/24 enrolled students will get an e-mail/).waitFor()
+    await dialog.getByRole('button', { name: 'Publish and e-mail 24' }).click()
+    await page.getByText('E-mail queued for 24 students.').waitFor()
+    await page.screenshot({ path: screenshotPath('module-editor-published'), fullPage: false })
+    await page.close()
+
+    // Every student of the course gets the mail; read one back from the catcher.
+    const student = DEMO_STUDENTS[5]!
+    const all = await waitForMail((m) => m.filter((x) => x.subject.includes(title)).length >= 24, 20_000)
+    const mine = all.find((m) => m.subject.includes(title) && m.to.some((t) => t.address === student.email))
+    expect(mine).toBeDefined()
+    expect(mine!.text).toContain(DEMO_COURSE.code)
+    expect(mine!.html).toContain(title.replace(/&/g, '&amp;'))
+    const link = /Read it here: (\S+)/.exec(mine!.text)?.[1]
+    expect(link).toMatch(new RegExp(`^${app.url}/courses/\\d+/modules/\\d+$`))
+
+    const ctx = await browser.newContext({ viewport: { width: 390, height: 844 } })
+    const sp = await ctx.newPage()
+    await signIn(sp, student.email)
+    await sp.goto(link!)
+    await sp.getByRole('heading', { level: 1, name: title }).waitFor()
+    await sp.getByText(marker).waitFor()
+    expect(await sp.locator('.module-content .katex').count()).toBeGreaterThan(0)
+    const overflow = await sp.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)
+    expect(overflow).toBeLessThanOrEqual(0)
+    await sp.screenshot({ path: screenshotPath('student-reads-module-390'), fullPage: false })
+    await ctx.close()
+  })
+})
