@@ -41,8 +41,8 @@ export function zonedTimeToUtc(local: string, timeZone: string): Date {
   return new Date(t)
 }
 
-/** "Tue 9 Feb 2027, 17:00 MST" style text for a UTC instant in a course's zone. */
-export function formatInZone(instant: Date, timeZone: string, locale = 'en-GB'): string {
+/** "Tue, Feb 9, 2027, 17:00 MST" style text for a UTC instant in a course's zone. */
+export function formatInZone(instant: Date, timeZone: string, locale = 'en-US'): string {
   return new Intl.DateTimeFormat(locale, {
     timeZone,
     weekday: 'short',

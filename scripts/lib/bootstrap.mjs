@@ -138,6 +138,8 @@ export async function startMariaDb(o) {
       '--character-set-server=utf8mb4',
       '--collation-server=utf8mb4_unicode_ci',
       '--max-connections=300',
+      // Uploads of up to 20 MB plus their parsed JSON travel in one packet.
+      '--max-allowed-packet=256M',
     ]
     child = spawn(which('mariadbd') ?? 'mariadbd', args, { stdio: 'ignore', detached: false })
     let exited = false

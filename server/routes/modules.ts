@@ -41,14 +41,14 @@ import {
 export function moduleRoutes(db: Database, opts: { appUrl: string; onPublished: () => void }): Router {
   const r = Router({ mergeParams: true })
   // A module may hold up to 1 MB of Markdown; JSON escaping can add to that.
-  const bigJson = json({ limit: '3mb' })
+  r.use(json({ limit: '3mb' }))
   const params = validate('params', ModuleParamsSchema)
 
   r.get('/', courseMember(db, ANY_MEMBER), async (_req, res) => {
     res.json(await listModules(db, enrollmentOf(res)))
   })
 
-  r.post('/', courseMember(db, INSTRUCTOR), bigJson, validate('body', CreateModuleSchema), async (_req, res) => {
+  r.post('/', courseMember(db, INSTRUCTOR), validate('body', CreateModuleSchema), async (_req, res) => {
     const { source } = valid(res, 'body', CreateModuleSchema)
     res.status(201).json(await createModule(db, enrollmentOf(res), source))
   })
@@ -63,7 +63,7 @@ export function moduleRoutes(db: Database, opts: { appUrl: string; onPublished: 
     res.json(await editModule(db, enrollmentOf(res), moduleId))
   })
 
-  r.put('/:moduleId', courseMember(db, INSTRUCTOR), params, bigJson, validate('body', SaveModuleSchema), async (_req, res) => {
+  r.put('/:moduleId', courseMember(db, INSTRUCTOR), params, validate('body', SaveModuleSchema), async (_req, res) => {
     const { moduleId } = valid(res, 'params', ModuleParamsSchema)
     res.json(await saveModule(db, enrollmentOf(res), moduleId, valid(res, 'body', SaveModuleSchema)))
   })

@@ -83,5 +83,5 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     expect(overflow).toBeLessThanOrEqual(0)
     await sp.screenshot({ path: screenshotPath('student-reads-module-390'), fullPage: false })
     await ctx.close()
-  })
+  }, 120_000)
 })

@@ -1,4 +1,4 @@
-import { index, int, mysqlEnum, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import { index, int, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, ref, timestamps } from './columns'
 import { courses } from './courses'
 import { users } from './users'
@@ -23,6 +23,8 @@ export const modules = mysqlTable(
     // Not declared as foreign keys: versions reference modules, and a cycle would block inserts.
     currentVersionId: ref('current_version_id'),
     publishedVersionId: ref('published_version_id'),
+    /** When staff released the grades (modules whose results wait for a release). */
+    gradesReleasedAt: timestamp('grades_released_at', { fsp: 3, mode: 'date' }),
     createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },

@@ -1,0 +1,32 @@
+import { boolean, double, index, mysqlEnum, mysqlTable, varchar } from 'drizzle-orm/mysql-core'
+import { id, ref, timestamps } from './columns'
+import { submissions } from './submissions'
+
+export const CHECK_OUTCOMES = ['pass', 'partial', 'fail', 'error'] as const
+
+/** One reported result checked against the value recomputed from the submission's own data. */
+export const submissionChecks = mysqlTable(
+  'submission_checks',
+  {
+    id: id(),
+    submissionId: ref('submission_id')
+      .notNull()
+      .references(() => submissions.id, { onDelete: 'cascade' }),
+    resultKey: varchar('result_key', { length: 60 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull(),
+    unit: varchar('unit', { length: 20 }).notNull(),
+    reported: double('reported').notNull(),
+    expected: double('expected'),
+    absError: double('abs_error'),
+    relError: double('rel_error'),
+    /** Effective absolute tolerance in the result's unit. */
+    tolerance: double('tolerance'),
+    pointsPossible: double('points_possible').notNull(),
+    pointsAwarded: double('points_awarded').notNull(),
+    pass: boolean('pass').notNull(),
+    outcome: mysqlEnum('outcome', CHECK_OUTCOMES).notNull(),
+    error: varchar('error', { length: 1000 }),
+    ...timestamps,
+  },
+  (t) => [index('submission_checks_submission_idx').on(t.submissionId)],
+)

@@ -1,0 +1,68 @@
+import { sql } from 'drizzle-orm'
+import { boolean, double, index, int, json, mysqlEnum, mysqlTable, timestamp, varchar } from 'drizzle-orm/mysql-core'
+import { id, ref, timestamps } from './columns'
+import { courses } from './courses'
+import { labGroups } from './lab-groups'
+import { moduleVersions } from './module-versions'
+import { modules } from './modules'
+import { users } from './users'
+
+export const SUBMISSION_STATUSES = ['received', 'graded', 'grading-failed'] as const
+export const REVIEW_STATUSES = ['none', 'open', 'in-review', 'resolved'] as const
+
+/** What the student typed, kept as typed (value and unit) besides the SI values used to grade. */
+export interface SubmissionInputs {
+  measurements: Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>
+  reported: Record<string, { value: number; unit: string }>
+}
+
+/**
+ * One hand-in of a module by a student (or by one member for a lab group). It is stored with
+ * its files in one transaction before grading, so an acknowledged submission is never lost.
+ */
+export const submissions = mysqlTable(
+  'submissions',
+  {
+    id: id(),
+    courseId: ref('course_id')
+      .notNull()
+      .references(() => courses.id, { onDelete: 'cascade' }),
+    moduleId: ref('module_id')
+      .notNull()
+      .references(() => modules.id, { onDelete: 'cascade' }),
+    /** Graded against this version of the module, always. */
+    moduleVersionId: ref('module_version_id')
+      .notNull()
+      .references(() => moduleVersions.id),
+    userId: ref('user_id')
+      .notNull()
+      .references(() => users.id),
+    labGroupId: ref('lab_group_id').references(() => labGroups.id, { onDelete: 'set null' }),
+    attempt: int('attempt').notNull(),
+    status: mysqlEnum('status', SUBMISSION_STATUSES).notNull().default('received'),
+    gradingError: varchar('grading_error', { length: 1000 }),
+    inputs: json('inputs').$type<SubmissionInputs>().notNull(),
+    isLate: boolean('is_late').notNull().default(false),
+    daysLate: int('days_late').notNull().default(0),
+    /** Fraction of the score taken off for lateness (0–1). */
+    latePenalty: double('late_penalty').notNull().default(0),
+    // Points are DOUBLE on purpose: they come from tolerance arithmetic on measured data and are
+    // shown rounded; no money-like exact sums are needed.
+    rawScore: double('raw_score'),
+    score: double('score'),
+    maxScore: double('max_score'),
+    reviewStatus: mysqlEnum('review_status', REVIEW_STATUSES).notNull().default('none'),
+    /** Optimistic-lock counter for staff edits. */
+    revision: int('revision').notNull().default(0),
+    submittedAt: timestamp('submitted_at', { fsp: 3, mode: 'date' })
+      .notNull()
+      .default(sql`CURRENT_TIMESTAMP(3)`),
+    gradedAt: timestamp('graded_at', { fsp: 3, mode: 'date' }),
+    ...timestamps,
+  },
+  (t) => [
+    index('submissions_module_user_idx').on(t.moduleId, t.userId),
+    index('submissions_module_group_idx').on(t.moduleId, t.labGroupId),
+    index('submissions_course_review_idx').on(t.courseId, t.reviewStatus),
+  ],
+)

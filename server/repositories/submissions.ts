@@ -1,0 +1,267 @@
+import { and, asc, count, desc, eq, ne, or, sql } from 'drizzle-orm'
+import type { Executor } from '../db/client'
+import {
+  enrollments,
+  labGroups,
+  submissionChecks,
+  submissionFiles,
+  submissionFlags,
+  submissions,
+  users,
+} from '../db/schema'
+import type { ColumnMappingRow, SubmissionInputs } from '../db/schema'
+
+export interface SubmissionRow {
+  id: number
+  courseId: number
+  moduleId: number
+  moduleVersionId: number
+  userId: number
+  labGroupId: number | null
+  attempt: number
+  status: 'received' | 'graded' | 'grading-failed'
+  gradingError: string | null
+  inputs: SubmissionInputs
+  isLate: boolean
+  daysLate: number
+  latePenalty: number
+  rawScore: number | null
+  score: number | null
+  maxScore: number | null
+  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
+  revision: number
+  submittedAt: Date
+  gradedAt: Date | null
+  submittedBy: string
+}
+
+const cols = {
+  id: submissions.id,
+  courseId: submissions.courseId,
+  moduleId: submissions.moduleId,
+  moduleVersionId: submissions.moduleVersionId,
+  userId: submissions.userId,
+  labGroupId: submissions.labGroupId,
+  attempt: submissions.attempt,
+  status: submissions.status,
+  gradingError: submissions.gradingError,
+  inputs: submissions.inputs,
+  isLate: submissions.isLate,
+  daysLate: submissions.daysLate,
+  latePenalty: submissions.latePenalty,
+  rawScore: submissions.rawScore,
+  score: submissions.score,
+  maxScore: submissions.maxScore,
+  reviewStatus: submissions.reviewStatus,
+  revision: submissions.revision,
+  submittedAt: submissions.submittedAt,
+  gradedAt: submissions.gradedAt,
+  submittedBy: users.displayName,
+}
+
+/** Whose attempts count together: the lab group's when the module takes group hand-ins. */
+export type Owner = { userId: number } | { labGroupId: number }
+
+const ownerWhere = (moduleId: number, owner: Owner) =>
+  'labGroupId' in owner
+    ? and(eq(submissions.moduleId, moduleId), eq(submissions.labGroupId, owner.labGroupId))
+    : and(eq(submissions.moduleId, moduleId), eq(submissions.userId, owner.userId))
+
+/**
+ * Serialises hand-ins of one student (or one lab group) so two at once cannot both take the last
+ * attempt: the enrollment or lab-group row is locked until the transaction ends.
+ */
+export async function lockOwner(tx: Executor, courseId: number, owner: Owner): Promise<void> {
+  if ('labGroupId' in owner) {
+    await tx.select({ id: labGroups.id }).from(labGroups).where(eq(labGroups.id, owner.labGroupId)).for('update')
+  } else {
+    await tx
+      .select({ id: enrollments.id })
+      .from(enrollments)
+      .where(and(eq(enrollments.userId, owner.userId), eq(enrollments.courseId, courseId)))
+      .for('update')
+  }
+}
+
+export async function countAttempts(db: Executor, moduleId: number, owner: Owner): Promise<number> {
+  const [row] = await db.select({ n: count() }).from(submissions).where(ownerWhere(moduleId, owner))
+  return row?.n ?? 0
+}
+
+export async function insertSubmission(
+  tx: Executor,
+  s: {
+    courseId: number
+    moduleId: number
+    moduleVersionId: number
+    userId: number
+    labGroupId: number | null
+    attempt: number
+    inputs: SubmissionInputs
+    isLate: boolean
+    daysLate: number
+    latePenalty: number
+  },
+): Promise<number> {
+  const [row] = await tx.insert(submissions).values({ ...s, status: 'received' }).$returningId()
+  return row!.id
+}
+
+export async function insertFile(
+  tx: Executor,
+  f: {
+    submissionId: number
+    courseId: number
+    tableKey: string
+    filename: string
+    contentType: string
+    size: number
+    sha256: string
+    bytes: Buffer
+    mapping: Record<string, ColumnMappingRow>
+    parsed: Record<string, number[]>
+    rowCount: number
+  },
+): Promise<number> {
+  const [row] = await tx.insert(submissionFiles).values(f).$returningId()
+  return row!.id
+}
+
+export interface CheckWrite {
+  resultKey: string
+  label: string
+  unit: string
+  reported: number
+  expected: number | null
+  absError: number | null
+  relError: number | null
+  tolerance: number | null
+  pointsPossible: number
+  pointsAwarded: number
+  pass: boolean
+  outcome: 'pass' | 'partial' | 'fail' | 'error'
+  error: string | null
+}
+
+export interface FlagWrite {
+  code: string
+  message: string
+  detail: Record<string, number | string> | null
+}
+
+export async function saveGrade(
+  tx: Executor,
+  submissionId: number,
+  g: { status: 'graded' | 'grading-failed'; gradingError: string | null; rawScore: number | null; score: number | null; maxScore: number | null },
+  checks: CheckWrite[],
+  flags: FlagWrite[],
+): Promise<void> {
+  await tx.delete(submissionChecks).where(eq(submissionChecks.submissionId, submissionId))
+  if (checks.length) await tx.insert(submissionChecks).values(checks.map((c) => ({ ...c, submissionId })))
+  if (flags.length) await tx.insert(submissionFlags).values(flags.map((f) => ({ ...f, submissionId })))
+  await tx
+    .update(submissions)
+    .set({
+      ...g,
+      gradedAt: sql`CURRENT_TIMESTAMP(3)`,
+      ...(flags.length ? { reviewStatus: 'open' as const } : {}),
+    })
+    .where(eq(submissions.id, submissionId))
+}
+
+export async function addFlags(tx: Executor, submissionId: number, flags: FlagWrite[]): Promise<void> {
+  if (!flags.length) return
+  await tx.insert(submissionFlags).values(flags.map((f) => ({ ...f, submissionId })))
+  await tx.update(submissions).set({ reviewStatus: 'open' }).where(eq(submissions.id, submissionId))
+}
+
+/** Files in the course with these bytes that belong to someone else (another person and group). */
+export async function findIdenticalFiles(
+  db: Executor,
+  courseId: number,
+  sha256: string,
+  owner: { userId: number; labGroupId: number | null },
+): Promise<{ submissionId: number; submittedBy: string; labGroupName: string | null }[]> {
+  const notMine =
+    owner.labGroupId !== null
+      ? and(ne(submissions.userId, owner.userId), or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`))
+      : ne(submissions.userId, owner.userId)
+  return db
+    .select({ submissionId: submissions.id, submittedBy: users.displayName, labGroupName: labGroups.name })
+    .from(submissionFiles)
+    .innerJoin(submissions, eq(submissions.id, submissionFiles.submissionId))
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .leftJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+    .where(and(eq(submissionFiles.courseId, courseId), eq(submissionFiles.sha256, sha256), notMine))
+    .orderBy(asc(submissions.id))
+    .limit(5)
+}
+
+export async function listOwnerSubmissions(db: Executor, moduleId: number, owner: Owner): Promise<(SubmissionRow & { flagCount: number })[]> {
+  const rows = await db
+    .select({ ...cols, flagCount: sql<number>`(SELECT COUNT(*) FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id})`.mapWith(Number) })
+    .from(submissions)
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .where(ownerWhere(moduleId, owner))
+    .orderBy(desc(submissions.attempt))
+  return rows
+}
+
+export async function findSubmission(db: Executor, courseId: number, id: number): Promise<SubmissionRow | null> {
+  const rows = await db
+    .select(cols)
+    .from(submissions)
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .where(and(eq(submissions.id, id), eq(submissions.courseId, courseId)))
+    .limit(1)
+  return rows[0] ?? null
+}
+
+export async function listChecks(db: Executor, submissionId: number) {
+  return db.select().from(submissionChecks).where(eq(submissionChecks.submissionId, submissionId)).orderBy(asc(submissionChecks.id))
+}
+
+export async function listFlags(db: Executor, submissionId: number) {
+  return db.select().from(submissionFlags).where(eq(submissionFlags.submissionId, submissionId)).orderBy(asc(submissionFlags.id))
+}
+
+export async function listFiles(db: Executor, submissionId: number) {
+  return db
+    .select({
+      id: submissionFiles.id,
+      tableKey: submissionFiles.tableKey,
+      filename: submissionFiles.filename,
+      size: submissionFiles.size,
+      rowCount: submissionFiles.rowCount,
+      sha256: submissionFiles.sha256,
+      mapping: submissionFiles.mapping,
+      parsed: submissionFiles.parsed,
+    })
+    .from(submissionFiles)
+    .where(eq(submissionFiles.submissionId, submissionId))
+    .orderBy(asc(submissionFiles.id))
+}
+
+export async function findFileBytes(db: Executor, submissionId: number, fileId: number) {
+  const rows = await db
+    .select({ filename: submissionFiles.filename, contentType: submissionFiles.contentType, bytes: submissionFiles.bytes })
+    .from(submissionFiles)
+    .where(and(eq(submissionFiles.id, fileId), eq(submissionFiles.submissionId, submissionId)))
+    .limit(1)
+  return rows[0] ?? null
+}
+
+export async function labGroupName(db: Executor, id: number | null): Promise<string | null> {
+  if (id === null) return null
+  const [row] = await db.select({ name: labGroups.name }).from(labGroups).where(eq(labGroups.id, id))
+  return row?.name ?? null
+}
+
+export async function groupMemberEmails(db: Executor, labGroupId: number): Promise<{ email: string; displayName: string }[]> {
+  return db
+    .select({ email: users.email, displayName: users.displayName })
+    .from(enrollments)
+    .innerJoin(users, eq(users.id, enrollments.userId))
+    .where(and(eq(enrollments.labGroupId, labGroupId), eq(enrollments.role, 'student')))
+}
+

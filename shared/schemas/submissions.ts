@@ -1,0 +1,134 @@
+import { z } from 'zod'
+
+const finite = (what: string) =>
+  z.number({ error: `${what}: enter a number.` }).refine(Number.isFinite, `${what}: enter a finite number.`)
+
+/** The mapping of one uploaded file's headers onto the spec's columns, with the file's units. */
+export const ColumnMappingSchema = z.record(
+  z.string(),
+  z.object({
+    header: z.string().min(1, 'choose the file column that holds this quantity'),
+    unit: z.string().min(1, 'choose the unit the file uses'),
+    pressure: z.enum(['gauge', 'absolute']).optional(),
+  }),
+)
+export type ColumnMapping = z.infer<typeof ColumnMappingSchema>
+
+/**
+ * The non-file part of a hand-in (sent as the JSON field `payload` of the multipart form):
+ * each value as the student typed it, with its unit; the server converts to the spec's units.
+ */
+export const SubmissionPayloadSchema = z.object({
+  mappings: z.record(z.string(), ColumnMappingSchema).default({}),
+  measurements: z
+    .record(
+      z.string(),
+      z.object({
+        value: finite('measurement'),
+        unit: z.string().min(1),
+        pressure: z.enum(['gauge', 'absolute']).optional(),
+      }),
+    )
+    .default({}),
+  reported: z.record(z.string(), z.object({ value: finite('result'), unit: z.string().min(1) })).default({}),
+})
+export type SubmissionPayload = z.infer<typeof SubmissionPayloadSchema>
+
+export const SubmissionParamsSchema = z.object({
+  courseId: z.coerce.number().int().positive('courseId must be a positive whole number.'),
+  submissionId: z.coerce.number().int().positive('submissionId must be a positive whole number.'),
+})
+export const SubmissionFileParamsSchema = SubmissionParamsSchema.extend({
+  fileId: z.coerce.number().int().positive('fileId must be a positive whole number.'),
+})
+
+/** A problem with one field of the hand-in; `field` is e.g. `measurements.throatDiameter` or `table:run`. */
+export interface SubmissionFieldIssue {
+  field: string
+  message: string
+  row?: number
+  column?: string
+}
+
+export type CheckOutcome = 'pass' | 'partial' | 'fail' | 'error'
+
+export interface CheckView {
+  key: string
+  label: string
+  unit: string
+  reported: number
+  /** Null when the module hides expected values from students. */
+  expected: number | null
+  absError: number | null
+  relError: number | null
+  tolerance: number | null
+  pointsPossible: number
+  pointsAwarded: number
+  pass: boolean
+  outcome: CheckOutcome
+}
+
+export interface FlagView {
+  id: number
+  code: string
+  message: string
+  status: 'open' | 'resolved'
+}
+
+export interface ChartData {
+  time: number[]
+  thrust?: number[]
+  chamberPressure?: number[]
+  receiverPressure?: number[]
+  idealThrust?: number[]
+  supersonicSpans: [number, number][]
+}
+
+export interface SubmissionSummary {
+  id: number
+  attempt: number
+  submittedAt: string
+  submittedBy: string
+  status: 'received' | 'graded' | 'grading-failed'
+  isLate: boolean
+  daysLate: number
+  latePenalty: number
+  /** Null while results are not yet visible to the student. */
+  score: number | null
+  maxScore: number | null
+  flagCount: number
+}
+
+export interface SubmissionDetail extends SubmissionSummary {
+  courseId: number
+  moduleId: number
+  moduleTitle: string
+  moduleVersion: number
+  labGroupName: string | null
+  resultsVisible: boolean
+  /** Why results are hidden, in plain words, when they are. */
+  resultsHiddenReason: string | null
+  rawScore: number | null
+  checks: CheckView[]
+  flags: FlagView[]
+  chart: ChartData | null
+  files: { id: number; tableKey: string; filename: string; size: number; rowCount: number; sha256: string }[]
+  inputs: {
+    measurements: Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>
+    reported: Record<string, { value: number; unit: string }>
+  }
+  attemptsAllowed: number
+  attemptsUsed: number
+}
+
+export interface MySubmissions {
+  attemptsAllowed: number
+  attemptsUsed: number
+  canSubmit: boolean
+  /** Why a new hand-in is not possible, in plain words. */
+  blockedReason: string | null
+  dueAt: string | null
+  groupSubmission: boolean
+  labGroupName: string | null
+  submissions: SubmissionSummary[]
+}
