@@ -119,20 +119,56 @@ function checkPressureSense(value: { unit: string; pressure?: 'gauge' | 'absolut
   }
 }
 
+/**
+ * What a column is to the grading engine's built-in data checks (thrust above the ideal, gauge or
+ * absolute confusion, chamber above receiver, sample gaps). Expressions never see roles: they name
+ * columns by key. `time` is the sample time of its table; the others are at most one per assignment.
+ */
+export const COLUMN_ROLES = ['time', 'thrust', 'chamber-pressure', 'receiver-pressure'] as const
+export type ColumnRole = (typeof COLUMN_ROLES)[number]
+
+/**
+ * What a measurement is to the grading engine: the barometric pressure that makes gauge readings
+ * absolute, and the nozzle and receiver dimensions the built-in checks need. At most one of each
+ * per assignment.
+ */
+export const MEASUREMENT_ROLES = ['ambient-pressure', 'throat-diameter', 'exit-diameter', 'receiver-volume'] as const
+export type MeasurementRole = (typeof MEASUREMENT_ROLES)[number]
+
+/** The kind of quantity each role needs, and how to say it in a message. */
+const ROLE_KINDS: Readonly<Record<ColumnRole | MeasurementRole, { kind: string; words: string }>> = {
+  time: { kind: 'time', words: 'the time column must be in s or ms' },
+  thrust: { kind: 'force', words: 'the thrust column must be in a force unit (N, kN, kgf, lbf)' },
+  'chamber-pressure': { kind: 'pressure', words: 'the chamber pressure must be in a pressure unit' },
+  'receiver-pressure': { kind: 'pressure', words: 'the receiver pressure must be in a pressure unit' },
+  'ambient-pressure': { kind: 'pressure', words: 'the ambient pressure must be in a pressure unit' },
+  'throat-diameter': { kind: 'length', words: 'the throat diameter must be in a length unit (m, mm, cm, in)' },
+  'exit-diameter': { kind: 'length', words: 'the exit diameter must be in a length unit (m, mm, cm, in)' },
+  'receiver-volume': { kind: 'volume', words: 'the receiver volume must be in a volume unit (m3, L, gal)' },
+}
+
+function checkRoleUnit(value: { unit: string; role?: ColumnRole | MeasurementRole | undefined }, ctx: z.RefinementCtx): void {
+  if (value.role === undefined) return
+  const need = ROLE_KINDS[value.role]
+  if (isDataUnit(value.unit) && dataUnitKind(value.unit) !== need.kind) {
+    ctx.addIssue({ code: 'custom', path: ['unit'], message: `${need.words}, not ${value.unit}` })
+  }
+}
+
 export const ColumnSchema = z
   .strictObject({
     key: KeySchema,
     label: LabelSchema,
     unit: DataUnitSchema,
     pressure: PressureSenseSchema.optional(),
-    /** The column that holds the sample times. */
-    role: z.literal('time').optional(),
+    /** What the column is to the built-in data checks; see {@link COLUMN_ROLES}. */
+    role: z
+      .enum(COLUMN_ROLES, { message: `a column role is one of ${COLUMN_ROLES.join(', ')}` })
+      .optional(),
   })
   .superRefine((column, ctx) => {
     checkPressureSense(column, ctx)
-    if (column.role === 'time' && dataUnitKind(column.unit) !== 'time') {
-      ctx.addIssue({ code: 'custom', path: ['unit'], message: `the time column must be in s or ms, not ${column.unit}` })
-    }
+    checkRoleUnit(column, ctx)
   })
 
 export const TableSchema = z
@@ -162,13 +198,17 @@ export const MeasurementSchema = z
     max: z.number().optional(),
     pressure: PressureSenseSchema.optional(),
     /**
-     * The barometric (ambient) pressure of the test: gauge readings of the submission are made
-     * absolute with it before any expression sees them.
+     * What the measurement is to the grading engine; see {@link MEASUREMENT_ROLES}. The
+     * `ambient-pressure` one is the barometric pressure of the test: gauge readings of the
+     * submission are made absolute with it before any expression sees them.
      */
-    role: z.literal('ambient-pressure').optional(),
+    role: z
+      .enum(MEASUREMENT_ROLES, { message: `a measurement role is one of ${MEASUREMENT_ROLES.join(', ')}` })
+      .optional(),
   })
   .superRefine((m, ctx) => {
     checkPressureSense(m, ctx)
+    if (m.role !== 'ambient-pressure') checkRoleUnit(m, ctx)
     if (m.min !== undefined && m.max !== undefined && m.min > m.max) {
       ctx.addIssue({ code: 'custom', path: ['max'], message: `max (${m.max}) is below min (${m.min})` })
     }
@@ -266,10 +306,55 @@ export const AssignmentSchema = z
       ruleKeys.add(r.key)
     })
 
-    const ambient = a.measurements.flatMap((m, i) => (m.role === 'ambient-pressure' ? [i] : []))
-    for (const i of ambient.slice(1)) {
-      ctx.addIssue({ code: 'custom', path: ['measurements', i, 'role'], message: 'only one measurement can be the ambient pressure' })
+    // Each role names one thing the built-in checks read, so it may be given once per assignment
+    // (except `time`, once per table: TableSchema checks that).
+    const roleHolder = new Map<string, string>()
+    const claimRole = (role: string, path: (string | number)[], key: string) => {
+      const where = `${path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${p}`)).join('').slice(1)} (${key})`
+      const first = roleHolder.get(role)
+      if (first !== undefined) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [...path, 'role'],
+          message: `only one ${path[0] === 'tables' ? 'column' : 'measurement'} can have role: ${role}; assignment.${first} already has it`,
+        })
+      } else {
+        roleHolder.set(role, where)
+      }
     }
+    a.tables.forEach((t, i) =>
+      t.columns.forEach((c, j) => {
+        if (c.role !== undefined && c.role !== 'time') claimRole(c.role, ['tables', i, 'columns', j], c.key)
+      }),
+    )
+    a.measurements.forEach((m, i) => {
+      if (m.role !== undefined) claimRole(m.role, ['measurements', i], m.key)
+    })
+    // Thrust and the two pressures are compared sample by sample, against the sample times: they
+    // must share one table, and that table needs its time column.
+    const logRoles = a.tables.flatMap((t, i) =>
+      t.columns.flatMap((c, j) => (c.role !== undefined && c.role !== 'time' ? [{ table: i, column: j, role: c.role }] : [])),
+    )
+    const logTable = logRoles[0]?.table
+    for (const r of logRoles) {
+      if (r.table !== logTable) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['tables', r.table, 'columns', r.column, 'role'],
+          message: `the columns with roles thrust, chamber-pressure and receiver-pressure must be in one table; role: ${logRoles[0]?.role} is in assignment.tables[${logTable}]`,
+        })
+      }
+    }
+    const loggingTable = logTable === undefined ? undefined : a.tables[logTable]
+    if (loggingTable && !loggingTable.columns.some((c) => c.role === 'time') && logRoles[0]) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['tables', logRoles[0].table, 'columns', logRoles[0].column, 'role'],
+        message: `a column with role: ${logRoles[0].role} needs a column with role: time in the same table, so its samples have times`,
+      })
+    }
+
+    const ambient = a.measurements.flatMap((m, i) => (m.role === 'ambient-pressure' ? [i] : []))
     const gauge =
       a.tables.some((t) => t.columns.some((c) => c.pressure === 'gauge')) || a.measurements.some((m) => m.pressure === 'gauge')
     if (gauge && ambient.length === 0) {

@@ -18,7 +18,11 @@ import type { Assignment, ColumnSpec, MeasurementSpec } from './schema'
 export type ExpressionValue = number | boolean | readonly number[]
 export type ExpressionScope = Readonly<Record<string, ExpressionValue>>
 
-/** A submission's data as typed or uploaded, each value in the unit its spec declares. */
+/**
+ * A submission's data as typed or uploaded: each value in the unit its spec declares, or, when
+ * {@link buildExpressionScope} is called with `units: 'si'`, in SI (Pa, N, m, m³, K, s; results in
+ * the SI unit of their kind), pressures in the sense they were read (gauge stays gauge).
+ */
 export interface SubmissionData {
   /** Table key → column key → samples. */
   tables: Readonly<Record<string, Readonly<Record<string, readonly number[]>>>>
@@ -26,6 +30,25 @@ export interface SubmissionData {
   measurements: Readonly<Record<string, number>>
   /** Result key → reported value (only review rules see these). */
   results?: Readonly<Record<string, number>>
+  /**
+   * How the submission says each pressure column or measurement was read, by key, when it differs
+   * from the spec's `pressure:` (a student may log absolute where the spec suggests gauge). Keys
+   * left out follow the spec. The ambient pressure is always absolute.
+   */
+  pressures?: Readonly<Record<string, 'gauge' | 'absolute'>>
+}
+
+/** Options of {@link buildExpressionScope}. */
+export interface ScopeOptions {
+  /**
+   * Add the reported results (review rules see them; expected-value expressions must not).
+   */
+  withResults?: boolean
+  /**
+   * The unit of the values in `data`: 'declared' (the spec's unit of each column, measurement and
+   * result; the default) or 'si' (already SI, as `parseLog` and the grading engine hold them).
+   */
+  units?: 'declared' | 'si'
 }
 
 /** A submission whose data cannot be turned into a scope; the message says which value and why. */
@@ -54,30 +77,62 @@ function convert(value: number, unit: string, gauge: boolean, ambient: number | 
   return si
 }
 
-function ambientOf(assignment: Assignment, data: SubmissionData): number | undefined {
+function ambientOf(assignment: Assignment, data: SubmissionData, si: boolean): number | undefined {
   const spec = assignment.measurements.find((m) => m.role === 'ambient-pressure')
   if (!spec) return undefined
   const value = data.measurements[spec.key]
   if (value === undefined) throw new ScopeError(`the ambient pressure "${spec.key}" is missing`)
-  return convert(value, spec.unit, false, undefined, `measurement "${spec.key}"`)
+  if (data.pressures?.[spec.key] === 'gauge') {
+    throw new ScopeError(`the ambient pressure "${spec.key}" must be an absolute (barometric) reading, not gauge`)
+  }
+  return convert(value, si ? SI_PASS : spec.unit, false, undefined, `measurement "${spec.key}"`)
+}
+
+/** Stand-in unit for values already in SI: convert() then only checks and adds the ambient. */
+const SI_PASS = DIMENSIONLESS
+
+function isGauge(data: SubmissionData, key: string, declared: 'gauge' | 'absolute' | undefined): boolean {
+  return (data.pressures?.[key] ?? declared) === 'gauge'
+}
+
+/**
+ * An SI column as the scope holds it: the same array when nothing changes (no copy of a 50 000-row
+ * log), a new one with the ambient pressure added when it was read gauge.
+ */
+function siColumn(samples: readonly number[], gauge: boolean, ambient: number | undefined, what: string): readonly number[] {
+  for (let i = 0; i < samples.length; i++) {
+    const v = samples[i]
+    if (typeof v !== 'number' || !Number.isFinite(v)) throw new ScopeError(`${what}[row ${i + 1}] is not a finite number (got ${String(v)})`)
+  }
+  if (!gauge) return samples
+  if (ambient === undefined) throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
+  const out = new Array<number>(samples.length)
+  for (let i = 0; i < samples.length; i++) {
+    const absolute = (samples[i] as number) + ambient
+    if (absolute < 0) throw new ScopeError(`${what}[row ${i + 1}]: a gauge pressure of ${samples[i]} Pa is below vacuum at an ambient of ${ambient} Pa`)
+    out[i] = absolute
+  }
+  return out
 }
 
 /**
  * The scope of an assignment's expressions for one submission.
  *
  * @param assignment - the validated assignment spec
- * @param data - the submission's values in their declared units
+ * @param data - the submission's values, in their declared units or in SI (see `options.units`)
  * @param options.withResults - add the reported results (review rules see them; expected-value
  *   expressions must not)
+ * @param options.units - 'declared' (default) or 'si'
  * @throws ScopeError naming the missing or unusable value
  */
 export function buildExpressionScope(
   assignment: Assignment,
   data: SubmissionData,
-  options: { withResults?: boolean } = {},
+  options: ScopeOptions = {},
 ): Record<string, ExpressionValue> {
+  const si = options.units === 'si'
   const scope: Record<string, ExpressionValue> = Object.create(null) as Record<string, ExpressionValue>
-  const ambient = ambientOf(assignment, data)
+  const ambient = ambientOf(assignment, data, si)
   for (const table of assignment.tables) {
     const columns = data.tables[table.key]
     if (!columns) throw new ScopeError(`the table "${table.key}" is missing`)
@@ -89,20 +144,22 @@ export function buildExpressionScope(
         throw new ScopeError(`the columns of table "${table.key}" have different lengths (${length} and ${samples.length})`)
       }
       length = samples.length
-      const gauge = column.pressure === 'gauge'
-      scope[column.key] = samples.map((v, i) => convert(v, column.unit, gauge, ambient, `${column.key}[row ${i + 1}]`))
+      const gauge = isGauge(data, column.key, column.pressure)
+      scope[column.key] = si
+        ? siColumn(samples, gauge, ambient, column.key)
+        : samples.map((v, i) => convert(v, column.unit, gauge, ambient, `${column.key}[row ${i + 1}]`))
     }
   }
   for (const m of assignment.measurements) {
     const value = data.measurements[m.key]
     if (value === undefined) throw new ScopeError(`the measurement "${m.key}" is missing`)
-    scope[m.key] = convert(value, m.unit, m.pressure === 'gauge', ambient, `measurement "${m.key}"`)
+    scope[m.key] = convert(value, si ? SI_PASS : m.unit, isGauge(data, m.key, m.pressure), ambient, `measurement "${m.key}"`)
   }
   if (options.withResults) {
     for (const r of assignment.results) {
       const value = data.results?.[r.key]
       if (value === undefined) throw new ScopeError(`the reported result "${r.key}" is missing`)
-      scope[r.key] = convert(value, r.unit, false, ambient, `result "${r.key}"`)
+      scope[r.key] = convert(value, si ? SI_PASS : r.unit, false, ambient, `result "${r.key}"`)
     }
   }
   return scope
