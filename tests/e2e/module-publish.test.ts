@@ -84,4 +84,22 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     await sp.screenshot({ path: screenshotPath('student-reads-module-390'), fullPage: false })
     await ctx.close()
   }, 120_000)
+
+  it('the published demo module renders its equations and live calculators for a student', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
+    await signIn(page, DEMO_STUDENTS[0]!.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    const list = page.getByTestId('module-list')
+    await list.waitFor()
+    await list.locator('a.title').first().click()
+    const content = page.locator('.module-content')
+    await content.locator('.katex').first().waitFor()
+    expect(await content.locator('.katex').count()).toBeGreaterThan(5)
+    // Each calculator placeholder became a live component with labelled inputs.
+    const hosts = content.locator('.isentrope-calculator')
+    expect(await hosts.count()).toBeGreaterThanOrEqual(3)
+    await content.getByRole('form', { name: 'Nozzle inputs' }).waitFor()
+    await content.getByRole('heading', { name: 'Regime boundaries' }).waitFor()
+    await page.close()
+  })
 })
