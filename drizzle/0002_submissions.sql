@@ -48,7 +48,7 @@ CREATE TABLE `submission_checks` (
 	`result_key` varchar(60) NOT NULL,
 	`label` varchar(200) NOT NULL,
 	`unit` varchar(20) NOT NULL,
-	`reported` double NOT NULL,
+	`reported` double,
 	`expected` double,
 	`abs_error` double,
 	`rel_error` double,

@@ -12,6 +12,7 @@ export interface ModuleRow {
   position: number
   currentVersionId: number | null
   publishedVersionId: number | null
+  gradesReleasedAt: Date | null
 }
 
 export interface VersionRow {
@@ -37,6 +38,7 @@ const moduleCols = {
   position: modules.position,
   currentVersionId: modules.currentVersionId,
   publishedVersionId: modules.publishedVersionId,
+  gradesReleasedAt: modules.gradesReleasedAt,
 }
 
 const versionCols = {

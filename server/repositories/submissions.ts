@@ -131,7 +131,7 @@ export interface CheckWrite {
   resultKey: string
   label: string
   unit: string
-  reported: number
+  reported: number | null
   expected: number | null
   absError: number | null
   relError: number | null

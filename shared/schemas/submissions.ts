@@ -56,7 +56,7 @@ export interface CheckView {
   key: string
   label: string
   unit: string
-  reported: number
+  reported: number | null
   /** Null when the module hides expected values from students. */
   expected: number | null
   absError: number | null

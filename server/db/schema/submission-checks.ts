@@ -15,7 +15,8 @@ export const submissionChecks = mysqlTable(
     resultKey: varchar('result_key', { length: 60 }).notNull(),
     label: varchar('label', { length: 200 }).notNull(),
     unit: varchar('unit', { length: 20 }).notNull(),
-    reported: double('reported').notNull(),
+    /** Null when the student left the result out (only possible for results added by staff later). */
+    reported: double('reported'),
     expected: double('expected'),
     absError: double('abs_error'),
     relError: double('rel_error'),

@@ -1,0 +1,571 @@
+import { createHash } from 'node:crypto'
+import { gradeSubmission, chartSeries } from '../../shared/grading/grade'
+import { parseLog, sniffBinary } from '../../shared/grading/csv'
+import type { ModuleFrontMatter, TableSpec } from '../../shared/modules/schema'
+import { valueFromSI, valueToSI } from '../../shared/modules/quantities'
+import type {
+  CheckView,
+  MySubmissions,
+  SubmissionDetail,
+  SubmissionFieldIssue,
+  SubmissionPayload,
+  SubmissionSummary,
+} from '../../shared/schemas/submissions'
+import { formatInZone, zonedTimeToUtc } from '../../shared/time'
+import { isCompatibleUnit, toSpecSense, toSpecUnit } from '../../shared/typed-values'
+import type { Database } from '../db/client'
+import type { SubmissionInputs } from '../db/schema'
+import { AppError, forbidden, notFound } from '../errors'
+import type { CourseEnrollment } from '../repositories/enrollments'
+import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
+import { enqueueMail } from '../repositories/outbox'
+import type { CheckWrite, FlagWrite, Owner, SubmissionRow } from '../repositories/submissions'
+import {
+  addFlags,
+  countAttempts,
+  findFileBytes,
+  findIdenticalFiles,
+  findSubmission,
+  groupMemberEmails,
+  insertFile,
+  insertSubmission,
+  labGroupName,
+  listChecks,
+  listFiles,
+  listFlags,
+  listOwnerSubmissions,
+  lockOwner,
+  saveGrade,
+} from '../repositories/submissions'
+import { findUserById } from '../repositories/users'
+import { escapeHtml } from './text'
+
+export interface UploadedTable {
+  field: string
+  filename: string
+  contentType: string
+  bytes: Buffer
+}
+
+const DAY_MS = 86_400_000
+const isStaff = (e: CourseEnrollment) => e.role !== 'student'
+
+interface Published {
+  moduleId: number
+  moduleStatus: 'draft' | 'published' | 'closed'
+  versionId: number
+  versionNumber: number
+  title: string
+  dueAt: Date | null
+  fm: ModuleFrontMatter
+  gradesReleasedAt: Date | null
+}
+
+async function publishedModule(db: Database, courseId: number, moduleId: number): Promise<Published> {
+  const m = await findModule(db, courseId, moduleId)
+  if (!m || m.status === 'draft' || m.publishedVersionId === null) throw notFound('That module')
+  const v = await findVersion(db, m.publishedVersionId)
+  if (!v || !v.frontMatter) throw notFound('That module')
+  return {
+    moduleId: m.id,
+    moduleStatus: m.status,
+    versionId: v.id,
+    versionNumber: v.number,
+    title: v.title,
+    dueAt: v.dueAt,
+    fm: v.frontMatter as unknown as ModuleFrontMatter,
+    gradesReleasedAt: m.gradesReleasedAt,
+  }
+}
+
+function ownerOf(e: CourseEnrollment, fm: ModuleFrontMatter): Owner {
+  if (fm.groupSubmission) {
+    if (e.labGroupId === null) {
+      throw new AppError('no_lab_group', 'This module is handed in by lab group, and you are not in one yet. Ask your instructor to add you to a group.', 409)
+    }
+    return { labGroupId: e.labGroupId }
+  }
+  return { userId: e.userId }
+}
+
+/** Lateness by the module's policy: days late (rounded up) and the fraction taken off. */
+function lateness(p: Published, now: Date, timeZone: string): { isLate: boolean; daysLate: number; penalty: number } {
+  if (!p.dueAt || now.getTime() <= p.dueAt.getTime()) return { isLate: false, daysLate: 0, penalty: 0 }
+  const late = p.fm.late
+  if (!late) {
+    throw new AppError('past_due', `The due date (${formatInZone(p.dueAt, timeZone)}) has passed and this module does not accept late hand-ins.`, 409)
+  }
+  if (late.acceptUntil) {
+    const until = zonedTimeToUtc(late.acceptUntil, p.fm.due?.timeZone ?? timeZone)
+    if (now.getTime() > until.getTime()) {
+      throw new AppError('past_late_limit', `Late hand-ins were accepted until ${formatInZone(until, timeZone)}; that time has passed.`, 409)
+    }
+  }
+  const daysLate = Math.ceil((now.getTime() - p.dueAt.getTime()) / DAY_MS)
+  return { isLate: true, daysLate, penalty: Math.min(1, daysLate * late.penaltyPerDay) }
+}
+
+/** Whether the student may see results now, and if not, why. */
+function visibility(p: Published, now: Date, timeZone: string): { visible: boolean; reason: string | null } {
+  switch (p.fm.results) {
+    case 'after-due':
+      if (p.dueAt && now.getTime() < p.dueAt.getTime()) {
+        return { visible: false, reason: `Results are shown after the due date, ${formatInZone(p.dueAt, timeZone)}.` }
+      }
+      return { visible: true, reason: null }
+    case 'after-release':
+      return p.gradesReleasedAt ? { visible: true, reason: null } : { visible: false, reason: 'Results are shown once the course staff release the grades.' }
+    default:
+      return { visible: true, reason: null }
+  }
+}
+
+const fmt = (x: number) => (Math.abs(x) >= 1e5 || (Math.abs(x) < 1e-3 && x !== 0) ? x.toExponential(3) : String(Number(x.toPrecision(6))))
+
+/**
+ * Checks every typed value and uploaded file against the module's spec and converts them to SI
+ * (pressures in the sense they were read; `pressures` records where that differs from the spec).
+ * Every problem names its field (and row and column for files).
+ */
+function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload, uploads: UploadedTable[]) {
+  const a = fm.assignment!
+  const issues: SubmissionFieldIssue[] = []
+  let totalFileErrors = 0
+  const measurements: Record<string, number> = {}
+  const pressures: Record<string, 'gauge' | 'absolute'> = {}
+  const inputs: SubmissionInputs = { measurements: {}, reported: {} }
+
+  const ambientSpec = a.measurements.find((m) => m.role === 'ambient-pressure')
+  const ambientTyped = ambientSpec ? payload.measurements[ambientSpec.key] : undefined
+  const ambientSI =
+    ambientSpec && ambientTyped && isCompatibleUnit(ambientTyped.unit, ambientSpec.unit) ? valueToSI(ambientTyped.value, ambientTyped.unit) : undefined
+
+  for (const m of a.measurements) {
+    const field = `measurements.${m.key}`
+    const typed = payload.measurements[m.key]
+    if (!typed) {
+      issues.push({ field, message: `${m.label}: enter a value.` })
+      continue
+    }
+    inputs.measurements[m.key] = typed
+    if (!isCompatibleUnit(typed.unit, m.unit)) {
+      issues.push({ field, message: `${m.label}: ${typed.unit} is not a unit of the right kind; use ${m.unit} or a unit like it.` })
+      continue
+    }
+    const si = valueToSI(typed.value, typed.unit)
+    measurements[m.key] = si
+    const sense = m.role === 'ambient-pressure' ? 'absolute' : (typed.pressure ?? m.pressure)
+    if (m.pressure && sense && sense !== m.pressure) pressures[m.key] = sense
+    // The plausible range is stated in the spec's unit and sense.
+    let inSpec = valueFromSI(si, m.unit)
+    if (m.pressure && sense && sense !== m.pressure) {
+      if (ambientSI === undefined) {
+        issues.push({ field, message: `${m.label}: give the ambient pressure so a ${sense} reading can be converted to ${m.pressure}.` })
+        continue
+      }
+      inSpec = toSpecSense(inSpec, sense, m.pressure, valueFromSI(ambientSI, m.unit))
+    }
+    if (m.min !== undefined && inSpec < m.min) issues.push({ field, message: `${m.label}: ${fmt(inSpec)} ${m.unit} is below the plausible minimum of ${m.min} ${m.unit}.` })
+    else if (m.max !== undefined && inSpec > m.max) issues.push({ field, message: `${m.label}: ${fmt(inSpec)} ${m.unit} is above the plausible maximum of ${m.max} ${m.unit}.` })
+  }
+
+  const reported: Record<string, number> = {}
+  for (const r of a.results) {
+    const field = `reported.${r.key}`
+    const typed = payload.reported[r.key]
+    if (!typed) {
+      issues.push({ field, message: `${r.label}: enter your result.` })
+      continue
+    }
+    inputs.reported[r.key] = typed
+    if (!isCompatibleUnit(typed.unit, r.unit)) {
+      issues.push({ field, message: `${r.label}: ${typed.unit} is not a unit of the right kind; use ${r.unit}.` })
+      continue
+    }
+    reported[r.key] = toSpecUnit(typed.value, typed.unit, r.unit)
+  }
+
+  const tables: Record<string, Record<string, number[]>> = {}
+  const files: { table: TableSpec; upload: UploadedTable; mapping: SubmissionPayload['mappings'][string]; columns: Record<string, number[]>; rowCount: number }[] = []
+  for (const t of a.tables) {
+    const field = `table:${t.key}`
+    const upload = uploads.find((u) => u.field === field)
+    if (!upload) {
+      issues.push({ field, message: `${t.label}: attach the log file (CSV).` })
+      continue
+    }
+    if (upload.bytes.length === 0) {
+      issues.push({ field, message: `${t.label}: ${upload.filename} is empty.` })
+      continue
+    }
+    const sniff = sniffBinary(new Uint8Array(upload.bytes.buffer, upload.bytes.byteOffset, upload.bytes.byteLength))
+    if (sniff.binary) {
+      issues.push({ field, message: `${t.label}: ${upload.filename} is not a CSV text file. ${sniff.message}` })
+      continue
+    }
+    const mapping = payload.mappings[t.key]
+    if (!mapping) {
+      issues.push({ field, message: `${t.label}: match the file's columns to the log's quantities.` })
+      continue
+    }
+    const text = upload.bytes.toString('utf8').replace(/^\uFEFF/, '')
+    const parsed = parseLog(text, t, mapping)
+    if (!parsed.ok) {
+      totalFileErrors += parsed.totalErrors
+      for (const e of parsed.errors) issues.push({ field, message: e.message, ...(e.row ? { row: e.row } : {}), ...(e.column ? { column: e.column } : {}) })
+      continue
+    }
+    for (const c of t.columns) {
+      const sense = parsed.pressures[c.key]
+      if (c.pressure && sense && sense !== c.pressure) pressures[c.key] = sense
+    }
+    tables[t.key] = parsed.columns
+    files.push({ table: t, upload, mapping, columns: parsed.columns, rowCount: parsed.rowCount })
+  }
+  return { issues, totalFileErrors, measurements, reported, tables, pressures, files, inputs }
+}
+
+/**
+ * A student's hand-in: validated, stored with its raw files (bytes and sha256) in one transaction,
+ * and only then graded from its own data. If grading throws, the submission stays stored as
+ * 'grading-failed' with a flag for staff.
+ */
+export async function submitHandIn(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  payload: SubmissionPayload,
+  uploads: UploadedTable[],
+  opts: { appUrl: string; now?: Date },
+): Promise<SubmissionDetail> {
+  if (e.role !== 'student') throw forbidden('Only students hand in work; staff can see submissions in the review queue.')
+  const now = opts.now ?? new Date()
+  const p = await publishedModule(db, e.courseId, moduleId)
+  if (p.moduleStatus === 'closed') throw new AppError('module_closed', 'This module is closed to hand-ins.', 409)
+  if (!p.fm.assignment) throw new AppError('no_assignment', 'This module has nothing to hand in.', 409)
+  const course = await courseTimeZone(db, e.courseId)
+  const owner = ownerOf(e, p.fm)
+  const late = lateness(p, now, course.timeZone)
+
+  const v = validateHandIn(p.fm, payload, uploads)
+  if (v.issues.length) {
+    const shown = v.issues.slice(0, 20)
+    const more = v.issues.length - shown.length + Math.max(0, v.totalFileErrors - v.issues.filter((i) => i.row).length)
+    throw new AppError(
+      'invalid_submission',
+      `${v.issues.length === 1 ? 'One problem' : `${v.issues.length} problems`} to fix before this can be handed in: ${shown[0]!.message}`,
+      422,
+      { issues: shown, more },
+    )
+  }
+
+  const submissionId = await db.transaction(async (tx) => {
+    await lockOwner(tx, e.courseId, owner)
+    const used = await countAttempts(tx, p.moduleId, owner)
+    if (used >= p.fm.attempts) {
+      throw new AppError('attempts_used', `All ${p.fm.attempts} attempts for this module have been used.`, 409)
+    }
+    const id = await insertSubmission(tx, {
+      courseId: e.courseId,
+      moduleId: p.moduleId,
+      moduleVersionId: p.versionId,
+      userId: e.userId,
+      labGroupId: 'labGroupId' in owner ? owner.labGroupId : e.labGroupId,
+      attempt: used + 1,
+      inputs: v.inputs,
+      isLate: late.isLate,
+      daysLate: late.daysLate,
+      latePenalty: late.penalty,
+    })
+    for (const f of v.files) {
+      await insertFile(tx, {
+        submissionId: id,
+        courseId: e.courseId,
+        tableKey: f.table.key,
+        filename: f.upload.filename.slice(0, 255),
+        contentType: f.upload.contentType.slice(0, 120),
+        size: f.upload.bytes.length,
+        sha256: createHash('sha256').update(f.upload.bytes).digest('hex'),
+        bytes: f.upload.bytes,
+        mapping: f.mapping,
+        parsed: f.columns,
+        rowCount: f.rowCount,
+      })
+    }
+    return id
+  })
+
+  await gradeStored(db, submissionId, p, { measurements: v.measurements, reported: v.reported, tables: v.tables, pressures: v.pressures }, late.penalty, e)
+  const detail = await submissionDetail(db, e, submissionId, now)
+  await queueReceipt(db, detail, course, opts.appUrl, e)
+  return detail
+}
+
+/** Grades a stored submission; failures are recorded on it, never thrown at the student. */
+async function gradeStored(
+  db: Database,
+  submissionId: number,
+  p: Published,
+  data: {
+    measurements: Record<string, number>
+    reported: Record<string, number>
+    tables: Record<string, Record<string, number[]>>
+    pressures: Record<string, 'gauge' | 'absolute'>
+  },
+  latePenalty: number,
+  e: CourseEnrollment,
+): Promise<void> {
+  try {
+    const result = gradeSubmission({
+      assignment: p.fm.assignment!,
+      data: { tables: data.tables, measurements: data.measurements, pressures: data.pressures },
+      reported: data.reported,
+      latePenalty,
+    })
+    const checks: CheckWrite[] = result.checks.map((c) => ({
+      resultKey: c.key,
+      label: c.label,
+      unit: c.unit,
+      reported: c.reported,
+      expected: c.expected ?? null,
+      absError: c.absError ?? null,
+      relError: c.relError ?? null,
+      tolerance: c.tolerance ?? null,
+      pointsPossible: c.pointsPossible,
+      pointsAwarded: c.pointsAwarded,
+      pass: c.pass,
+      outcome: c.outcome,
+      error: c.error ?? null,
+    }))
+    const flags: FlagWrite[] = result.flags.map((f) => ({ code: f.code, message: f.message, detail: f.detail ?? null }))
+    await db.transaction((tx) =>
+      saveGrade(tx, submissionId, { status: 'graded', gradingError: null, rawScore: result.rawScore, score: result.score, maxScore: result.maxScore }, checks, flags),
+    )
+  } catch (err) {
+    const message = err instanceof Error ? err.message : String(err)
+    await db.transaction((tx) =>
+      saveGrade(tx, submissionId, { status: 'grading-failed', gradingError: message.slice(0, 1000), rawScore: null, score: null, maxScore: null }, [], [
+        { code: 'grading-failed', message: `Automatic grading failed: ${message.slice(0, 800)}`, detail: null },
+      ]),
+    )
+  }
+  // A file byte-identical to another group's in this course is for staff to look at.
+  const files = await listFiles(db, submissionId)
+  for (const f of files) {
+    const same = await findIdenticalFiles(db, e.courseId, f.sha256, { userId: e.userId, labGroupId: e.labGroupId })
+    if (same.length) {
+      const who = same.map((s) => s.labGroupName ?? s.submittedBy).join(', ')
+      await db.transaction((tx) =>
+        addFlags(tx, submissionId, [
+          {
+            code: 'identical-file',
+            message: `The uploaded file ${f.filename} is byte-for-byte identical to a file handed in by ${who}.`,
+            detail: { otherSubmissionId: same[0]!.submissionId },
+          },
+        ]),
+      )
+    }
+  }
+}
+
+function summary(s: SubmissionRow & { flagCount?: number }, visible: boolean): SubmissionSummary {
+  return {
+    id: s.id,
+    attempt: s.attempt,
+    submittedAt: s.submittedAt.toISOString(),
+    submittedBy: s.submittedBy,
+    status: s.status,
+    isLate: s.isLate,
+    daysLate: s.daysLate,
+    latePenalty: s.latePenalty,
+    score: visible ? s.score : null,
+    maxScore: visible ? s.maxScore : null,
+    flagCount: s.flagCount ?? 0,
+  }
+}
+
+/** May this person see this submission? Its submitter, their lab-group partners, and staff. */
+function canSee(e: CourseEnrollment, s: SubmissionRow): boolean {
+  if (isStaff(e)) return true
+  if (s.userId === e.userId) return true
+  return s.labGroupId !== null && s.labGroupId === e.labGroupId
+}
+
+export async function submissionDetail(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<SubmissionDetail> {
+  const s = await findSubmission(db, e.courseId, submissionId)
+  // Someone else's submission does not exist for a student.
+  if (!s || !canSee(e, s)) throw notFound('That submission')
+  const p = await publishedModule(db, e.courseId, s.moduleId).catch(() => null)
+  const version = await findVersion(db, s.moduleVersionId)
+  if (!version) throw notFound('That submission')
+  const fm = version.frontMatter as unknown as ModuleFrontMatter
+  const course = await courseTimeZone(db, e.courseId)
+  const vis = isStaff(e)
+    ? { visible: true, reason: null }
+    : visibility(
+        { ...(p ?? { moduleId: s.moduleId, moduleStatus: 'published', versionId: version.id, versionNumber: version.number, title: version.title, gradesReleasedAt: null }), dueAt: version.dueAt, fm },
+        now,
+        course.timeZone,
+      )
+  const [checks, flags, files, groupName] = await Promise.all([listChecks(db, s.id), listFlags(db, s.id), listFiles(db, s.id), labGroupName(db, s.labGroupId)])
+  const showExpected = isStaff(e) || fm.showExpected
+  const checkViews: CheckView[] = vis.visible
+    ? checks.map((c) => ({
+        key: c.resultKey,
+        label: c.label,
+        unit: c.unit,
+        reported: c.reported,
+        expected: showExpected ? c.expected : null,
+        absError: showExpected ? c.absError : null,
+        relError: c.relError,
+        tolerance: c.tolerance,
+        pointsPossible: c.pointsPossible,
+        pointsAwarded: c.pointsAwarded,
+        pass: c.pass,
+        outcome: c.outcome,
+      }))
+    : []
+  let chart = null
+  const mainFile = files[0]
+  if (mainFile && fm.assignment) {
+    try {
+      const table = fm.assignment.tables.find((t) => t.key === mainFile.tableKey)
+      if (table) {
+        const si = siDataOf(fm, s.inputs, { [table.key]: mainFile.mapping })
+        chart = chartSeries(fm.assignment, { tables: { [table.key]: mainFile.parsed }, ...si })
+      }
+    } catch {
+      chart = null
+    }
+  }
+  const owner: Owner = s.labGroupId !== null && fm.groupSubmission ? { labGroupId: s.labGroupId } : { userId: s.userId }
+  const used = await countAttempts(db, s.moduleId, owner)
+  return {
+    ...summary({ ...s, flagCount: flags.length }, vis.visible),
+    courseId: s.courseId,
+    moduleId: s.moduleId,
+    moduleTitle: version.title,
+    moduleVersion: version.number,
+    labGroupName: groupName,
+    resultsVisible: vis.visible,
+    resultsHiddenReason: vis.reason,
+    rawScore: vis.visible ? s.rawScore : null,
+    checks: checkViews,
+    flags: flags.map((f) => ({ id: f.id, code: f.code, message: f.message, status: f.status })),
+    chart,
+    files: files.map((f) => ({ id: f.id, tableKey: f.tableKey, filename: f.filename, size: f.size, rowCount: f.rowCount, sha256: f.sha256 })),
+    inputs: s.inputs,
+    attemptsAllowed: fm.attempts,
+    attemptsUsed: used,
+  }
+}
+
+/** The stored inputs as the grading engine's SI data (the same conversion as at hand-in). */
+function siDataOf(fm: ModuleFrontMatter, inputs: SubmissionInputs, mappings: Record<string, Record<string, { pressure?: 'gauge' | 'absolute' }>>) {
+  const measurements: Record<string, number> = {}
+  const pressures: Record<string, 'gauge' | 'absolute'> = {}
+  const a = fm.assignment
+  if (!a) return { measurements, pressures }
+  for (const m of a.measurements) {
+    const t = inputs.measurements[m.key]
+    if (!t) continue
+    measurements[m.key] = valueToSI(t.value, t.unit)
+    const sense = m.role === 'ambient-pressure' ? 'absolute' : (t.pressure ?? m.pressure)
+    if (m.pressure && sense && sense !== m.pressure) pressures[m.key] = sense
+  }
+  for (const t of a.tables) {
+    for (const c of t.columns) {
+      const sense = mappings[t.key]?.[c.key]?.pressure
+      if (c.pressure && sense && sense !== c.pressure) pressures[c.key] = sense
+    }
+  }
+  return { measurements, pressures }
+}
+
+export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId: number, now = new Date()): Promise<MySubmissions> {
+  const p = await publishedModule(db, e.courseId, moduleId)
+  const course = await courseTimeZone(db, e.courseId)
+  let owner: Owner = { userId: e.userId }
+  let blockedReason: string | null = null
+  try {
+    owner = ownerOf(e, p.fm)
+  } catch (err) {
+    blockedReason = err instanceof Error ? err.message : String(err)
+  }
+  const rows = await listOwnerSubmissions(db, p.moduleId, owner)
+  const vis = visibility(p, now, course.timeZone)
+  const used = rows.length
+  if (!blockedReason) {
+    if (!p.fm.assignment) blockedReason = 'This module has nothing to hand in.'
+    else if (p.moduleStatus === 'closed') blockedReason = 'This module is closed to hand-ins.'
+    else if (used >= p.fm.attempts) blockedReason = `All ${p.fm.attempts} attempts have been used.`
+    else {
+      try {
+        lateness(p, now, course.timeZone)
+      } catch (err) {
+        blockedReason = err instanceof Error ? err.message : String(err)
+      }
+    }
+  }
+  return {
+    attemptsAllowed: p.fm.attempts,
+    attemptsUsed: used,
+    canSubmit: blockedReason === null && e.role === 'student',
+    blockedReason: e.role === 'student' ? blockedReason : 'Staff do not hand in work.',
+    dueAt: p.dueAt?.toISOString() ?? null,
+    groupSubmission: p.fm.groupSubmission,
+    labGroupName: await labGroupName(db, e.labGroupId),
+    submissions: rows.map((r) => summary(r, vis.visible)),
+  }
+}
+
+export async function submissionFile(db: Database, e: CourseEnrollment, submissionId: number, fileId: number) {
+  const s = await findSubmission(db, e.courseId, submissionId)
+  if (!s || !canSee(e, s)) throw notFound('That file')
+  const f = await findFileBytes(db, submissionId, fileId)
+  if (!f) throw notFound('That file')
+  return f
+}
+
+/** A receipt to the submitter (and group partners), with the score when results are visible. */
+async function queueReceipt(
+  db: Database,
+  d: SubmissionDetail,
+  course: { code: string; title: string; timeZone: string },
+  appUrl: string,
+  e: CourseEnrollment,
+): Promise<void> {
+  const me = await findUserById(db, e.userId)
+  const people = d.labGroupName && e.labGroupId !== null ? await groupMemberEmails(db, e.labGroupId) : me ? [{ email: me.email, displayName: me.displayName }] : []
+  const link = `${appUrl.replace(/\/$/, '')}/courses/${d.courseId}/submissions/${d.id}`
+  const when = formatInZone(new Date(d.submittedAt), course.timeZone)
+  const scoreLine = d.resultsVisible && d.score !== null && d.maxScore !== null
+    ? `Score: ${Number(d.score.toFixed(2))} of ${d.maxScore}${d.latePenalty > 0 ? ` (after a ${Math.round(d.latePenalty * 100)} % late penalty)` : ''}.`
+    : d.status === 'grading-failed'
+      ? 'Automatic grading could not finish; the course staff will grade it.'
+      : (d.resultsHiddenReason ?? 'Results are not shown yet.')
+  await enqueueMail(
+    db,
+    people.map((p) => ({
+      dedupeKey: `submission-receipt:${d.id}`,
+      toAddress: p.email,
+      toName: p.displayName,
+      subject: `${course.code}: hand-in received — ${d.moduleTitle} (attempt ${d.attempt})`,
+      textBody: [
+        `Hello ${p.displayName},`,
+        '',
+        `Isentrope received ${d.labGroupName ? `${d.labGroupName}'s` : 'your'} hand-in for “${d.moduleTitle}” (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${when}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.`,
+        scoreLine,
+        '',
+        `See the checks: ${link}`,
+        '',
+        '— Isentrope',
+      ].join('\n'),
+      htmlBody: `<p>Hello ${escapeHtml(p.displayName)},</p>
+<p>Isentrope received ${d.labGroupName ? `${escapeHtml(d.labGroupName)}'s` : 'your'} hand-in for <strong>${escapeHtml(d.moduleTitle)}</strong> (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${escapeHtml(when)}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.</p>
+<p>${escapeHtml(scoreLine)}</p>
+<p><a href="${escapeHtml(link)}">See the checks</a></p>
+<p style="color:#5d574c">— Isentrope</p>`,
+    })),
+  )
+}
