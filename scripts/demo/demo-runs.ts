@@ -1,0 +1,366 @@
+/**
+ * DEMO DATA — invented. Cold-flow run logs and lab reports for the eight demo lab groups, made by
+ * our own model of a fictional test stand; the numbers are not measurements of anything.
+ *
+ * The model: the stand's air receiver blows down through the group's converging–diverging nozzle
+ * (tankBlowdown, adiabatic, from the formula library); the chamber just upstream of the nozzle reads
+ * a fixed fraction of the receiver pressure while the valve is open (feed-line loss), the thrust is
+ * the ideal nozzle thrust at that chamber pressure (nozzleFlow) times a thrust efficiency, and the
+ * logger adds a load-cell offset, Gaussian noise and its resolution. A seeded generator makes every
+ * run the same on every machine.
+ *
+ * Each run comes with the group's measurements (in the demo module's units, rounded as read off
+ * the instruments) and the results the group reports: the engine's expected values with small
+ * human errors, one clear reporting mistake for two groups, and three runs made wrong on purpose so
+ * the staff review queue has work (see {@link DEMO_WRONG_RUNS}).
+ *
+ * Usage: `npx tsx scripts/demo/demo-runs.ts [outDir]` writes one CSV per group (for trying the
+ * upload by hand); the seed imports {@link demoRuns}.
+ */
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import path from 'node:path'
+import { parseLog, suggestMapping } from '../../shared/grading/csv'
+import type { ColumnMapping, ColumnMappingEntry } from '../../shared/grading/csv'
+import { gradeSubmission } from '../../shared/grading/grade'
+import { parseModuleSource } from '../../shared/modules/front-matter'
+import { valueToSI } from '../../shared/modules/quantities'
+import type { Assignment, TableSpec } from '../../shared/modules/schema'
+import type { SubmissionData } from '../../shared/modules/scope'
+import { G0, areaFromDiameter, nozzleFlow, tankBlowdown } from '../../shared/physics'
+import { DEMO_STUDENTS } from './scenario'
+
+/** The fictional stand of the demo course (demo data, invented). */
+export const DEMO_STAND = {
+  /** Receiver volume from its (fictional) plate, m³: 40 L. */
+  receiverVolume: 0.04,
+  /** Receiver charge before a run, gauge, Pa: about 8 bar gauge, varied a little per group. */
+  chargeGauge: 800e3,
+  /** Nozzle throat and exit diameters, m: 6 mm and 9 mm (area ratio 2.25). */
+  throatDiameter: 0.006,
+  exitDiameter: 0.009,
+  /** Barometric pressure of the fictional high-altitude campus, Pa (about 1600 m). */
+  ambient: 84e3,
+  /** Discharge coefficient of the nozzle throat. */
+  dischargeCoefficient: 0.97,
+  /** Chamber-to-receiver pressure ratio while air flows (loss in the valve and feed line). */
+  feedRatio: 0.93,
+  /** Logged thrust as a fraction of the ideal nozzle thrust (divergence and friction losses). */
+  thrustEfficiency: 0.92,
+  /** Logger sampling rate, Hz. */
+  sampleRate: 100,
+  /** Logging before the valve opens and after the flow stops, s. */
+  preRoll: 2,
+  postRoll: 2,
+  /** Time for the valve to open fully, s. */
+  valveOpening: 0.25,
+  /** Load-cell zero offset, N, and noise (one standard deviation) of the load cell and the transducers. */
+  loadCellOffset: 0.25,
+  thrustNoise: 0.08,
+  pressureNoise: 300,
+  gamma: 1.4,
+  gasConstant: 287.05,
+} as const
+
+/** The demo lab groups, in scenario order: A1…A4, B1…B4. */
+export const DEMO_GROUPS: readonly string[] = [...new Set(DEMO_STUDENTS.map((s) => s.labGroup))]
+
+/** A run that is wrong on purpose, and the flags the grading engine must raise for it. */
+export interface DemoWrongRun {
+  group: string
+  problem: string
+  /** Flags gradeSubmission raises for this run; no others. */
+  flags: readonly string[]
+  /** The group whose file this one copies (the server's 'identical-file' flag, not the engine's). */
+  copiesGroup?: string
+}
+
+/**
+ * The runs made wrong on purpose. Reasons for each flag:
+ * - B2 logged the chamber pressure gauge (as the stand's transducer reads) but declared it absolute,
+ *   so at rest it reads about 0 where an absolute reading is near 84 kPa ('pressure-looks-gauge').
+ *   Taken as absolute, the resting chamber readings of 0.0 kPa make the module's thrust-coefficient
+ *   expression divide by a zero chamber pressure ('expression-failed'). There is no thrust flag:
+ *   at the peak-thrust sample the chamber reads about 700 kPa gauge; the ideal thrust for that
+ *   reading taken as absolute is about 1/1.15 of the ideal at the true absolute pressure (reading
+ *   plus 84 kPa), so the logged thrust, 0.92 of the true ideal, is about 0.92 × 1.15 = 1.06 times the
+ *   ideal the engine computes — below the 10 % margin.
+ * - A3 uploaded A1's log byte for byte; the server's sha256 comparison flags it ('identical-file').
+ *   The data are a real run, so the engine raises nothing.
+ * - B4's load-cell calibration factor is 1.6 times too large: the peak thrust is 1.6 × 0.92 = 1.47
+ *   times the ideal, above the 10 % margin of the built-in check and of the module's own rule.
+ */
+export const DEMO_WRONG_RUNS: readonly DemoWrongRun[] = [
+  {
+    group: 'B2',
+    problem: 'chamber pressure logged gauge but declared absolute',
+    flags: ['pressure-looks-gauge', 'expression-failed'],
+  },
+  { group: 'A3', problem: "log copied byte for byte from group A1's", flags: [], copiesGroup: 'A1' },
+  {
+    group: 'B4',
+    problem: 'load-cell calibration 1.6 times too large: thrust above the ideal',
+    flags: ['thrust-above-ideal', 'rule:thrust_above_ideal'],
+  },
+]
+
+/** Reporting mistakes of groups whose data are fine: the named results fall outside their tolerance. */
+export const DEMO_REPORTING_MISTAKES: readonly { group: string; results: readonly string[]; mistake: string }[] = [
+  {
+    group: 'A2',
+    results: ['air_mass', 'isp'],
+    mistake:
+      'used 0 kPa gauge for the final receiver pressure (the reading straight after the run, still cold) instead of the warm reading they recorded',
+  },
+  { group: 'B1', results: ['peak_thrust'], mistake: 'reported the peak thrust in kgf where the form asks for N' },
+]
+
+export interface DemoRun {
+  group: string
+  /** The run log as the logger wrote it: CSV text with the module's column keys as headers. */
+  csv: string
+  /** How the group maps the file's columns (units as logged, gauge/absolute as they declared it). */
+  mapping: ColumnMapping
+  /** Measurements in the module's units (kPa, mm, L, degC), pressures gauge where the module says so. */
+  measurements: Record<string, number>
+  /** The results the group reports, in each result's unit. */
+  reported: Record<string, number>
+}
+
+/** mulberry32: a small seeded PRNG, uniform in [0, 1). */
+function seeded(seed: number): () => number {
+  let a = seed >>> 0
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+  }
+}
+
+/** Standard normal deviates by the Box–Muller transform. */
+function gaussian(random: () => number): () => number {
+  return () => {
+    const u = 1 - random()
+    return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random())
+  }
+}
+
+const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
+
+/** The demo cold-flow module's assignment, read from content/. */
+export function coldFlowAssignment(): Assignment {
+  const file = '02-cold-flow-characterisation.md'
+  const parsed = parseModuleSource(readFileSync(path.join(CONTENT, file), 'utf8'), file)
+  if (!parsed.ok) throw new Error(`content/${file}: ${parsed.errors.map((e) => e.message).join('; ')}`)
+  if (!parsed.frontMatter.assignment) throw new Error(`content/${file} has no assignment`)
+  return parsed.frontMatter.assignment
+}
+
+interface Conditions {
+  ambient: number
+  roomTemperature: number
+  chargeGauge: number
+  thrustScale: number
+}
+
+interface SimulatedRun {
+  csv: string
+  /** Receiver pressure, gauge, Pa, after the run once back at room temperature. */
+  finalGauge: number
+}
+
+function linearAt(xs: readonly number[], ys: readonly number[], x: number): number {
+  if (x <= (xs[0] as number)) return ys[0] as number
+  const last = xs.length - 1
+  if (x >= (xs[last] as number)) return ys[last] as number
+  let lo = 0
+  let hi = last
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1
+    if ((xs[mid] as number) <= x) lo = mid
+    else hi = mid
+  }
+  const x0 = xs[lo] as number
+  const x1 = xs[hi] as number
+  return (ys[lo] as number) + (((ys[hi] as number) - (ys[lo] as number)) * (x - x0)) / (x1 - x0)
+}
+
+/** One run of the model, written as the logger writes it. */
+function simulate(c: Conditions, noise: () => number): SimulatedRun {
+  const s = DEMO_STAND
+  const throatArea = areaFromDiameter(s.throatDiameter)
+  const exitArea = areaFromDiameter(s.exitDiameter)
+  const initialPressure = c.chargeGauge + c.ambient
+  const step = 1 / s.sampleRate
+  // The receiver empties through the throat; flow is choked at the chamber pressure, a fixed
+  // fraction of the receiver's, so the receiver sees a discharge coefficient Cd × feedRatio.
+  const tank = tankBlowdown({
+    volume: s.receiverVolume,
+    initialPressure,
+    initialTemperature: c.roomTemperature,
+    ambientPressure: c.ambient,
+    throatArea,
+    dischargeCoefficient: s.dischargeCoefficient * s.feedRatio,
+    gamma: s.gamma,
+    gasConstant: s.gasConstant,
+    process: 'adiabatic',
+    duration: 120,
+    step,
+  })
+  const flowEnd = tank.time[tank.time.length - 1] as number
+  const endTemperature = tank.temperature[tank.temperature.length - 1] as number
+  const samples = Math.round((s.preRoll + flowEnd + s.postRoll) * s.sampleRate)
+  const lines = ['t,thrust,p_receiver,p_chamber']
+  for (let i = 0; i <= samples; i++) {
+    const t = i * step
+    const sinceOpen = t - s.preRoll
+    const receiver = sinceOpen <= 0 ? initialPressure : linearAt(tank.time, tank.pressure, sinceOpen)
+    const temperature = sinceOpen <= 0 ? c.roomTemperature : linearAt(tank.time, tank.temperature, sinceOpen)
+    // Valve opening: smoothstep from closed to open over valveOpening seconds; closed once the flow stops.
+    const x = Math.min(1, Math.max(0, sinceOpen / s.valveOpening))
+    const open = sinceOpen > flowEnd ? 0 : x * x * (3 - 2 * x)
+    const chamber = c.ambient + open * Math.max(0, s.feedRatio * receiver - c.ambient)
+    let thrust = 0
+    if (chamber > c.ambient * 1.0001) {
+      thrust =
+        s.thrustEfficiency *
+        nozzleFlow({
+          chamberPressure: chamber,
+          chamberTemperature: temperature,
+          ambientPressure: c.ambient,
+          throatArea,
+          exitArea,
+          gamma: s.gamma,
+          gasConstant: s.gasConstant,
+        }).thrust
+    }
+    const loggedThrust = c.thrustScale * thrust + s.loadCellOffset + s.thrustNoise * noise()
+    const loggedReceiver = (receiver - c.ambient + s.pressureNoise * noise()) / 1000
+    const loggedChamber = (chamber - c.ambient + s.pressureNoise * noise()) / 1000
+    // The logger's resolution: 10 ms, 1 mN, 0.1 kPa.
+    lines.push(`${t.toFixed(2)},${loggedThrust.toFixed(3)},${loggedReceiver.toFixed(1)},${loggedChamber.toFixed(1)}`)
+  }
+  // After the run the valve is closed and the cold air left in the receiver warms back up to room
+  // temperature at constant volume: p = p_ambient · T_room / T_end.
+  const finalGauge = (c.ambient * c.roomTemperature) / endTemperature - c.ambient
+  return { csv: `${lines.join('\n')}\n`, finalGauge }
+}
+
+/** Rounds to a number of significant figures, as a person copies a result off a calculator. */
+function significant(x: number, figures: number): number {
+  return x === 0 ? 0 : Number(x.toPrecision(figures))
+}
+
+function tableOf(assignment: Assignment): TableSpec {
+  const table = assignment.tables[0]
+  if (!table) throw new Error('the cold-flow assignment has no table')
+  return table
+}
+
+/** The grading engine's data (SI) for a run as the group submitted it. */
+function submissionData(assignment: Assignment, run: Pick<DemoRun, 'csv' | 'mapping' | 'measurements'>): SubmissionData {
+  const table = tableOf(assignment)
+  const parsed = parseLog(run.csv, table, run.mapping)
+  if (!parsed.ok) throw new Error(`demo run does not parse: ${parsed.errors.map((e) => e.message).join('; ')}`)
+  const measurements: Record<string, number> = {}
+  for (const m of assignment.measurements) {
+    const value = run.measurements[m.key]
+    if (value === undefined) throw new Error(`demo run lacks ${m.key}`)
+    measurements[m.key] = valueToSI(value, m.unit)
+  }
+  return { tables: { [table.key]: parsed.columns }, measurements, pressures: parsed.pressures }
+}
+
+/** The engine's expected values (in each result's unit) for a run; null where the expression fails. */
+function expectedValues(assignment: Assignment, data: SubmissionData): Record<string, number | null> {
+  const graded = gradeSubmission({ assignment, data, reported: {} })
+  return Object.fromEntries(graded.checks.map((c) => [c.key, c.expected]))
+}
+
+/**
+ * The demo runs, one per lab group (A1…A4, B1…B4), always the same.
+ *
+ * @param assignment - the cold-flow assignment (read from content/ when left out)
+ */
+export function demoRuns(assignment: Assignment = coldFlowAssignment()): DemoRun[] {
+  const random = seeded(0x15e47a0e)
+  const noise = gaussian(random)
+  const table = tableOf(assignment)
+  const uniform = (lo: number, hi: number) => lo + (hi - lo) * random()
+  const runs: DemoRun[] = []
+  const byGroup = new Map<string, { csv: string; measurements: Record<string, number> }>()
+
+  for (const group of DEMO_GROUPS) {
+    const wrong = DEMO_WRONG_RUNS.find((w) => w.group === group)
+    const conditions: Conditions = {
+      ambient: 1000 * Math.round(10 * uniform(83.4, 84.8)) / 10,
+      roomTemperature: 273.15 + uniform(16, 22),
+      chargeGauge: 1000 * Math.round(uniform(780, 820)),
+      thrustScale: group === 'B4' ? 1.6 : 1,
+    }
+    const sim = simulate(conditions, noise)
+    let csv = sim.csv
+    const measurements: Record<string, number> = {
+      p_ambient: conditions.ambient / 1000,
+      // Pin-gauge readings: the true size within ±0.01 mm.
+      d_throat: Number((1000 * DEMO_STAND.throatDiameter + uniform(-0.01, 0.01)).toFixed(2)),
+      d_exit: Number((1000 * DEMO_STAND.exitDiameter + uniform(-0.01, 0.01)).toFixed(2)),
+      v_receiver: 1000 * DEMO_STAND.receiverVolume,
+      p_initial: conditions.chargeGauge / 1000,
+      p_final: Math.round(sim.finalGauge / 1000),
+      t_air: Number((conditions.roomTemperature - 273.15).toFixed(1)),
+    }
+    if (wrong?.copiesGroup) {
+      const original = byGroup.get(wrong.copiesGroup)
+      if (!original) throw new Error(`demo group ${group} copies ${wrong.copiesGroup}, which comes later`)
+      // The copied file, and the receiver readings that go with it; their own barometer and thermometer.
+      csv = original.csv
+      measurements.p_initial = original.measurements.p_initial as number
+      measurements.p_final = original.measurements.p_final as number
+    }
+    byGroup.set(group, { csv, measurements })
+
+    // The headers are the module's column keys, so the suggested mapping is the right one (kPa
+    // gauge for both pressures); B2 changes the chamber pressure to absolute.
+    const asLogged = suggestMapping(csv.slice(0, csv.indexOf('\n')).split(','), table)
+    const mapping: Record<string, ColumnMappingEntry> = { ...asLogged }
+    if (group === 'B2' && mapping.p_chamber) mapping.p_chamber = { ...mapping.p_chamber, pressure: 'absolute' }
+
+    const run = { group, csv, mapping, measurements }
+    const expected = expectedValues(assignment, submissionData(assignment, run))
+    // Where the submitted data give no expected value, the group's own spreadsheet still gave one:
+    // take the value for the data read as logged.
+    const fallback = expectedValues(assignment, submissionData(assignment, { ...run, mapping: asLogged }))
+
+    const reported: Record<string, number> = {}
+    for (const r of assignment.results) {
+      const value = expected[r.key] ?? fallback[r.key]
+      if (value === null || value === undefined) throw new Error(`demo run ${group}: no value for ${r.key}`)
+      // Small human error: within 30 % of the tolerance, then 4 significant figures.
+      const relative = r.tolerance.relative ?? 0
+      reported[r.key] = relative === 0 ? value : significant(value * (1 + 0.3 * relative * uniform(-1, 1)), 4)
+    }
+    if (group === 'A2') {
+      // With the cold reading of 0 kPa gauge as the final pressure, more air seems to have left.
+      const p0 = valueToSI(measurements.p_initial as number, 'kPa')
+      const airMass = (p0 * DEMO_STAND.receiverVolume) / (DEMO_STAND.gasConstant * (273.15 + (measurements.t_air as number)))
+      reported.air_mass = significant(airMass, 4)
+      reported.isp = significant((reported.impulse as number) / (airMass * G0), 4)
+    }
+    if (group === 'B1') reported.peak_thrust = significant((reported.peak_thrust as number) / G0, 4)
+    runs.push({ group, csv, mapping, measurements, reported })
+  }
+  return runs
+}
+
+// `npx tsx scripts/demo/demo-runs.ts [outDir]`: write the logs for trying the upload by hand.
+if (process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename)) {
+  const outDir = path.resolve(process.argv[2] ?? 'demo-runs')
+  mkdirSync(outDir, { recursive: true })
+  for (const run of demoRuns()) {
+    const file = path.join(outDir, `cold-flow-${run.group}.csv`)
+    writeFileSync(file, run.csv)
+    console.log(`${file}  ${run.csv.split('\n').length - 2} rows  reported ${JSON.stringify(run.reported)}`)
+  }
+}
