@@ -567,20 +567,15 @@ export interface ChartSeries {
   supersonicSpans: [number, number][]
 }
 
-/**
- * Indices to plot: all when there are few, otherwise, per bucket of consecutive samples, the
- * samples holding each series' minimum and maximum (in time order), so peaks survive.
- */
-function decimate(n: number, series: readonly (readonly number[])[], maxPoints: number): number[] {
-  if (n <= maxPoints) return Array.from({ length: n }, (_, i) => i)
-  const perBucket = 2 * Math.max(1, series.length)
-  const buckets = Math.max(1, Math.floor(maxPoints / perBucket))
+/** Per bucket of consecutive samples, the samples holding each series' minimum and maximum, in time order. */
+function bucketExtremes(n: number, series: readonly (readonly number[])[], buckets: number): number[] {
   const size = n / buckets
   const out: number[] = []
   const chosen = new Set<number>()
   for (let b = 0; b < buckets; b++) {
     const from = Math.floor(b * size)
     const to = b === buckets - 1 ? n : Math.floor((b + 1) * size)
+    if (to <= from) continue
     chosen.clear()
     if (series.length === 0) {
       chosen.add(from)
@@ -597,9 +592,29 @@ function decimate(n: number, series: readonly (readonly number[])[], maxPoints: 
       chosen.add(lo)
       chosen.add(hi)
     }
-    out.push(...[...chosen].sort((a, b2) => a - b2))
+    out.push(...[...chosen].sort((x, y) => x - y))
   }
   return out
+}
+
+/**
+ * Indices to plot: all when there are few; otherwise each bucket's minimum and maximum of every
+ * series, so peaks survive. Series often share their extremes (smooth pressures), so the number of
+ * buckets is raised from the one that is sure to fit (maxPoints / (2 × series)) towards filling
+ * maxPoints, in a few passes.
+ */
+function decimate(n: number, series: readonly (readonly number[])[], maxPoints: number): number[] {
+  if (n <= maxPoints) return Array.from({ length: n }, (_, i) => i)
+  const safe = Math.max(1, Math.floor(maxPoints / (2 * Math.max(1, series.length))))
+  let best = bucketExtremes(n, series, safe)
+  let buckets = safe
+  for (let pass = 0; pass < 4 && best.length < 0.9 * maxPoints; pass++) {
+    buckets = Math.floor((buckets * maxPoints) / Math.max(best.length, 1))
+    const tried = bucketExtremes(n, series, buckets)
+    if (tried.length > maxPoints) break
+    best = tried
+  }
+  return best
 }
 
 /**

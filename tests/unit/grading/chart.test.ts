@@ -1,0 +1,119 @@
+import { describe, expect, it } from 'vitest'
+import { CHART_MAX_POINTS, chartSeries } from '../../../shared/grading/grade'
+import type { SubmissionData } from '../../../shared/modules/scope'
+import { nozzleFlow } from '../../../shared/physics'
+import { expectClose } from '../../helpers/expect-close'
+import { EXIT_DIAMETER, STANDARD_ATMOSPHERE, THROAT_AREA, THROAT_DIAMETER, cleanLog, idealThrustCoefficientMach2, rolesAssignment } from './fixtures'
+
+const assignment = rolesAssignment()
+
+/** A log from absolute chamber pressures (Pa); receiver 10 % above, thrust 1 N, 10 ms steps. */
+function logFromChamber(chamberAbsolute: number[]): SubmissionData {
+  return {
+    tables: {
+      run: {
+        t: chamberAbsolute.map((_, i) => i * 0.01),
+        thrust: chamberAbsolute.map(() => 1),
+        p_receiver: chamberAbsolute.map((p) => 1.1 * p - STANDARD_ATMOSPHERE),
+        p_chamber: chamberAbsolute.map((p) => p - STANDARD_ATMOSPHERE),
+      },
+    },
+    measurements: { p_ambient: STANDARD_ATMOSPHERE, d_throat: THROAT_DIAMETER, d_exit: EXIT_DIAMETER, v_receiver: 0.05 },
+  }
+}
+
+describe('chartSeries on a short log', () => {
+  const data = cleanLog()
+  const chart = chartSeries(assignment, data)
+
+  it('keeps every sample when there are fewer than the plotting limit', () => {
+    expect(chart.time).toEqual((data.tables.run as Record<string, number[]>).t)
+    expect(chart.thrust).toEqual((data.tables.run as Record<string, number[]>).thrust)
+  })
+
+  it('plots pressures absolute: the gauge readings plus the barometer', () => {
+    expect(chart.chamberPressure?.[0]).toBe(STANDARD_ATMOSPHERE)
+    expect(chart.chamberPressure?.[50]).toBe(1e6)
+    expect(chart.receiverPressure?.[0]).toBe(1.1e6)
+  })
+
+  it('overlays the ideal thrust for the logged chamber pressure: C_F · p0 · At while flowing, 0 at rest', () => {
+    expectClose(chart.idealThrust?.[50] as number, idealThrustCoefficientMach2(1e6, STANDARD_ATMOSPHERE) * 1e6 * THROAT_AREA, 1e-9)
+    expect(chart.idealThrust?.[0]).toBe(0)
+    expect(chart.idealThrust?.[99]).toBe(0)
+  })
+
+  it('shades the flowing part, where pa/p0 = 0.101 is below the shock-at-exit ratio 0.575: from t = 0.10 s to 0.89 s', () => {
+    expect(chart.supersonicSpans).toEqual([[0.1, 0.89]])
+  })
+})
+
+describe('chartSeries supersonic spans on a pressure ramp', () => {
+  // Chamber 101.325 kPa + 1 kPa per sample up for 200 samples, then down again. The exit is
+  // supersonic (no shock in the nozzle) while pa/p0 ≤ shock-at-exit = 1.8^−3.5 × 4.5 = 0.575122
+  // (NACA 1135: p2/p1 = 4.5 across a Mach-2 normal shock), i.e. p0 ≥ 101 325 / 0.575122 = 176.18 kPa:
+  // samples 75 (176.325 kPa) to 324 on the way down.
+  const chamber = Array.from({ length: 400 }, (_, i) => STANDARD_ATMOSPHERE + 1000 * (i < 200 ? i : 399 - i))
+  const chart = chartSeries(assignment, logFromChamber(chamber))
+
+  it('starts at the first sample above 176.18 kPa and ends at the last one', () => {
+    expect(chart.supersonicSpans).toHaveLength(1)
+    const [start, end] = chart.supersonicSpans[0] as [number, number]
+    expectClose(start, 0.75, 1e-12)
+    expectClose(end, 3.24, 1e-12)
+  })
+
+  it('agrees sample by sample with the regime nozzleFlow gives (neither subsonic nor shock in nozzle)', () => {
+    const [start, end] = chart.supersonicSpans[0] as [number, number]
+    chamber.forEach((p0, i) => {
+      const regime =
+        p0 > STANDARD_ATMOSPHERE
+          ? nozzleFlow({
+              chamberPressure: p0,
+              chamberTemperature: 293.15,
+              ambientPressure: STANDARD_ATMOSPHERE,
+              throatArea: THROAT_AREA,
+              exitArea: THROAT_AREA * 1.6875,
+              gamma: 1.4,
+              gasConstant: 287.05,
+            }).regime
+          : 'subsonic'
+      const inSpan = i * 0.01 >= start - 1e-9 && i * 0.01 <= end + 1e-9
+      expect(inSpan, `sample ${i}, ${p0} Pa, ${regime}`).toBe(regime !== 'subsonic' && regime !== 'shock-in-nozzle')
+    })
+  })
+
+  it('gives two spans for two runs in one log', () => {
+    const twice = chartSeries(assignment, logFromChamber([...chamber, ...chamber]))
+    expect(twice.supersonicSpans).toHaveLength(2)
+    expectClose((twice.supersonicSpans[1] as [number, number])[0], 4.75, 1e-12)
+  })
+})
+
+describe('chartSeries on a long log', () => {
+  // 10 000 samples with one thrust spike and one dip; the plot must keep both.
+  const n = 10_000
+  const data = logFromChamber(Array.from({ length: n }, (_, i) => 3e5 + 1e5 * Math.sin(i / 500)))
+  const run = data.tables.run as Record<string, number[]>
+  const thrust = (run.thrust as number[]).map((_, i) => (i === 7777 ? 500 : i === 2222 ? -50 : 20 + Math.sin(i / 37)))
+  const chart = chartSeries(assignment, { ...data, tables: { run: { ...run, thrust } } })
+
+  it(`thins it to at most ${CHART_MAX_POINTS} points`, () => {
+    expect(chart.time.length).toBeLessThanOrEqual(CHART_MAX_POINTS)
+    expect(chart.time.length).toBeGreaterThan(CHART_MAX_POINTS / 2)
+    for (const series of [chart.thrust, chart.chamberPressure, chart.receiverPressure, chart.idealThrust]) {
+      expect(series).toHaveLength(chart.time.length)
+    }
+  })
+
+  it('keeps the peaks: the spike and the dip, and the chamber maximum of 400 kPa', () => {
+    expect(chart.thrust).toContain(500)
+    expect(chart.thrust).toContain(-50)
+    expect(chart.time).toContain(77.77)
+    expect(Math.max(...(chart.chamberPressure ?? []))).toBe(Math.max(...(run.p_chamber as number[])) + STANDARD_ATMOSPHERE)
+  })
+
+  it('keeps time in order', () => {
+    for (let i = 1; i < chart.time.length; i++) expect(chart.time[i] as number).toBeGreaterThan(chart.time[i - 1] as number)
+  })
+})
