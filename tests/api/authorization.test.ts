@@ -1,8 +1,10 @@
+import { readFileSync } from 'node:fs'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, seedFixture, signedInAs, startTestApp } from '../helpers/app'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
+import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { listRoutes } from '../helpers/routes'
 
 /**
@@ -26,7 +28,8 @@ const newCourse = () => ({
 })
 
 // Modules made in beforeAll: one published (read by everyone), one for the unpublish row.
-const mods: { published?: CreatedModule; toUnpublish?: CreatedModule } = {}
+const mods: { published?: CreatedModule; toUnpublish?: CreatedModule; coldFlow?: CreatedModule } = {}
+const handIn: { submissionId?: number; fileId?: number } = {}
 const M = (fx: Fixture) => `/api/courses/${fx.courseId}/modules`
 const pub = () => mods.published!.id
 
@@ -145,6 +148,27 @@ const CASES: Case[] = [
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
   {
+    route: 'POST /api/courses/:courseId/modules/:moduleId/submissions',
+    // The reading module has nothing to hand in: a student reaches the service (409), staff are refused.
+    call: (c, fx) => c.agent.post(`${M(fx)}/${pub()}/submissions`).set('x-csrf-token', c.csrf).field('payload', '{}'),
+    expect: { anon: 401, outsider: 404, student: 409, ta: 403, instructor: 403, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/submissions/mine',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${mods.coldFlow!.id}/submissions/mine`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/submissions/:submissionId',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/submissions/:submissionId/files/:fileId',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/files/${handIn.fileId}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
     route: 'GET /api/courses/:courseId/modules/:moduleId/export',
     call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/export`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
@@ -162,6 +186,19 @@ beforeAll(async () => {
   await publishAs(inst, fx.courseId, mods.published)
   mods.toUnpublish = await createModuleAs(inst, fx.courseId, moduleSource('To unpublish'))
   await publishAs(inst, fx.courseId, mods.toUnpublish)
+  // A cold-flow module with one hand-in by the fixture student.
+  mods.coldFlow = await createModuleAs(inst, fx.courseId, readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+  await publishAs(inst, fx.courseId, mods.coldFlow)
+  const st = await signedInAs(ctx, fx.student.email)
+  const log = coldFlowCsv()
+  const res = await st.agent
+    .post(`${M(fx)}/${mods.coldFlow.id}/submissions`)
+    .set('x-csrf-token', st.csrf)
+    .field('payload', JSON.stringify(coldFlowPayload(log)))
+    .attach('table:run', Buffer.from(log.csv), 'run.csv')
+  if (res.status !== 201) throw new Error(`hand-in for the matrix failed: ${res.status} ${JSON.stringify(res.body)}`)
+  handIn.submissionId = res.body.id
+  handIn.fileId = res.body.files[0].id
 })
 afterAll(async () => {
   await ctx.close()

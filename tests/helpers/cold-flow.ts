@@ -64,3 +64,43 @@ export function trapezoid(t: number[], f: number[]): number {
   for (let i = 1; i < t.length; i++) s += ((f[i]! + f[i - 1]!) / 2) * (t[i]! - t[i - 1]!)
   return s
 }
+
+const MAPPING = {
+  run: {
+    t: { header: 'time_s', unit: 's' },
+    thrust: { header: 'thrust_N', unit: 'N' },
+    p_receiver: { header: 'p_receiver_kPa', unit: 'kPa', pressure: 'gauge' as const },
+    p_chamber: { header: 'p_chamber_kPa', unit: 'kPa', pressure: 'gauge' as const },
+  },
+}
+
+/**
+ * The hand-in form's payload for the cold-flow demo module (content/02): measurements as typed
+ * (the initial pressure in psi, to exercise unit conversion), impulse and peak thrust computed
+ * independently here, the other results deliberately wrong unless overridden.
+ */
+export function coldFlowPayload(log: ReturnType<typeof coldFlowCsv>, overrides: Record<string, { value: number; unit: string }> = {}) {
+  return {
+    mappings: MAPPING,
+    measurements: {
+      p_ambient: { value: COLD_FLOW.ambientKPa, unit: 'kPa', pressure: 'absolute' as const },
+      d_throat: { value: COLD_FLOW.throatMm, unit: 'mm' },
+      d_exit: { value: COLD_FLOW.exitMm, unit: 'mm' },
+      v_receiver: { value: COLD_FLOW.volumeL, unit: 'L' },
+      // 700 kPa typed in psi: 700 / 6.894757293168 psi (exact psi definition).
+      p_initial: { value: 700 / 6.894757293168, unit: 'psi', pressure: 'gauge' as const },
+      p_final: { value: log.finalKPaGauge, unit: 'kPa', pressure: 'gauge' as const } as { value: number; unit: string; pressure?: 'gauge' | 'absolute' },
+      t_air: { value: COLD_FLOW.airC, unit: 'degC' },
+    } as Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>,
+    reported: {
+      impulse: { value: trapezoid(log.t, log.thrust), unit: 'N*s' },
+      peak_thrust: { value: Math.max(...log.thrust), unit: 'N' },
+      cf_mean: { value: 0.5, unit: '1' },
+      air_mass: { value: 0.1, unit: 'kg' },
+      isp: { value: 10, unit: 's' },
+      exit_mach: { value: 1.2, unit: '1' },
+      regime: { value: 5, unit: '1' },
+      ...overrides,
+    } as Record<string, { value: number; unit: string }>,
+  }
+}

@@ -1,0 +1,242 @@
+import { readFileSync } from 'node:fs'
+import { eq } from 'drizzle-orm'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { mailOutbox, submissionFiles, submissions } from '../../server/db/schema'
+import type { Client, Fixture, TestContext } from '../helpers/app'
+import { seedFixture, signedInAs, startTestApp } from '../helpers/app'
+import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
+import { createModuleAs, publishAs } from '../helpers/modules'
+import type { CreatedModule } from '../helpers/modules'
+
+let ctx: TestContext
+let fx: Fixture
+let inst: Client
+let student: Client
+let student2: Client
+let ta: Client
+let mod: CreatedModule
+const COLD = readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')
+
+const payload = coldFlowPayload
+
+function handIn(c: Client, files: { field: string; name: string; body: Buffer | string }[], body: unknown, moduleId = mod.id) {
+  let req = c.agent.post(`/api/courses/${fx.courseId}/modules/${moduleId}/submissions`).set('x-csrf-token', c.csrf).field('payload', typeof body === 'string' ? body : JSON.stringify(body))
+  for (const f of files) req = req.attach(f.field, Buffer.isBuffer(f.body) ? f.body : Buffer.from(f.body), f.name)
+  return req
+}
+
+beforeAll(async () => {
+  ctx = startTestApp({ UPLOAD_LIMIT_MB: '2' })
+  fx = await seedFixture(ctx)
+  inst = await signedInAs(ctx, fx.instructor.email)
+  student = await signedInAs(ctx, fx.student.email)
+  student2 = await signedInAs(ctx, fx.student2.email)
+  ta = await signedInAs(ctx, fx.ta.email)
+  mod = await createModuleAs(inst, fx.courseId, COLD)
+  await publishAs(inst, fx.courseId, mod)
+})
+afterAll(async () => {
+  await ctx.close()
+})
+
+describe('handing in a cold-flow run', () => {
+  it('stores the raw file with its sha256, grades from the submission’s own data, and shows the checks at once', async () => {
+    const log = coldFlowCsv()
+    const res = await handIn(student, [{ field: 'table:run', name: 'run1.csv', body: log.csv }], payload(log))
+    expect(res.status).toBe(201)
+    const d = res.body
+    expect(d.status).toBe('graded')
+    expect(d.attempt).toBe(1)
+    expect(d.resultsVisible).toBe(true)
+    const byKey = Object.fromEntries(d.checks.map((c: { key: string }) => [c.key, c]))
+    // Impulse and peak thrust were computed here independently (trapezoid rule written out in the
+    // test helper, and the maximum of the logged column): both pass.
+    expect(byKey.impulse.outcome).toBe('pass')
+    expect(byKey.peak_thrust.outcome).toBe('pass')
+    // The deliberately wrong values fail.
+    for (const k of ['cf_mean', 'air_mass', 'isp', 'exit_mach', 'regime']) expect(byKey[k].outcome, k).toBe('fail')
+    // showExpected is false in this module: the student does not see expected values.
+    expect(byKey.impulse.expected).toBeNull()
+    expect(d.score).toBe(3)
+    expect(d.maxScore).toBe(10)
+    expect(d.chart.time.length).toBeGreaterThan(10)
+    expect(d.chart.thrust.length).toBe(d.chart.time.length)
+
+    const [file] = await ctx.handle.db.select().from(submissionFiles).where(eq(submissionFiles.submissionId, d.id))
+    expect(file!.bytes.toString('utf8')).toBe(log.csv)
+    const { createHash } = await import('node:crypto')
+    expect(file!.sha256).toBe(createHash('sha256').update(log.csv).digest('hex'))
+    // The receipt e-mail is queued for the lab group (student is in G1 alone in this fixture).
+    const mail = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${d.id}`))
+    expect(mail.map((m) => m.toAddress)).toEqual([fx.student.email])
+    expect(mail[0]!.textBody).toContain('Score: 3 of 10')
+  })
+
+  it('staff see the expected values; another student cannot see the submission at all', async () => {
+    const mine = await student.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}/submissions/mine`).expect(200)
+    const id = mine.body.submissions[0].id
+    const staff = await ta.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(200)
+    expect(staff.body.checks.find((c: { key: string }) => c.key === 'impulse').expected).toBeGreaterThan(0)
+    await student2.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(404)
+    const file = await student.agent.get(`/api/courses/${fx.courseId}/submissions/${id}/files/${staff.body.files[0].id}`).expect(200)
+    expect(file.headers['content-disposition']).toMatch(/attachment/)
+    await student2.agent.get(`/api/courses/${fx.courseId}/submissions/${id}/files/${staff.body.files[0].id}`).expect(404)
+  })
+
+  it('flags an impossible thrust for staff review', async () => {
+    const log = coldFlowCsv({ thrustScale: 1.6 })
+    const res = await handIn(student, [{ field: 'table:run', name: 'run2.csv', body: log.csv }], payload(log))
+    expect(res.status).toBe(201)
+    const codes = res.body.flags.map((f: { code: string }) => f.code)
+    expect(codes).toContain('thrust-above-ideal')
+    const [row] = await ctx.handle.db.select().from(submissions).where(eq(submissions.id, res.body.id))
+    expect(row!.reviewStatus).toBe('open')
+  })
+
+  it('refuses a hand-in past the attempts limit and stores nothing', async () => {
+    const log = coldFlowCsv()
+    const third = await handIn(student, [{ field: 'table:run', name: 'run3.csv', body: log.csv }], payload(log))
+    expect(third.status).toBe(201)
+    const before = await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, mod.id))
+    const fourth = await handIn(student, [{ field: 'table:run', name: 'run4.csv', body: log.csv }], payload(log))
+    expect(fourth.status).toBe(409)
+    expect(fourth.body.error.code).toBe('attempts_used')
+    const after = await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, mod.id))
+    expect(after.length).toBe(before.length)
+  })
+
+  it('a student without a lab group cannot hand in a group module', async () => {
+    const log = coldFlowCsv()
+    const res = await handIn(student2, [{ field: 'table:run', name: 'x.csv', body: log.csv }], payload(log))
+    expect(res.status).toBe(409)
+    expect(res.body.error.code).toBe('no_lab_group')
+  })
+})
+
+describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () => {
+  let other: CreatedModule
+  let count = 0
+  beforeAll(async () => {
+    // A second copy of the module without group hand-in, so student2 can be refused for file problems.
+    other = await createModuleAs(inst, fx.courseId, COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'))
+    await publishAs(inst, fx.courseId, other)
+  })
+  const stored = async () => (await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, other.id))).length
+  async function refused(files: { field: string; name: string; body: Buffer | string }[], body: unknown, status = 422) {
+    const before = await stored()
+    const res = await handIn(student2, files, body, other.id)
+    expect(res.status).toBe(status)
+    expect(await stored()).toBe(before)
+    count++
+    return res.body.error as { code: string; message: string; details?: { issues: { field: string; row?: number; column?: string; message: string }[]; more: number } }
+  }
+  const log = coldFlowCsv()
+
+  it('an empty file', async () => {
+    const e = await refused([{ field: 'table:run', name: 'empty.csv', body: '' }], payload(log))
+    expect(e.details!.issues[0]!.field).toBe('table:run')
+    expect(e.details!.issues[0]!.message).toMatch(/empty/i)
+  })
+
+  it('a PNG renamed .csv', async () => {
+    const png = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 73, 72, 68, 82])
+    const e = await refused([{ field: 'table:run', name: 'plot.csv', body: png }], payload(log))
+    expect(e.details!.issues[0]!.message).toMatch(/not a CSV/i)
+  })
+
+  it('a units row under the header', async () => {
+    const lines = log.csv.split('\n')
+    const withUnits = [lines[0], 's,N,kPa,kPa', ...lines.slice(1)].join('\n')
+    const e = await refused([{ field: 'table:run', name: 'units.csv', body: withUnits }], payload(log))
+    expect(e.details!.issues.some((i) => i.row === 2 && /unit/i.test(i.message))).toBe(true)
+  })
+
+  it('semicolons and decimal commas', async () => {
+    const euro = log.csv.replace(/,/g, ';').replace(/(\d)\.(\d)/g, '$1,$2')
+    const e = await refused([{ field: 'table:run', name: 'euro.csv', body: euro }], payload(log))
+    expect(e.details!.issues[0]!.message).toMatch(/;/)
+  })
+
+  it('a missing column', async () => {
+    const noChamber = log.csv
+      .split('\n')
+      .map((l) => l.split(',').slice(0, 3).join(','))
+      .join('\n')
+    const e = await refused([{ field: 'table:run', name: 'three.csv', body: noChamber }], payload(log))
+    expect(e.details!.issues[0]!.message).toContain('p_chamber_kPa')
+  })
+
+  it('text in a number column, and a formula-looking cell kept as text', async () => {
+    const lines = log.csv.split('\n')
+    lines[5] = lines[5]!.replace(/^[^,]+,[^,]+/, (m) => `${m.split(',')[0]},abc`)
+    lines[8] = lines[8]!.replace(/^[^,]+,[^,]+/, (m) => `${m.split(',')[0]},=1+1`)
+    const e = await refused([{ field: 'table:run', name: 'text.csv', body: lines.join('\n') }], payload(log))
+    const rows = e.details!.issues.map((i) => [i.row, i.column])
+    expect(rows).toContainEqual([6, 'thrust_N'])
+    expect(rows).toContainEqual([9, 'thrust_N'])
+  })
+
+  it('NaN and Infinity cells', async () => {
+    const lines = log.csv.split('\n')
+    lines[3] = lines[3]!.replace(/,[^,]+$/, ',NaN')
+    lines[4] = lines[4]!.replace(/,[^,]+$/, ',Infinity')
+    const e = await refused([{ field: 'table:run', name: 'nan.csv', body: lines.join('\n') }], payload(log))
+    const rows = e.details!.issues.filter((i) => i.column === 'p_chamber_kPa').map((i) => i.row)
+    expect(rows).toEqual(expect.arrayContaining([4, 5]))
+  })
+
+  it('time that does not increase', async () => {
+    const lines = log.csv.split('\n')
+    const a = lines[10]!.split(',')
+    const b = lines[11]!.split(',')
+    ;[a[0], b[0]] = [b[0]!, a[0]!]
+    lines[10] = a.join(',')
+    lines[11] = b.join(',')
+    const e = await refused([{ field: 'table:run', name: 'time.csv', body: lines.join('\n') }], payload(log))
+    expect(e.details!.issues.some((i) => /increas/i.test(i.message))).toBe(true)
+  })
+
+  it('an upload far over the size limit is refused before it is read', async () => {
+    const big = Buffer.alloc(6 * 1024 * 1024, 'a')
+    const e = await refused([{ field: 'table:run', name: 'big.csv', body: big }], payload(log), 413)
+    expect(e.code).toBe('upload_too_large')
+  })
+
+  it('a measurement typed in a unit of the wrong kind names the field', async () => {
+    const body = payload(log)
+    body.measurements.d_throat = { value: 6, unit: 'kPa' }
+    const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
+    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'measurements.d_throat' }))
+  })
+
+  it('a value outside the plausible range names the field', async () => {
+    const body = payload(log)
+    body.measurements.d_throat = { value: 60, unit: 'mm' }
+    const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
+    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'measurements.d_throat', message: expect.stringMatching(/maximum/) }))
+  })
+
+  it('a missing file and a malformed payload', async () => {
+    const e = await refused([], payload(log))
+    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'table:run' }))
+    const bad = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], '{not json', 400)
+    expect(bad.message).toMatch(/payload/)
+  })
+
+  it('a hand-in to a draft module or another course’s module is a 404', async () => {
+    const draft = await createModuleAs(inst, fx.courseId, COLD.replace('title: Cold-flow', 'title: Draft cold-flow'))
+    const before = await stored()
+    const res = await handIn(student2, [{ field: 'table:run', name: 'ok.csv', body: log.csv }], payload(log), draft.id)
+    expect(res.status).toBe(404)
+    const outsider = await signedInAs(ctx, fx.outsider.email)
+    const res2 = await handIn(outsider, [{ field: 'table:run', name: 'ok.csv', body: log.csv }], payload(log), other.id)
+    expect(res2.status).toBe(404)
+    expect(await stored()).toBe(before)
+  })
+
+  it('staff cannot hand in', async () => {
+    const res = await handIn(ta, [{ field: 'table:run', name: 'ok.csv', body: log.csv }], payload(log), other.id)
+    expect(res.status).toBe(403)
+    expect(count).toBeGreaterThan(10)
+  })
+})
