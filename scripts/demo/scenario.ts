@@ -49,3 +49,6 @@ export const DEMO_STUDENTS: DemoStudent[] = FIRST.map((first, i) => {
 export const DEMO_STUDENT = DEMO_STUDENTS[0]!
 
 export const DEFAULT_DEMO_PASSWORD = 'nozzle-demo-2027'
+
+/** The one lab group whose cold-flow run is not seeded, so people can try the hand-in form. */
+export const DEMO_GROUP_WITHOUT_HAND_IN = 'B3'

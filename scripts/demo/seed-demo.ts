@@ -3,10 +3,14 @@ import path from 'node:path'
 import { and, eq } from 'drizzle-orm'
 import { hashPassword } from '../../server/auth/password'
 import type { Database } from '../../server/db/client'
-import { courses, enrollments, labGroups, sections, users } from '../../server/db/schema'
+import { courses, enrollments, labGroups, moduleVersions, modules, sections, users } from '../../server/db/schema'
 import { insertModuleWithVersion, markPublished } from '../../server/repositories/modules'
 import { toVersion } from '../../server/services/module-service'
+import { submitHandIn } from '../../server/services/submission-service'
+import type { ModuleFrontMatter } from '../../shared/modules/schema'
+import { demoRuns } from './demo-runs'
 import {
+  DEMO_GROUP_WITHOUT_HAND_IN,
   DEFAULT_DEMO_PASSWORD,
   DEMO_ADMIN,
   DEMO_COURSE,
@@ -67,14 +71,18 @@ export async function seedDemo(db: Database, password = DEFAULT_DEMO_PASSWORD): 
     await seedModules(tx, id, uid(DEMO_INSTRUCTOR.email))
     return id
   })
+  await seedHandIns(db, courseId)
   return { created: true, users: people.length, courseId }
 }
+
+/** The first two modules (fundamentals, cold flow) are published; the hot-fire one stays a draft. */
+const PUBLISHED_MODULES = 2
 
 const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
 
 /**
- * The demo course's modules from content/*.md, in file-name order. The first is published
- * (without e-mail: nobody is waiting for it at seed time); the others stay drafts.
+ * The demo course's modules from content/*.md, in file-name order. The first two are published
+ * (without e-mail: nobody is waiting for them at seed time); the others stay drafts.
  */
 async function seedModules(tx: Parameters<Parameters<Database['transaction']>[0]>[0], courseId: number, instructorId: number) {
   const files = readdirSync(CONTENT)
@@ -86,6 +94,49 @@ async function seedModules(tx: Parameters<Parameters<Database['transaction']>[0]
     if (!v.valid) throw new Error(`seed: content/${file} has problems: ${v.issues.map((x) => `${x.path}: ${x.message}`).join('; ')}`)
     const slug = file.replace(/^\d+-/, '').replace(/\.md$/, '')
     const { moduleId, versionId } = await insertModuleWithVersion(tx, { courseId, slug, position: i + 1, createdBy: instructorId }, v)
-    if (i === 0) await markPublished(tx, moduleId, versionId, null, instructorId)
+    if (i < PUBLISHED_MODULES) await markPublished(tx, moduleId, versionId, null, instructorId)
+  }
+}
+
+/**
+ * One cold-flow hand-in per demo lab group (but one group, left for people to try the form),
+ * made through the real hand-in service so they are stored and graded like any other. Some runs
+ * are wrong on purpose (scripts/demo/demo-runs.ts), so the review queue has work.
+ */
+async function seedHandIns(db: Database, courseId: number) {
+  const [mod] = await db
+    .select({ id: modules.id, versionId: modules.publishedVersionId })
+    .from(modules)
+    .where(and(eq(modules.courseId, courseId), eq(modules.slug, 'cold-flow-characterisation')))
+  if (!mod?.versionId) return
+  const [version] = await db.select({ fm: moduleVersions.frontMatter }).from(moduleVersions).where(eq(moduleVersions.id, mod.versionId))
+  const fm = version?.fm as unknown as ModuleFrontMatter | undefined
+  if (!fm?.assignment) return
+  const a = fm.assignment
+  const table = a.tables[0]!
+  for (const run of demoRuns(a)) {
+    if (run.group === DEMO_GROUP_WITHOUT_HAND_IN) continue
+    const member = DEMO_STUDENTS.find((s) => s.labGroup === run.group)
+    if (!member) continue
+    const [e] = await db
+      .select({ userId: enrollments.userId, sectionId: enrollments.sectionId, labGroupId: enrollments.labGroupId })
+      .from(enrollments)
+      .innerJoin(users, eq(users.id, enrollments.userId))
+      .where(and(eq(enrollments.courseId, courseId), eq(users.email, member.email)))
+    if (!e) continue
+    await submitHandIn(
+      db,
+      { courseId, userId: e.userId, role: 'student', sectionId: e.sectionId, labGroupId: e.labGroupId },
+      mod.id,
+      {
+        mappings: { [table.key]: { ...run.mapping } },
+        measurements: Object.fromEntries(
+          a.measurements.map((m) => [m.key, { value: run.measurements[m.key]!, unit: m.unit, ...(m.pressure ? { pressure: m.pressure } : {}) }]),
+        ),
+        reported: Object.fromEntries(a.results.map((r) => [r.key, { value: run.reported[r.key]!, unit: r.unit }])),
+      },
+      [{ field: `table:${table.key}`, filename: `run-${run.group.toLowerCase()}.csv`, contentType: 'text/csv', bytes: Buffer.from(run.csv, 'utf8') }],
+      { appUrl: process.env.APP_URL ?? 'http://127.0.0.1:3000' },
+    )
   }
 }
