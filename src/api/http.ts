@@ -20,6 +20,28 @@ export function setCsrfToken(token: string): void {
   csrfToken = token
 }
 
+/** The CSRF header for a state-changing request made outside {@link http} (e.g. an upload with progress). */
+export function csrfHeader(): Record<string, string> {
+  return { 'x-csrf-token': csrfToken }
+}
+
+/** The server's error body (already read as text) → an ApiError with the server's own message. */
+export function apiErrorFrom(status: number, statusText: string, text: string): ApiError {
+  let parsed: unknown = undefined
+  try {
+    parsed = text ? JSON.parse(text) : undefined
+  } catch {
+    parsed = undefined
+  }
+  const err = (parsed as ApiErrorBody | undefined)?.error
+  return new ApiError(
+    status,
+    err?.code ?? 'http_error',
+    err?.message ?? `The server answered ${status} ${statusText}.`.replace(' .', '.'),
+    err?.details,
+  )
+}
+
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE'
 
 /**
@@ -42,6 +64,7 @@ export async function http<T>(method: Method, url: string, body?: unknown): Prom
     throw new ApiError(0, 'network_error', 'Could not reach the Isentrope server. Check your connection and try again.')
   }
   const text = await res.text()
+  if (!res.ok) throw apiErrorFrom(res.status, res.statusText, text)
   let parsed: unknown = undefined
   if (text) {
     try {
@@ -49,15 +72,6 @@ export async function http<T>(method: Method, url: string, body?: unknown): Prom
     } catch {
       parsed = undefined
     }
-  }
-  if (!res.ok) {
-    const err = (parsed as ApiErrorBody | undefined)?.error
-    throw new ApiError(
-      res.status,
-      err?.code ?? 'http_error',
-      err?.message ?? `The server answered ${res.status} ${res.statusText}.`,
-      err?.details,
-    )
   }
   return parsed as T
 }

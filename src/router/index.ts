@@ -50,6 +50,20 @@ const router = createRouter({
       meta: { title: 'Edit module' },
     },
     {
+      path: '/courses/:courseId(\\d+)/modules/:moduleId(\\d+)/hand-in',
+      name: 'hand-in',
+      component: () => import('@/views/HandInView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId), moduleId: Number(r.params.moduleId) }),
+      meta: { title: 'Hand in' },
+    },
+    {
+      path: '/courses/:courseId(\\d+)/submissions/:submissionId(\\d+)',
+      name: 'submission',
+      component: () => import('@/views/SubmissionView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId), submissionId: Number(r.params.submissionId) }),
+      meta: { title: 'Hand-in result' },
+    },
+    {
       path: '/calculators',
       name: 'calculators',
       component: () => import('@/views/CalculatorsView.vue'),
