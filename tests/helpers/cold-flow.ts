@@ -14,7 +14,7 @@ export const COLD_FLOW = {
   airC: 20,
 }
 
-export function coldFlowCsv(opts: { thrustScale?: number; duration?: number } = {}): { csv: string; t: number[]; thrust: number[]; finalKPaGauge: number } {
+export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; step?: number } = {}): { csv: string; t: number[]; thrust: number[]; finalKPaGauge: number } {
   const pa = COLD_FLOW.ambientKPa * 1000
   const run = tankBlowdown({
     volume: COLD_FLOW.volumeL / 1000,
@@ -27,7 +27,7 @@ export function coldFlowCsv(opts: { thrustScale?: number; duration?: number } = 
     gasConstant: 287.05,
     process: 'isothermal',
     duration: opts.duration ?? 6,
-    step: 0.02,
+    step: opts.step ?? 0.02,
   })
   const rows = ['time_s,thrust_N,p_receiver_kPa,p_chamber_kPa']
   const t: number[] = []

@@ -1,0 +1,105 @@
+// Throughput of the hand-in endpoint on loopback: N concurrent students each post a 5,000-row
+// cold-flow log (multipart), measured end to end (upload, parse, store, grade, respond).
+// Run by `npm run bench` with a project-owned bench database; stops by itself.
+import { readFileSync } from 'node:fs'
+import { createServer } from 'node:http'
+import type { AddressInfo } from 'node:net'
+import { createApp } from '../../server/app'
+import { hashPassword } from '../../server/auth/password'
+import { dbConnectionOptions, loadConfig } from '../../server/config'
+import { createDb } from '../../server/db/client'
+import { courses, enrollments, labGroups, users } from '../../server/db/schema'
+import { createLogger } from '../../server/logger'
+import { createModule, publishModule } from '../../server/services/module-service'
+import { coldFlowCsv, coldFlowPayload } from '../../tests/helpers/cold-flow'
+
+const STUDENTS = Number(process.env.BENCH_STUDENTS ?? 50)
+const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 4)
+
+const config = loadConfig({ ...process.env, CLIENT_DIST: '', LOG_LEVEL: 'silent', DB_POOL_SIZE: '20' })
+const handle = createDb({ ...dbConnectionOptions(config), poolSize: 20 })
+const db = handle.db
+const created = createApp({ config, db, logger: createLogger('silent') })
+const server = createServer(created.app)
+await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()))
+const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`
+
+// A course of our own for the bench, with STUDENTS students each in their own group.
+const tag = Date.now().toString(36)
+const password = 'bench-password-1'
+const hash = await hashPassword(password)
+const [course] = await db
+  .insert(courses)
+  .values({ code: `B${tag}`, title: 'Bench course', term: 'Bench', institution: 'Bench (fictional)', timeZone: 'UTC' })
+  .$returningId()
+const courseId = course!.id
+const [inst] = await db.insert(users).values({ email: `inst.${tag}@bench.example`, displayName: 'Bench instructor', passwordHash: hash }).$returningId()
+await db.insert(enrollments).values({ userId: inst!.id, courseId, role: 'instructor' })
+const emails: string[] = []
+for (let i = 0; i < STUDENTS; i++) {
+  const email = `s${i}.${tag}@bench.example`
+  const [u] = await db.insert(users).values({ email, displayName: `Student ${i}`, passwordHash: hash }).$returningId()
+  const [g] = await db.insert(labGroups).values({ courseId, name: `G${i}` }).$returningId()
+  await db.insert(enrollments).values({ userId: u!.id, courseId, role: 'student', labGroupId: g!.id })
+  emails.push(email)
+}
+const source = readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8').replace('attempts: 3', 'attempts: 100')
+const ie = { courseId, userId: inst!.id, role: 'instructor' as const, sectionId: null, labGroupId: null }
+const mod = await createModule(db, ie, source)
+await publishModule(db, ie, mod.id, mod.current.id, base)
+
+const log = coldFlowCsv({ step: 6 / 5000, duration: 6 })
+const body = JSON.stringify(coldFlowPayload(log))
+console.log(`Hand-in throughput — ${STUDENTS} concurrent students × ${ROUNDS} hand-ins, ${log.t.length}-row log (${(log.csv.length / 1024).toFixed(0)} KB), loopback`)
+
+async function session(email: string): Promise<{ cookie: string; csrf: string }> {
+  const s = await fetch(`${base}/api/auth/session`)
+  let cookie = (s.headers.getSetCookie() ?? []).map((c) => c.split(';')[0]).join('; ')
+  const { csrfToken } = (await s.json()) as { csrfToken: string }
+  const r = await fetch(`${base}/api/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie },
+    body: JSON.stringify({ email, password }),
+  })
+  if (!r.ok) throw new Error(`sign-in failed: ${r.status}`)
+  const jar = new Map(cookie.split('; ').map((c) => [c.split('=')[0]!, c]))
+  for (const c of r.headers.getSetCookie()) jar.set(c.split('=')[0]!, c.split(';')[0]!)
+  cookie = [...jar.values()].join('; ')
+  return { cookie, csrf: ((await r.json()) as { csrfToken: string }).csrfToken }
+}
+
+const sessions = await Promise.all(emails.map(session))
+const latencies: number[] = []
+let errors = 0
+const statuses = new Map<number, number>()
+const started = performance.now()
+await Promise.all(
+  sessions.map(async (s) => {
+    for (let round = 0; round < ROUNDS; round++) {
+      const form = new FormData()
+      form.append('payload', body)
+      form.append('table:run', new Blob([log.csv], { type: 'text/csv' }), 'run.csv')
+      const t0 = performance.now()
+      const res = await fetch(`${base}/api/courses/${courseId}/modules/${mod.id}/submissions`, {
+        method: 'POST',
+        headers: { cookie: s.cookie, 'x-csrf-token': s.csrf },
+        body: form,
+      })
+      await res.arrayBuffer()
+      latencies.push(performance.now() - t0)
+      statuses.set(res.status, (statuses.get(res.status) ?? 0) + 1)
+      if (res.status !== 201) errors++
+    }
+  }),
+)
+const elapsed = (performance.now() - started) / 1000
+latencies.sort((a, b) => a - b)
+const q = (p: number) => latencies[Math.min(latencies.length - 1, Math.floor(p * latencies.length))]!
+console.log(`  requests ${latencies.length}   errors ${errors}   statuses ${JSON.stringify(Object.fromEntries(statuses))}`)
+console.log(`  throughput ${(latencies.length / elapsed).toFixed(1)} hand-ins/s   p50 ${q(0.5).toFixed(0)} ms   p95 ${q(0.95).toFixed(0)} ms   max ${latencies.at(-1)!.toFixed(0)} ms`)
+
+server.closeAllConnections()
+await new Promise<void>((r) => server.close(() => r()))
+await created.close()
+await handle.close()
+process.exit(errors === 0 ? 0 : 1)
