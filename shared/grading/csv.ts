@@ -124,12 +124,83 @@ function firstNonBlankLine(text: string): { line: string; end: number } {
   return { line: '', end: text.length }
 }
 
+/** Exact powers of ten up to 10²² (every one is a double without rounding). */
+const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i)
+
 /**
  * A cell as a decimal number: optional sign, digits with at most one '.', optional exponent, spaces
  * around allowed. Anything else gives NaN — also what Number() would accept but a log should not
  * hold (hexadecimal "0x1A", "Infinity", an empty cell that Number() reads as 0).
+ *
+ * Short cells (up to 15 significant digits, decimal exponent within ±22, the usual logger output)
+ * take a fast path: the digits as an integer m, then m × 10^e or m / 10^−e. Both operands are exact
+ * doubles, so the one rounding of the product or quotient gives the correctly rounded value — the
+ * same double Number() gives (W. D. Clinger, "How to read floating point numbers accurately",
+ * PLDI 1990, the fast path of section 4). Everything else goes through Number().
  */
 export function parseDecimal(cell: string): number {
+  const fast = parseDecimalFast(cell)
+  return fast === undefined ? parseDecimalSlow(cell) : fast
+}
+
+function parseDecimalFast(cell: string): number | undefined {
+  const n = cell.length
+  let i = 0
+  while (i < n && (cell.charCodeAt(i) === 32 || cell.charCodeAt(i) === 9)) i++
+  let negative = false
+  let c = cell.charCodeAt(i)
+  if (c === 45 || c === 43) {
+    negative = c === 45
+    i++
+  }
+  let mantissa = 0
+  let digits = 0
+  let significant = 0
+  let scale = 0
+  let point = false
+  for (; i < n; i++) {
+    c = cell.charCodeAt(i)
+    if (c >= 48 && c <= 57) {
+      digits++
+      if (significant > 0 || c !== 48) significant++
+      mantissa = mantissa * 10 + (c - 48)
+      if (point) scale--
+    } else if (c === 46 && !point) {
+      point = true
+    } else break
+  }
+  if (digits === 0 || significant > 15) return undefined
+  if (i < n && (c === 101 || c === 69)) {
+    i++
+    let expNegative = false
+    c = cell.charCodeAt(i)
+    if (c === 45 || c === 43) {
+      expNegative = c === 45
+      i++
+    }
+    let exponent = 0
+    let expDigits = 0
+    for (; i < n; i++) {
+      c = cell.charCodeAt(i)
+      if (c < 48 || c > 57 || expDigits > 4) break
+      exponent = exponent * 10 + (c - 48)
+      expDigits++
+    }
+    if (expDigits === 0 || expDigits > 4) return undefined
+    scale += expNegative ? -exponent : exponent
+  }
+  while (i < n && (cell.charCodeAt(i) === 32 || cell.charCodeAt(i) === 9)) i++
+  if (i !== n) return undefined
+  let value: number
+  if (mantissa === 0) value = 0
+  else if (scale >= 0 && scale <= 22) value = mantissa * (POWERS_OF_TEN[scale] as number)
+  else if (scale < 0 && scale >= -22) value = mantissa / (POWERS_OF_TEN[-scale] as number)
+  else return undefined
+  if (!Number.isFinite(value)) return undefined
+  return negative ? -value : value
+}
+
+function parseDecimalSlow(cell: string): number {
   let digit = false
   for (let i = 0; i < cell.length; i++) {
     const c = cell.charCodeAt(i)
@@ -342,9 +413,10 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
   }
 
   const columns: Record<string, number[]> = {}
-  // Filled with push (packed arrays); on any problem the result is an error and they are dropped.
+  // Sized once (no regrowth: less garbage on a 50 000-row log); on the good path every row fills
+  // its slot, and on any problem the result is an error and they are dropped.
   const values = mapped.map((m) => {
-    const column: number[] = []
+    const column = new Array<number>(rowCount)
     columns[m.spec.key] = column
     return column
   })
@@ -355,6 +427,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
 
   for (let k = start; k < dataRows.length; k++) {
     const r = dataRows[k] as number
+    const n = k - start
     const row = rows[r] as string[]
     if (row.length !== width) {
       issues.add({
@@ -378,7 +451,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
         issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column "${m.header}": ${quote(cell)} is below absolute zero.` })
         continue
       }
-      ;(values[j] as number[]).push(si)
+      ;(values[j] as number[])[n] = si
       if (j === timeColumn) time = si
     }
     if (timeColumn >= 0) {

@@ -219,6 +219,23 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
     expect(parseDecimal(' -1.5e-3 ')).toBe(-0.0015)
   })
 
+  it('reads decimals to the same double as the JavaScript engine, exponents and long digit strings included', () => {
+    // The engine's Number() is an independent, correctly rounded decimal reader; the fast path must agree bit for bit.
+    let seed = 12345
+    const random = () => {
+      seed = (seed * 1103515245 + 12345) % 2147483648
+      return seed / 2147483648
+    }
+    const cells: string[] = ['0', '-0', '0.1', '0.3', '.5', '5.', '+7', '1e22', '1e23', '9007199254740993', '123456789012345', '1234567890123456', '1.7976931348623157e308', '4.9e-324', '0.000001', '1E-22', '1e-23', '  42.5\t']
+    for (let k = 0; k < 5000; k++) {
+      const intPart = String(Math.floor(random() * 10 ** Math.floor(random() * 9)))
+      const frac = random() < 0.8 ? `.${String(Math.floor(random() * 10 ** Math.floor(1 + random() * 9))).padStart(3, '0')}` : ''
+      const exp = random() < 0.2 ? `e${random() < 0.5 ? '-' : '+'}${Math.floor(random() * 30)}` : ''
+      cells.push(`${random() < 0.3 ? '-' : ''}${intPart}${frac}${exp}`)
+    }
+    for (const cell of cells) expect(Object.is(parseDecimal(cell), Number(cell)), cell).toBe(true)
+  })
+
   it('cells that start like spreadsheet formulas are kept as text and refused, never calculated', () => {
     const text = csv(HEADER, '0.0,0,0', '0.1,=1+2,10', '0.2,+SUM(A1:A3),20', '0.3,@cmd,30', `0.4,"-2+3",40`, '0.5,=HYPERLINK("x"),50')
     const list = errors(parseLog(text, table, mapping))

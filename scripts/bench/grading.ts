@@ -1,0 +1,128 @@
+/**
+ * Grading benchmark: `npx tsx scripts/bench/grading.ts`.
+ *
+ * Prints, side by side in one run, for one 50 000-row, 4-column test-stand log (a demo blow-down
+ * logged at 2.5 kHz, cut to 50 000 rows; demo data):
+ * - papaparse alone on the text, with its default options (rows as arrays, separator guessed),
+ *   which is the bare parse the goal is measured against;
+ * - papaparse alone with header: true and skipEmptyLines: 'greedy' (rows as objects), for reference;
+ * - the whole grading step: parseLog (parse, map, validate, convert to SI) + gradeSubmission with
+ *   the demo cold-flow assignment (every expected value, review rule and data check) + chartSeries;
+ * - its parts, so a regression can be placed;
+ * and the ratio of the whole grading step to the bare parse (goal: at most 2).
+ *
+ * Each kernel is warmed up first (so V8 has optimised it), then the kernels run in alternating
+ * rounds and the median round is reported, which damps drift from frequency scaling and other load.
+ * A full garbage collection runs before each timed kernel, so the garbage one kernel leaves (the
+ * parse alone leaves some 15 MB of row arrays and strings) is not collected on the next one's
+ * time; each kernel pays for the collections its own allocations cause while it runs.
+ * Every kernel's result feeds a sink printed at the end, so no work can be dropped as dead code.
+ */
+import { loadavg } from 'node:os'
+import { setFlagsFromString } from 'node:v8'
+import { runInNewContext } from 'node:vm'
+import Papa from 'papaparse/papaparse.min.js'
+import { coldFlowAssignment, demoLog } from '../demo/demo-runs'
+import { parseLog, suggestMapping } from '../../shared/grading/csv'
+import { chartSeries, gradeSubmission } from '../../shared/grading/grade'
+import type { GradeResult } from '../../shared/grading/grade'
+import { valueToSI } from '../../shared/modules/quantities'
+import type { SubmissionData } from '../../shared/modules/scope'
+
+const ROWS = 50_000
+const WARM_UP = 3
+const ROUNDS = 15
+
+// https://nodejs.org/api/v8.html#v8setflagsfromstringflags: exposes gc() without a command-line flag,
+// so `npx tsx scripts/bench/grading.ts` is enough.
+setFlagsFromString('--expose-gc')
+const collectGarbage = runInNewContext('gc') as () => void
+
+const assignment = coldFlowAssignment()
+const table = assignment.tables[0]
+if (!table) throw new Error('the cold-flow assignment has no table')
+
+const log = demoLog(2500)
+const lines = log.csv.split('\n')
+if (lines.length - 2 < ROWS) throw new Error(`the demo log has only ${lines.length - 2} rows`)
+const text = `${lines.slice(0, ROWS + 1).join('\n')}\n`
+const headers = (lines[0] ?? '').split(',')
+const mapping = suggestMapping(headers, table)
+const measurements = Object.fromEntries(assignment.measurements.map((m) => [m.key, valueToSI(log.measurements[m.key] as number, m.unit)]))
+
+let sink = 0
+
+function bareParse(): void {
+  sink += Papa.parse(text).data.length
+}
+
+function headerParse(): void {
+  sink += Papa.parse(text, { header: true, skipEmptyLines: 'greedy', dynamicTyping: false }).data.length
+}
+
+function parseOnly(): SubmissionData {
+  const parsed = parseLog(text, table as NonNullable<typeof table>, mapping)
+  if (!parsed.ok) throw new Error(`the benchmark log does not parse: ${JSON.stringify(parsed.errors)}`)
+  sink += parsed.rowCount
+  return { tables: { [(table as NonNullable<typeof table>).key]: parsed.columns }, measurements, pressures: parsed.pressures }
+}
+
+// Reported results for the benchmark: the expected values themselves (from one grading beforehand).
+const reference: GradeResult = gradeSubmission({ assignment, data: parseOnly(), reported: {} })
+const reported = Object.fromEntries(reference.checks.map((c) => [c.key, c.expected ?? 0]))
+const preParsed = parseOnly()
+
+function gradeOnly(): void {
+  sink += gradeSubmission({ assignment, data: preParsed, reported }).score
+}
+
+function chartOnly(): void {
+  sink += chartSeries(assignment, preParsed).time.length
+}
+
+function wholeGrading(): void {
+  const data = parseOnly()
+  const result = gradeSubmission({ assignment, data, reported })
+  const chart = chartSeries(assignment, data)
+  sink += result.score + result.flags.length + chart.time.length
+}
+
+const kernels: [string, () => void][] = [
+  ['papaparse alone, default options (arrays)', bareParse],
+  ["papaparse alone, header: true, skipEmptyLines: 'greedy'", headerParse],
+  ['  parseLog (parse, map, validate, SI)', () => void parseOnly()],
+  ['  gradeSubmission (7 results, 5 rules, data checks)', gradeOnly],
+  ['  chartSeries (spans, ideal thrust, ≤ 2000 points)', chartOnly],
+  ['whole grading step (parseLog + gradeSubmission + chartSeries)', wholeGrading],
+]
+
+for (let i = 0; i < WARM_UP; i++) for (const [, kernel] of kernels) kernel()
+const times = new Map<string, number[]>(kernels.map(([name]) => [name, []]))
+for (let round = 0; round < ROUNDS; round++) {
+  for (const [name, kernel] of kernels) {
+    collectGarbage()
+    const start = performance.now()
+    kernel()
+    times.get(name)?.push(performance.now() - start)
+  }
+}
+
+const median = (xs: number[]) => {
+  const s = [...xs].sort((a, b) => a - b)
+  return s[s.length >> 1] as number
+}
+const medians = new Map([...times].map(([name, xs]) => [name, median(xs)]))
+
+console.log(`Grading benchmark: ${ROWS} rows × ${headers.length} columns (${(text.length / 1e6).toFixed(2)} MB), median of ${ROUNDS} rounds after ${WARM_UP} warm-up rounds, full GC before each`)
+console.log(
+  `Node ${process.version}; load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; flags raised on this log: ${reference.flags.map((f) => f.code).join(', ') || 'none'}`,
+)
+console.log('')
+for (const [name] of kernels) console.log(`${name.padEnd(64)} ${(medians.get(name) as number).toFixed(1).padStart(8)} ms`)
+const bare = medians.get(kernels[0]![0]) as number
+const header = medians.get(kernels[1]![0]) as number
+const whole = medians.get(kernels[5]![0]) as number
+console.log('')
+console.log(`whole grading step / papaparse default parse: ${(whole / bare).toFixed(2)}×  (goal ≤ 2×: ${whole / bare <= 2 ? 'met' : 'not met'})`)
+console.log(`whole grading step / papaparse header+greedy parse: ${(whole / header).toFixed(2)}×`)
+console.log(`(sink ${sink.toFixed(0)})`)
