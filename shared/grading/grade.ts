@@ -52,7 +52,10 @@ export const LOOKS_GAUGE_BELOW = 0.25
 
 /**
  * A pressure declared gauge whose resting value is within this fraction of the ambient pressure
- * (or of one standard atmosphere) looks absolute: a gauge transducer at rest reads about 0.
+ * (or of one standard atmosphere) looks absolute: a gauge transducer at rest reads about 0. The
+ * resting value is the lower of the medians of the first and last {@link REST_SAMPLES} samples, so a
+ * receiver log that ends with the receiver closed off at about one atmosphere gauge looks the same
+ * and is flagged too; the message asks staff to look, it does not change the grade.
  */
 export const LOOKS_ABSOLUTE_BAND = 0.2
 
@@ -382,7 +385,7 @@ function argmax(xs: readonly number[]): number {
   return best
 }
 
-function median(xs: readonly number[]): number {
+function median(xs: ArrayLike<number>): number {
   const sorted = Float64Array.from(xs).sort()
   const n = sorted.length
   const mid = n >> 1
@@ -427,13 +430,13 @@ function thrustAboveIdeal(d: RoleData): GradeFlag | undefined {
   const ideal = idealAt(p0, d)
   if (ideal === undefined || !(peak > (1 + THRUST_ABOVE_IDEAL_MARGIN) * ideal) || !(peak > 0)) return undefined
   const at = d.time ? ` at t = ${fmt(d.time[i] as number)} s` : ''
-  const how =
+  const what =
     ideal > 0
-      ? `${fmt((peak / ideal - 1) * 100)} % above the ideal thrust of ${fmt(ideal)} N for the chamber pressure logged at that moment (${kPa(p0)} absolute)`
-      : `while the logged chamber pressure (${kPa(p0)} absolute) is not above the ambient pressure, so an ideal nozzle would give no thrust`
+      ? `The peak thrust, ${fmt(peak)} N${at}, is ${fmt((peak / ideal - 1) * 100)} % above the ideal thrust of ${fmt(ideal)} N for the chamber pressure logged at that moment (${kPa(p0)} absolute).`
+      : `The peak thrust, ${fmt(peak)} N${at}, was logged while the chamber pressure (${kPa(p0)} absolute) was not above the ambient pressure (${kPa(d.ambient as number)}), when an ideal nozzle gives no thrust at all.`
   return {
     code: 'thrust-above-ideal',
-    message: `The peak thrust, ${fmt(peak)} N${at}, is ${how}. A real nozzle gives less than the ideal; check the load-cell calibration and whether the chamber pressure is gauge or absolute.`,
+    message: `${what} A real nozzle gives less than the ideal; check the load-cell calibration and whether the chamber pressure is gauge or absolute.`,
     detail: {
       sample: i + 1,
       ...(d.time ? { time: d.time[i] as number } : {}),
@@ -514,7 +517,7 @@ function timeGap(d: RoleData): GradeFlag | undefined {
   if (!t || t.length < 3) return undefined
   const steps = new Float64Array(t.length - 1)
   for (let i = 1; i < t.length; i++) steps[i - 1] = (t[i] as number) - (t[i - 1] as number)
-  const typical = median(Array.from(steps))
+  const typical = median(steps)
   if (!(typical > 0)) return undefined
   let count = 0
   let largest = -1

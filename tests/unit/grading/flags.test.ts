@@ -57,6 +57,13 @@ describe('thrust-above-ideal', () => {
     expectClose(flag?.detail?.idealThrust as number, 1.08145 * 5e5 * THROAT_AREA, 1e-5)
   })
 
+  it('fires on thrust logged while the chamber is not above ambient, where the ideal thrust is 0', () => {
+    const clean = cleanLog()
+    const flag = flagsOf(withColumn(clean, 'p_chamber', column(clean, 'p_chamber').map(() => 0))).find((f) => f.code === 'thrust-above-ideal')
+    expect(flag?.detail?.idealThrust).toBe(0)
+    expect(flag?.message).toMatch(/was logged while the chamber pressure \(101 kPa absolute\) was not above the ambient pressure/)
+  })
+
   it('does not fire within the 10 % margin (1.09 × ideal) and fires just beyond it (1.11 × ideal)', () => {
     expect(codesOf(cleanLog({ thrustRatio: 1.09 }))).not.toContain('thrust-above-ideal')
     expect(codesOf(cleanLog({ thrustRatio: 1.11 }))).toContain('thrust-above-ideal')
