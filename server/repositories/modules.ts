@@ -1,8 +1,8 @@
-import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm'
+import { and, asc, count, desc, eq, inArray, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/mysql-core'
 import type { ModuleIssue, ModuleStatus, VersionStatus, VersionSummary } from '../../shared/schemas/modules'
 import type { Executor } from '../db/client'
-import { courses, enrollments, moduleVersions, modules, users } from '../db/schema'
+import { courses, enrollments, moduleVersions, modules, submissions, users } from '../db/schema'
 
 export interface ModuleRow {
   id: number
@@ -193,4 +193,14 @@ export async function listStudents(db: Executor, courseId: number): Promise<{ em
     .innerJoin(users, eq(users.id, enrollments.userId))
     .where(and(eq(enrollments.courseId, courseId), eq(enrollments.role, 'student')))
     .orderBy(asc(users.id))
+}
+
+/** Hand-ins per module of a course (staff's module list). */
+export async function submissionCounts(db: Executor, courseId: number): Promise<Map<number, number>> {
+  const rows = await db
+    .select({ moduleId: submissions.moduleId, n: count() })
+    .from(submissions)
+    .where(eq(submissions.courseId, courseId))
+    .groupBy(submissions.moduleId)
+  return new Map(rows.map((r) => [r.moduleId, r.n]))
 }

@@ -27,6 +27,7 @@ import {
   nextPosition,
   setModuleStatus,
   slugExists,
+  submissionCounts,
   updateDraftVersion,
 } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
@@ -78,15 +79,16 @@ export async function listModules(db: Database, e: CourseEnrollment): Promise<Mo
   const staff = isStaff(e)
   const rows = await listModuleRows(db, e.courseId, staff ? undefined : ['published', 'closed'])
   const ids = rows.flatMap((r) => [r.currentVersionId, r.publishedVersionId]).filter((x): x is number => x !== null)
-  const versions = await findVersions(db, [...new Set(ids)])
-  return rows.map((r) =>
-    listItem(
+  const [versions, counts] = await Promise.all([findVersions(db, [...new Set(ids)]), staff ? submissionCounts(db, e.courseId) : null])
+  return rows.map((r) => ({
+    ...listItem(
       r,
       r.currentVersionId ? versions.get(r.currentVersionId) : undefined,
       r.publishedVersionId ? versions.get(r.publishedVersionId) : undefined,
       staff,
     ),
-  )
+    ...(counts ? { submissionCount: counts.get(r.id) ?? 0 } : {}),
+  }))
 }
 
 /** Strips what students must not see from the front matter: the grading expressions and review rules. */

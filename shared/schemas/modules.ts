@@ -50,6 +50,8 @@ export interface ModuleListItem {
   currentVersion?: { id: number; number: number; status: VersionStatus; valid: boolean }
   publishedVersionNumber: number | null
   hasAssignment: boolean
+  /** Staff only: hand-ins so far. */
+  submissionCount?: number
 }
 
 export interface VersionSummary {

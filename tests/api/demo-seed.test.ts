@@ -1,11 +1,11 @@
 import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_WRONG_RUNS } from '../../scripts/demo/demo-runs'
-import { DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN } from '../../scripts/demo/scenario'
+import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_STUDENT } from '../../scripts/demo/scenario'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { courses, labGroups, modules, submissionFlags, submissions } from '../../server/db/schema'
 import type { TestContext } from '../helpers/app'
-import { startTestApp } from '../helpers/app'
+import { signedInAs, startTestApp } from '../helpers/app'
 
 let ctx: TestContext
 let courseId: number
@@ -54,5 +54,15 @@ describe('the demo seed', () => {
       if (wrong.copiesGroup) expect(codes, wrong.group).toContain('identical-file')
       expect(row.review).toBe('open')
     }
+  })
+
+  it('staff see the hand-in count per module; students do not', async () => {
+    const inst = await signedInAs(ctx, DEMO_INSTRUCTOR.email, DEFAULT_DEMO_PASSWORD)
+    const list = await inst.agent.get(`/api/courses/${courseId}/modules`).expect(200)
+    const cold = list.body.find((m: { slug: string }) => m.slug === 'cold-flow-characterisation')
+    expect(cold.submissionCount).toBe(7)
+    const st = await signedInAs(ctx, DEMO_STUDENT.email, DEFAULT_DEMO_PASSWORD)
+    const mine = await st.agent.get(`/api/courses/${courseId}/modules`).expect(200)
+    expect(mine.body.every((m: { submissionCount?: number }) => m.submissionCount === undefined)).toBe(true)
   })
 })
