@@ -10,6 +10,11 @@ import Aura from '@primeuix/themes/aura'
 export const IsentropePreset = definePreset(Aura, {
   primitive: {
     borderRadius: { none: '0', xs: '2px', sm: '3px', md: '4px', lg: '6px', xl: '10px' },
+    // Messages and toasts write text in the 600 shade on the 50 shade; the stock yellow and green
+    // give about 3:1 there. These darker shades give at least 6:1 (WCAG AA needs 4.5:1).
+    yellow: { 600: '#7a4b00', 700: '#5f3a00' },
+    green: { 600: '#1f6b3a', 700: '#17532d' },
+    red: { 600: '#a01c2c', 700: '#7f1622' },
   },
   semantic: {
     primary: {
