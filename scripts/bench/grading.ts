@@ -26,8 +26,10 @@ import { coldFlowAssignment, demoLog } from '../demo/demo-runs'
 import { parseLog, suggestMapping } from '../../shared/grading/csv'
 import { chartSeries, gradeSubmission } from '../../shared/grading/grade'
 import type { GradeResult } from '../../shared/grading/grade'
+import { evaluateExpression } from '../../shared/modules/expressions'
 import { valueToSI } from '../../shared/modules/quantities'
-import type { SubmissionData } from '../../shared/modules/scope'
+import { buildExpressionScope } from '../../shared/modules/scope'
+import type { ExpressionValue, SubmissionData } from '../../shared/modules/scope'
 
 const ROWS = 50_000
 const WARM_UP = 3
@@ -76,6 +78,20 @@ function gradeOnly(): void {
   sink += gradeSubmission({ assignment, data: preParsed, reported }).score
 }
 
+// The module's own expressions (7 expected values, 5 review rules) over the prepared scope: the part
+// of gradeSubmission that is mathjs evaluating the instructor's formulas.
+const dataScope = buildExpressionScope(assignment, preParsed, { units: 'si' })
+const ruleScope: Record<string, ExpressionValue> = { ...dataScope }
+for (const r of assignment.results) ruleScope[r.key] = valueToSI(reported[r.key] as number, r.unit)
+
+function expressionsOnly(): void {
+  for (const r of assignment.results) {
+    const v = evaluateExpression(r.expected, dataScope)
+    sink += typeof v === 'number' ? v : 0
+  }
+  for (const rule of assignment.reviewRules) sink += evaluateExpression(rule.when, ruleScope) === true ? 1 : 0
+}
+
 function chartOnly(): void {
   sink += chartSeries(assignment, preParsed).time.length
 }
@@ -92,6 +108,7 @@ const kernels: [string, () => void][] = [
   ["papaparse alone, header: true, skipEmptyLines: 'greedy'", headerParse],
   ['  parseLog (parse, map, validate, SI)', () => void parseOnly()],
   ['  gradeSubmission (7 results, 5 rules, data checks)', gradeOnly],
+  ["    of which the module's 12 expressions alone (mathjs)", expressionsOnly],
   ['  chartSeries (spans, ideal thrust, ≤ 2000 points)', chartOnly],
   ['whole grading step (parseLog + gradeSubmission + chartSeries)', wholeGrading],
 ]
@@ -121,8 +138,12 @@ console.log('')
 for (const [name] of kernels) console.log(`${name.padEnd(64)} ${(medians.get(name) as number).toFixed(1).padStart(8)} ms`)
 const bare = medians.get(kernels[0]![0]) as number
 const header = medians.get(kernels[1]![0]) as number
-const whole = medians.get(kernels[5]![0]) as number
+const whole = medians.get(kernels[6]![0]) as number
 console.log('')
 console.log(`whole grading step / papaparse default parse: ${(whole / bare).toFixed(2)}×  (goal ≤ 2×: ${whole / bare <= 2 ? 'met' : 'not met'})`)
 console.log(`whole grading step / papaparse header+greedy parse: ${(whole / header).toFixed(2)}×`)
+const expressions = medians.get(kernels[4]![0]) as number
+console.log(
+  `whole grading step less the module's expressions / papaparse default parse: ${((whole - expressions) / bare).toFixed(2)}× (estimate: the engine's own share)`,
+)
 console.log(`(sink ${sink.toFixed(0)})`)

@@ -145,6 +145,32 @@ describe('time-gap', () => {
     expectClose(flag?.detail?.medianStep as number, 0.01, 1e-9)
   })
 
+  it('takes the median step of uneven sampling exactly, for odd and even counts and repeated steps', () => {
+    // Steps drawn from a few values (so many repeat), then one step of 1000 s that is surely a gap;
+    // the reference median comes from sorting the steps here.
+    let seed = 99
+    const random = () => {
+      seed = (seed * 16807) % 2147483647
+      return seed / 2147483647
+    }
+    for (const count of [7, 8, 101, 1000, 1001]) {
+      const steps = Array.from({ length: count }, () => [0.01, 0.02, 0.05, 0.013][Math.floor(random() * 4)] as number)
+      steps.push(1000)
+      const t = [0]
+      for (const s of steps) t.push((t[t.length - 1] as number) + s)
+      const sorted = [...steps].sort((x, y) => x - y)
+      const n = sorted.length
+      const expected = n % 2 === 1 ? (sorted[n >> 1] as number) : ((sorted[(n >> 1) - 1] as number) + (sorted[n >> 1] as number)) / 2
+      const data: SubmissionData = {
+        tables: { run: { t, thrust: t.map(() => 0), p_receiver: t.map(() => 0), p_chamber: t.map(() => 0) } },
+        measurements: cleanLog().measurements,
+      }
+      const flag = flagsOf(data).find((f) => f.code === 'time-gap')
+      // Differences of accumulated times carry rounding, hence a relative tolerance.
+      expectClose(flag?.detail?.medianStep as number, expected, 1e-9, `${count} steps`)
+    }
+  })
+
   it('does not fire on a step of 4 × the median (three samples missing)', () => {
     expect(codesOf(withoutSamples(cleanLog(), 40, 3))).not.toContain('time-gap')
   })
