@@ -17,6 +17,7 @@ import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseRoutes } from './routes/courses'
 import { healthRoutes } from './routes/health'
 import { moduleRoutes } from './routes/modules'
+import { reviewRoutes } from './routes/review'
 import { handInRoutes } from './routes/submissions'
 
 export interface AppDeps {
@@ -79,7 +80,7 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   // 1 MB for ordinary JSON; the module routes parse their own bodies with a larger limit for
   // Markdown sources.
   const smallJson = express.json({ limit: '1mb' })
-  const MODULE_ROUTES = /^\/api\/courses\/[^/]+\/(modules|submissions)(\/|$)/
+  const MODULE_ROUTES = /^\/api\/courses\/[^/]+\/(modules|submissions|review)(\/|$)/
   app.use((req, res, next) => (MODULE_ROUTES.test(req.path) ? next() : smallJson(req, res, next)))
   app.use(express.urlencoded({ extended: false, limit: '100kb' }))
   app.use(cookieParser())
@@ -125,6 +126,7 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   api.use('/auth', authRoutes(passport, csrf))
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
   api.use('/courses/:courseId', handInRoutes(db, { appUrl: config.APP_URL, uploadLimitMb: config.UPLOAD_LIMIT_MB, onMailQueued: () => onMailQueued?.() }))
+  api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
   api.use(apiNotFound)

@@ -27,6 +27,7 @@ export interface SubmissionRow {
   latePenalty: number
   rawScore: number | null
   score: number | null
+  scoreOverride: number | null
   maxScore: number | null
   reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
   revision: number
@@ -51,6 +52,7 @@ const cols = {
   latePenalty: submissions.latePenalty,
   rawScore: submissions.rawScore,
   score: submissions.score,
+  scoreOverride: submissions.scoreOverride,
   maxScore: submissions.maxScore,
   reviewStatus: submissions.reviewStatus,
   revision: submissions.revision,

@@ -378,7 +378,8 @@ function summary(s: SubmissionRow & { flagCount?: number }, visible: boolean): S
     isLate: s.isLate,
     daysLate: s.daysLate,
     latePenalty: s.latePenalty,
-    score: visible ? s.score : null,
+    // A staff override of the total replaces the computed score.
+    score: visible ? (s.scoreOverride ?? s.score) : null,
     maxScore: visible ? s.maxScore : null,
     flagCount: s.flagCount ?? 0,
   }

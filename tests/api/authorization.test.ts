@@ -29,7 +29,7 @@ const newCourse = () => ({
 
 // Modules made in beforeAll: one published (read by everyone), one for the unpublish row.
 const mods: { published?: CreatedModule; toUnpublish?: CreatedModule; coldFlow?: CreatedModule } = {}
-const handIn: { submissionId?: number; fileId?: number } = {}
+const handIn: { submissionId?: number; fileId?: number; flagId?: number } = {}
 const M = (fx: Fixture) => `/api/courses/${fx.courseId}/modules`
 const pub = () => mods.published!.id
 
@@ -169,11 +169,63 @@ const CASES: Case[] = [
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
   {
+    route: 'GET /api/courses/:courseId/review',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/review`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/submissions/:submissionId/review',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/review`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/overrides',
+    call: async (c, fx) =>
+      c.agent
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/overrides`)
+        .set('x-csrf-token', c.csrf)
+        .send({ checkId: null, points: 1, reason: 'Authorization matrix check.', revision: await revisionSeenBy(c, fx) }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/comments',
+    call: async (c, fx) =>
+      c.agent
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/comments`)
+        .set('x-csrf-token', c.csrf)
+        .send({ body: 'Matrix comment.', revision: await revisionSeenBy(c, fx) }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 201, instructor: 201, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/flags/:flagId',
+    call: async (c, fx) =>
+      c.agent
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/flags/${handIn.flagId}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ action: 'resolve', revision: await revisionSeenBy(c, fx) }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/review-status',
+    call: async (c, fx) =>
+      c.agent
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/review-status`)
+        .set('x-csrf-token', c.csrf)
+        .send({ status: 'in-review', revision: await revisionSeenBy(c, fx) }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
     route: 'GET /api/courses/:courseId/modules/:moduleId/export',
     call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/export`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
 ]
+
+/** The revision the caller would have on screen (0 when they may not see it). */
+async function revisionSeenBy(c: Client, fx: Fixture): Promise<number> {
+  const r = await c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/review`)
+  return r.status === 200 ? (r.body.revision as number) : 0
+}
 
 let ctx: TestContext
 let fx: Fixture
@@ -190,7 +242,8 @@ beforeAll(async () => {
   mods.coldFlow = await createModuleAs(inst, fx.courseId, readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
   await publishAs(inst, fx.courseId, mods.coldFlow)
   const st = await signedInAs(ctx, fx.student.email)
-  const log = coldFlowCsv()
+  // Thrust scaled up so the hand-in carries flags for the review rows.
+  const log = coldFlowCsv({ thrustScale: 1.6 })
   const res = await st.agent
     .post(`${M(fx)}/${mods.coldFlow.id}/submissions`)
     .set('x-csrf-token', st.csrf)
@@ -199,6 +252,7 @@ beforeAll(async () => {
   if (res.status !== 201) throw new Error(`hand-in for the matrix failed: ${res.status} ${JSON.stringify(res.body)}`)
   handIn.submissionId = res.body.id
   handIn.fileId = res.body.files[0].id
+  handIn.flagId = res.body.flags[0].id
 })
 afterAll(async () => {
   await ctx.close()

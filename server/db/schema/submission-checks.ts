@@ -24,6 +24,8 @@ export const submissionChecks = mysqlTable(
     tolerance: double('tolerance'),
     pointsPossible: double('points_possible').notNull(),
     pointsAwarded: double('points_awarded').notNull(),
+    /** Set when staff overrode the points (the audit is in grade_changes). */
+    overridden: boolean('overridden').notNull().default(false),
     pass: boolean('pass').notNull(),
     outcome: mysqlEnum('outcome', CHECK_OUTCOMES).notNull(),
     error: varchar('error', { length: 1000 }),

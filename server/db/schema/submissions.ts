@@ -50,6 +50,8 @@ export const submissions = mysqlTable(
     // shown rounded; no money-like exact sums are needed.
     rawScore: double('raw_score'),
     score: double('score'),
+    /** A staff override of the total (after penalty); null when the computed score stands. */
+    scoreOverride: double('score_override'),
     maxScore: double('max_score'),
     reviewStatus: mysqlEnum('review_status', REVIEW_STATUSES).notNull().default('none'),
     /** Optimistic-lock counter for staff edits. */

@@ -1,0 +1,161 @@
+import { and, asc, count, desc, eq, ne, sql } from 'drizzle-orm'
+import type { SQL } from 'drizzle-orm'
+import type { ReviewQuery, ReviewRow } from '../../shared/schemas/review'
+import type { Executor } from '../db/client'
+import {
+  enrollments,
+  gradeChanges,
+  labGroups,
+  moduleVersions,
+  sections,
+  submissionChecks,
+  submissionComments,
+  submissionFlags,
+  submissions,
+  users,
+} from '../db/schema'
+
+/** The review queue of a course; `sectionId` limits it to one section (a TA's own). */
+export async function listQueue(db: Executor, courseId: number, q: ReviewQuery): Promise<{ rows: ReviewRow[]; total: number }> {
+  const where: SQL[] = [eq(submissions.courseId, courseId)]
+  if (q.status === 'all') where.push(ne(submissions.reviewStatus, 'none'))
+  else where.push(eq(submissions.reviewStatus, q.status))
+  if (q.moduleId) where.push(eq(submissions.moduleId, q.moduleId))
+  if (q.sectionId) where.push(eq(enrollments.sectionId, q.sectionId))
+  if (q.reason) where.push(sql`EXISTS (SELECT 1 FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id} AND f.code = ${q.reason})`)
+  const filter = and(...where)
+  const sortCol = { submittedAt: submissions.submittedAt, score: submissions.score, module: moduleVersions.title, student: users.displayName }[q.sort]
+  const base = db
+    .select({
+      submissionId: submissions.id,
+      moduleId: submissions.moduleId,
+      moduleTitle: moduleVersions.title,
+      submittedBy: users.displayName,
+      labGroupName: labGroups.name,
+      sectionName: sections.name,
+      submittedAt: submissions.submittedAt,
+      isLate: submissions.isLate,
+      score: sql<number | null>`COALESCE(${submissions.scoreOverride}, ${submissions.score})`,
+      maxScore: submissions.maxScore,
+      reviewStatus: submissions.reviewStatus,
+      flagCodes: sql<string | null>`(SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id})`,
+    })
+    .from(submissions)
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
+    .leftJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+    .leftJoin(sections, eq(sections.id, enrollments.sectionId))
+    .leftJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+    .where(filter)
+  const rows = await base
+    .orderBy(q.order === 'asc' ? asc(sortCol) : desc(sortCol), desc(submissions.id))
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize)
+  const [totalRow] = await db
+    .select({ n: count() })
+    .from(submissions)
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
+    .leftJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+    .where(filter)
+  return {
+    rows: rows.map((r) => ({
+      ...r,
+      submittedAt: r.submittedAt.toISOString(),
+      score: r.score === null ? null : Number(r.score),
+      flagCodes: r.flagCodes ? r.flagCodes.split(',') : [],
+    })),
+    total: totalRow?.n ?? 0,
+  }
+}
+
+/** The section of a submission's submitter (for a TA's section scope). */
+export async function submitterSection(db: Executor, submissionId: number): Promise<number | null> {
+  const [row] = await db
+    .select({ sectionId: enrollments.sectionId })
+    .from(submissions)
+    .innerJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+    .where(eq(submissions.id, submissionId))
+  return row?.sectionId ?? null
+}
+
+/**
+ * Takes the submission for a staff edit: locks its row and checks the revision the editor saw.
+ * @returns the current revision, or null when another edit came first
+ */
+export async function lockRevision(tx: Executor, submissionId: number, seen: number): Promise<boolean> {
+  const [row] = await tx.select({ revision: submissions.revision }).from(submissions).where(eq(submissions.id, submissionId)).for('update')
+  return row !== undefined && row.revision === seen
+}
+
+export async function bumpRevision(tx: Executor, submissionId: number, set: Partial<{ reviewStatus: 'open' | 'in-review' | 'resolved'; scoreOverride: number | null; rawScore: number; score: number }> = {}) {
+  await tx
+    .update(submissions)
+    .set({ ...set, revision: sql`${submissions.revision} + 1` })
+    .where(eq(submissions.id, submissionId))
+}
+
+export async function findCheck(tx: Executor, submissionId: number, checkId: number) {
+  const [row] = await tx
+    .select()
+    .from(submissionChecks)
+    .where(and(eq(submissionChecks.id, checkId), eq(submissionChecks.submissionId, submissionId)))
+  return row ?? null
+}
+
+export async function setCheckPoints(tx: Executor, checkId: number, points: number) {
+  await tx.update(submissionChecks).set({ pointsAwarded: points, overridden: true }).where(eq(submissionChecks.id, checkId))
+}
+
+export async function sumAwarded(tx: Executor, submissionId: number): Promise<number> {
+  const [row] = await tx
+    .select({ s: sql<number>`COALESCE(SUM(${submissionChecks.pointsAwarded}), 0)` })
+    .from(submissionChecks)
+    .where(eq(submissionChecks.submissionId, submissionId))
+  return Number(row?.s ?? 0)
+}
+
+export async function insertGradeChange(
+  tx: Executor,
+  c: { submissionId: number; checkId: number | null; target: string; changedBy: number; oldPoints: number | null; newPoints: number; reason: string },
+) {
+  await tx.insert(gradeChanges).values(c)
+}
+
+export async function listGradeChanges(db: Executor, submissionId: number) {
+  return db
+    .select({
+      id: gradeChanges.id,
+      target: gradeChanges.target,
+      changedBy: users.displayName,
+      at: gradeChanges.createdAt,
+      oldPoints: gradeChanges.oldPoints,
+      newPoints: gradeChanges.newPoints,
+      reason: gradeChanges.reason,
+    })
+    .from(gradeChanges)
+    .innerJoin(users, eq(users.id, gradeChanges.changedBy))
+    .where(eq(gradeChanges.submissionId, submissionId))
+    .orderBy(asc(gradeChanges.id))
+}
+
+export async function insertComment(tx: Executor, submissionId: number, authorId: number, body: string) {
+  await tx.insert(submissionComments).values({ submissionId, authorId, body })
+}
+
+export async function listComments(db: Executor, submissionId: number) {
+  return db
+    .select({ id: submissionComments.id, author: users.displayName, at: submissionComments.createdAt, body: submissionComments.body })
+    .from(submissionComments)
+    .innerJoin(users, eq(users.id, submissionComments.authorId))
+    .where(eq(submissionComments.submissionId, submissionId))
+    .orderBy(asc(submissionComments.id))
+}
+
+export async function setFlagStatus(tx: Executor, submissionId: number, flagId: number, status: 'open' | 'resolved', userId: number): Promise<boolean> {
+  const [res] = await tx
+    .update(submissionFlags)
+    .set(status === 'resolved' ? { status, resolvedBy: userId, resolvedAt: new Date() } : { status, resolvedBy: null, resolvedAt: null })
+    .where(and(eq(submissionFlags.id, flagId), eq(submissionFlags.submissionId, submissionId)))
+  return ((res as { affectedRows?: number }).affectedRows ?? 0) > 0
+}

@@ -1,0 +1,93 @@
+import { z } from 'zod'
+
+export const REVIEW_SORTS = ['submittedAt', 'score', 'module', 'student'] as const
+
+/** Query of the review queue: server-side paging, sorting and filters. */
+export const ReviewQuerySchema = z.object({
+  page: z.coerce.number().int().min(1, 'page starts at 1').default(1),
+  pageSize: z.coerce.number().int().min(1).max(100, 'pageSize: at most 100 rows per page').default(25),
+  sort: z.enum(REVIEW_SORTS).default('submittedAt'),
+  order: z.enum(['asc', 'desc']).default('desc'),
+  moduleId: z.coerce.number().int().positive().optional(),
+  sectionId: z.coerce.number().int().positive().optional(),
+  /** A flag code, e.g. thrust-above-ideal or rule:chamber_above_receiver. */
+  reason: z.string().max(80).optional(),
+  status: z.enum(['open', 'in-review', 'resolved', 'all']).default('open'),
+})
+export type ReviewQuery = z.infer<typeof ReviewQuerySchema>
+
+export interface ReviewRow {
+  submissionId: number
+  moduleId: number
+  moduleTitle: string
+  submittedBy: string
+  labGroupName: string | null
+  sectionName: string | null
+  submittedAt: string
+  isLate: boolean
+  score: number | null
+  maxScore: number | null
+  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
+  flagCodes: string[]
+}
+
+export interface ReviewPage {
+  rows: ReviewRow[]
+  total: number
+  page: number
+  pageSize: number
+}
+
+const reason = z
+  .string({ error: 'reason: write why you change the points.' })
+  .trim()
+  .min(5, 'reason: write why you change the points (at least a few words).')
+  .max(2000, 'reason: at most 2000 characters.')
+
+/** Override one check's points or the total; `revision` is the submission revision the editor saw. */
+export const OverrideSchema = z.object({
+  checkId: z.number().int().positive().nullable(),
+  points: z.number({ error: 'points: enter a number.' }).refine(Number.isFinite, 'points: enter a finite number.'),
+  reason,
+  revision: z.number().int().min(0),
+})
+export type Override = z.infer<typeof OverrideSchema>
+
+export const CommentSchema = z.object({
+  body: z.string().trim().min(1, 'body: the comment is empty.').max(10_000, 'body: at most 10 000 characters.'),
+  revision: z.number().int().min(0),
+})
+
+export const FlagActionSchema = z.object({
+  action: z.enum(['resolve', 'reopen']),
+  revision: z.number().int().min(0),
+})
+
+export const ReviewStatusSchema = z.object({
+  status: z.enum(['open', 'in-review', 'resolved']),
+  revision: z.number().int().min(0),
+})
+
+export const FlagParamsSchema = z.object({
+  courseId: z.coerce.number().int().positive(),
+  submissionId: z.coerce.number().int().positive(),
+  flagId: z.coerce.number().int().positive(),
+})
+
+export interface GradeChangeView {
+  id: number
+  target: string
+  changedBy: string
+  at: string
+  oldPoints: number | null
+  newPoints: number
+  reason: string
+}
+
+export interface CommentView {
+  id: number
+  author: string
+  at: string
+  /** Sanitised HTML of the Markdown body. */
+  html: string
+}
