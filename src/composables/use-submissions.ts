@@ -20,7 +20,7 @@ import { fetchModule } from '@/api/modules'
 import { fetchMySubmissions, fetchSubmission, submitHandIn } from '@/api/submissions'
 import type { HandInFile } from '@/api/submissions'
 import type { ChartSeries } from '@/components/calculators/chart-series'
-import { formatCompact, formatNumber, unitLabel } from './use-calculator'
+import { formatCompact, unitLabel } from './use-calculator'
 import { useResource } from './use-resource'
 
 // ---------------------------------------------------------------------------------------------
@@ -164,7 +164,7 @@ export interface LogUpload {
   fileProblem: Ref<string | null>
   headers: Ref<string[]>
   /** The first {@link PREVIEW_ROWS} data rows, cells as written in the file. */
-  previewRows: Ref<string[][]>
+  previewRows: Ref<PreviewRow[]>
   mapping: Ref<Record<string, ColumnMappingEntry>>
   /** Column keys whose mapping came from the file's headers (suggestMapping). */
   suggested: Ref<string[]>
@@ -176,15 +176,28 @@ export interface LogUpload {
   setMapping: (columnKey: string, patch: Partial<ColumnMappingEntry>) => void
 }
 
-/** The first rows of a text, for the preview (papaparse guesses the separator). */
-function previewOf(text: string): { headers: string[]; rows: string[][] } {
+/** A row of the preview: its line in the file (header = 1, as the problems count) and its cells. */
+export interface PreviewRow {
+  line: number
+  cells: string[]
+}
+
+/**
+ * The header and first rows of a text, for the preview (papaparse guesses the separator). Line
+ * numbers count blank lines, as parseLog's do; a quoted cell spanning lines is rare enough in a
+ * logger's export that the preview does not follow it.
+ */
+function previewOf(text: string): { headers: string[]; rows: PreviewRow[] } {
   let end = 0
   // Enough lines for the header, a few blank lines and the preview rows.
   for (let lines = 0; lines < PREVIEW_ROWS + 12 && end >= 0; lines++) end = text.indexOf('\n', end + 1)
   const head = end < 0 ? text : text.slice(0, end)
-  const rows = Papa.parse(head.replace(/^\uFEFF/, ''), { header: false, skipEmptyLines: 'greedy' }).data
+  const parsed = Papa.parse(head.replace(/^\uFEFF/, ''), { header: false, skipEmptyLines: false }).data
+  const rows = parsed
+    .map((cells, i) => ({ line: i + 1, cells }))
+    .filter((r) => r.cells.some((c) => c.trim() !== ''))
   const [header, ...rest] = rows
-  return { headers: (header ?? []).map((h) => h.trim()), rows: rest.slice(0, PREVIEW_ROWS) }
+  return { headers: (header?.cells ?? []).map((h) => h.trim()), rows: rest.slice(0, PREVIEW_ROWS) }
 }
 
 function thin(xs: readonly number[], ys: readonly number[], scale: (v: number) => number): { x: number; y: number }[] {
@@ -200,7 +213,7 @@ export function useLogUpload(table: TableSpec): LogUpload {
   const reading = ref(false)
   const fileProblem = ref<string | null>(null)
   const headers = ref<string[]>([])
-  const previewRows = ref<string[][]>([])
+  const previewRows = ref<PreviewRow[]>([])
   const mapping = ref<Record<string, ColumnMappingEntry>>({})
   const suggested = ref<string[]>([])
   let run = 0
@@ -442,7 +455,7 @@ export function useHandInForm(assignment: StudentAssignment) {
       if (!listed) continue
       const n = listed.items.length + listed.more
       out[fieldId.table(u.table.key)] =
-        n === 1 ? `${u.table.label}: ${listed.items[0]?.message ?? ''}` : `${u.table.label}: the server found ${n} problems in the file; see the list under the upload.`
+        n === 1 ? (listed.items[0]?.message ?? '') : `${u.table.label}: the server found ${n} problems in the file; see the list under the upload.`
     }
     if (attempted.value) Object.assign(out, clientProblems.value)
     return out
@@ -454,7 +467,11 @@ export function useHandInForm(assignment: StudentAssignment) {
     for (const u of uploads) {
       const r = u.result.value
       if (r && !r.ok) out[u.table.key] = { items: r.errors, more: Math.max(0, r.totalErrors - r.errors.length) }
-      else if (serverFileIssues.value[u.table.key]) out[u.table.key] = serverFileIssues.value[u.table.key] as FileIssues
+      else {
+        // A single server problem is the upload's own message; a list is for several.
+        const listed = serverFileIssues.value[u.table.key]
+        if (listed && listed.items.length + listed.more > 1) out[u.table.key] = listed
+      }
     }
     return out
   })
@@ -591,10 +608,13 @@ export function invalidSubmissionIssues(err: ApiError): { issues: SubmissionFiel
 /** Relative error as a percentage with two significant figures ("1.2 %"), or a dash. */
 export function percentText(rel: number | null): string {
   if (rel === null || !Number.isFinite(rel)) return '—'
-  return `${formatNumber(rel * 100, 2)} %`
+  if (rel === 0) return '0 %'
+  // Below a hundredth of a per cent the digits only show rounding.
+  if (rel < 1e-4) return '< 0.01 %'
+  return `${formatCompact(rel * 100, 2)} %`
 }
 
-/** A checked value in its result's unit with five significant figures, or a dash. */
+/** A checked value in its result's unit with up to five significant figures, or a dash. */
 export function valueText(x: number | null, unit: string): string {
-  return x === null || !Number.isFinite(x) ? '—' : withUnit(formatNumber(x, 5), unit)
+  return x === null || !Number.isFinite(x) ? '—' : withUnit(formatCompact(x, 5), unit)
 }
