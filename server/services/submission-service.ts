@@ -38,6 +38,7 @@ import {
   saveGrade,
 } from '../repositories/submissions'
 import { findUserById } from '../repositories/users'
+import { commentsFor } from './review-service'
 import { escapeHtml } from './text'
 
 export interface UploadedTable {
@@ -408,7 +409,13 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
         now,
         course.timeZone,
       )
-  const [checks, flags, files, groupName] = await Promise.all([listChecks(db, s.id), listFlags(db, s.id), listFiles(db, s.id), labGroupName(db, s.labGroupId)])
+  const [checks, flags, files, groupName, comments] = await Promise.all([
+    listChecks(db, s.id),
+    listFlags(db, s.id),
+    listFiles(db, s.id),
+    labGroupName(db, s.labGroupId),
+    commentsFor(db, s.id),
+  ])
   const showExpected = isStaff(e) || fm.showExpected
   const checkViews: CheckView[] = vis.visible
     ? checks.map((c) => ({
@@ -458,6 +465,7 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
     inputs: s.inputs,
     attemptsAllowed: fm.attempts,
     attemptsUsed: used,
+    comments,
   }
 }
 

@@ -119,6 +119,8 @@ export interface SubmissionDetail extends SubmissionSummary {
   }
   attemptsAllowed: number
   attemptsUsed: number
+  /** Staff comments to the student, as sanitised HTML. */
+  comments: { id: number; author: string; at: string; html: string }[]
 }
 
 export interface MySubmissions {

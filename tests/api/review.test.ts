@@ -142,5 +142,10 @@ describe('review queue', () => {
       .send({ status: 'resolved', revision: resolved.body.revision })
     expect(done.status).toBe(200)
     expect(done.body.reviewStatus).toBe('resolved')
+    // The student who handed it in reads the comment on their result.
+    const who = DEMO_STUDENTS.find((p) => p.displayName === rows[0].submittedBy)!
+    const owner = await signedInAs(ctx, who.email, DEFAULT_DEMO_PASSWORD)
+    const mine = await owner.agent.get(`${R()}/submissions/${id}`).expect(200)
+    expect(mine.body.comments.at(-1).html).toContain('Good run.')
   })
 })
