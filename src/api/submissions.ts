@@ -83,7 +83,7 @@ export function submitHandIn(
         new ApiError(
           0,
           'network_error',
-          'The connection to the Isentrope server broke off while sending. Check your connection, then open the module to see whether the attempt was recorded before trying again.',
+          'The connection to the Isentrope server broke off while sending. A file over the server’s size limit (20 MB unless your course set another) is refused this way; otherwise check your connection. Open the module to see whether the attempt was recorded before trying again.',
         ),
       ),
     )

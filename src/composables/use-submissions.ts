@@ -289,9 +289,12 @@ export function useLogUpload(table: TableSpec): LogUpload {
         points: thin(xs, r.columns[c.key] as number[], (v) => valueFromSI(v, c.unit)),
         colour: colours[i % colours.length] as ChartSeries['colour'],
       }))
+    // One column: its label; several of one unit: the kind they share (axis titles must stay short).
     const title = (u: string) => {
-      const cols = others.filter((c) => c.unit === u).map((c) => c.label)
-      return `${cols.join(', ')}${unitText(u) ? ` (${unitText(u)})` : ''}`
+      const cols = others.filter((c) => c.unit === u)
+      const kind = dataUnitKind(u)
+      const name = cols.length === 1 || !kind || kind === 'dimensionless' ? (cols[0]?.label ?? '') : kind[0]!.toUpperCase() + kind.slice(1)
+      return `${name}${unitText(u) ? ` (${unitText(u)})` : ''}`
     }
     return {
       series,

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Locator, Page } from 'playwright-core'
 import { coldFlowAssignment, demoRuns } from '../../scripts/demo/demo-runs'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import { parseLog } from '../../shared/grading/csv'
 import type { ColumnMapping } from '../../shared/grading/csv'
 import { gradeSubmission } from '../../shared/grading/grade'
@@ -133,7 +133,7 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     const page = await ctx.newPage()
     await signIn(page, student.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
-    await page.getByTestId('module-list').getByRole('link', { name: MODULE_TITLE }).click()
+    await page.getByTestId('module-list').getByRole('link', { name: MODULE_TITLE, exact: true }).click()
     await page.getByRole('heading', { level: 1, name: MODULE_TITLE }).waitFor()
 
     const panel = page.getByTestId('hand-in-panel')
@@ -267,10 +267,11 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
 
     // Back on the module page, the attempt is listed with its score.
     await page.setViewportSize({ width: 1366, height: 900 })
-    await page.getByRole('navigation', { name: 'Breadcrumb' }).getByRole('link', { name: MODULE_TITLE }).click()
+    await page.getByRole('navigation', { name: 'Breadcrumb' }).getByRole('link', { name: MODULE_TITLE, exact: true }).click()
     await expect.poll(() => page.getByTestId('hand-in-panel').getByTestId('attempts').innerText()).toBe('1 of 3 attempts used')
     const listed = page.getByTestId('hand-in-panel').getByTestId('attempt-list')
     expect(await listed.innerText()).toContain(`${Number(score![1])} of ${graded.maxScore}`)
+    await page.getByTestId('hand-in-panel').screenshot({ path: screenshotPath('module-hand-in-panel') })
     await ctx.close()
   }, 180_000)
 
@@ -310,4 +311,17 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     expect(posted).toBe(0)
     await ctx.close()
   }, 120_000)
+
+  it('staff see no hand-in panel on the module page', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
+    await signIn(page, DEMO_INSTRUCTOR.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    await page.getByTestId('module-list').getByRole('link', { name: MODULE_TITLE, exact: true }).click()
+    await page.getByRole('heading', { level: 1, name: MODULE_TITLE }).waitFor()
+    await page.getByRole('heading', { name: 'What you hand in' }).waitFor()
+    await page.waitForLoadState('networkidle')
+    expect(await page.getByTestId('hand-in-panel').count()).toBe(0)
+    expect(await page.getByRole('link', { name: 'Hand in', exact: true }).count()).toBe(0)
+    await page.close()
+  }, 60_000)
 })
