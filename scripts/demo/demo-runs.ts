@@ -15,9 +15,11 @@
  * the staff review queue has work (see {@link DEMO_WRONG_RUNS}).
  *
  * Usage: `npx tsx scripts/demo/demo-runs.ts [outDir]` writes one CSV per group (for trying the
- * upload by hand); the seed imports {@link demoRuns}.
+ * upload by hand; outDir defaults to isentrope-demo-runs in the system's temporary folder); the
+ * seed imports {@link demoRuns}.
  */
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { parseLog, suggestMapping } from '../../shared/grading/csv'
 import type { ColumnMapping, ColumnMappingEntry } from '../../shared/grading/csv'
@@ -384,7 +386,7 @@ export function demoRuns(assignment: Assignment = coldFlowAssignment()): DemoRun
 
 // `npx tsx scripts/demo/demo-runs.ts [outDir]`: write the logs for trying the upload by hand.
 if (process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename)) {
-  const outDir = path.resolve(process.argv[2] ?? 'demo-runs')
+  const outDir = path.resolve(process.argv[2] ?? path.join(tmpdir(), 'isentrope-demo-runs'))
   mkdirSync(outDir, { recursive: true })
   for (const run of demoRuns()) {
     const file = path.join(outDir, `cold-flow-${run.group}.csv`)
