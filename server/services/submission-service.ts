@@ -201,7 +201,7 @@ function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload, uploa
     }
     const sniff = sniffBinary(new Uint8Array(upload.bytes.buffer, upload.bytes.byteOffset, upload.bytes.byteLength))
     if (sniff.binary) {
-      issues.push({ field, message: `${t.label}: ${upload.filename} is not a CSV text file. ${sniff.message}` })
+      issues.push({ field, message: `${t.label}: ${upload.filename}: ${sniff.message}` })
       continue
     }
     const mapping = payload.mappings[t.key]
