@@ -61,9 +61,11 @@ try {
     ARTIFACTS_DIR: ARTIFACTS,
   }
   if (!external) {
+    const port = Number(process.env.ISENTROPE_TEST_DB_PORT ?? 33062)
     db = await startMariaDb({
-      name: 'mariadb-test',
-      port: Number(process.env.ISENTROPE_TEST_DB_PORT ?? 33062),
+      // A run on its own port gets its own data folder, so two runs never share a server.
+      name: port === 33062 ? 'mariadb-test' : `mariadb-test-${port}`,
+      port,
       database: 'isentrope_test',
       user: 'isentrope_test',
       password: secrets.dbPassword,
@@ -75,8 +77,9 @@ try {
   // Its own mail catcher on its own ports, so a running `npm start` is not disturbed.
   const smtpPort = Number(process.env.TEST_SMTP_PORT ?? 1026)
   const webPort = Number(process.env.TEST_MAILDEV_WEB_PORT ?? 1081)
-  rmSync(path.join(DATA, 'mail-test'), { recursive: true, force: true })
-  maildev = startMaildev({ smtpPort, webPort, dir: 'mail-test' })
+  const mailDir = webPort === 1081 ? 'mail-test' : `mail-test-${webPort}`
+  rmSync(path.join(DATA, mailDir), { recursive: true, force: true })
+  maildev = startMaildev({ smtpPort, webPort, dir: mailDir })
   await waitForHttp(`http://127.0.0.1:${webPort}/api/email`)
   Object.assign(env, { SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtpPort), MAILDEV_API: `http://127.0.0.1:${webPort}` })
 

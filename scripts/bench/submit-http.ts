@@ -2,6 +2,7 @@
 // cold-flow log (multipart), measured end to end (upload, parse, store, grade, respond).
 // Run by `npm run bench` with a project-owned bench database; stops by itself.
 import { readFileSync } from 'node:fs'
+import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { createServer } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { createApp } from '../../server/app'
@@ -43,7 +44,7 @@ for (let i = 0; i < STUDENTS; i++) {
   await db.insert(enrollments).values({ userId: u!.id, courseId, role: 'student', labGroupId: g!.id })
   emails.push(email)
 }
-const source = readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8').replace('attempts: 3', 'attempts: 100')
+const source = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')).replace('attempts: 3', 'attempts: 100')
 const ie = { courseId, userId: inst!.id, role: 'instructor' as const, sectionId: null, labGroupId: null }
 const mod = await createModule(db, ie, source)
 await publishModule(db, ie, mod.id, mod.current.id, base)

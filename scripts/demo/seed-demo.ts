@@ -89,7 +89,7 @@ async function seedModules(tx: Parameters<Parameters<Database['transaction']>[0]
     .filter((f) => f.endsWith('.md'))
     .sort()
   for (const [i, file] of files.entries()) {
-    const source = readFileSync(path.join(CONTENT, file), 'utf8')
+    const source = currentDueDates(readFileSync(path.join(CONTENT, file), 'utf8'))
     const v = toVersion(source, file, DEMO_COURSE.timeZone)
     if (!v.valid) throw new Error(`seed: content/${file} has problems: ${v.issues.map((x) => `${x.path}: ${x.message}`).join('; ')}`)
     const slug = file.replace(/^\d+-/, '').replace(/\.md$/, '')
@@ -139,4 +139,24 @@ async function seedHandIns(db: Database, courseId: number) {
       { appUrl: process.env.APP_URL ?? 'http://127.0.0.1:3000' },
     )
   }
+}
+
+const DATE_TIME_LINE = /^(\s*(?:at|acceptUntil):\s*)(\d{4})-(\d{2})-(\d{2})T(\d{2}:\d{2})/gm
+
+/**
+ * The demo modules' dates, moved by whole weeks so the earliest due date lies two to three weeks
+ * after `now`: a demo (or a test) seeded any day finds its hand-ins open, with the same weekdays,
+ * times and spacing as written in content/.
+ */
+export function currentDueDates(source: string, now = new Date()): string {
+  const dates = [...source.matchAll(DATE_TIME_LINE)].map((m) => Date.UTC(Number(m[2]), Number(m[3]) - 1, Number(m[4])))
+  if (dates.length === 0) return source
+  const earliest = Math.min(...dates)
+  const target = now.getTime() + 14 * 86_400_000
+  const weeks = Math.ceil((target - earliest) / (7 * 86_400_000))
+  const shift = weeks * 7 * 86_400_000
+  return source.replace(DATE_TIME_LINE, (_all, lead: string, y: string, mo: string, d: string, hm: string) => {
+    const day = new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d)) + shift)
+    return `${lead}${day.toISOString().slice(0, 10)}T${hm}`
+  })
 }

@@ -88,6 +88,18 @@ function ping(socket) {
   return r.status === 0
 }
 
+/** Whether the process named in a pid file is alive. */
+function pidAlive(pidFile) {
+  try {
+    const pid = Number(readFileSync(pidFile, 'utf8').trim())
+    if (!pid) return false
+    process.kill(pid, 0)
+    return true
+  } catch {
+    return false
+  }
+}
+
 function rootSql(socket, sql) {
   const r = spawnSync('mariadb', ['--no-defaults', `--socket=${socket}`, '-uroot', '-e', sql], {
     encoding: 'utf8',
@@ -109,9 +121,22 @@ export async function startMariaDb(o) {
   mkdirSync(rundir, { recursive: true })
 
   let child = null
+  // A server of ours may still be running on this data directory (a run that was killed, or one
+  // still shutting down). Reuse it only if it listens on the port asked for; otherwise stop it.
+  let reuse = false
   if (ping(socket)) {
-    log(`reusing the MariaDB already running on ${socket}`)
-  } else {
+    const port = spawnSync('mariadb', ['--no-defaults', `--socket=${socket}`, '-uroot', '-N', '-B', '-e', 'SELECT @@port'], { encoding: 'utf8' })
+    reuse = port.status === 0 && Number(port.stdout.trim()) === o.port
+    if (reuse) log(`reusing the MariaDB already running on ${socket}`)
+    else {
+      log(`stopping the MariaDB left running on ${socket}`)
+      spawnSync('mariadb-admin', ['--no-defaults', `--socket=${socket}`, '-uroot', 'shutdown'], { stdio: 'ignore' })
+    }
+  }
+  if (!reuse) {
+    // Wait out a shutdown in progress before starting a new server on the same files.
+    const pidFile = path.join(rundir, 'mariadb.pid')
+    for (const until = Date.now() + 60_000; pidAlive(pidFile) && Date.now() < until; ) await sleep(200)
     if (!existsSync(path.join(datadir, 'mysql'))) {
       log(`initialising a MariaDB data directory in ${path.relative(ROOT, datadir)}`)
       mkdirSync(datadir, { recursive: true })
@@ -174,7 +199,12 @@ export async function startMariaDb(o) {
     spawnSync('mariadb-admin', ['--no-defaults', `--socket=${socket}`, '-uroot', 'shutdown'], { stdio: 'ignore' })
     const until = Date.now() + 20_000
     while (child.exitCode === null && child.signalCode === null && Date.now() < until) await sleep(100)
-    if (child.exitCode === null && child.signalCode === null) child.kill('SIGTERM')
+    if (child.exitCode === null && child.signalCode === null) {
+      child.kill('SIGTERM')
+      const hard = Date.now() + 30_000
+      while (child.exitCode === null && child.signalCode === null && Date.now() < hard) await sleep(100)
+      if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL')
+    }
   }
   return { host: '127.0.0.1', port: o.port, database: db, user, password: o.password, stop, owned: child !== null }
 }

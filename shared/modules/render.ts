@@ -122,6 +122,17 @@ function createMarkdown() {
     }
   }
 
+  // The page around a module already has its one <h1> (the module's title), so the module's own
+  // headings move one level down: # → <h2>, ## → <h3>, … (h6 stays h6).
+  md.core.ruler.push('isentrope_demote_headings', (state) => {
+    for (const t of state.tokens) {
+      if (t.type === 'heading_open' || t.type === 'heading_close') {
+        const level = Number(t.tag.slice(1))
+        t.tag = `h${Math.min(6, level + 1)}`
+      }
+    }
+  })
+
   const fence = md.renderer.rules.fence
   md.renderer.rules.fence = (tokens, idx, options, env, self) => {
     const token = tokens[idx]

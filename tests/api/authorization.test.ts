@@ -1,4 +1,5 @@
 import { readFileSync } from 'node:fs'
+import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, seedFixture, signedInAs, startTestApp } from '../helpers/app'
@@ -239,7 +240,7 @@ beforeAll(async () => {
   mods.toUnpublish = await createModuleAs(inst, fx.courseId, moduleSource('To unpublish'))
   await publishAs(inst, fx.courseId, mods.toUnpublish)
   // A cold-flow module with one hand-in by the fixture student.
-  mods.coldFlow = await createModuleAs(inst, fx.courseId, readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+  mods.coldFlow = await createModuleAs(inst, fx.courseId, currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')))
   await publishAs(inst, fx.courseId, mods.coldFlow)
   const st = await signedInAs(ctx, fx.student.email)
   // Thrust scaled up so the hand-in carries flags for the review rows.

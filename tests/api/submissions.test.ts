@@ -1,4 +1,5 @@
 import { readFileSync } from 'node:fs'
+import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { mailOutbox, submissionFiles, submissions } from '../../server/db/schema'
@@ -15,7 +16,7 @@ let student: Client
 let student2: Client
 let ta: Client
 let mod: CreatedModule
-const COLD = readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')
+const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
 
 const payload = coldFlowPayload
 

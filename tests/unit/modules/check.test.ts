@@ -68,7 +68,8 @@ describe('checkModule', () => {
     const c = checkModule(module(['title: Half done', 'attempts: -1'], ['# Still shown']), 'half', 'UTC')
     expect(c.frontMatter).toBeNull()
     expect(c.title).toBe('Half done')
-    expect(c.html).toContain('<h1>Still shown</h1>')
+    // Module headings sit one level below the page's title.
+    expect(c.html).toContain('<h2>Still shown</h2>')
     expect(c.issues.map((i) => i.path)).toEqual(['attempts'])
   })
 

@@ -257,3 +257,13 @@ describe('the harmlessness check used above', () => {
     expect(urlScheme(' JAVA\tSCRIPT:x')).toBe('javascript')
   })
 })
+
+describe('heading levels', () => {
+  it('moves module headings one level down so the page keeps a single h1', () => {
+    const html = renderModule('# Title\n\n## Part\n\n###### Deep\n')
+    expect(html).toContain('<h2>Title</h2>')
+    expect(html).toContain('<h3>Part</h3>')
+    expect(html).toContain('<h6>Deep</h6>')
+    expect(html).not.toContain('<h1')
+  })
+})
