@@ -213,6 +213,62 @@ for (const name of Object.keys(scopeFunctions)) {
 }
 math.import(scopeFunctions, { override: true })
 
+// Element-wise arithmetic and comparisons on plain number arrays (a logged column against a
+// column or a number) take a direct loop instead of mathjs's generic matrix machinery, which
+// costs about 0.3 µs per element; on a 50 000-sample log that dominated the grading step.
+// Anything else (nested arrays, units, unequal lengths, which give mathjs's own error) goes
+// to the original function unchanged. Other mathjs functions (sum, max…) are rebuilt on these,
+// so two plain numbers take the same direct path.
+type Elementwise = (a: number, b: number) => number | boolean
+const FAST_ELEMENTWISE: Record<string, Elementwise> = {
+  add: (a, b) => a + b,
+  subtract: (a, b) => a - b,
+  multiply: (a, b) => a * b,
+  divide: (a, b) => a / b,
+  dotMultiply: (a, b) => a * b,
+  dotDivide: (a, b) => a / b,
+  // mathjs compares numbers with a tolerance: a < b only when they are not nearly equal
+  // (mathjs's nearlyEqual with its configured relTol/absTol), reproduced exactly here.
+  smaller: (a, b) => a < b && !nearlyEqual(a, b),
+  larger: (a, b) => a > b && !nearlyEqual(a, b),
+  smallerEq: (a, b) => a <= b || nearlyEqual(a, b),
+  largerEq: (a, b) => a >= b || nearlyEqual(a, b),
+}
+// This instance's configuration never changes after creation.
+const { relTol, absTol } = math.config({}) as unknown as { relTol: number; absTol: number }
+function nearlyEqual(a: number, b: number): boolean {
+  if (Number.isNaN(a) || Number.isNaN(b)) return false
+  if (!Number.isFinite(a) || !Number.isFinite(b)) return a === b
+  if (a === b) return true
+  return Math.abs(a - b) <= Math.max(relTol * Math.max(Math.abs(a), Math.abs(b)), absTol)
+}
+const isNumberArray = (x: unknown): x is number[] => {
+  if (!Array.isArray(x)) return false
+  for (const v of x) if (typeof v !== 'number') return false
+  return true
+}
+{
+  type Fn = (...args: unknown[]) => unknown
+  const typed = (math as unknown as { typed: (name: string, signatures: Record<string, Fn>) => unknown }).typed
+  const replacements: Record<string, unknown> = {}
+  for (const [name, op] of Object.entries(FAST_ELEMENTWISE)) {
+    const original = (math as unknown as Record<string, Fn>)[name]!
+    // multiply/divide of two arrays are matrix products in mathjs: keep those as they are.
+    const arrays: Fn | null = name === 'multiply' || name === 'divide' ? null : (a: unknown, b: unknown) =>
+      isNumberArray(a) && isNumberArray(b) && a.length === b.length ? a.map((v, i) => op(v, b[i]!)) : original(a, b)
+    replacements[name] = typed(name, {
+      'number, number': (a: unknown, b: unknown) => op(a as number, b as number),
+      ...(arrays ? { 'Array, Array': arrays } : {}),
+      'Array, number': (a: unknown, b: unknown) => (isNumberArray(a) ? a.map((v) => op(v, b as number)) : original(a, b)),
+      'number, Array': (a: unknown, b: unknown) => (isNumberArray(b) ? b.map((v) => op(a as number, v)) : original(a, b)),
+      'any, any': (a: unknown, b: unknown) => original(a, b),
+      // add(a, b, c, …) and multiply(a, b, c, …) keep taking any number of arguments.
+      ...(name === 'add' || name === 'multiply' ? { 'any, any, ...any': (a: unknown, b: unknown, rest: unknown) => original(a, b, ...(rest as unknown[])) } : {}),
+    })
+  }
+  math.import(replacements, { override: true })
+}
+
 // https://mathjs.org/docs/expressions/security.html: replace every function that parses, compiles
 // or defines things with one that throws, so even an expression that got past the allowlist could
 // not reach them.
