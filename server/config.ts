@@ -50,6 +50,8 @@ const ConfigSchema = z
     MAIL_FROM: z.string().default('Isentrope <no-reply@isentrope.example>'),
     /** How often the outbox worker looks for mail to send; 0 turns the worker off in this process. */
     MAIL_POLL_MS: z.coerce.number().int().min(0).default(2000),
+    /** Minutes between the teaching assistants' flag digests; 0 turns them off in this process. */
+    FLAG_DIGEST_MINUTES: z.coerce.number().min(0).default(15),
     /** Sign-in: failures per e-mail address allowed in the window before refusing. */
     SIGNIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
     SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),

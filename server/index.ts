@@ -5,6 +5,7 @@ import { createDb } from './db/client'
 import { createLogger } from './logger'
 import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from './mail/outbox-worker'
 import { createSmtpSender } from './mail/transport'
+import { queueFlagDigests } from './services/flag-digest'
 
 // Entry point: read configuration, listen, and shut down cleanly on SIGINT/SIGTERM.
 let config
@@ -24,6 +25,20 @@ const worker =
   config.MAIL_POLL_MS > 0
     ? startOutboxWorker(dbHandle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: config.MAIL_POLL_MS })
     : null
+// The flag digest runs on a timer in every process; SKIP LOCKED keeps replicas from doubling it.
+const digestTimer =
+  config.FLAG_DIGEST_MINUTES > 0
+    ? setInterval(() => {
+        queueFlagDigests(dbHandle.db, config.APP_URL)
+          .then((n) => {
+            if (n > 0) {
+              logger.info({ digests: n }, 'flag digests queued')
+              worker?.kick()
+            }
+          })
+          .catch((err: unknown) => logger.warn({ err }, 'flag digest failed; will retry'))
+      }, config.FLAG_DIGEST_MINUTES * 60_000)
+    : null
 const { app, close } = createApp({ config, db: dbHandle.db, logger, onMailQueued: () => worker?.kick() })
 
 const server: Server = app.listen(config.PORT, config.HOST, () => {
@@ -37,6 +52,7 @@ async function shutdown(signal: string): Promise<void> {
   logger.info({ signal }, 'shutting down')
   server.close()
   server.closeAllConnections()
+  if (digestTimer) clearInterval(digestTimer)
   await worker?.stop().catch((err: unknown) => logger.warn({ err }, 'outbox worker stop failed'))
   await close().catch((err: unknown) => logger.warn({ err }, 'session store close failed'))
   await dbHandle.close().catch((err: unknown) => logger.warn({ err }, 'database pool close failed'))

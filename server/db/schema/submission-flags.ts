@@ -19,7 +19,9 @@ export const submissionFlags = mysqlTable(
     status: mysqlEnum('status', FLAG_STATUSES).notNull().default('open'),
     resolvedBy: ref('resolved_by').references(() => users.id, { onDelete: 'set null' }),
     resolvedAt: timestamp('resolved_at', { fsp: 3, mode: 'date' }),
+    /** When this flag went out in a digest e-mail to the section's TAs (null: not yet). */
+    digestedAt: timestamp('digested_at', { fsp: 3, mode: 'date' }),
     ...timestamps,
   },
-  (t) => [index('submission_flags_submission_idx').on(t.submissionId)],
+  (t) => [index('submission_flags_submission_idx').on(t.submissionId), index('submission_flags_digested_idx').on(t.digestedAt)],
 )
