@@ -36,6 +36,20 @@ const router = createRouter({
       meta: { title: 'Roster' },
     },
     {
+      path: '/courses/:courseId(\\d+)/review',
+      name: 'review-queue',
+      component: () => import('@/views/ReviewQueueView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'Review queue' },
+    },
+    {
+      path: '/courses/:courseId(\\d+)/review/:submissionId(\\d+)',
+      name: 'review-submission',
+      component: () => import('@/views/ReviewSubmissionView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId), submissionId: Number(r.params.submissionId) }),
+      meta: { title: 'Review' },
+    },
+    {
       path: '/courses/:courseId(\\d+)/modules/:moduleId(\\d+)',
       name: 'module-read',
       component: () => import('@/views/ModuleReadView.vue'),
