@@ -419,6 +419,7 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
   const showExpected = isStaff(e) || fm.showExpected
   const checkViews: CheckView[] = vis.visible
     ? checks.map((c) => ({
+        id: c.id,
         key: c.resultKey,
         label: c.label,
         unit: c.unit,

@@ -53,6 +53,8 @@ export interface SubmissionFieldIssue {
 export type CheckOutcome = 'pass' | 'partial' | 'fail' | 'error'
 
 export interface CheckView {
+  /** The stored check (staff override it by this id). */
+  id: number
   key: string
   label: string
   unit: string

@@ -92,8 +92,8 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
   }
 
   /** Checks the override in the browser with the server's own schema and range, then sends it. */
-  async function override(points: number | null, reason: string, maxPoints: number): Promise<boolean> {
-    const parsed = OverrideSchema.safeParse({ checkId: null, points: points ?? Number.NaN, reason, revision: revision.value })
+  async function override(checkId: number | null, points: number | null, reason: string, maxPoints: number): Promise<boolean> {
+    const parsed = OverrideSchema.safeParse({ checkId, points: points ?? Number.NaN, reason, revision: revision.value })
     const errs: Record<string, string> = {}
     if (!parsed.success) {
       for (const i of parsed.error.issues) {
@@ -101,7 +101,9 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
         if ((f === 'points' || f === 'reason') && !errs[f]) errs[f] = i.message
       }
     }
-    if (!errs.points && points !== null && (points < 0 || points > maxPoints)) errs.points = `points: the total must be between 0 and ${maxPoints}.`
+    if (!errs.points && points !== null && (points < 0 || points > maxPoints)) {
+      errs.points = checkId === null ? `points: the total must be between 0 and ${maxPoints}.` : `points: this check is worth between 0 and ${maxPoints} points.`
+    }
     if (points === null) errs.points = 'points: enter a number.'
     if (Object.keys(errs).length) {
       fieldErrors.value = { ...fieldErrors.value, ...errs }

@@ -64,7 +64,7 @@ async function noSideways(page: Page) {
 }
 
 describe('journey 3: a teaching assistant reviews a flagged submission', () => {
-  it('sees only their section in the queue, overrides the total with a reason, comments, resolves the flag and marks the hand-in resolved', async () => {
+  it('sees only their section in the queue, overrides the total and one check with reasons, comments, resolves the flag and marks the hand-in resolved', async () => {
     const ctx = await browser.newContext({ viewport: { width: 1366, height: 900 } })
     const page = await ctx.newPage()
     await signIn(page, ta.email)
@@ -123,6 +123,19 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     expect(await page.getByTestId('score').innerText()).toContain(`of ${max} points`)
     await expect.poll(() => page.getByTestId('review-status').innerText()).toBe('in review')
 
+    // One check: the peak thrust, taken to 0 points because the load cell read 1.6 times high.
+    await page.getByLabel('What to change').click()
+    await page.getByRole('option', { name: /^Peak thrust/ }).click()
+    const checkPoints = page.getByLabel(/^New points for Peak thrust/)
+    await checkPoints.fill('0')
+    const checkReason = `Peak thrust comes from a miscalibrated load cell (${Date.now()}).`
+    await page.getByLabel(/^Reason/).fill(checkReason)
+    await page.getByRole('button', { name: 'Save override' }).click()
+    await expect.poll(() => audit.locator('tbody tr').filter({ hasText: checkReason }).count()).toBe(1)
+    const checkEntry = await audit.locator('tbody tr').filter({ hasText: checkReason }).innerText()
+    expect(checkEntry).toContain('Peak thrust')
+    expect(checkEntry).toContain('→ 0')
+
     const comment = `Your load cell reads high; recalibrate before the next run (${Date.now()}).`
     await page.getByLabel('Comment to the student (Markdown)').fill(`**${comment}**`)
     await page.getByRole('button', { name: 'Add comment' }).click()
@@ -158,6 +171,8 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     expect(extras.body.reviewStatus).toBe('resolved')
     expect(extras.body.scoreOverride).toBe(points)
     expect(extras.body.gradeChanges.find((c) => c.reason === reason)).toMatchObject({ newPoints: points, changedBy: ta.displayName })
+    const peak = after.body.checks.find((c) => c.key === 'peak_thrust')!
+    expect(peak.pointsAwarded).toBe(0)
     expect(extras.body.comments.some((c) => c.html.includes(`<strong>${comment}</strong>`))).toBe(true)
 
     // The queue at 375 px: the hand-in now shows as resolved, with the new score.
