@@ -37,6 +37,7 @@ import {
   lockOwner,
   saveGrade,
 } from '../repositories/submissions'
+import { submitterSection } from '../repositories/review'
 import { findUserById } from '../repositories/users'
 import { commentsFor } from './review-service'
 import { escapeHtml } from './text'
@@ -386,9 +387,13 @@ function summary(s: SubmissionRow & { flagCount?: number }, visible: boolean): S
   }
 }
 
-/** May this person see this submission? Its submitter, their lab-group partners, and staff. */
-function canSee(e: CourseEnrollment, s: SubmissionRow): boolean {
-  if (isStaff(e)) return true
+/**
+ * May this person see this submission? Its submitter, their lab-group partners, the instructors,
+ * and the TAs of the submitter's section.
+ */
+async function canSee(db: Database, e: CourseEnrollment, s: SubmissionRow): Promise<boolean> {
+  if (e.role === 'instructor') return true
+  if (e.role === 'ta') return e.sectionId !== null && (await submitterSection(db, s.id)) === e.sectionId
   if (s.userId === e.userId) return true
   return s.labGroupId !== null && s.labGroupId === e.labGroupId
 }
@@ -396,7 +401,7 @@ function canSee(e: CourseEnrollment, s: SubmissionRow): boolean {
 export async function submissionDetail(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<SubmissionDetail> {
   const s = await findSubmission(db, e.courseId, submissionId)
   // Someone else's submission does not exist for a student.
-  if (!s || !canSee(e, s)) throw notFound('That submission')
+  if (!s || !(await canSee(db, e, s))) throw notFound('That submission')
   const p = await publishedModule(db, e.courseId, s.moduleId).catch(() => null)
   const version = await findVersion(db, s.moduleVersionId)
   if (!version) throw notFound('That submission')
@@ -531,7 +536,7 @@ export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId:
 
 export async function submissionFile(db: Database, e: CourseEnrollment, submissionId: number, fileId: number) {
   const s = await findSubmission(db, e.courseId, submissionId)
-  if (!s || !canSee(e, s)) throw notFound('That file')
+  if (!s || !(await canSee(db, e, s))) throw notFound('That file')
   const f = await findFileBytes(db, submissionId, fileId)
   if (!f) throw notFound('That file')
   return f

@@ -112,6 +112,10 @@ describe('review queue', () => {
     expect(res.status).toBe(404)
     const st = await signedInAs(ctx, DEMO_STUDENTS[0]!.email, DEFAULT_DEMO_PASSWORD)
     expect((await st.agent.get(`${R()}/review`)).status).toBe(403)
+    // Nor read its details or its file: another section's submissions do not exist for them.
+    const asA = await taA.agent.get(`${R()}/submissions/${id}`).expect(200)
+    expect((await taB.agent.get(`${R()}/submissions/${id}`)).status).toBe(404)
+    expect((await taB.agent.get(`${R()}/submissions/${id}/files/${asA.body.files[0].id}`)).status).toBe(404)
   })
 
   it('comments are sanitised Markdown; flags resolve and re-open', async () => {
