@@ -20,12 +20,28 @@ import {
 } from './scenario'
 
 /** Inserts the demo course, people, sections and lab groups in one transaction, once. */
-export async function seedDemo(db: Database, password = DEFAULT_DEMO_PASSWORD): Promise<{ created: boolean; users: number; courseId: number }> {
+export async function seedDemo(
+  db: Database,
+  password = DEFAULT_DEMO_PASSWORD,
+): Promise<{ created: boolean; users: number; courseId: number; addedModules?: boolean }> {
   const existing = await db
     .select({ id: courses.id })
     .from(courses)
     .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.term, DEMO_COURSE.term)))
-  if (existing[0]) return { created: false, users: 0, courseId: existing[0].id }
+  if (existing[0]) {
+    // A demo database from before modules existed gets them (and the seeded hand-ins) now.
+    const courseId = existing[0].id
+    const any = await db.select({ id: modules.id }).from(modules).where(eq(modules.courseId, courseId)).limit(1)
+    if (any.length > 0) return { created: false, users: 0, courseId }
+    const [inst] = await db
+      .select({ id: users.id })
+      .from(users)
+      .where(eq(users.email, DEMO_INSTRUCTOR.email))
+    if (!inst) return { created: false, users: 0, courseId }
+    await db.transaction((tx) => seedModules(tx, courseId, inst.id))
+    await seedHandIns(db, courseId)
+    return { created: false, users: 0, courseId, addedModules: true }
+  }
 
   // One hash per person (each with its own salt), computed before the transaction opens.
   const people = [DEMO_ADMIN, DEMO_INSTRUCTOR, ...DEMO_SECTIONS.map((s) => s.ta), ...DEMO_STUDENTS]
