@@ -122,6 +122,17 @@ function visibility(p: Published, now: Date, timeZone: string): { visible: boole
   }
 }
 
+/**
+ * How a typed pressure was read: the student's gauge/absolute choice, else the spec's. The
+ * barometric reading is absolute whatever was chosen. Undefined for quantities that are not pressures.
+ */
+function readingSense(
+  m: { role?: string | undefined; pressure?: 'gauge' | 'absolute' | undefined },
+  typed: { pressure?: 'gauge' | 'absolute' | undefined },
+): 'gauge' | 'absolute' | undefined {
+  return m.role === 'ambient-pressure' ? 'absolute' : (typed.pressure ?? m.pressure)
+}
+
 const fmt = (x: number) => (Math.abs(x) >= 1e5 || (Math.abs(x) < 1e-3 && x !== 0) ? x.toExponential(3) : String(Number(x.toPrecision(6))))
 
 /**
@@ -156,7 +167,7 @@ function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload, uploa
     }
     const si = valueToSI(typed.value, typed.unit)
     measurements[m.key] = si
-    const sense = m.role === 'ambient-pressure' ? 'absolute' : (typed.pressure ?? m.pressure)
+    const sense = readingSense(m, typed)
     if (m.pressure && sense && sense !== m.pressure) pressures[m.key] = sense
     // The plausible range is stated in the spec's unit and sense.
     let inSpec = valueFromSI(si, m.unit)
@@ -485,7 +496,7 @@ function siDataOf(fm: ModuleFrontMatter, inputs: SubmissionInputs, mappings: Rec
     const t = inputs.measurements[m.key]
     if (!t) continue
     measurements[m.key] = valueToSI(t.value, t.unit)
-    const sense = m.role === 'ambient-pressure' ? 'absolute' : (t.pressure ?? m.pressure)
+    const sense = readingSense(m, t)
     if (m.pressure && sense && sense !== m.pressure) pressures[m.key] = sense
   }
   for (const t of a.tables) {

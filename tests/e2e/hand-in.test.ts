@@ -2,16 +2,16 @@ import { mkdtempSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Browser, Locator, Page } from 'playwright-core'
+import type { Browser, Locator } from 'playwright-core'
 import { coldFlowAssignment, demoRuns } from '../../scripts/demo/demo-runs'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import { parseLog } from '../../shared/grading/csv'
 import type { ColumnMapping } from '../../shared/grading/csv'
 import { gradeSubmission } from '../../shared/grading/grade'
 import { valueToSI } from '../../shared/modules/quantities'
 import { PSI } from '../../shared/physics/constants'
-import { launchBrowser, screenshotPath, serveApp } from '../helpers/browser'
+import { choose, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -93,28 +93,10 @@ afterAll(async () => {
   await app?.close()
 })
 
-async function signIn(page: Page, email: string) {
-  await page.goto(`${app.url}/sign-in`)
-  await page.getByLabel('E-mail address').fill(email)
-  await page.getByLabel('Password', { exact: true }).fill(DEFAULT_DEMO_PASSWORD)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.getByRole('heading', { name: 'My courses' }).waitFor()
-}
 
 /** Picks an option in a PrimeVue select found by its accessible name. */
-async function choose(page: Page, name: string, option: string) {
-  const picker = page.getByRole('combobox', { name, exact: true })
-  await picker.click()
-  const list = await picker.getAttribute('aria-controls')
-  if (!list) throw new Error(`the picker "${name}" did not open its list`)
-  await page.locator(`[id="${list}"]`).getByRole('option', { name: option, exact: true }).click()
-  await expect.poll(() => picker.innerText()).toBe(option)
-}
 
 /** No sideways scrolling, once charts have followed a viewport change (chart.js resizes on the next frames). */
-async function noSideways(page: Page) {
-  await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0)
-}
 
 /** How many pixels of a canvas have been painted. */
 async function paintedPixels(canvas: Locator): Promise<number> {
@@ -131,7 +113,7 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
   it('uploads the log, keeps the suggested mapping, types values in their own units, and sees the score, the failed check and the chart', async () => {
     const ctx = await browser.newContext({ viewport: { width: 1366, height: 900 } })
     const page = await ctx.newPage()
-    await signIn(page, student.email)
+    await signIn(page, app.url, student.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     await page.getByTestId('module-list').getByRole('link', { name: MODULE_TITLE, exact: true }).click()
     await page.getByRole('heading', { level: 1, name: MODULE_TITLE }).waitFor()
@@ -279,7 +261,7 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     expect(handInUrl).not.toBe('')
     const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
     const page = await ctx.newPage()
-    await signIn(page, student.email)
+    await signIn(page, app.url, student.email)
     let posted = 0
     page.on('request', (r) => {
       if (r.method() === 'POST' && r.url().endsWith('/submissions')) posted++
@@ -314,7 +296,7 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
 
   it('staff see no hand-in panel on the module page', async () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
-    await signIn(page, DEMO_INSTRUCTOR.email)
+    await signIn(page, app.url, DEMO_INSTRUCTOR.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     await page.getByTestId('module-list').getByRole('link', { name: MODULE_TITLE, exact: true }).click()
     await page.getByRole('heading', { level: 1, name: MODULE_TITLE }).waitFor()

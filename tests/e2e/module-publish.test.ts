@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Browser, Page } from 'playwright-core'
+import type { Browser } from 'playwright-core'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
-import { launchBrowser, screenshotPath, serveApp } from '../helpers/browser'
+import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { launchBrowser, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { waitForMail } from '../helpers/maildev'
 
 let app: Awaited<ReturnType<typeof serveApp>>
@@ -20,18 +20,11 @@ afterAll(async () => {
   await app?.close()
 })
 
-async function signIn(page: Page, email: string) {
-  await page.goto(`${app.url}/sign-in`)
-  await page.getByLabel('E-mail address').fill(email)
-  await page.getByLabel('Password', { exact: true }).fill(DEFAULT_DEMO_PASSWORD)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.getByRole('heading', { name: 'My courses' }).waitFor()
-}
 
 describe('journey 1: an instructor publishes a module and students are e-mailed', () => {
   it('edits a draft, sees the equation in the preview, publishes, and a student opens it from the e-mail', async () => {
     const page = await browser.newPage({ viewport: { width: 1400, height: 900 } })
-    await signIn(page, DEMO_INSTRUCTOR.email)
+    await signIn(page, app.url, DEMO_INSTRUCTOR.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     const list = page.getByTestId('module-list')
     await list.waitFor()
@@ -74,7 +67,7 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
 
     const ctx = await browser.newContext({ viewport: { width: 390, height: 844 } })
     const sp = await ctx.newPage()
-    await signIn(sp, student.email)
+    await signIn(sp, app.url, student.email)
     await sp.goto(link!)
     await sp.getByRole('heading', { level: 1, name: title }).waitFor()
     await sp.getByText(marker).waitFor()
@@ -87,7 +80,7 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
 
   it('the published demo module renders its equations and live calculators for a student', async () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
-    await signIn(page, DEMO_STUDENTS[0]!.email)
+    await signIn(page, app.url, DEMO_STUDENTS[0]!.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     const list = page.getByTestId('module-list')
     await list.waitFor()

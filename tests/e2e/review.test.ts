@@ -1,10 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_SECTIONS } from '../../scripts/demo/scenario'
+import { DEMO_COURSE, DEMO_SECTIONS } from '../../scripts/demo/scenario'
 import type { ReviewPage } from '../../shared/schemas/review'
 import type { SubmissionDetail } from '../../shared/schemas/submissions'
-import { launchBrowser, screenshotPath, serveApp } from '../helpers/browser'
+import { choose, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -28,23 +28,8 @@ afterAll(async () => {
   await app?.close()
 })
 
-async function signIn(page: Page, email: string) {
-  await page.goto(`${app.url}/sign-in`)
-  await page.getByLabel('E-mail address').fill(email)
-  await page.getByLabel('Password', { exact: true }).fill(DEFAULT_DEMO_PASSWORD)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.getByRole('heading', { name: 'My courses' }).waitFor()
-}
 
 /** Picks an option in a PrimeVue select found by its accessible name. */
-async function choose(page: Page, name: string, option: string) {
-  const picker = page.getByRole('combobox', { name, exact: true })
-  await picker.click()
-  const list = await picker.getAttribute('aria-controls')
-  if (!list) throw new Error(`the picker "${name}" did not open its list`)
-  await page.locator(`[id="${list}"]`).getByRole('option', { name: option, exact: true }).click()
-  await expect.poll(() => picker.innerText()).toBe(option)
-}
 
 /** A GET through the page, with the signed-in person's cookies. */
 async function api<T>(page: Page, url: string): Promise<{ status: number; body: T }> {
@@ -59,15 +44,12 @@ async function settled(page: Page) {
   await expect.poll(() => page.locator('.p-datatable-mask, .p-select-overlay').count()).toBe(0)
 }
 
-async function noSideways(page: Page) {
-  await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0)
-}
 
 describe('journey 3: a teaching assistant reviews a flagged submission', () => {
   it('sees only their section in the queue, overrides the total and one check with reasons, comments, resolves the flag and marks the hand-in resolved', async () => {
     const ctx = await browser.newContext({ viewport: { width: 1366, height: 900 } })
     const page = await ctx.newPage()
-    await signIn(page, ta.email)
+    await signIn(page, app.url, ta.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'Review', exact: true }).click()
     await page.getByRole('heading', { level: 1, name: 'Review queue' }).waitFor()

@@ -4,7 +4,9 @@ import type { Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import path from 'node:path'
 import { chromium } from 'playwright-core'
-import type { Browser } from 'playwright-core'
+import type { Browser, Page } from 'playwright-core'
+import { expect } from 'vitest'
+import { DEFAULT_DEMO_PASSWORD } from '../../scripts/demo/scenario'
 import { createApp } from '../../server/app'
 import { dbConnectionOptions } from '../../server/config'
 import { createDb } from '../../server/db/client'
@@ -65,4 +67,28 @@ export function screenshotPath(name: string): string {
   const dir = path.join(process.env.ARTIFACTS_DIR ?? '.artifacts', 'screenshots')
   mkdirSync(dir, { recursive: true })
   return path.join(dir, `${name}.png`)
+}
+
+/** Signs in through the sign-in form and waits for the course list. */
+export async function signIn(page: Page, baseUrl: string, email: string, password = DEFAULT_DEMO_PASSWORD): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`)
+  await page.getByLabel('E-mail address').fill(email)
+  await page.getByLabel('Password', { exact: true }).fill(password)
+  await page.getByRole('button', { name: 'Sign in' }).click()
+  await page.getByRole('heading', { name: 'My courses' }).waitFor()
+}
+
+/** Picks an option in a PrimeVue select found by its accessible name. */
+export async function choose(page: Page, name: string, option: string): Promise<void> {
+  const picker = page.getByRole('combobox', { name, exact: true })
+  await picker.click()
+  const list = await picker.getAttribute('aria-controls')
+  if (!list) throw new Error(`the picker "${name}" did not open its list`)
+  await page.locator(`[id="${list}"]`).getByRole('option', { name: option, exact: true }).click()
+  await expect.poll(() => picker.innerText()).toBe(option)
+}
+
+/** No sideways scrolling, once charts have followed a viewport change (chart.js resizes on the next frames). */
+export async function noSideways(page: Page): Promise<void> {
+  await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0)
 }
