@@ -1,4 +1,4 @@
-import { index, int, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import { double, index, int, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, ref, timestamps } from './columns'
 import { courses } from './courses'
 import { users } from './users'
@@ -25,6 +25,8 @@ export const modules = mysqlTable(
     publishedVersionId: ref('published_version_id'),
     /** When staff released the grades (modules whose results wait for a release). */
     gradesReleasedAt: timestamp('grades_released_at', { fsp: 3, mode: 'date' }),
+    /** The module's weight in the course total (relative; the gradebook divides by the sum). */
+    weight: double('weight').notNull().default(1),
     createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },
