@@ -16,8 +16,10 @@ import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseRoutes } from './routes/courses'
 import { healthRoutes } from './routes/health'
+import { invitationRoutes } from './routes/invitations'
 import { moduleRoutes } from './routes/modules'
 import { reviewRoutes } from './routes/review'
+import { rosterImportRoutes } from './routes/roster-import'
 import { handInRoutes } from './routes/submissions'
 
 export interface AppDeps {
@@ -129,6 +131,8 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
+  api.use('/auth/invitations', invitationRoutes(db, csrf))
+  api.use('/courses/:courseId/roster/import', rosterImportRoutes(db, { appUrl: config.APP_URL, invitationTtlHours: config.INVITATION_TTL_HOURS, onMailQueued: () => onMailQueued?.() }))
   api.use(apiNotFound)
   app.use('/api', api)
 

@@ -56,6 +56,8 @@ const ConfigSchema = z
     SIGNIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
     SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),
     UPLOAD_LIMIT_MB: z.coerce.number().positive().default(20),
+    /** How long a set-password invitation link from a roster import stays valid. */
+    INVITATION_TTL_HOURS: z.coerce.number().positive().default(168),
     /** Folder of the built client to serve; empty to serve the API only. */
     CLIENT_DIST: z.string().default('dist/client'),
   })

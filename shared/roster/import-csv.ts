@@ -1,0 +1,216 @@
+/**
+ * Reading a roster CSV (email, name, role, section, group). The same function runs in the browser
+ * (a quick check before the upload) and on the server, which never trusts the browser's reading.
+ * Pure: no DOM, no Node APIs.
+ *
+ * Rows are numbered as a spreadsheet numbers them: the header is row 1, the next record row 2, and
+ * blank lines count. Cells are text and are never evaluated.
+ */
+import Papa from 'papaparse/papaparse.min.js'
+import { z } from 'zod'
+import type { ImportRole, RosterFileProblem, RosterRowProblem } from '../schemas/roster-import'
+import { ROSTER_IMPORT_MAX_BYTES, ROSTER_IMPORT_MAX_ROWS } from '../schemas/roster-import'
+import { utf8ByteLength } from '../text'
+
+export type RosterColumn = 'email' | 'name' | 'role' | 'section' | 'group'
+
+/** Header text (lower-cased, letters and digits only) → roster column. */
+const ALIASES: Record<string, RosterColumn> = {
+  email: 'email',
+  emailaddress: 'email',
+  mail: 'email',
+  name: 'name',
+  displayname: 'name',
+  fullname: 'name',
+  studentname: 'name',
+  role: 'role',
+  courserole: 'role',
+  section: 'section',
+  sectionname: 'section',
+  group: 'group',
+  labgroup: 'group',
+  groupname: 'group',
+  labgroupname: 'group',
+}
+const REQUIRED: readonly RosterColumn[] = ['email', 'name']
+
+const ROLE_WORDS: Record<string, ImportRole> = {
+  student: 'student',
+  ta: 'ta',
+  teachingassistant: 'ta',
+}
+
+const EmailSchema = z.string().email()
+
+export const MAX_NAME_LENGTH = 120
+export const MAX_SECTION_LENGTH = 60
+export const MAX_GROUP_LENGTH = 60
+
+export interface ParsedRosterRow {
+  row: number
+  /** Trimmed and lower-cased. */
+  email: string
+  displayName: string
+  role: ImportRole
+  section: string | null
+  group: string | null
+  problems: RosterRowProblem[]
+}
+
+export type RosterParseResult =
+  | { ok: true; rows: ParsedRosterRow[]; ignoredColumns: string[] }
+  | { ok: false; problems: RosterFileProblem[] }
+
+const normalise = (header: string) => header.toLowerCase().replace(/[^a-z0-9]/g, '')
+const isBlank = (record: readonly string[]) => record.every((c) => c.trim() === '')
+const shown = (s: string) => `"${s.length > 40 ? `${s.slice(0, 37)}…` : s}"`
+const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`
+
+/** Reads the file; whole-file problems refuse it, cell problems are kept on their rows. */
+export function parseRosterCsv(text: string): RosterParseResult {
+  const bytes = utf8ByteLength(text)
+  if (bytes > ROSTER_IMPORT_MAX_BYTES) {
+    return {
+      ok: false,
+      problems: [
+        {
+          message: `The file is ${Math.ceil(bytes / 1024).toLocaleString('en-US')} KB; at most ${ROSTER_IMPORT_MAX_BYTES / 1024} KB can be imported at once. Split it into smaller files.`,
+        },
+      ],
+    }
+  }
+  // A byte-order mark from spreadsheet exports would otherwise stick to the first header.
+  const parsed = Papa.parse(text.replace(/^\uFEFF/, ''), { skipEmptyLines: false })
+  const quoteError = parsed.errors.find((e) => e.type === 'Quotes')
+  if (quoteError) {
+    const where = quoteError.row !== undefined ? `Row ${quoteError.row + 1}` : 'A row'
+    return { ok: false, problems: [{ message: `${where} has a quoted cell that is never closed (a " without its partner).` }] }
+  }
+  const records = parsed.data
+  const headerIndex = records.findIndex((r) => !isBlank(r))
+  if (headerIndex < 0) return { ok: false, problems: [{ message: 'The file is empty: it needs a header row (email, name, …) and one row per person.' }] }
+  const header = records[headerIndex] ?? []
+
+  const columnAt = new Map<RosterColumn, number>()
+  const ignoredColumns: string[] = []
+  const problems: RosterFileProblem[] = []
+  header.forEach((cell, i) => {
+    const h = cell.trim()
+    const column = ALIASES[normalise(h)]
+    if (!column) {
+      if (h !== '') ignoredColumns.push(h)
+      return
+    }
+    const first = columnAt.get(column)
+    if (first !== undefined) {
+      problems.push({
+        message: `Two columns are both read as "${column}": ${shown((header[first] ?? '').trim())} and ${shown(h)}. Keep one of them.`,
+        columns: [column],
+      })
+      return
+    }
+    columnAt.set(column, i)
+  })
+  const missing = REQUIRED.filter((c) => !columnAt.has(c))
+  if (missing.length > 0) {
+    problems.push({
+      message: `The header row lacks the required column${missing.length === 1 ? '' : 's'} ${missing.join(' and ')}. The first row must name the columns: email, name, and optionally role, section, group.`,
+      columns: missing,
+    })
+  }
+
+  const dataRows: { row: number; cells: string[] }[] = []
+  for (let i = headerIndex + 1; i < records.length; i++) {
+    const r = records[i] ?? []
+    if (!isBlank(r)) dataRows.push({ row: i + 1, cells: r })
+  }
+  if (dataRows.length > ROSTER_IMPORT_MAX_ROWS) {
+    problems.push({
+      message: `The file lists ${plural(dataRows.length, 'person', 'people')}; at most ${ROSTER_IMPORT_MAX_ROWS.toLocaleString('en-US')} can be imported at once. Split it into smaller files.`,
+    })
+  }
+  if (dataRows.length === 0 && problems.length === 0) {
+    problems.push({ message: 'The file has a header row but nobody in it: add one row per person below the header.' })
+  }
+  if (problems.length > 0) return { ok: false, problems }
+
+  const cell = (cells: string[], c: RosterColumn) => {
+    const i = columnAt.get(c)
+    return i === undefined ? '' : (cells[i] ?? '').trim()
+  }
+  const rows = dataRows.map(({ row, cells }) => readRow(row, cells, cell))
+  markDuplicates(rows)
+  markGroupSections(rows)
+  return { ok: true, rows, ignoredColumns }
+}
+
+function readRow(row: number, cells: string[], cell: (cells: string[], c: RosterColumn) => string): ParsedRosterRow {
+  const problems: RosterRowProblem[] = []
+  const email = cell(cells, 'email').toLowerCase()
+  if (email === '') problems.push({ column: 'email', message: 'email: empty; every person needs an e-mail address.' })
+  else if (email.length > 254 || !EmailSchema.safeParse(email).success) {
+    problems.push({ column: 'email', message: `email: ${shown(email)} is not a valid e-mail address.` })
+  }
+  const displayName = cell(cells, 'name').replace(/\s+/g, ' ')
+  if (displayName === '') problems.push({ column: 'name', message: 'name: empty; every person needs a name.' })
+  else if (displayName.length > MAX_NAME_LENGTH) problems.push({ column: 'name', message: `name: at most ${MAX_NAME_LENGTH} characters.` })
+  const roleText = cell(cells, 'role')
+  let role: ImportRole = 'student'
+  if (roleText !== '') {
+    const r = ROLE_WORDS[normalise(roleText)]
+    if (r) role = r
+    else if (normalise(roleText) === 'instructor') {
+      problems.push({ column: 'role', message: 'role: an import adds students and TAs only; instructors are not imported.' })
+    } else problems.push({ column: 'role', message: `role: ${shown(roleText)} is not a role here; write student or ta (empty means student).` })
+  }
+  const section = cell(cells, 'section') || null
+  if (section !== null && section.length > MAX_SECTION_LENGTH) {
+    problems.push({ column: 'section', message: `section: a section name has at most ${MAX_SECTION_LENGTH} characters.` })
+  }
+  const group = cell(cells, 'group') || null
+  if (group !== null && group.length > MAX_GROUP_LENGTH) {
+    problems.push({ column: 'group', message: `group: a lab-group name has at most ${MAX_GROUP_LENGTH} characters.` })
+  }
+  if (group !== null && role === 'ta') {
+    problems.push({ column: 'group', message: 'group: teaching assistants are not put in lab groups; leave the cell empty.' })
+  }
+  return { row, email, displayName, role, section, group, problems }
+}
+
+/** The same e-mail twice: both rows are refused, each naming the other. */
+function markDuplicates(rows: ParsedRosterRow[]): void {
+  const byEmail = new Map<string, ParsedRosterRow[]>()
+  for (const r of rows) {
+    if (r.email === '') continue
+    const list = byEmail.get(r.email) ?? []
+    list.push(r)
+    byEmail.set(r.email, list)
+  }
+  for (const [email, list] of byEmail) {
+    if (list.length < 2) continue
+    for (const r of list) {
+      const others = list.filter((o) => o !== r).map((o) => o.row)
+      r.problems.push({
+        column: 'email',
+        message: `email: ${email} also appears in row${others.length === 1 ? '' : 's'} ${others.join(', ')}; list each person once.`,
+      })
+    }
+  }
+}
+
+/** A lab group belongs to one section: rows naming the same group with different sections are refused. */
+function markGroupSections(rows: ParsedRosterRow[]): void {
+  const first = new Map<string, ParsedRosterRow>()
+  for (const r of rows) {
+    if (r.group === null || r.section === null) continue
+    const key = r.group.toLowerCase()
+    const f = first.get(key)
+    if (!f) first.set(key, r)
+    else if (f.section!.toLowerCase() !== r.section.toLowerCase()) {
+      r.problems.push({
+        column: 'group',
+        message: `group: lab group ${shown(r.group)} is in section ${shown(f.section!)} in row ${f.row}, but in section ${shown(r.section)} here.`,
+      })
+    }
+  }
+}
