@@ -80,6 +80,40 @@ const CASES: Case[] = [
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/roster`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
+  // Roster import and invitations
+  {
+    route: 'POST /api/courses/:courseId/roster/import/preview',
+    call: (c, fx) =>
+      c.agent
+        .post(`/api/courses/${fx.courseId}/roster/import/preview`)
+        .set('x-csrf-token', c.csrf)
+        .send({ csv: `email,name\nmatrix.${Math.random().toString(36).slice(2)}@test.example,Matrix Person\n` }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/roster/import',
+    call: (c, fx) =>
+      c.agent
+        .post(`/api/courses/${fx.courseId}/roster/import`)
+        .set('x-csrf-token', c.csrf)
+        .send({ csv: `email,name\nmatrix.${Math.random().toString(36).slice(2)}@test.example,Matrix Person\n` }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    // Public: the token is the only credential; an unknown one is 404 for everyone.
+    route: 'GET /api/auth/invitations/:token',
+    call: (c) => c.agent.get(`/api/auth/invitations/unknown-${Math.random().toString(36).slice(2)}`),
+    expect: { anon: 404, outsider: 404, student: 404, ta: 404, instructor: 404, admin: 404 },
+  },
+  {
+    route: 'POST /api/auth/invitations/:token',
+    call: (c) =>
+      c.agent
+        .post(`/api/auth/invitations/unknown-${Math.random().toString(36).slice(2)}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ password: 'matrix-password-1' }),
+    expect: { anon: 404, outsider: 404, student: 404, ta: 404, instructor: 404, admin: 404 },
+  },
   {
     route: 'GET /api/courses/:courseId/modules',
     call: (c, fx) => c.agent.get(M(fx)),
