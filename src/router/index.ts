@@ -20,6 +20,13 @@ const router = createRouter({
       component: () => import('@/views/SignInView.vue'),
       meta: { public: true, title: 'Sign in' },
     },
+    {
+      path: '/invitations/:token',
+      name: 'invitation',
+      component: () => import('@/views/InvitationView.vue'),
+      props: (r) => ({ token: String(r.params.token) }),
+      meta: { public: true, title: 'Choose your password' },
+    },
     { path: '/courses', name: 'courses', component: () => import('@/views/CoursesView.vue'), meta: { title: 'My courses' } },
     {
       path: '/courses/:courseId(\\d+)',
@@ -34,6 +41,13 @@ const router = createRouter({
       component: () => import('@/views/RosterView.vue'),
       props: (r) => ({ courseId: Number(r.params.courseId) }),
       meta: { title: 'Roster' },
+    },
+    {
+      path: '/courses/:courseId(\\d+)/roster/import',
+      name: 'roster-import',
+      component: () => import('@/views/RosterImportView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'Import roster' },
     },
     {
       path: '/courses/:courseId(\\d+)/review',

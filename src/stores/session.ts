@@ -2,6 +2,7 @@ import { defineStore } from 'pinia'
 import { computed, ref } from 'vue'
 import type { SessionUser, SignIn } from '@shared/schemas/auth'
 import { fetchSession, postSignIn, postSignOut } from '@/api/auth'
+import { postAcceptInvitation } from '@/api/invitations'
 import { setCsrfToken } from '@/api/http'
 
 /** The signed-in person, shared by the router guard, the header and every view. */
@@ -33,9 +34,14 @@ export const useSessionStore = defineStore('session', () => {
     apply(await postSignIn(input))
   }
 
+  /** Sets a password from an invitation link; the server signs the person in. */
+  async function acceptInvitation(token: string, password: string) {
+    apply(await postAcceptInvitation(token, { password }))
+  }
+
   async function signOut() {
     apply(await postSignOut())
   }
 
-  return { user, loaded, signedIn, ensureLoaded, signIn, signOut }
+  return { user, loaded, signedIn, ensureLoaded, signIn, acceptInvitation, signOut }
 })
