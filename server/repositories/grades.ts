@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import type { Executor } from '../db/client'
-import { enrollments, labGroups, modules, regradeRequests, sections, submissionChecks, submissions, users } from '../db/schema'
+import { enrollments, labGroups, mailOutbox, modules, regradeRequests, sections, submissionChecks, submissions, users } from '../db/schema'
 
 export interface StudentRow {
   userId: number
@@ -229,4 +229,10 @@ export async function reopenForReview(tx: Executor, submissionId: number): Promi
 export async function releasedModuleIds(db: Executor, courseId: number): Promise<Set<number>> {
   const rows = await db.select({ id: modules.id }).from(modules).where(and(eq(modules.courseId, courseId), isNotNull(modules.gradesReleasedAt)))
   return new Set(rows.map((r) => r.id))
+}
+
+/** Addresses that already have mail with this dedupe key (queued or sent). */
+export async function queuedAddresses(tx: Executor, dedupeKey: string): Promise<Set<string>> {
+  const rows = await tx.select({ to: mailOutbox.toAddress }).from(mailOutbox).where(eq(mailOutbox.dedupeKey, dedupeKey))
+  return new Set(rows.map((r) => r.to))
 }

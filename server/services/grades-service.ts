@@ -25,6 +25,7 @@ import {
   listSectionOptions,
   listStudents,
   moduleWeights,
+  queuedAddresses,
   setGradesReleased,
   setModuleWeight,
 } from '../repositories/grades'
@@ -227,12 +228,15 @@ export async function releaseGrades(db: Database, e: CourseEnrollment, moduleId:
     const base = appUrl.replace(/\/$/, '')
     const gm = fm ? ({ id: moduleId, fm } as GradedModule) : null
     const when = formatInZone(now, course.timeZone)
-    const mails = students.map((st) => {
+    // A release withdrawn and made again mails nobody twice.
+    const dedupeKey = `grades-released:${moduleId}`
+    const already = await queuedAddresses(tx, dedupeKey)
+    const mails = students.filter((st) => !already.has(st.email)).map((st) => {
       const counted = gm ? countedFor(st, gm, graded) : null
       const link = counted ? `${base}/courses/${e.courseId}/submissions/${counted.id}` : `${base}/courses/${e.courseId}/grades`
       const what = counted ? 'See your result' : 'See your grades'
       return {
-        dedupeKey: `grades-released:${moduleId}`,
+        dedupeKey,
         toAddress: st.email,
         toName: st.name,
         subject: `${course.code}: grades released — ${title}`,

@@ -5,24 +5,27 @@ import { z } from 'zod'
  * (the browser checks forms with the same ones) and the shapes the API answers with.
  */
 
-const optionalId = (name: string) => z.coerce.number({ error: `${name} must be a number.` }).int().positive(`${name} must be a positive whole number.`).optional()
+const optionalId = () => z.coerce.number({ error: 'must be a number.' }).int().positive('must be a positive whole number.').optional()
 
 /** Filters of the gradebook and its CSV export. */
 export const GradebookQuerySchema = z.object({
-  sectionId: optionalId('sectionId'),
-  labGroupId: optionalId('labGroupId'),
+  sectionId: optionalId(),
+  labGroupId: optionalId(),
 })
 export type GradebookQuery = z.infer<typeof GradebookQuerySchema>
 
 export const MAX_WEIGHT = 1000
 
-/** A module's weight in the course total: relative, so only the ratios between modules matter. */
+/**
+ * A module's weight in the course total: relative, so only the ratios between modules matter.
+ * (Messages leave the field name out: the error middleware puts the path in front.)
+ */
 export const WeightSchema = z.object({
   weight: z
-    .number({ error: 'weight: enter a number (0 or more).' })
-    .min(0, 'weight: must be 0 or more; 0 leaves the module out of the total.')
-    .max(MAX_WEIGHT, `weight: at most ${MAX_WEIGHT}.`)
-    .refine(Number.isFinite, 'weight: enter a finite number.'),
+    .number({ error: 'enter a number (0 or more).' })
+    .min(0, 'must be 0 or more; 0 leaves the module out of the total.')
+    .max(MAX_WEIGHT, `at most ${MAX_WEIGHT}.`)
+    .refine(Number.isFinite, 'enter a finite number.'),
 })
 export type WeightChange = z.infer<typeof WeightSchema>
 
@@ -31,19 +34,19 @@ export const REGRADE_MESSAGE_MAX = 2000
 /** A student's regrade request: what they think is wrong, in their own words. */
 export const RegradeRequestSchema = z.object({
   message: z
-    .string({ error: 'message: write what you would like the staff to look at again.' })
+    .string({ error: 'write what you would like the staff to look at again.' })
     .trim()
-    .min(1, 'message: write what you would like the staff to look at again.')
-    .max(REGRADE_MESSAGE_MAX, `message: at most ${REGRADE_MESSAGE_MAX} characters.`),
+    .min(1, 'write what you would like the staff to look at again.')
+    .max(REGRADE_MESSAGE_MAX, `at most ${REGRADE_MESSAGE_MAX} characters.`),
 })
 
 /** The staff answer to a regrade request (Markdown; sanitised when rendered). */
 export const RegradeAnswerSchema = z.object({
   answer: z
-    .string({ error: 'answer: write an answer to the student.' })
+    .string({ error: 'write an answer to the student.' })
     .trim()
-    .min(1, 'answer: write an answer to the student.')
-    .max(10_000, 'answer: at most 10 000 characters.'),
+    .min(1, 'write an answer to the student.')
+    .max(10_000, 'at most 10 000 characters.'),
 })
 
 export const RegradeParamsSchema = z.object({
