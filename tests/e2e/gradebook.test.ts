@@ -87,4 +87,35 @@ describe('the instructor’s gradebook', () => {
     await page.screenshot({ path: screenshotPath('gradebook-375'), fullPage: true })
     await ctx.close()
   }, 120_000)
+
+  it('a student reads My grades, opens the released result and asks for a regrade', async () => {
+    // Group A3's demo hand-in is already flagged for review, so a regrade changes no other test's queue.
+    const who = DEMO_STUDENTS.find((p) => p.labGroup === 'A3')!
+    const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
+    const page = await ctx.newPage()
+    await signIn(page, app.url, who.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My grades', exact: true }).click()
+    await page.getByRole('heading', { level: 1, name: 'My grades' }).waitFor()
+    const row = page.getByTestId('my-grades-table').locator('tbody tr').filter({ hasText: COLD_FLOW })
+    await expect.poll(() => row.getAttribute('data-state')).toBe('released')
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('my-grades-375'), fullPage: true })
+
+    await row.getByRole('link', { name: /^See the result/ }).click()
+    await page.getByRole('heading', { level: 2, name: 'Regrade' }).waitFor()
+    const regrade = page.getByTestId('regrade')
+    if ((await regrade.getByRole('button', { name: 'Ask for a regrade' }).count()) > 0) {
+      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
+      await expect.poll(() => page.locator('#regrade-message-error').innerText()).toContain('look at again')
+      const message = `Our peak thrust was read after the load cell was re-zeroed (${Date.now()}).`
+      await page.getByLabel('What should the staff look at again?').fill(message)
+      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
+      await expect.poll(() => regrade.locator('li.open').filter({ hasText: message }).count()).toBe(1)
+    }
+    expect(await regrade.locator('li.open').count()).toBe(1)
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('submission-regrade-375'), fullPage: true })
+    await ctx.close()
+  }, 120_000)
 })
