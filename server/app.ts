@@ -15,6 +15,7 @@ import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseRoutes } from './routes/courses'
+import { gradeRoutes } from './routes/grades'
 import { healthRoutes } from './routes/health'
 import { invitationRoutes } from './routes/invitations'
 import { moduleRoutes } from './routes/modules'
@@ -129,6 +130,7 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
   api.use('/courses/:courseId', handInRoutes(db, { appUrl: config.APP_URL, uploadLimitMb: config.UPLOAD_LIMIT_MB, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses/:courseId', reviewRoutes(db))
+  api.use('/courses/:courseId', gradeRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))

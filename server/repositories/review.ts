@@ -1,5 +1,6 @@
 import { and, asc, count, desc, eq, ne, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
+import { REGRADE_REASON } from '../../shared/schemas/grades'
 import type { ReviewQuery, ReviewRow } from '../../shared/schemas/review'
 import type { Executor } from '../db/client'
 import {
@@ -7,6 +8,7 @@ import {
   gradeChanges,
   labGroups,
   moduleVersions,
+  regradeRequests,
   sections,
   submissionChecks,
   submissionComments,
@@ -22,7 +24,10 @@ export async function listQueue(db: Executor, courseId: number, q: ReviewQuery):
   else where.push(eq(submissions.reviewStatus, q.status))
   if (q.moduleId) where.push(eq(submissions.moduleId, q.moduleId))
   if (q.sectionId) where.push(eq(enrollments.sectionId, q.sectionId))
-  if (q.reason) where.push(sql`EXISTS (SELECT 1 FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id} AND f.code = ${q.reason})`)
+  // An open regrade request is a reason of its own, listed with the flag codes.
+  const regradeOpen = sql`EXISTS (SELECT 1 FROM ${regradeRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`
+  if (q.reason === REGRADE_REASON) where.push(regradeOpen)
+  else if (q.reason) where.push(sql`EXISTS (SELECT 1 FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id} AND f.code = ${q.reason})`)
   const filter = and(...where)
   const sortCol = { submittedAt: submissions.submittedAt, score: submissions.score, module: moduleVersions.title, student: users.displayName }[q.sort]
   const base = db
@@ -38,7 +43,7 @@ export async function listQueue(db: Executor, courseId: number, q: ReviewQuery):
       score: sql<number | null>`COALESCE(${submissions.scoreOverride}, ${submissions.score})`,
       maxScore: submissions.maxScore,
       reviewStatus: submissions.reviewStatus,
-      flagCodes: sql<string | null>`(SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id})`,
+      flagCodes: sql<string | null>`CONCAT_WS(',', (SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id}), IF(${regradeOpen}, ${REGRADE_REASON}, NULL))`,
     })
     .from(submissions)
     .innerJoin(users, eq(users.id, submissions.userId))

@@ -23,7 +23,7 @@ import { findSubmission } from '../repositories/submissions'
  * A TA works the submissions of their own section; the instructor sees every section. A
  * submission outside the caller's scope does not exist for them (404).
  */
-async function inScope(db: Database, e: CourseEnrollment, submissionId: number) {
+export async function inScope(db: Database, e: CourseEnrollment, submissionId: number) {
   const s = await findSubmission(db, e.courseId, submissionId)
   if (!s) throw notFound('That submission')
   if (e.role === 'ta') {

@@ -52,7 +52,7 @@ export interface UploadedTable {
 const DAY_MS = 86_400_000
 const isStaff = (e: CourseEnrollment) => e.role !== 'student'
 
-interface Published {
+export interface Published {
   moduleId: number
   moduleStatus: 'draft' | 'published' | 'closed'
   versionId: number
@@ -108,7 +108,7 @@ function lateness(p: Published, now: Date, timeZone: string): { isLate: boolean;
 }
 
 /** Whether the student may see results now, and if not, why. */
-function visibility(p: Published, now: Date, timeZone: string): { visible: boolean; reason: string | null } {
+export function visibility(p: Published, now: Date, timeZone: string): { visible: boolean; reason: string | null } {
   switch (p.fm.results) {
     case 'after-due':
       if (p.dueAt && now.getTime() < p.dueAt.getTime()) {

@@ -92,6 +92,20 @@ const router = createRouter({
       meta: { title: 'Hand-in result' },
     },
     {
+      path: '/courses/:courseId(\\d+)/gradebook',
+      name: 'gradebook',
+      component: () => import('@/views/GradebookView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'Gradebook' },
+    },
+    {
+      path: '/courses/:courseId(\\d+)/grades',
+      name: 'my-grades',
+      component: () => import('@/views/MyGradesView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'My grades' },
+    },
+    {
       path: '/calculators',
       name: 'calculators',
       component: () => import('@/views/CalculatorsView.vue'),

@@ -1,4 +1,6 @@
 import { readFileSync } from 'node:fs'
+import { eq } from 'drizzle-orm'
+import { modules, regradeRequests } from '../../server/db/schema'
 import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Client, Fixture, TestContext } from '../helpers/app'
@@ -254,6 +256,67 @@ const CASES: Case[] = [
   {
     route: 'GET /api/courses/:courseId/modules/:moduleId/export',
     call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/export`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  // Gradebook, release, my grades, regrade requests
+  {
+    route: 'GET /api/courses/:courseId/gradebook',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/gradebook`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/gradebook.csv',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/gradebook.csv`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'PUT /api/courses/:courseId/gradebook/modules/:moduleId/weight',
+    call: (c, fx) => c.agent.put(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/weight`).set('x-csrf-token', c.csrf).send({ weight: 1 }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/gradebook/modules/:moduleId/release',
+    call: (c, fx) => c.agent.post(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/release`).set('x-csrf-token', c.csrf),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'DELETE /api/courses/:courseId/gradebook/modules/:moduleId/release',
+    call: (c, fx) => c.agent.delete(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/release`).set('x-csrf-token', c.csrf),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/my-grades',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/my-grades`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 403, instructor: 403, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/submissions/:submissionId/regrade',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/regrade',
+    call: async (c, fx) => {
+      // A regrade needs released grades: release the hand-in's module first (as the instructor would).
+      await ctx.handle.db.update(modules).set({ gradesReleasedAt: new Date() }).where(eq(modules.id, mods.coldFlow!.id))
+      await ctx.handle.db.delete(regradeRequests).where(eq(regradeRequests.submissionId, handIn.submissionId!))
+      return c.agent.post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade`).set('x-csrf-token', c.csrf).send({ message: 'Matrix regrade.' })
+    },
+    expect: { anon: 401, outsider: 404, student: 201, ta: 403, instructor: 403, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/regrade/:requestId/answer',
+    call: async (c, fx) => {
+      // A fresh open request for each caller, so every row answers an open one.
+      const [row] = await ctx.handle.db
+        .insert(regradeRequests)
+        .values({ courseId: fx.courseId, submissionId: handIn.submissionId!, requestedBy: fx.student.id, message: 'Matrix request.' })
+        .$returningId()
+      return c.agent
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade/${row!.id}/answer`)
+        .set('x-csrf-token', c.csrf)
+        .send({ answer: 'Matrix answer.' })
+    },
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
 ]

@@ -1,0 +1,358 @@
+import { histogram, mean, median, percentOf, weightedTotal } from '../../shared/grading/gradebook'
+import type { ModuleFrontMatter } from '../../shared/modules/schema'
+import type {
+  CheckFailures,
+  Gradebook,
+  GradebookCell,
+  GradebookModule,
+  GradebookQuery,
+  GradebookStudent,
+  ModuleStats,
+  MyGradeRow,
+  MyGrades,
+  ReleaseResult,
+} from '../../shared/schemas/grades'
+import { formatInZone } from '../../shared/time'
+import type { Database } from '../db/client'
+import { AppError, forbidden, notFound } from '../errors'
+import type { CourseEnrollment } from '../repositories/enrollments'
+import type { GradedRow, StudentRow } from '../repositories/grades'
+import {
+  listAttemptsOf,
+  listCheckOutcomes,
+  listGraded,
+  listLabGroupOptions,
+  listSectionOptions,
+  listStudents,
+  moduleWeights,
+  queuedAddresses,
+  setGradesReleased,
+  setModuleWeight,
+} from '../repositories/grades'
+import { courseTimeZone, findModule, findVersions, listModuleRows } from '../repositories/modules'
+import { enqueueMail } from '../repositories/outbox'
+import { regradeViews } from './regrade-service'
+import { visibility } from './submission-service'
+import { escapeHtml } from './text'
+
+/** A module that can carry grades: published or closed, with something to hand in. */
+interface GradedModule {
+  id: number
+  title: string
+  status: 'published' | 'closed'
+  weight: number
+  dueAt: Date | null
+  releasedAt: Date | null
+  fm: ModuleFrontMatter
+  versionId: number
+  versionNumber: number
+}
+
+async function gradedModules(db: Database, courseId: number): Promise<GradedModule[]> {
+  const rows = await listModuleRows(db, courseId, ['published', 'closed'])
+  const versions = await findVersions(
+    db,
+    rows.map((r) => r.publishedVersionId).filter((x): x is number => x !== null),
+  )
+  const weights = await moduleWeights(db, courseId)
+  const out: GradedModule[] = []
+  for (const m of rows) {
+    const v = m.publishedVersionId === null ? undefined : versions.get(m.publishedVersionId)
+    const fm = v?.frontMatter as unknown as ModuleFrontMatter | null | undefined
+    if (!v || !fm?.assignment) continue
+    out.push({
+      id: m.id,
+      title: v.title,
+      status: m.status as 'published' | 'closed',
+      weight: weights.get(m.id) ?? 1,
+      dueAt: v.dueAt,
+      releasedAt: m.gradesReleasedAt,
+      fm,
+      versionId: v.id,
+      versionNumber: v.number,
+    })
+  }
+  return out
+}
+
+/** A closed module, or one whose due date has passed: no hand-in there counts as 0 %. */
+const isPastDue = (m: GradedModule, now: Date) => m.status === 'closed' || (m.dueAt !== null && now.getTime() >= m.dueAt.getTime())
+
+/**
+ * The counting rule: the latest graded attempt of the student's own hand-ins, or of their lab
+ * group's when the module is handed in by group. `graded` is newest attempt first.
+ */
+function countedFor(student: { userId: number; labGroupId: number | null }, m: GradedModule, graded: readonly GradedRow[]): GradedRow | null {
+  const byGroup = m.fm.groupSubmission && student.labGroupId !== null
+  for (const s of graded) {
+    if (s.moduleId !== m.id) continue
+    if (byGroup ? s.labGroupId === student.labGroupId : s.userId === student.userId) return s
+  }
+  return null
+}
+
+function cellOf(s: GradedRow): GradebookCell {
+  const points = s.scoreOverride ?? s.score ?? 0
+  const max = s.maxScore ?? 0
+  return {
+    submissionId: s.id,
+    attempt: s.attempt,
+    points,
+    maxScore: max,
+    percent: percentOf(points, max),
+    overridden: s.scoreOverride !== null,
+    isLate: s.isLate,
+    daysLate: s.daysLate,
+    reviewStatus: s.reviewStatus,
+    regradeOpen: s.regradeOpen,
+  }
+}
+
+/** Narrows the filters to what the caller may see: a TA sees their own section only. */
+function scopeOf(e: CourseEnrollment, q: GradebookQuery): GradebookQuery | null {
+  if (e.role !== 'ta') return q
+  if (e.sectionId === null) return null
+  if (q.sectionId !== undefined && q.sectionId !== e.sectionId) {
+    throw new AppError('forbidden', 'You see the grades of your own section only.', 403)
+  }
+  return { ...q, sectionId: e.sectionId }
+}
+
+/**
+ * The staff gradebook: one row per student in scope, one column per module with something to
+ * hand in, each student's weighted total, and per-module statistics over the students shown.
+ */
+export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQuery, now = new Date()): Promise<Gradebook> {
+  const scope = scopeOf(e, q)
+  const mods = await gradedModules(db, e.courseId)
+  const [students, graded, allSections, allGroups, everyone] = await Promise.all([
+    scope ? listStudents(db, e.courseId, scope) : Promise.resolve([] as StudentRow[]),
+    listGraded(
+      db,
+      e.courseId,
+      mods.map((m) => m.id),
+    ),
+    listSectionOptions(db, e.courseId),
+    listLabGroupOptions(db, e.courseId),
+    listStudents(db, e.courseId),
+  ])
+
+  const rows: GradebookStudent[] = students.map((st) => {
+    const cells: Record<string, GradebookCell> = {}
+    for (const m of mods) {
+      const s = countedFor(st, m, graded)
+      if (s) cells[String(m.id)] = cellOf(s)
+    }
+    const totalPercent = weightedTotal(mods.map((m) => ({ weight: m.weight, percent: cells[String(m.id)]?.percent ?? null, pastDue: isPastDue(m, now) })))
+    return { ...st, cells, totalPercent }
+  })
+
+  const countedIds = new Set<number>()
+  for (const r of rows) for (const c of Object.values(r.cells)) countedIds.add(c.submissionId)
+  const outcomes = await listCheckOutcomes(db, [...countedIds])
+  const stats: ModuleStats[] = mods.map((m) => {
+    const percents: number[] = []
+    const subs = new Set<number>()
+    for (const r of rows) {
+      const c = r.cells[String(m.id)]
+      if (!c) continue
+      subs.add(c.submissionId)
+      if (c.percent !== null) percents.push(c.percent)
+    }
+    const perCheck = new Map<string, CheckFailures>()
+    for (const o of outcomes) {
+      if (!subs.has(o.submissionId)) continue
+      const entry = perCheck.get(o.key) ?? { key: o.key, label: o.label, fails: 0, attempts: 0 }
+      entry.attempts += 1
+      if (!o.pass) entry.fails += 1
+      perCheck.set(o.key, entry)
+    }
+    const hardestChecks = [...perCheck.values()]
+      .filter((c) => c.fails > 0)
+      .sort((a, b) => b.fails - a.fails || b.fails / b.attempts - a.fails / a.attempts || a.label.localeCompare(b.label))
+      .slice(0, 5)
+    return { moduleId: m.id, n: percents.length, meanPercent: mean(percents), medianPercent: median(percents), histogram: histogram(percents), hardestChecks }
+  })
+
+  const modulesOut: GradebookModule[] = mods.map((m) => ({
+    id: m.id,
+    title: m.title,
+    status: m.status,
+    weight: m.weight,
+    dueAt: m.dueAt?.toISOString() ?? null,
+    pastDue: isPastDue(m, now),
+    releasedAt: m.releasedAt?.toISOString() ?? null,
+    results: m.fm.results,
+    groupSubmission: m.fm.groupSubmission,
+  }))
+  const taSection = e.role === 'ta' ? e.sectionId : undefined
+  return {
+    modules: modulesOut,
+    students: rows,
+    stats,
+    sections: allSections.filter((s) => taSection === undefined || s.id === taSection),
+    labGroups: allGroups.filter((g) => taSection === undefined || g.sectionId === taSection),
+    canManage: e.role === 'instructor',
+    enrolledStudents: everyone.length,
+  }
+}
+
+/** The instructor sets a module's weight in the course total (0 leaves it out). */
+export async function changeWeight(db: Database, e: CourseEnrollment, moduleId: number, weight: number): Promise<void> {
+  const m = await findModule(db, e.courseId, moduleId)
+  if (!m) throw notFound('That module')
+  await setModuleWeight(db, moduleId, weight)
+}
+
+/**
+ * Releases a module's grades: students of `after-release` modules see their results from now on,
+ * and every student of the course gets one e-mail, queued in the same transaction as the
+ * release. Releasing again changes nothing and sends nothing (the e-mails carry a dedupe key).
+ */
+export async function releaseGrades(db: Database, e: CourseEnrollment, moduleId: number, appUrl: string, now = new Date()): Promise<ReleaseResult> {
+  const course = await courseTimeZone(db, e.courseId)
+  return db.transaction(async (tx) => {
+    const m = await findModule(tx, e.courseId, moduleId, true)
+    if (!m) throw notFound('That module')
+    if (m.status === 'draft' || m.publishedVersionId === null) {
+      throw new AppError('module_draft', 'This module is a draft: publish it before releasing its grades.', 409)
+    }
+    if (m.gradesReleasedAt) return { moduleId, releasedAt: m.gradesReleasedAt.toISOString(), emailed: 0 }
+    await setGradesReleased(tx, moduleId, now)
+
+    const version = (await findVersions(tx, [m.publishedVersionId])).get(m.publishedVersionId)
+    const title = version?.title ?? 'a module'
+    const fm = version?.frontMatter as unknown as ModuleFrontMatter | null | undefined
+    const students = await listStudents(tx, e.courseId)
+    const graded = fm?.assignment ? await listGraded(tx, e.courseId, [moduleId]) : []
+    const base = appUrl.replace(/\/$/, '')
+    const gm = fm ? ({ id: moduleId, fm } as GradedModule) : null
+    const when = formatInZone(now, course.timeZone)
+    // A release withdrawn and made again mails nobody twice.
+    const dedupeKey = `grades-released:${moduleId}`
+    const already = await queuedAddresses(tx, dedupeKey)
+    const mails = students.filter((st) => !already.has(st.email)).map((st) => {
+      const counted = gm ? countedFor(st, gm, graded) : null
+      const link = counted ? `${base}/courses/${e.courseId}/submissions/${counted.id}` : `${base}/courses/${e.courseId}/grades`
+      const what = counted ? 'See your result' : 'See your grades'
+      return {
+        dedupeKey,
+        toAddress: st.email,
+        toName: st.name,
+        subject: `${course.code}: grades released — ${title}`,
+        textBody: [
+          `Hello ${st.name},`,
+          '',
+          `The grades for “${title}” in ${course.code} were released on ${when}.`,
+          counted ? 'Your counted hand-in, its checks and any staff comments are on your result page.' : 'There is no graded hand-in of yours for this module.',
+          '',
+          `${what}: ${link}`,
+          '',
+          '— Isentrope',
+        ].join('\n'),
+        htmlBody: `<p>Hello ${escapeHtml(st.name)},</p>
+<p>The grades for <strong>${escapeHtml(title)}</strong> in ${escapeHtml(course.code)} were released on ${escapeHtml(when)}.</p>
+<p>${counted ? 'Your counted hand-in, its checks and any staff comments are on your result page.' : 'There is no graded hand-in of yours for this module.'}</p>
+<p><a href="${escapeHtml(link)}">${what}</a></p>
+<p style="color:#5d574c">— Isentrope</p>`,
+      }
+    })
+    await enqueueMail(tx, mails)
+    return { moduleId, releasedAt: now.toISOString(), emailed: mails.length }
+  })
+}
+
+/** Withdraws a release (no e-mail): `after-release` results are hidden again. */
+export async function withdrawRelease(db: Database, e: CourseEnrollment, moduleId: number): Promise<ReleaseResult> {
+  return db.transaction(async (tx) => {
+    const m = await findModule(tx, e.courseId, moduleId, true)
+    if (!m) throw notFound('That module')
+    if (m.gradesReleasedAt) await setGradesReleased(tx, moduleId, null)
+    return { moduleId, releasedAt: null, emailed: 0 }
+  })
+}
+
+/**
+ * A student's own grades: every module with something to hand in, what state its grade is in,
+ * the counted score when it may be shown, and the latest regrade request on it.
+ */
+export async function myGrades(db: Database, e: CourseEnrollment, now = new Date()): Promise<MyGrades> {
+  if (e.role !== 'student') throw forbidden('“My grades” is for students; staff see every grade in the gradebook.')
+  const course = await courseTimeZone(db, e.courseId)
+  const mods = await gradedModules(db, e.courseId)
+  const [graded, attempts] = await Promise.all([
+    listGraded(
+      db,
+      e.courseId,
+      mods.map((m) => m.id),
+    ),
+    listAttemptsOf(db, e.courseId, e.userId, e.labGroupId),
+  ])
+  const me = { userId: e.userId, labGroupId: e.labGroupId }
+  const counted = new Map<number, GradedRow>()
+  for (const m of mods) {
+    const s = countedFor(me, m, graded)
+    if (s) counted.set(m.id, s)
+  }
+  const regrades = await regradeViews(db, [...counted.values()].map((s) => s.id))
+
+  const rows: MyGradeRow[] = mods.map((m) => {
+    const s = counted.get(m.id) ?? null
+    const byGroup = m.fm.groupSubmission && e.labGroupId !== null
+    const anyAttempt = attempts.find((a) => a.moduleId === m.id && (byGroup ? a.labGroupId === e.labGroupId : a.userId === e.userId)) ?? null
+    const vis = visibility(
+      {
+        moduleId: m.id,
+        moduleStatus: m.status,
+        versionId: m.versionId,
+        versionNumber: m.versionNumber,
+        title: m.title,
+        dueAt: m.dueAt,
+        fm: m.fm,
+        gradesReleasedAt: m.releasedAt,
+      },
+      now,
+      course.timeZone,
+    )
+    const base = {
+      moduleId: m.id,
+      title: m.title,
+      weight: m.weight,
+      dueAt: m.dueAt?.toISOString() ?? null,
+      hiddenReason: null,
+      points: null,
+      maxScore: null,
+      isLate: false,
+      daysLate: 0,
+      regrade: null,
+    }
+    if (!s) {
+      if (!anyAttempt) return { ...base, state: 'not-handed-in' as const, submissionId: null, attempt: null }
+      return { ...base, state: 'awaiting-grade' as const, submissionId: anyAttempt.id, attempt: anyAttempt.attempt }
+    }
+    const mine = regrades.filter((r) => r.submissionId === s.id)
+    const regrade = mine.find((r) => r.status === 'open') ?? mine.at(-1) ?? null
+    const common = { ...base, submissionId: s.id, attempt: s.attempt, isLate: s.isLate, daysLate: s.daysLate, regrade }
+    if (!vis.visible) return { ...common, state: 'hidden' as const, hiddenReason: vis.reason }
+    return {
+      ...common,
+      state: m.releasedAt ? ('released' as const) : ('provisional' as const),
+      points: s.scoreOverride ?? s.score ?? 0,
+      maxScore: s.maxScore ?? 0,
+    }
+  })
+
+  // Hidden scores stay out of the total, so the total cannot reveal them.
+  const totalPercent = weightedTotal(
+    mods.map((m, i) => {
+      const r = rows[i]!
+      const shown = r.points !== null && r.maxScore !== null
+      return {
+        weight: m.weight,
+        percent: shown ? percentOf(r.points!, r.maxScore!) : null,
+        pastDue: r.state === 'not-handed-in' || r.state === 'awaiting-grade' ? isPastDue(m, now) : false,
+      }
+    }),
+  )
+  return { rows, totalPercent }
+}

@@ -1,0 +1,121 @@
+import { renderModule } from '../../shared/modules/render'
+import type { ModuleFrontMatter } from '../../shared/modules/schema'
+import type { RegradeStatus, RegradeView } from '../../shared/schemas/grades'
+import type { Database, Executor } from '../db/client'
+import { AppError, forbidden, notFound } from '../errors'
+import type { CourseEnrollment } from '../repositories/enrollments'
+import { findRegradeForUpdate, hasOpenRegrade, insertRegrade, listRegrades, lockSubmission, reopenForReview, saveRegradeAnswer } from '../repositories/grades'
+import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
+import { enqueueMail } from '../repositories/outbox'
+import type { SubmissionRow } from '../repositories/submissions'
+import { findSubmission } from '../repositories/submissions'
+import { findUserById } from '../repositories/users'
+import { inScope } from './review-service'
+import { escapeHtml } from './text'
+
+/** Regrade requests of these hand-ins as the API shows them (the answer rendered and sanitised). */
+export async function regradeViews(db: Database, submissionIds: number[]): Promise<RegradeView[]> {
+  const rows = await listRegrades(db, submissionIds)
+  return rows.map((r) => ({
+    id: r.id,
+    submissionId: r.submissionId,
+    requestedBy: r.requestedBy,
+    message: r.message,
+    status: r.status,
+    createdAt: r.createdAt.toISOString(),
+    answerHtml: r.answer === null ? null : renderModule(r.answer),
+    answeredBy: r.answeredBy,
+    answeredAt: r.answeredAt?.toISOString() ?? null,
+  }))
+}
+
+/**
+ * A student's own hand-in: they made it, or it is their lab group's hand-in of a module handed in
+ * by group. Anything else does not exist for them (404).
+ */
+async function ownSubmission(db: Database, e: CourseEnrollment, submissionId: number): Promise<{ s: SubmissionRow; fm: ModuleFrontMatter | null }> {
+  const s = await findSubmission(db, e.courseId, submissionId)
+  if (!s) throw notFound('That submission')
+  const v = await findVersion(db, s.moduleVersionId)
+  const fm = (v?.frontMatter ?? null) as unknown as ModuleFrontMatter | null
+  const mine = s.userId === e.userId || (!!fm?.groupSubmission && s.labGroupId !== null && s.labGroupId === e.labGroupId)
+  if (!mine) throw notFound('That submission')
+  return { s, fm }
+}
+
+/** Why a regrade cannot be asked for now, or null when it can. */
+async function refusal(db: Executor, s: SubmissionRow): Promise<AppError | null> {
+  const m = await findModule(db, s.courseId, s.moduleId)
+  if (!m?.gradesReleasedAt) {
+    return new AppError('not_released', 'You can ask for a regrade once the grades of this module are released.', 409)
+  }
+  if (s.status !== 'graded') return new AppError('not_graded', 'This hand-in has no grade to look at again.', 409)
+  if (await hasOpenRegrade(db, s.id)) {
+    return new AppError('regrade_open', 'A regrade request for this hand-in is already open; the staff will answer it first.', 409)
+  }
+  return null
+}
+
+/**
+ * The regrade requests of a hand-in and whether the caller may ask for one. Students: their own
+ * (or their lab group's) hand-ins; staff: as the review routes (a TA, their own section).
+ */
+export async function regradeStatus(db: Database, e: CourseEnrollment, submissionId: number): Promise<RegradeStatus> {
+  const s = e.role === 'student' ? (await ownSubmission(db, e, submissionId)).s : await inScope(db, e, submissionId)
+  const requests = await regradeViews(db, [s.id])
+  if (e.role !== 'student') return { canRequest: false, reason: 'Only students ask for a regrade.', requests }
+  const no = await refusal(db, s)
+  return { canRequest: no === null, reason: no?.message ?? null, requests }
+}
+
+/**
+ * A student asks the staff to look at a released grade again. The hand-in goes (back) into the
+ * review queue, where "regrade requested" finds it.
+ */
+export async function requestRegrade(db: Database, e: CourseEnrollment, submissionId: number, message: string): Promise<RegradeStatus> {
+  if (e.role !== 'student') throw forbidden('Only students ask for a regrade; staff can change points in the review.')
+  const { s } = await ownSubmission(db, e, submissionId)
+  await db.transaction(async (tx) => {
+    // Serialises two requests for the same hand-in; the checks run again under the lock.
+    await lockSubmission(tx, s.id)
+    const no = await refusal(tx, s)
+    if (no) throw no
+    await insertRegrade(tx, { courseId: e.courseId, submissionId: s.id, requestedBy: e.userId, message })
+    await reopenForReview(tx, s.id)
+  })
+  return regradeStatus(db, e, submissionId)
+}
+
+/** Staff answer a regrade request (Markdown); the answer is e-mailed to the student who asked. */
+export async function answerRegrade(db: Database, e: CourseEnrollment, submissionId: number, requestId: number, answer: string, appUrl: string): Promise<RegradeStatus> {
+  const s = await inScope(db, e, submissionId)
+  const course = await courseTimeZone(db, e.courseId)
+  const staff = await findUserById(db, e.userId)
+  const version = await findVersion(db, s.moduleVersionId)
+  await db.transaction(async (tx) => {
+    const r = await findRegradeForUpdate(tx, submissionId, requestId)
+    if (!r) throw notFound('That regrade request')
+    if (r.status !== 'open') throw new AppError('regrade_answered', 'This regrade request has already been answered.', 409)
+    await saveRegradeAnswer(tx, requestId, answer, e.userId)
+    const student = await findUserById(tx, r.requestedBy)
+    if (!student) return
+    const link = `${appUrl.replace(/\/$/, '')}/courses/${e.courseId}/submissions/${submissionId}`
+    const title = version?.title ?? 'your hand-in'
+    const by = staff?.displayName ?? 'The course staff'
+    await enqueueMail(tx, [
+      {
+        dedupeKey: `regrade-answer:${requestId}`,
+        toAddress: student.email,
+        toName: student.displayName,
+        subject: `${course.code}: your regrade request was answered — ${title}`,
+        textBody: [`Hello ${student.displayName},`, '', `${by} answered your regrade request on “${title}” (attempt ${s.attempt}):`, '', answer, '', `See your result: ${link}`, '', '— Isentrope'].join('\n'),
+        htmlBody: `<p>Hello ${escapeHtml(student.displayName)},</p>
+<p>${escapeHtml(by)} answered your regrade request on <strong>${escapeHtml(title)}</strong> (attempt ${s.attempt}):</p>
+<div>${renderModule(answer)}</div>
+<p><a href="${escapeHtml(link)}">See your result</a></p>
+<p style="color:#5d574c">— Isentrope</p>`,
+      },
+    ])
+  })
+  return regradeStatus(db, e, submissionId)
+}

@@ -1,0 +1,121 @@
+import { readFileSync } from 'node:fs'
+import Papa from 'papaparse'
+import type { Browser, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { seedDemo } from '../../scripts/demo/seed-demo'
+import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import type { Gradebook } from '../../shared/schemas/grades'
+import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+
+let app: Awaited<ReturnType<typeof serveApp>>
+let chrome: Awaited<ReturnType<typeof launchBrowser>>
+let browser: Browser
+const COLD_FLOW = 'Cold-flow characterisation of a converging–diverging nozzle'
+
+beforeAll(async () => {
+  app = await serveApp()
+  await seedDemo(app.db.db)
+  chrome = await launchBrowser()
+  browser = chrome.browser
+}, 120_000)
+afterAll(async () => {
+  await chrome?.close()
+  await app?.close()
+})
+
+/** A GET through the page, with the signed-in person's cookies. */
+async function api<T>(page: Page, url: string): Promise<{ status: number; body: T }> {
+  return page.evaluate(async (u) => {
+    const res = await fetch(u, { headers: { Accept: 'application/json' } })
+    return { status: res.status, body: (await res.json()) as T }
+  }, url)
+}
+
+describe('the instructor’s gradebook', () => {
+  it('shows the statistics, releases the cold-flow grades after a confirmation, and downloads one CSV row per student', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1366, height: 900 }, acceptDownloads: true })
+    const page = await ctx.newPage()
+    await signIn(page, app.url, DEMO_INSTRUCTOR.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'Gradebook', exact: true }).click()
+    await page.getByRole('heading', { level: 1, name: 'Gradebook' }).waitFor()
+    const courseId = Number(/\/courses\/(\d+)\/gradebook/.exec(page.url())?.[1])
+    expect(courseId).toBeGreaterThan(0)
+    await expect.poll(() => page.getByTestId('counting-rule').innerText()).toContain('latest graded attempt')
+
+    const book = await api<Gradebook>(page, `/api/courses/${courseId}/gradebook`)
+    expect(book.status).toBe(200)
+    const table = page.getByTestId('gradebook-table')
+    await expect.poll(() => table.locator('tbody tr').count()).toBe(book.body.students.length)
+    for (const s of DEMO_STUDENTS.slice(0, 3)) expect(await table.innerText()).toContain(s.displayName)
+
+    // The cold-flow module's figures, as the server computed them, with the histogram drawn.
+    const mod = book.body.modules.find((m) => m.title === COLD_FLOW)!
+    const stats = book.body.stats.find((s) => s.moduleId === mod.id)!
+    expect(stats.n).toBeGreaterThan(0)
+    const panel = page.locator(`[data-testid="gradebook-module"][data-module-id="${mod.id}"]`)
+    expect(await panel.getByTestId('stat-n').innerText()).toBe(String(stats.n))
+    expect(await panel.getByTestId('stat-mean').innerText()).toBe(`${stats.meanPercent!.toFixed(1)} %`)
+    await panel.getByTestId('gradebook-histogram').waitFor()
+    await page.screenshot({ path: screenshotPath('gradebook-desktop'), fullPage: true })
+
+    // Another test may have released it already: withdraw first, so this one releases.
+    const state = panel.getByTestId(`release-state-${mod.id}`)
+    if ((await state.innerText()) === 'released') {
+      await panel.getByRole('button', { name: 'Withdraw release' }).click()
+      await page.getByRole('alertdialog').getByRole('button', { name: 'Withdraw' }).click()
+      await expect.poll(() => state.innerText()).toBe('not released')
+    }
+    await panel.getByRole('button', { name: 'Release grades' }).click()
+    const dialog = page.getByRole('alertdialog')
+    await expect.poll(() => dialog.innerText()).toContain(`${book.body.enrolledStudents} students of the course will be e-mailed`)
+    await dialog.getByRole('button', { name: `Release and e-mail ${book.body.enrolledStudents}` }).click()
+    await expect.poll(() => state.innerText()).toBe('released')
+    const after = await api<Gradebook>(page, `/api/courses/${courseId}/gradebook`)
+    expect(after.body.modules.find((m) => m.id === mod.id)!.releasedAt).not.toBeNull()
+
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('gradebook-csv').click()])
+    expect(download.suggestedFilename()).toMatch(/^gradebook-.+\.csv$/)
+    const text = readFileSync((await download.path())!, 'utf8').replace(/^\uFEFF/, '')
+    const [header, ...rows] = Papa.parse<string[]>(text, { skipEmptyLines: true }).data
+    expect(header!.slice(0, 4)).toEqual(['email', 'name', 'section', 'group'])
+    expect(rows).toHaveLength(book.body.students.length)
+    for (const s of DEMO_STUDENTS) expect(rows.filter((r) => r[0] === s.email), s.email).toHaveLength(1)
+
+    await page.setViewportSize({ width: 375, height: 812 })
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('gradebook-375'), fullPage: true })
+    await ctx.close()
+  }, 120_000)
+
+  it('a student reads My grades, opens the released result and asks for a regrade', async () => {
+    // Group A3's demo hand-in is already flagged for review, so a regrade changes no other test's queue.
+    const who = DEMO_STUDENTS.find((p) => p.labGroup === 'A3')!
+    const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
+    const page = await ctx.newPage()
+    await signIn(page, app.url, who.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My grades', exact: true }).click()
+    await page.getByRole('heading', { level: 1, name: 'My grades' }).waitFor()
+    const row = page.getByTestId('my-grades-table').locator('tbody tr').filter({ hasText: COLD_FLOW })
+    await expect.poll(() => row.getAttribute('data-state')).toBe('released')
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('my-grades-375'), fullPage: true })
+
+    await row.getByRole('link', { name: /^See the result/ }).click()
+    await page.getByRole('heading', { level: 2, name: 'Regrade' }).waitFor()
+    const regrade = page.getByTestId('regrade')
+    if ((await regrade.getByRole('button', { name: 'Ask for a regrade' }).count()) > 0) {
+      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
+      await expect.poll(() => page.locator('#regrade-message-error').innerText()).toContain('look at again')
+      const message = `Our peak thrust was read after the load cell was re-zeroed (${Date.now()}).`
+      await page.getByLabel('What should the staff look at again?').fill(message)
+      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
+      await expect.poll(() => regrade.locator('li.open').filter({ hasText: message }).count()).toBe(1)
+    }
+    expect(await regrade.locator('li.open').count()).toBe(1)
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('submission-regrade-375'), fullPage: true })
+    await ctx.close()
+  }, 120_000)
+})
