@@ -272,6 +272,9 @@ describe('roster import: confirm, mail and invitations', () => {
       const stored = await ctx.handle.db.select().from(invitations).where(eq(invitations.userId, user!.id))
       expect(stored).toHaveLength(1)
       expect(stored[0]!.tokenHash).toBe(createHash('sha256').update(token).digest('hex'))
+      // INVITATION_TTL_HOURS defaults to 168 (a week).
+      expect(Math.abs(stored[0]!.expiresAt.getTime() - stored[0]!.createdAt.getTime() - 168 * 3_600_000)).toBeLessThan(60_000)
+      expect(stored[0]!.usedAt).toBeNull()
       expect(JSON.stringify(stored)).not.toContain(token)
       tokens[address] = token
     }

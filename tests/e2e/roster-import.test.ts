@@ -49,6 +49,15 @@ describe('roster import in the browser', () => {
     await page.getByRole('link', { name: 'Import roster' }).click()
     await page.getByRole('heading', { level: 1, name: 'Import roster' }).waitFor()
 
+    // Pasted rows with a problem: shown with its row and column, and the import cannot be confirmed.
+    await page.getByLabel('Roster rows (CSV)').fill(`email,name\nnot-an-address,Someone ${tag}\n`)
+    await page.getByRole('button', { name: 'Check the file' }).click()
+    await page.getByTestId('import-problems').getByText('Row 2').waitFor()
+    await page.getByTestId('import-problems').getByText('email: "not-an-address" is not a valid e-mail address').waitFor()
+    expect(await page.getByTestId('confirm-import').isDisabled()).toBe(true)
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('roster-import-problems-375'), fullPage: true })
+
     await page.getByLabel('CSV file').setInputFiles({ name: 'roster.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) })
     await expect.poll(() => page.getByLabel('Roster rows (CSV)').inputValue()).toContain(mira)
     await page.getByRole('button', { name: 'Check the file' }).click()
