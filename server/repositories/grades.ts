@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm'
+import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import type { Executor } from '../db/client'
 import { enrollments, labGroups, mailOutbox, modules, regradeRequests, sections, submissionChecks, submissions, users } from '../db/schema'
@@ -153,19 +153,16 @@ export interface RegradeRow {
   createdAt: Date
 }
 
-const answerer = users
-
 /** Regrade requests of these hand-ins, oldest first. */
 export async function listRegrades(db: Executor, submissionIds: number[]): Promise<RegradeRow[]> {
   if (submissionIds.length === 0) return []
-  const requester = users
   const rows = await db
     .select({
       id: regradeRequests.id,
       submissionId: regradeRequests.submissionId,
       requestedById: regradeRequests.requestedBy,
-      requestedBy: requester.displayName,
-      requesterEmail: requester.email,
+      requestedBy: users.displayName,
+      requesterEmail: users.email,
       message: regradeRequests.message,
       status: regradeRequests.status,
       answer: regradeRequests.answer,
@@ -174,12 +171,12 @@ export async function listRegrades(db: Executor, submissionIds: number[]): Promi
       createdAt: regradeRequests.createdAt,
     })
     .from(regradeRequests)
-    .innerJoin(requester, eq(requester.id, regradeRequests.requestedBy))
+    .innerJoin(users, eq(users.id, regradeRequests.requestedBy))
     .where(inArray(regradeRequests.submissionId, submissionIds))
     .orderBy(asc(regradeRequests.id))
   const answerIds = [...new Set(rows.map((r) => r.answeredById).filter((x): x is number => x !== null))]
   const names = answerIds.length
-    ? new Map((await db.select({ id: answerer.id, name: answerer.displayName }).from(answerer).where(inArray(answerer.id, answerIds))).map((r) => [r.id, r.name]))
+    ? new Map((await db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, answerIds))).map((r) => [r.id, r.name]))
     : new Map<number, string>()
   return rows.map(({ answeredById, ...r }) => ({ ...r, answeredBy: answeredById === null ? null : (names.get(answeredById) ?? null) }))
 }
@@ -225,11 +222,6 @@ export async function reopenForReview(tx: Executor, submissionId: number): Promi
     .where(eq(submissions.id, submissionId))
 }
 
-/** Modules of a course whose grades were released. */
-export async function releasedModuleIds(db: Executor, courseId: number): Promise<Set<number>> {
-  const rows = await db.select({ id: modules.id }).from(modules).where(and(eq(modules.courseId, courseId), isNotNull(modules.gradesReleasedAt)))
-  return new Set(rows.map((r) => r.id))
-}
 
 /** Addresses that already have mail with this dedupe key (queued or sent). */
 export async function queuedAddresses(tx: Executor, dedupeKey: string): Promise<Set<string>> {

@@ -82,7 +82,7 @@ const isPastDue = (m: GradedModule, now: Date) => m.status === 'closed' || (m.du
  * The counting rule: the latest graded attempt of the student's own hand-ins, or of their lab
  * group's when the module is handed in by group. `graded` is newest attempt first.
  */
-function countedFor(student: { userId: number; labGroupId: number | null }, m: GradedModule, graded: readonly GradedRow[]): GradedRow | null {
+function countedFor(student: { userId: number; labGroupId: number | null }, m: Pick<GradedModule, 'id' | 'fm'>, graded: readonly GradedRow[]): GradedRow | null {
   const byGroup = m.fm.groupSubmission && student.labGroupId !== null
   for (const s of graded) {
     if (s.moduleId !== m.id) continue
@@ -226,7 +226,7 @@ export async function releaseGrades(db: Database, e: CourseEnrollment, moduleId:
     const students = await listStudents(tx, e.courseId)
     const graded = fm?.assignment ? await listGraded(tx, e.courseId, [moduleId]) : []
     const base = appUrl.replace(/\/$/, '')
-    const gm = fm ? ({ id: moduleId, fm } as GradedModule) : null
+    const gm = fm ? { id: moduleId, fm } : null
     const when = formatInZone(now, course.timeZone)
     // A release withdrawn and made again mails nobody twice.
     const dedupeKey = `grades-released:${moduleId}`
