@@ -14,6 +14,7 @@ import type { Database } from './db/client'
 import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
+import { courseAdminRoutes } from './routes/course-admin'
 import { courseRoutes } from './routes/courses'
 import { healthRoutes } from './routes/health'
 import { moduleRoutes } from './routes/modules'
@@ -128,6 +129,7 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   api.use('/courses/:courseId', handInRoutes(db, { appUrl: config.APP_URL, uploadLimitMb: config.UPLOAD_LIMIT_MB, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
+  api.use('/courses/:courseId', courseAdminRoutes(db))
   api.use('/courses', courseRoutes(db))
   api.use(apiNotFound)
   app.use('/api', api)
