@@ -145,8 +145,10 @@ export async function listSectionsAdmin(db: Executor, courseId: number): Promise
   const rows = await db
     .select({
       ...sectionCols,
-      studentCount: sql<number>`(SELECT COUNT(*) FROM ${enrollments} e WHERE e.section_id = ${sections.id} AND e.role = 'student')`.mapWith(Number),
-      labGroupCount: sql<number>`(SELECT COUNT(*) FROM ${labGroups} g WHERE g.section_id = ${sections.id})`.mapWith(Number),
+      // Table names written out: in a one-table query Drizzle leaves a column like sections.id unqualified,
+      // which inside the subquery would mean the subquery's own id.
+      studentCount: sql<number>`(SELECT COUNT(*) FROM enrollments e WHERE e.section_id = sections.id AND e.role = 'student')`.mapWith(Number),
+      labGroupCount: sql<number>`(SELECT COUNT(*) FROM lab_groups g WHERE g.section_id = sections.id)`.mapWith(Number),
     })
     .from(sections)
     .where(eq(sections.courseId, courseId))
@@ -172,7 +174,7 @@ export async function listLabGroupsAdmin(db: Executor, courseId: number): Promis
     .select({
       ...groupCols,
       sectionName: sections.name,
-      handInCount: sql<number>`(SELECT COUNT(*) FROM ${submissions} s WHERE s.lab_group_id = ${labGroups.id})`.mapWith(Number),
+      handInCount: sql<number>`(SELECT COUNT(*) FROM submissions s WHERE s.lab_group_id = lab_groups.id)`.mapWith(Number),
     })
     .from(labGroups)
     .leftJoin(sections, eq(sections.id, labGroups.sectionId))

@@ -62,7 +62,10 @@ export type Placement = z.infer<typeof PlacementSchema>
 
 /** A later due date for one student on one module; `dueAt` is an instant (ISO 8601 with offset). */
 export const ExtensionInputSchema = z.object({
-  dueAt: z.iso.datetime({ offset: true, error: 'dueAt: give the new due date and time.' }),
+  dueAt: z.iso
+    .datetime({ offset: true, error: 'dueAt: give the new due date and time.' })
+    // Stored in a TIMESTAMP column, which ends in January 2038.
+    .refine((v) => Date.parse(v) < Date.parse('2038-01-01T00:00:00Z'), 'dueAt: choose a date before 2038.'),
   note: z.string().trim().max(500, 'note: at most 500 characters.').default(''),
 })
 export type ExtensionInput = z.infer<typeof ExtensionInputSchema>
