@@ -14,6 +14,7 @@ import type { Database } from './db/client'
 import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
+import { courseAdminRoutes } from './routes/course-admin'
 import { courseRoutes } from './routes/courses'
 import { gradeRoutes } from './routes/grades'
 import { healthRoutes } from './routes/health'
@@ -132,6 +133,7 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId', gradeRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
+  api.use('/courses/:courseId', courseAdminRoutes(db))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
   api.use('/courses/:courseId/roster/import', rosterImportRoutes(db, { appUrl: config.APP_URL, invitationTtlHours: config.INVITATION_TTL_HOURS, onMailQueued: () => onMailQueued?.() }))

@@ -117,6 +117,8 @@ export async function listRoster(db: Executor, courseId: number, sectionId?: num
       role: enrollments.role,
       sectionName: sections.name,
       labGroupName: labGroups.name,
+      sectionId: enrollments.sectionId,
+      labGroupId: enrollments.labGroupId,
     })
     .from(enrollments)
     .innerJoin(users, eq(users.id, enrollments.userId))

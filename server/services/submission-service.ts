@@ -38,6 +38,7 @@ import {
   saveGrade,
 } from '../repositories/submissions'
 import { submitterSection } from '../repositories/review'
+import { findExtensionDue } from '../repositories/due-extensions'
 import { findUserById } from '../repositories/users'
 import { commentsFor } from './review-service'
 import { escapeHtml } from './text'
@@ -90,20 +91,28 @@ function ownerOf(e: CourseEnrollment, fm: ModuleFrontMatter): Owner {
   return { userId: e.userId }
 }
 
-/** Lateness by the module's policy: days late (rounded up) and the fraction taken off. */
-function lateness(p: Published, now: Date, timeZone: string): { isLate: boolean; daysLate: number; penalty: number } {
-  if (!p.dueAt || now.getTime() <= p.dueAt.getTime()) return { isLate: false, daysLate: 0, penalty: 0 }
+/**
+ * Lateness by the module's policy: days late (rounded up) and the fraction taken off. With a
+ * per-student extension (`extendedDue`, later than the module's due date) the student is on time
+ * until it and days late count from it. The late-acceptance limit moves by the same amount, so an
+ * extended student keeps the same late window everyone else had (otherwise an extension past
+ * `acceptUntil` would leave no late window at all, and one close to it would shrink it).
+ */
+function lateness(p: Published, now: Date, timeZone: string, extendedDue: Date | null = null): { isLate: boolean; daysLate: number; penalty: number } {
+  const shift = p.dueAt && extendedDue ? Math.max(0, extendedDue.getTime() - p.dueAt.getTime()) : 0
+  const dueAt = p.dueAt ? new Date(p.dueAt.getTime() + shift) : null
+  if (!dueAt || now.getTime() <= dueAt.getTime()) return { isLate: false, daysLate: 0, penalty: 0 }
   const late = p.fm.late
   if (!late) {
-    throw new AppError('past_due', `The due date (${formatInZone(p.dueAt, timeZone)}) has passed and this module does not accept late hand-ins.`, 409)
+    throw new AppError('past_due', `The due date (${formatInZone(dueAt, timeZone)}) has passed and this module does not accept late hand-ins.`, 409)
   }
   if (late.acceptUntil) {
-    const until = zonedTimeToUtc(late.acceptUntil, p.fm.due?.timeZone ?? timeZone)
+    const until = new Date(zonedTimeToUtc(late.acceptUntil, p.fm.due?.timeZone ?? timeZone).getTime() + shift)
     if (now.getTime() > until.getTime()) {
       throw new AppError('past_late_limit', `Late hand-ins were accepted until ${formatInZone(until, timeZone)}; that time has passed.`, 409)
     }
   }
-  const daysLate = Math.ceil((now.getTime() - p.dueAt.getTime()) / DAY_MS)
+  const daysLate = Math.ceil((now.getTime() - dueAt.getTime()) / DAY_MS)
   return { isLate: true, daysLate, penalty: Math.min(1, daysLate * late.penaltyPerDay) }
 }
 
@@ -258,7 +267,8 @@ export async function submitHandIn(
   if (!p.fm.assignment) throw new AppError('no_assignment', 'This module has nothing to hand in.', 409)
   const course = await courseTimeZone(db, e.courseId)
   const owner = ownerOf(e, p.fm)
-  const late = lateness(p, now, course.timeZone)
+  // The submitter's own extension, also for a group hand-in (each member's extension is their own).
+  const late = lateness(p, now, course.timeZone, await findExtensionDue(db, p.moduleId, e.userId))
 
   const v = validateHandIn(p.fm, payload, uploads)
   if (v.issues.length) {
@@ -520,6 +530,8 @@ export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId:
   }
   const rows = await listOwnerSubmissions(db, p.moduleId, owner)
   const vis = visibility(p, now, course.timeZone)
+  const extendedDue = p.dueAt && e.role === 'student' ? await findExtensionDue(db, p.moduleId, e.userId) : null
+  const dueExtended = p.dueAt !== null && extendedDue !== null && extendedDue.getTime() > p.dueAt.getTime()
   const used = rows.length
   if (!blockedReason) {
     if (!p.fm.assignment) blockedReason = 'This module has nothing to hand in.'
@@ -527,7 +539,7 @@ export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId:
     else if (used >= p.fm.attempts) blockedReason = `All ${p.fm.attempts} attempts have been used.`
     else {
       try {
-        lateness(p, now, course.timeZone)
+        lateness(p, now, course.timeZone, extendedDue)
       } catch (err) {
         blockedReason = err instanceof Error ? err.message : String(err)
       }
@@ -538,7 +550,9 @@ export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId:
     attemptsUsed: used,
     canSubmit: blockedReason === null && e.role === 'student',
     blockedReason: e.role === 'student' ? blockedReason : 'Staff do not hand in work.',
-    dueAt: p.dueAt?.toISOString() ?? null,
+    // A student with an extension sees their own due date.
+    dueAt: (dueExtended ? extendedDue : p.dueAt)?.toISOString() ?? null,
+    dueExtended,
     groupSubmission: p.fm.groupSubmission,
     labGroupName: await labGroupName(db, e.labGroupId),
     submissions: rows.map((r) => summary(r, vis.visible)),

@@ -61,4 +61,6 @@ export interface RosterEntry {
   role: CourseRole
   sectionName: string | null
   labGroupName: string | null
+  sectionId: number | null
+  labGroupId: number | null
 }

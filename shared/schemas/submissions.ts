@@ -131,7 +131,10 @@ export interface MySubmissions {
   canSubmit: boolean
   /** Why a new hand-in is not possible, in plain words. */
   blockedReason: string | null
+  /** The due date for this person: their own extended one when they have an extension. */
   dueAt: string | null
+  /** True when `dueAt` is this student's extension rather than the module's due date. */
+  dueExtended?: boolean
   groupSubmission: boolean
   labGroupName: string | null
   submissions: SubmissionSummary[]

@@ -50,6 +50,13 @@ const router = createRouter({
       meta: { title: 'Import roster' },
     },
     {
+      path: '/courses/:courseId(\\d+)/sections',
+      name: 'course-sections',
+      component: () => import('@/views/SectionsView.vue'),
+      props: (r) => ({ courseId: Number(r.params.courseId) }),
+      meta: { title: 'Sections & groups' },
+    },
+    {
       path: '/courses/:courseId(\\d+)/review',
       name: 'review-queue',
       component: () => import('@/views/ReviewQueueView.vue'),

@@ -1,10 +1,10 @@
 import { readFileSync } from 'node:fs'
-import { eq } from 'drizzle-orm'
-import { modules, regradeRequests } from '../../server/db/schema'
 import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Client, Fixture, TestContext } from '../helpers/app'
-import { anonymous, seedFixture, signedInAs, startTestApp } from '../helpers/app'
+import { anonymous, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
+import { and, eq } from 'drizzle-orm'
+import { dueExtensions, enrollments, labGroups, modules, regradeRequests, sections, users } from '../../server/db/schema'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
@@ -35,6 +35,12 @@ const mods: { published?: CreatedModule; toUnpublish?: CreatedModule; coldFlow?:
 const handIn: { submissionId?: number; fileId?: number; flagId?: number } = {}
 const M = (fx: Fixture) => `/api/courses/${fx.courseId}/modules`
 const pub = () => mods.published!.id
+const C = (fx: Fixture) => `/api/courses/${fx.courseId}`
+/** The fixture's lab group G1. */
+async function groupG1(fx: Fixture): Promise<number> {
+  const [g] = await ctx.handle.db.select({ id: labGroups.id }).from(labGroups).where(and(eq(labGroups.courseId, fx.courseId), eq(labGroups.name, 'G1')))
+  return g!.id
+}
 
 const CASES: Case[] = [
   {
@@ -117,6 +123,108 @@ const CASES: Case[] = [
         .set('x-csrf-token', c.csrf)
         .send({ password: 'matrix-password-1' }),
     expect: { anon: 404, outsider: 404, student: 404, ta: 404, instructor: 404, admin: 404 },
+  },
+  // Sections, lab groups, TAs, extensions, removal
+  // Every instructor success here is undone (or repeats the fixture's own values), so the fixture
+  // keeps its two sections, one group and head counts for the cases and checks that follow.
+  {
+    route: 'GET /api/courses/:courseId/sections',
+    call: (c, fx) => c.agent.get(`${C(fx)}/sections`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/sections',
+    call: async (c, fx) => {
+      const name = `Matrix ${uniq()}`
+      const res = await c.agent.post(`${C(fx)}/sections`).set('x-csrf-token', c.csrf).send({ name })
+      await ctx.handle.db.delete(sections).where(and(eq(sections.courseId, fx.courseId), eq(sections.name, name)))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
+  },
+  {
+    route: 'PATCH /api/courses/:courseId/sections/:sectionId',
+    call: (c, fx) => c.agent.patch(`${C(fx)}/sections/${fx.sectionA}`).set('x-csrf-token', c.csrf).send({ name: 'A' }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'DELETE /api/courses/:courseId/sections/:sectionId',
+    call: async (c, fx) => {
+      const [row] = await ctx.handle.db.insert(sections).values({ courseId: fx.courseId, name: `Matrix ${uniq()}` }).$returningId()
+      const res = await c.agent.delete(`${C(fx)}/sections/${row!.id}`).set('x-csrf-token', c.csrf)
+      await ctx.handle.db.delete(sections).where(eq(sections.id, row!.id))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/lab-groups',
+    call: async (c, fx) => {
+      const name = `Matrix ${uniq()}`
+      const res = await c.agent.post(`${C(fx)}/lab-groups`).set('x-csrf-token', c.csrf).send({ name, sectionId: fx.sectionA })
+      await ctx.handle.db.delete(labGroups).where(and(eq(labGroups.courseId, fx.courseId), eq(labGroups.name, name)))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
+  },
+  {
+    route: 'PATCH /api/courses/:courseId/lab-groups/:labGroupId',
+    call: async (c, fx) => c.agent.patch(`${C(fx)}/lab-groups/${await groupG1(fx)}`).set('x-csrf-token', c.csrf).send({ name: 'G1' }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'DELETE /api/courses/:courseId/lab-groups/:labGroupId',
+    call: async (c, fx) => {
+      const [row] = await ctx.handle.db.insert(labGroups).values({ courseId: fx.courseId, name: `Matrix ${uniq()}` }).$returningId()
+      const res = await c.agent.delete(`${C(fx)}/lab-groups/${row!.id}`).set('x-csrf-token', c.csrf)
+      await ctx.handle.db.delete(labGroups).where(eq(labGroups.id, row!.id))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'PATCH /api/courses/:courseId/roster/:userId',
+    // The fixture student's own section again: group G1 is in section A, so nothing changes.
+    call: (c, fx) => c.agent.patch(`${C(fx)}/roster/${fx.student.id}`).set('x-csrf-token', c.csrf).send({ sectionId: fx.sectionA }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 204, admin: 404 },
+  },
+  {
+    route: 'DELETE /api/courses/:courseId/roster/:userId',
+    // A throw-away student enrolled for this call only.
+    call: async (c, fx) => {
+      const tag = uniq()
+      const [u] = await ctx.handle.db.insert(users).values({ email: `matrix.${tag}@test.example`, displayName: `Matrix ${tag}` }).$returningId()
+      await ctx.handle.db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'student' })
+      const res = await c.agent.delete(`${C(fx)}/roster/${u!.id}`).set('x-csrf-token', c.csrf)
+      await ctx.handle.db.delete(enrollments).where(and(eq(enrollments.userId, u!.id), eq(enrollments.courseId, fx.courseId)))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 204, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/extensions',
+    call: (c, fx) => c.agent.get(`${C(fx)}/extensions`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'PUT /api/courses/:courseId/extensions/:moduleId/:userId',
+    call: (c, fx) =>
+      c.agent
+        .put(`${C(fx)}/extensions/${mods.coldFlow!.id}/${fx.student.id}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ dueAt: '2030-01-01T12:00:00Z', note: 'Matrix extension.' }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'DELETE /api/courses/:courseId/extensions/:moduleId/:userId',
+    call: async (c, fx) => {
+      const key = { moduleId: mods.coldFlow!.id, userId: fx.student.id }
+      await ctx.handle.db.insert(dueExtensions).values({ ...key, dueAt: new Date('2030-01-01T12:00:00Z') }).onDuplicateKeyUpdate({ set: { note: '' } })
+      const res = await c.agent.delete(`${C(fx)}/extensions/${key.moduleId}/${key.userId}`).set('x-csrf-token', c.csrf)
+      await ctx.handle.db.delete(dueExtensions).where(and(eq(dueExtensions.moduleId, key.moduleId), eq(dueExtensions.userId, key.userId)))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
     route: 'GET /api/courses/:courseId/modules',

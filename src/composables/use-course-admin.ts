@@ -1,0 +1,126 @@
+/**
+ * Course administration for the instructor: sections, lab groups, TA sections, placements,
+ * extensions, removal. Views and components take everything from here; only this file talks to
+ * `api/course-admin.ts`. Every action returns null when it worked, or the ApiError to show.
+ */
+import { ref } from 'vue'
+import type { Ref } from 'vue'
+import type { z } from 'zod'
+import type { CourseStructure, ExtensionInput, ExtensionOverview, LabGroupCreate, LabGroupUpdate, Placement, SectionCreate, SectionUpdate } from '@shared/schemas/course-admin'
+import { ApiError } from '@/api/http'
+import {
+  deleteExtension,
+  deleteLabGroup,
+  deleteMember,
+  deleteSection,
+  fetchCourseStructure,
+  fetchExtensions,
+  patchLabGroup,
+  patchPlacement,
+  patchSection,
+  postLabGroup,
+  postSection,
+  putExtension,
+} from '@/api/course-admin'
+import { useResource } from './use-resource'
+
+const asApiError = (err: unknown) => (err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err)))
+
+/** The first problem the shared schema finds in a form's value, as an ApiError the form can show. */
+export function checkForm<S extends z.ZodType>(schema: S, value: unknown): { data: z.infer<S>; error: null } | { data: null; error: ApiError } {
+  const parsed = schema.safeParse(value)
+  if (parsed.success) return { data: parsed.data, error: null }
+  const first = parsed.error.issues[0]
+  return { data: null, error: new ApiError(400, 'validation_failed', first?.message ?? 'Check the form.', [{ path: first?.path.join('.') ?? '', message: first?.message ?? '' }]) }
+}
+
+/** The field a 400/409 answer points at (`name`, `sectionId`, `dueAt`…), if any. */
+export function errorField(err: ApiError | null): string | null {
+  if (!err) return null
+  const d = err.details as { field?: unknown } | { path?: unknown }[] | undefined
+  if (Array.isArray(d)) return typeof d[0]?.path === 'string' ? d[0].path : null
+  return typeof d?.field === 'string' ? d.field : null
+}
+
+/** Sections, lab groups and TA placements, with the changes that replace them. */
+export function useCourseStructure(courseId: Ref<number>) {
+  const res = useResource(() => fetchCourseStructure(courseId.value), courseId)
+  const busy = ref(false)
+
+  async function change(action: () => Promise<CourseStructure | void>, reload = false): Promise<ApiError | null> {
+    busy.value = true
+    try {
+      const next = await action()
+      if (next) res.data.value = next
+      if (reload) await res.reload()
+      return null
+    } catch (err) {
+      return asApiError(err)
+    } finally {
+      busy.value = false
+    }
+  }
+
+  return {
+    ...res,
+    busy,
+    createSection: (b: SectionCreate) => change(() => postSection(courseId.value, b)),
+    updateSection: (id: number, b: SectionUpdate) => change(() => patchSection(courseId.value, id, b)),
+    removeSection: (id: number) => change(() => deleteSection(courseId.value, id)),
+    createGroup: (b: LabGroupCreate) => change(() => postLabGroup(courseId.value, b)),
+    updateGroup: (id: number, b: LabGroupUpdate) => change(() => patchLabGroup(courseId.value, id, b)),
+    removeGroup: (id: number) => change(() => deleteLabGroup(courseId.value, id)),
+    placeTa: (userId: number, sectionId: number | null) => change(() => patchPlacement(courseId.value, userId, { sectionId }), true),
+  }
+}
+
+/** What the roster's per-row actions need: the course structure, extensions, and the changes. */
+export function useRosterAdmin(courseId: Ref<number>, enabled: Ref<boolean>, onChanged: () => Promise<void>) {
+  const structure = useResource<CourseStructure | null>(() => (enabled.value ? fetchCourseStructure(courseId.value) : Promise.resolve(null)), () => [courseId.value, enabled.value])
+  const extensions = useResource<ExtensionOverview | null>(() => (enabled.value ? fetchExtensions(courseId.value) : Promise.resolve(null)), () => [courseId.value, enabled.value])
+  const busy = ref(false)
+
+  async function run(action: () => Promise<unknown>, after: () => Promise<void>): Promise<ApiError | null> {
+    busy.value = true
+    try {
+      await action()
+      await after()
+      return null
+    } catch (err) {
+      return asApiError(err)
+    } finally {
+      busy.value = false
+    }
+  }
+
+  const refreshAll = async () => {
+    await Promise.all([onChanged(), structure.reload()])
+  }
+
+  return {
+    structure,
+    extensions,
+    busy,
+    place: (userId: number, p: Placement) => run(() => patchPlacement(courseId.value, userId, p), refreshAll),
+    remove: (userId: number) => run(() => deleteMember(courseId.value, userId), refreshAll),
+    grant: (moduleId: number, userId: number, input: ExtensionInput) =>
+      run(async () => (extensions.data.value = await putExtension(courseId.value, moduleId, userId, input)), async () => {}),
+    revoke: (moduleId: number, userId: number) =>
+      run(async () => (extensions.data.value = await deleteExtension(courseId.value, moduleId, userId)), async () => {}),
+  }
+}
+
+/** "YYYY-MM-DDTHH:mm" wall-clock time of an instant in a time zone, for a datetime-local field. */
+export function localInputValue(instant: Date, timeZone: string): string {
+  const parts = new Intl.DateTimeFormat('en-CA', {
+    timeZone,
+    hourCycle: 'h23',
+    year: 'numeric',
+    month: '2-digit',
+    day: '2-digit',
+    hour: '2-digit',
+    minute: '2-digit',
+  }).formatToParts(instant)
+  const get = (t: string) => parts.find((p) => p.type === t)?.value ?? '00'
+  return `${get('year')}-${get('month')}-${get('day')}T${get('hour')}:${get('minute')}`
+}
