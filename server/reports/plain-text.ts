@@ -32,7 +32,7 @@ function inlineText(children: Token[] | null): string {
         out += t.content ? `[image: ${t.content}]` : '[image]'
         break
       case 'link_open':
-        href = t.attrGet('href')
+        href = String(t.attrGet('href') ?? '')
         linkStart = out.length
         break
       case 'link_close':
