@@ -17,6 +17,7 @@ import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseRoutes } from './routes/courses'
 import { healthRoutes } from './routes/health'
 import { moduleRoutes } from './routes/modules'
+import { reportRoutes } from './routes/reports'
 import { reviewRoutes } from './routes/review'
 import { handInRoutes } from './routes/submissions'
 
@@ -127,6 +128,8 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
   api.use('/courses/:courseId', handInRoutes(db, { appUrl: config.APP_URL, uploadLimitMb: config.UPLOAD_LIMIT_MB, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses/:courseId', reviewRoutes(db))
+  // Feedback reports; before the module router, so /modules/:moduleId/reports.zip is answered here.
+  api.use('/courses/:courseId', reportRoutes(db))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
   api.use(apiNotFound)

@@ -1,0 +1,73 @@
+import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs'
+import yauzl from 'yauzl'
+
+/** Whitespace collapsed to single spaces, so wrapped lines compare with the text that was wrapped. */
+export const squash = (s: string) => s.replace(/\s+/g, ' ').trim()
+
+export interface PdfRead {
+  pages: number
+  /** Each page's text as pdf.js extracts it, whitespace collapsed. */
+  pageTexts: string[]
+  /** All pages' text, whitespace collapsed. */
+  text: string
+  /** Per page, how many times each drawing operator occurs (by pdf.js's OPS names). */
+  operators: Record<string, number>[]
+}
+
+const OP_NAMES = new Map(Object.entries(OPS).map(([name, code]) => [code as number, name]))
+
+/** Reads a PDF with pdf.js (the legacy build, which runs in Node): text and drawing operators of every page. */
+export async function readPdf(bytes: Buffer): Promise<PdfRead> {
+  const doc = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false, useSystemFonts: false, disableFontFace: true, verbosity: 0 }).promise
+  const pageTexts: string[] = []
+  const operators: Record<string, number>[] = []
+  for (let i = 1; i <= doc.numPages; i++) {
+    const page = await doc.getPage(i)
+    const content = await page.getTextContent()
+    // Items of one line follow each other; hasEOL marks a line end (a wrapped line or a new paragraph).
+    const text = content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? ' ' : '') : '')).join('')
+    pageTexts.push(squash(text))
+    const list = await page.getOperatorList()
+    const counts: Record<string, number> = {}
+    for (const fn of list.fnArray) {
+      const name = OP_NAMES.get(fn) ?? String(fn)
+      counts[name] = (counts[name] ?? 0) + 1
+    }
+    operators.push(counts)
+  }
+  await doc.destroy()
+  return { pages: doc.numPages, pageTexts, text: squash(pageTexts.join(' ')), operators }
+}
+
+/** The fonts a PDF names: every /BaseFont and how many embedded font programs it carries. */
+export function pdfFonts(bytes: Buffer): { baseFonts: string[]; fontFiles: number } {
+  const raw = bytes.toString('latin1')
+  const baseFonts = [...new Set([...raw.matchAll(/\/BaseFont\s*\/([^\s/<>[\]()]+)/g)].map((m) => m[1]!))]
+  const fontFiles = [...raw.matchAll(/\/FontFile[23]?\s+\d+\s+0\s+R/g)].length
+  return { baseFonts, fontFiles }
+}
+
+/** A zip's entries and their bytes, read back with yauzl. */
+export function readZip(bytes: Buffer): Promise<{ name: string; bytes: Buffer }[]> {
+  return new Promise((resolve, reject) => {
+    yauzl.fromBuffer(bytes, { lazyEntries: true }, (err, zip) => {
+      if (err || !zip) return reject(err ?? new Error('not a zip'))
+      const out: { name: string; bytes: Buffer }[] = []
+      zip.on('error', reject)
+      zip.on('end', () => resolve(out))
+      zip.on('entry', (entry: yauzl.Entry) => {
+        zip.openReadStream(entry, (e, stream) => {
+          if (e || !stream) return reject(e ?? new Error(`cannot read ${entry.fileName}`))
+          const chunks: Buffer[] = []
+          stream.on('data', (c: Buffer) => chunks.push(c))
+          stream.on('error', reject)
+          stream.on('end', () => {
+            out.push({ name: entry.fileName, bytes: Buffer.concat(chunks) })
+            zip.readEntry()
+          })
+        })
+      })
+      zip.readEntry()
+    })
+  })
+}
