@@ -13,7 +13,7 @@
  */
 import { PassThrough } from 'node:stream'
 import type { Readable } from 'node:stream'
-import archiver from 'archiver'
+import { ZipArchive } from 'archiver'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import type { Database } from '../db/client'
 import { AppError, forbidden, notFound } from '../errors'
@@ -157,8 +157,8 @@ export async function moduleReportsZip(
   if (!mod || !course) throw notFound('That module')
   const ids = await countedSubmissionIds(db, e.courseId, moduleId)
 
-  // https://www.archiverjs.com/docs/archiver
-  const zip = archiver('zip', { zlib: { level: 6 } })
+  // https://www.archiverjs.com/docs/archiver (version 8: one class per format)
+  const zip = new ZipArchive({ zlib: { level: 6 } })
   const out = new PassThrough()
   zip.on('warning', (err) => out.destroy(err))
   zip.on('error', (err) => out.destroy(err))
