@@ -249,8 +249,8 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
     ...(showExpected
       ? [{ title: 'Expected', width: 74, role: 'mono' as const, size: 8, align: 'right' as const, cell: (c: ReportCheck) => valueText(c.expected, c.unit) }]
       : []),
-    { title: 'Error', width: 46, role: 'mono', size: 8, align: 'right', cell: (c) => percentText(c.relError) },
-    { title: 'Tolerance', width: 70, role: 'mono', size: 8, align: 'right', cell: (c) => (c.tolerance === null ? '—' : `± ${valueText(c.tolerance, c.unit)}`) },
+    { title: 'Error', width: 42, role: 'mono', size: 8, align: 'right', cell: (c) => percentText(c.relError) },
+    { title: 'Tolerance', width: 80, role: 'mono', size: 8, align: 'right', cell: (c) => (c.tolerance === null ? '—' : `± ${valueText(c.tolerance, c.unit)}`) },
     {
       title: 'Points',
       width: 50,

@@ -3,10 +3,10 @@ import request from 'supertest'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import type { MySubmissions } from '../../shared/schemas/submissions'
 import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
-import { readPdf, squash } from '../helpers/pdf'
+import { readPdf, readZip, squash } from '../helpers/pdf'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -87,6 +87,8 @@ describe('journey 4: a student downloads the graded feedback report', () => {
     const [download] = await Promise.all([page.waitForEvent('download'), link.click()])
     expect(download.suggestedFilename()).toMatch(/^cold-flow-characterisation_group-a4_attempt-\d+\.pdf$/)
     const file = await download.path()
+    // Kept with the screenshots, for a person to look at.
+    await download.saveAs(screenshotPath('feedback-report-a4').replace(/\.png$/, '.pdf'))
     const pdf = await readPdf(readFileSync(file))
     expect(pdf.text).toContain(score)
     expect(pdf.text).toContain(comment)
@@ -96,6 +98,29 @@ describe('journey 4: a student downloads the graded feedback report', () => {
     await page.setViewportSize({ width: 375, height: 812 })
     await noSideways(page)
     await page.screenshot({ path: screenshotPath('feedback-report-link-375'), fullPage: true })
+    await ctx.close()
+  }, 120_000)
+
+  it('the instructor downloads every lab group’s report of the module as one zip from the module page', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 }, acceptDownloads: true })
+    const page = await ctx.newPage()
+    await signIn(page, app.url, DEMO_INSTRUCTOR.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    await page.getByRole('link', { name: COLD_FLOW_TITLE }).first().click()
+    await page.getByRole('heading', { level: 1, name: COLD_FLOW_TITLE }).waitFor()
+    const link = page.getByRole('link', { name: 'Download all reports (zip)' })
+    await page.screenshot({ path: screenshotPath('module-reports-zip-desktop') })
+    const [download] = await Promise.all([page.waitForEvent('download'), link.click()])
+    expect(download.suggestedFilename()).toBe('prl-341_cold-flow-characterisation_feedback-reports.zip')
+    const entries = await readZip(readFileSync(await download.path()))
+    const groups = entries.map((e) => /_group-([a-z]\d)_attempt-\d+\.pdf$/.exec(e.name)?.[1]?.toUpperCase())
+    // One report per lab group that handed in (other test files may add B3's hand-in).
+    const seeded = [...new Set(DEMO_STUDENTS.map((s) => s.labGroup))].filter((g) => g !== DEMO_GROUP_WITHOUT_HAND_IN)
+    expect(new Set(groups).size).toBe(groups.length)
+    for (const g of seeded) expect(groups).toContain(g)
+    for (const e of entries) expect(e.bytes.subarray(0, 5).toString('latin1')).toBe('%PDF-')
+    await page.setViewportSize({ width: 375, height: 812 })
+    await noSideways(page)
     await ctx.close()
   }, 120_000)
 })
