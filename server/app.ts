@@ -20,6 +20,7 @@ import { gradeRoutes } from './routes/grades'
 import { healthRoutes } from './routes/health'
 import { invitationRoutes } from './routes/invitations'
 import { moduleRoutes } from './routes/modules'
+import { reportRoutes } from './routes/reports'
 import { reviewRoutes } from './routes/review'
 import { rosterImportRoutes } from './routes/roster-import'
 import { handInRoutes } from './routes/submissions'
@@ -132,6 +133,8 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   api.use('/courses/:courseId', handInRoutes(db, { appUrl: config.APP_URL, uploadLimitMb: config.UPLOAD_LIMIT_MB, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId', gradeRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
+  // Feedback reports; before the module router, so /modules/:moduleId/reports.zip is answered here.
+  api.use('/courses/:courseId', reportRoutes(db))
   api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
   api.use('/courses/:courseId', courseAdminRoutes(db))
   api.use('/courses', courseRoutes(db))

@@ -361,6 +361,17 @@ const CASES: Case[] = [
         .send({ status: 'in-review', revision: await revisionSeenBy(c, fx) }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
+  // Feedback reports
+  {
+    route: 'GET /api/courses/:courseId/submissions/:submissionId/report.pdf',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/report.pdf`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/reports.zip',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${mods.coldFlow!.id}/reports.zip`),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
   {
     route: 'GET /api/courses/:courseId/modules/:moduleId/export',
     call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/export`),

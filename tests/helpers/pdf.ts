@@ -1,0 +1,111 @@
+import yauzl from 'yauzl'
+
+// pdf.js 6 is written for Node 22 (engines: >=22.13); on Node 20 it needs Promise.withResolvers and
+// ArrayBuffer.prototype.transferToFixedLength (ES2024), added here before pdf.js is loaded. Without
+// the second, getOperatorList quietly returns a nearly empty list.
+// https://developer.mozilla.org/en-US/docs/Web/JavaScript/Reference/Global_Objects/Promise/withResolvers
+// https://developer.mozilla.org/en-US/docs/Web/JavaScript/Reference/Global_Objects/ArrayBuffer/transferToFixedLength
+const P = Promise as unknown as { withResolvers?: () => unknown }
+P.withResolvers ??= function withResolvers<T>() {
+  let resolve!: (value: T | PromiseLike<T>) => void
+  let reject!: (reason?: unknown) => void
+  const promise = new Promise<T>((res, rej) => {
+    resolve = res
+    reject = rej
+  })
+  return { promise, resolve, reject }
+}
+const AB = ArrayBuffer.prototype as unknown as { transferToFixedLength?: (n?: number) => ArrayBuffer; transfer?: (n?: number) => ArrayBuffer }
+AB.transferToFixedLength ??= function transferToFixedLength(this: ArrayBuffer, length = this.byteLength) {
+  // A copy rather than a move: enough for reading, where nothing uses the old buffer again.
+  const out = new ArrayBuffer(length)
+  new Uint8Array(out).set(new Uint8Array(this, 0, Math.min(length, this.byteLength)))
+  return out
+}
+AB.transfer ??= AB.transferToFixedLength
+const pdfjs = await import('pdfjs-dist/legacy/build/pdf.mjs')
+
+/** Whitespace collapsed to single spaces, so wrapped lines compare with the text that was wrapped. */
+export const squash = (s: string) => s.replace(/\s+/g, ' ').trim()
+
+export interface PdfRead {
+  pages: number
+  /** Each page's text as pdf.js extracts it, whitespace collapsed. */
+  pageTexts: string[]
+  /** All pages' text, whitespace collapsed. */
+  text: string
+  /** Per page, how many times each drawing operator occurs (by pdf.js's OPS names). */
+  operators: Record<string, number>[]
+  /** Per page, the length of the longest path pdf.js built (numbers in its path data). */
+  longestPath: number[]
+}
+
+/** The size of a constructPath's path data, wherever this pdf.js version keeps it in the arguments. */
+function pathSize(args: unknown): number {
+  if (ArrayBuffer.isView(args)) return (args as Float32Array).length
+  if (Array.isArray(args)) return Math.max(0, ...args.map(pathSize))
+  return 0
+}
+
+const OP_NAMES = new Map(Object.entries(pdfjs.OPS).map(([name, code]) => [code as number, name]))
+
+/** Reads a PDF with pdf.js (the legacy build, which runs in Node): text and drawing operators of every page. */
+export async function readPdf(bytes: Buffer): Promise<PdfRead> {
+  const task = pdfjs.getDocument({ data: new Uint8Array(bytes), useSystemFonts: false, disableFontFace: true, verbosity: 0 })
+  const doc = await task.promise
+  const pageTexts: string[] = []
+  const operators: Record<string, number>[] = []
+  const longestPath: number[] = []
+  for (let i = 1; i <= doc.numPages; i++) {
+    const page = await doc.getPage(i)
+    const content = await page.getTextContent()
+    // Items of one line follow each other; hasEOL marks a line end (a wrapped line or a new paragraph).
+    const text = content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? ' ' : '') : '')).join('')
+    pageTexts.push(squash(text))
+    const list = await page.getOperatorList()
+    const counts: Record<string, number> = {}
+    let longest = 0
+    list.fnArray.forEach((fn, k) => {
+      const name = OP_NAMES.get(fn) ?? String(fn)
+      counts[name] = (counts[name] ?? 0) + 1
+      if (fn === pdfjs.OPS.constructPath) longest = Math.max(longest, pathSize(list.argsArray[k]))
+    })
+    operators.push(counts)
+    longestPath.push(longest)
+  }
+  await task.destroy()
+  return { pages: doc.numPages, pageTexts, text: squash(pageTexts.join(' ')), operators, longestPath }
+}
+
+/** The fonts a PDF names: every /BaseFont and how many embedded font programs it carries. */
+export function pdfFonts(bytes: Buffer): { baseFonts: string[]; fontFiles: number } {
+  const raw = bytes.toString('latin1')
+  const baseFonts = [...new Set([...raw.matchAll(/\/BaseFont\s*\/([^\s/<>[\]()]+)/g)].map((m) => m[1]!))]
+  const fontFiles = [...raw.matchAll(/\/FontFile[23]?\s+\d+\s+0\s+R/g)].length
+  return { baseFonts, fontFiles }
+}
+
+/** A zip's entries and their bytes, read back with yauzl. */
+export function readZip(bytes: Buffer): Promise<{ name: string; bytes: Buffer }[]> {
+  return new Promise((resolve, reject) => {
+    yauzl.fromBuffer(bytes, { lazyEntries: true }, (err, zip) => {
+      if (err || !zip) return reject(err ?? new Error('not a zip'))
+      const out: { name: string; bytes: Buffer }[] = []
+      zip.on('error', reject)
+      zip.on('end', () => resolve(out))
+      zip.on('entry', (entry: yauzl.Entry) => {
+        zip.openReadStream(entry, (e, stream) => {
+          if (e || !stream) return reject(e ?? new Error(`cannot read ${entry.fileName}`))
+          const chunks: Buffer[] = []
+          stream.on('data', (c: Buffer) => chunks.push(c))
+          stream.on('error', reject)
+          stream.on('end', () => {
+            out.push({ name: entry.fileName, bytes: Buffer.concat(chunks) })
+            zip.readEntry()
+          })
+        })
+      })
+      zip.readEntry()
+    })
+  })
+}

@@ -1,0 +1,97 @@
+import { describe, expect, it } from 'vitest'
+import { feedbackPdfBuffer, niceTicks } from '../../server/reports/feedback-pdf'
+import type { FeedbackReportData } from '../../server/reports/feedback-pdf'
+import { fontRuns } from '../../server/reports/fonts'
+import { fileSlug } from '../../server/reports/format'
+import { markdownToParagraphs } from '../../server/reports/plain-text'
+import { pdfFonts, readPdf } from '../helpers/pdf'
+
+function report(over: Partial<FeedbackReportData> = {}): FeedbackReportData {
+  const time = Array.from({ length: 120 }, (_, i) => i * 0.05)
+  return {
+    course: { code: 'PRL 341', title: 'Test lab', term: 'Winter 2027', institution: 'Test University (fictional)', timeZone: 'UTC' },
+    module: { title: 'Cold-flow run', version: 3 },
+    owner: { kind: 'student', name: 'Dalia Dunmere' },
+    attempt: 1,
+    attemptsAllowed: 3,
+    submittedAt: new Date('2027-02-09T17:00:00Z'),
+    submittedBy: 'Dalia Dunmere',
+    lateness: { isLate: false, daysLate: 0, penalty: 0 },
+    score: { score: 7, maxScore: 10, rawScore: 7, computedBeforeOverride: null },
+    checks: [],
+    flags: [],
+    comments: [],
+    chart: { time, thrust: time.map((t) => 30 * Math.exp(-t)), supersonicSpans: [] },
+    generatedAt: new Date('2027-02-10T09:00:00Z'),
+    ...over,
+  }
+}
+
+describe('the feedback report layout', () => {
+  it('breaks a long checks table and a long comment across pages, repeating the table header and numbering every page', async () => {
+    const checks = Array.from({ length: 70 }, (_, i) => ({
+      label: `Result number ${i + 1}`,
+      unit: 'N*s',
+      reported: 100 + i,
+      expected: null,
+      relError: 0.01,
+      tolerance: 3,
+      pointsAwarded: 1,
+      pointsPossible: 1,
+      outcome: 'pass' as const,
+      adjusted: false,
+    }))
+    const words = Array.from({ length: 900 }, (_, i) => `word${i}`).join(' ')
+    const pdf = await readPdf(await feedbackPdfBuffer(report({ checks, comments: [{ author: 'Ines Vallory', at: new Date(), paragraphs: [words, 'Last paragraph.'] }] })))
+    expect(pdf.pages).toBeGreaterThanOrEqual(4)
+    pdf.pageTexts.forEach((t, i) => expect(t).toContain(`Page ${i + 1} of ${pdf.pages}`))
+    // Every row is printed once, and the header opens each page the table runs onto.
+    for (const c of checks) expect(pdf.text.split(`${c.label} `).length - 1).toBe(1)
+    const tablePages = pdf.pageTexts.filter((t) => /Result number \d+/.test(t))
+    expect(tablePages.length).toBeGreaterThan(1)
+    for (const t of tablePages) expect(t).toContain('Result Your value Error Tolerance Points Outcome')
+    // The comment is whole, in order, and its last paragraph follows it.
+    expect(pdf.text).toContain('word0 word1 word2')
+    expect(pdf.text).toContain('word898 word899 Last paragraph.')
+  })
+
+  it('sets letters beyond Latin-1 in the latin-ext file and writes out symbols the fonts lack', async () => {
+    const runs = fontRuns('Dvořák ≤ 3', 'serif')
+    expect(runs.map((r) => r.text).join('')).toBe('Dvořák <= 3')
+    expect(runs.find((r) => r.text === 'ř')?.font).toBe('noto-serif-latin-ext-400')
+    expect(runs[0]!.font).toBe('noto-serif-latin-400')
+    // Superscript digits come from Noto Serif's math file, even in the mono role.
+    expect(fontRuns('10⁻⁵', 'mono').map((r) => r.font)).toEqual(['jetbrains-mono-latin-400', 'noto-serif-math-400'])
+    const bytes = await feedbackPdfBuffer(report({ owner: { kind: 'group', name: 'Group Ø', members: ['Anežka Dvořák', 'Łukasz Żmuda'] } }))
+    const pdf = await readPdf(bytes)
+    expect(pdf.text).toContain('Anežka Dvořák, Łukasz Żmuda')
+    expect(pdfFonts(bytes).baseFonts.every((f) => /^[A-Z]{6}\+(NotoSerif|SourceSans3|JetBrainsMono)-/.test(f))).toBe(true)
+  })
+})
+
+describe('staff comments as plain text', () => {
+  it('keeps the words, drops the markup, and leaves typed HTML as literal text', () => {
+    expect(markdownToParagraphs('**Good run.** Check the [log](https://x.example/l).\n\n1. one\n2. two\n\n<script>alert(1)</script>')).toEqual([
+      'Good run. Check the log (https://x.example/l).',
+      '1. one',
+      '2. two',
+      '<script>alert(1)</script>',
+    ])
+    expect(markdownToParagraphs('A bare link https://x.example/a and `code`.')).toEqual(['A bare link https://x.example/a and code.'])
+  })
+})
+
+describe('report helpers', () => {
+  it('makes safe file names', () => {
+    expect(fileSlug('Group A1')).toBe('group-a1')
+    expect(fileSlug('Dvořák, Anežka')).toBe('dvorak-anezka')
+    expect(fileSlug('../../etc/passwd')).toBe('etc-passwd')
+    expect(fileSlug('***')).toBe('report')
+  })
+
+  it('picks round tick steps covering the range', () => {
+    expect(niceTicks(0, 21.9, 8).ticks).toEqual([0, 5, 10, 15, 20, 25])
+    expect(niceTicks(0, 870, 6).ticks).toEqual([0, 200, 400, 600, 800, 1000])
+    expect(niceTicks(0, 0, 6).ticks).toEqual([0, 0.2, 0.4, 0.6, 0.8, 1])
+  })
+})
