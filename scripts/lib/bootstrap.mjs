@@ -3,7 +3,7 @@
 // packages, npm dependencies), then owns a MariaDB server bound to 127.0.0.1 whose data lives
 // under the git-ignored .data/ folder.
 import { spawn, spawnSync } from 'node:child_process'
-import { randomBytes } from 'node:crypto'
+import { createHash, randomBytes } from 'node:crypto'
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs'
 import { setTimeout as sleep } from 'node:timers/promises'
 import path from 'node:path'
@@ -56,13 +56,23 @@ export function ensureDebianPackages(wanted) {
   run(cmd, [...pre, 'install', '-y', '-qq', '--no-install-recommends', ...missing], { env })
 }
 
-/** `npm ci` when node_modules is missing or older than package-lock.json. */
+/** `npm ci` when node_modules is missing or was installed from a different package-lock.json. */
 export function ensureNodeModules() {
   const lock = path.join(ROOT, 'package-lock.json')
-  const marker = path.join(ROOT, 'node_modules', '.package-lock.json')
-  if (existsSync(marker) && statSync(marker).mtimeMs >= statSync(lock).mtimeMs) return
+  // The lock file's content decides, not its date: a fresh checkout or a second working copy has
+  // a newer lock file than an install that already matches it.
+  const marker = path.join(ROOT, 'node_modules', '.isentrope-lock-sha256')
+  const want = createHash('sha256').update(readFileSync(lock)).digest('hex')
+  if (existsSync(marker) && readFileSync(marker, 'utf8').trim() === want) return
+  const npmMarker = path.join(ROOT, 'node_modules', '.package-lock.json')
+  // Installs made before the marker existed: trust npm's own record when it is newer than the lock.
+  if (!existsSync(marker) && existsSync(npmMarker) && statSync(npmMarker).mtimeMs >= statSync(lock).mtimeMs) {
+    writeFileSync(marker, want + '\n')
+    return
+  }
   log('installing npm dependencies (npm ci)')
   run('npm', ['ci', '--no-audit', '--no-fund'])
+  writeFileSync(marker, want + '\n')
 }
 
 /**
