@@ -27,14 +27,16 @@ async function apiAs(email: string) {
   return { agent, csrf: signed.body.csrfToken as string }
 }
 
-/**
- * ── GRADE RELEASE GOES HERE ──────────────────────────────────────────────────────────────────
- * Lead: after merging the gradebook branch, release the cold-flow grades here as the instructor,
- * `POST /api/courses/:courseId/gradebook/modules/:moduleId/release` (with the CSRF header).
- * The demo cold-flow module shows results at once (`results: immediately`), so the journey
- * passes without it today.
- */
-async function releaseGrades(_moduleId: number): Promise<void> {}
+/** The instructor releases the module's grades (the same call the gradebook's release button makes). */
+async function releaseGrades(moduleId: number): Promise<void> {
+  const instructor = await apiAs(DEMO_INSTRUCTOR.email)
+  const res = await instructor.agent
+    .post(`/api/courses/${courseId}/gradebook/modules/${moduleId}/release`)
+    .set('x-csrf-token', instructor.csrf)
+    .expect(200)
+  expect(res.body.moduleId).toBe(moduleId)
+  expect(Number.isNaN(Date.parse(res.body.releasedAt))).toBe(false)
+}
 
 beforeAll(async () => {
   app = await serveApp()
@@ -72,8 +74,11 @@ describe('journey 4: a student downloads the graded feedback report', () => {
     const page = await ctx.newPage()
     await signIn(page, app.url, student.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
-    await page.getByRole('link', { name: COLD_FLOW_TITLE }).first().click()
-    await page.getByTestId('hand-in-panel').getByRole('link', { name: `Attempt ${latest.attempt}`, exact: true }).click()
+    // My grades shows the module as released and leads to the counted result.
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My grades' }).click()
+    const row = page.getByTestId('my-grades-table').locator('tr', { has: page.getByRole('rowheader', { name: COLD_FLOW_TITLE }) })
+    await expect.poll(() => row.getAttribute('data-state')).toBe('released')
+    await row.getByRole('link', { name: /See the result/ }).click()
     await page.getByRole('heading', { level: 1, name: new RegExp(`^Attempt ${latest.attempt}:`) }).waitFor()
 
     // The comment, as the student reads it (Markdown emphasis rendered).

@@ -1,0 +1,50 @@
+import { defineStore } from 'pinia'
+import { ref, watch } from 'vue'
+import type { CourseRole } from '@shared/schemas/auth'
+import { fetchMyCourses } from '@/api/courses'
+import { useSessionStore } from './session'
+
+/**
+ * The signed-in person's role in each of their courses, loaded once from "my courses" and shared
+ * by every course page's navigation. Forgotten when a different person signs in (or out).
+ */
+export const useCourseRolesStore = defineStore('course-roles', () => {
+  const session = useSessionStore()
+  const roles = ref<Record<number, CourseRole>>({})
+  let loadedFor: number | null = null
+  let loading: Promise<void> | null = null
+
+  watch(
+    () => session.user?.id ?? null,
+    () => {
+      roles.value = {}
+      loadedFor = null
+    },
+  )
+
+  function load(): Promise<void> {
+    const userId = session.user?.id ?? null
+    if (userId === null || loadedFor === userId) return Promise.resolve()
+    loading ??= fetchMyCourses()
+      .then((list) => {
+        if ((session.user?.id ?? null) !== userId) return
+        roles.value = Object.fromEntries(list.map((c) => [c.id, c.role]))
+        loadedFor = userId
+      })
+      // Navigation falls back to the links every member has; the page itself reports errors.
+      .catch(() => undefined)
+      .finally(() => {
+        loading = null
+      })
+    return loading
+  }
+
+  /** The role in one course, or null until it is known (starts loading on first ask). */
+  function roleIn(courseId: number): CourseRole | null {
+    const known = roles.value[courseId]
+    if (known === undefined) void load()
+    return known ?? null
+  }
+
+  return { roleIn }
+})
