@@ -142,7 +142,7 @@ export async function changeLabGroup(db: Database, e: CourseEnrollment, labGroup
         if (elsewhere.length) {
           throw new AppError(
             'section_mismatch',
-            `${elsewhere.map((m) => m.displayName).join(', ')} ${elsewhere.length === 1 ? 'is' : 'are'} in another section; a group tied to a section takes only students of that section. Move ${elsewhere.length === 1 ? 'them' : 'them'} first, or leave the group untied.`,
+            `${elsewhere.map((m) => m.displayName).join(', ')} ${elsewhere.length === 1 ? 'is' : 'are'} in another section; a group tied to a section takes only students of that section. Move them first, or leave the group untied.`,
             409,
             { field: 'sectionId' },
           )

@@ -38,8 +38,9 @@ import { escapeHtml } from './text'
  *
  * Rules (also shown on the import screen):
  * - Sections and lab groups named in the file that the course lacks are created.
- * - An empty section or group cell leaves an existing person's section or group as it is; an
- *   import never removes anyone or clears anything.
+ * - An empty role, section or group cell leaves an enrolled person's role, section or group as
+ *   it is (a new person with an empty role is a student); an import never removes anyone or
+ *   clears anything.
  * - A new person gets an account without a password and an invitation e-mail with a
  *   set-password link. A person whose account already has a password gets a short "added to the
  *   course" e-mail when newly enrolled, and nothing when already enrolled.
@@ -57,6 +58,8 @@ const q = (s: string) => `"${s}"`
 interface PlannedRow {
   view: RosterImportRow
   parsed: ParsedRosterRow
+  /** The role to give: the file's, or for an empty cell the current one (new people: student). */
+  role: 'student' | 'ta'
   person: KnownPerson | null
   /** Section to set (by lower-cased name), or null to leave as is. */
   sectionKey: string | null
@@ -136,14 +139,19 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date): Pro
       newSections.set(sectionKey, spelling.get(sectionKey) ?? sectionKey)
     }
     const person = personByEmail.get(r.email) ?? null
-    if (person?.enrollment?.role === 'instructor') {
+    const current = person?.enrollment?.role ?? null
+    if (current === 'instructor') {
       problems.push({ column: 'role', message: 'role: this person teaches this course; an import does not change instructors.' })
+    }
+    const role = r.roleGiven || current === null || current === 'instructor' ? r.role : current
+    if (role === 'ta' && !r.roleGiven && groupKey !== null) {
+      problems.push({ column: 'group', message: 'group: this person is a teaching assistant here, and teaching assistants are not put in lab groups.' })
     }
     const view: RosterImportRow = {
       row: r.row,
       email: r.email,
       displayName: r.displayName,
-      role: r.role,
+      role,
       section: sectionKey === null ? null : sectionName(sectionKey),
       group: groupKey === null ? null : (groupByKey.get(groupKey)?.name ?? newGroups.get(groupKey)?.name ?? r.group),
       kind: 'invalid',
@@ -152,14 +160,14 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date): Pro
       invite: false,
       notify: false,
     }
-    if (problems.length > 0) return { view, parsed: r, person, sectionKey, groupKey }
+    if (problems.length > 0) return { view, parsed: r, role, person, sectionKey, groupKey }
 
     const sectionNote = (key: string) => (sectionByKey.has(key) ? '' : ' (a new section)')
     const groupNote = (key: string) => (groupByKey.has(key) ? '' : ' (a new lab group)')
     const changes: string[] = []
     if (!person) {
       view.kind = 'new'
-      changes.push(`account created and enrolled as ${ROLE_WORDS[r.role]}`)
+      changes.push(`account created and enrolled as ${ROLE_WORDS[role]}`)
       if (sectionKey !== null) changes.push(`section ${view.section}${sectionNote(sectionKey)}`)
       if (groupKey !== null) changes.push(`lab group ${view.group}${groupNote(groupKey)}`)
       view.invite = true
@@ -167,11 +175,11 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date): Pro
       view.kind = 'existing'
       const e = person.enrollment
       if (!e) {
-        changes.push(`enrolled as ${ROLE_WORDS[r.role]} (has an account)`)
+        changes.push(`enrolled as ${ROLE_WORDS[role]} (has an account)`)
         if (sectionKey !== null) changes.push(`section ${view.section}${sectionNote(sectionKey)}`)
         if (groupKey !== null) changes.push(`lab group ${view.group}${groupNote(groupKey)}`)
       } else {
-        if (e.role !== r.role) changes.push(`role ${ROLE_WORDS[e.role]} → ${ROLE_WORDS[r.role]}`)
+        if (e.role !== role) changes.push(`role ${ROLE_WORDS[e.role]} → ${ROLE_WORDS[role]}`)
         const currentSection = e.sectionId !== null ? (sectionById.get(e.sectionId)?.name ?? null) : null
         if (sectionKey !== null && currentSection?.toLowerCase() !== sectionKey) {
           changes.push(`section ${currentSection ?? 'none'} → ${view.section}${sectionNote(sectionKey)}`)
@@ -189,7 +197,7 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date): Pro
       }
     }
     view.changes = changes
-    return { view, parsed: r, person, sectionKey, groupKey }
+    return { view, parsed: r, role, person, sectionKey, groupKey }
   })
 
   const views = rows.map((r) => r.view)
@@ -286,7 +294,7 @@ export async function confirmRosterImport(
         const enrolled = r.person?.enrollment ?? null
         const write: EnrollmentWrite = {
           userId,
-          role: r.parsed.role,
+          role: r.role,
           sectionId: r.sectionKey !== null ? (sectionId.get(r.sectionKey) ?? null) : (enrolled?.sectionId ?? null),
           labGroupId: r.groupKey !== null ? (groupId.get(r.groupKey) ?? null) : (enrolled?.labGroupId ?? null),
         }
@@ -312,7 +320,7 @@ export async function confirmRosterImport(
           invitationMail({
             to: { email: i.r.parsed.email, displayName: i.r.person?.displayName ?? i.r.parsed.displayName },
             course,
-            role: i.r.parsed.role,
+            role: i.r.role,
             link: `${base}/invitations/${i.token}`,
             expires: formatInZone(expiresAt, course.timeZone),
             invitationId: ids.get(i.tokenHash)!,
@@ -324,7 +332,7 @@ export async function confirmRosterImport(
             enrolledMail({
               to: { email: r.parsed.email, displayName: r.person?.displayName ?? r.parsed.displayName },
               course,
-              role: r.parsed.role,
+              role: r.role,
               link: `${base}/courses/${e.courseId}`,
               courseId: e.courseId,
             }),

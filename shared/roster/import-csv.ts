@@ -52,6 +52,8 @@ export interface ParsedRosterRow {
   email: string
   displayName: string
   role: ImportRole
+  /** False when the role cell was empty: a new person is a student, an enrolled one keeps their role. */
+  roleGiven: boolean
   section: string | null
   group: string | null
   problems: RosterRowProblem[]
@@ -174,7 +176,7 @@ function readRow(row: number, cells: string[], cell: (cells: string[], c: Roster
   if (group !== null && role === 'ta') {
     problems.push({ column: 'group', message: 'group: teaching assistants are not put in lab groups; leave the cell empty.' })
   }
-  return { row, email, displayName, role, section, group, problems }
+  return { row, email, displayName, role, roleGiven: roleText !== '', section, group, problems }
 }
 
 /** The same e-mail twice: both rows are refused, each naming the other. */

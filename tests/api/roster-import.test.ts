@@ -195,6 +195,13 @@ describe('roster import: refused files', () => {
     expect(await userByEmail(`ok.${t}@import.example`)).toBeNull()
   })
 
+  it('an empty role cell keeps an enrolled teaching assistant a teaching assistant', async () => {
+    const res = await post(inst, PREVIEW(), { csv: `email,name,role,section\n${fx.ta.email},TA,,A\n` }).expect(200)
+    expect(res.body.rows[0]).toMatchObject({ kind: 'existing', role: 'ta', changes: [] })
+    const demote = await post(inst, PREVIEW(), { csv: `email,name,role\n${fx.ta.email},TA,student\n` }).expect(200)
+    expect(demote.body.rows[0].changes).toEqual(['role teaching assistant → student'])
+  })
+
   it('refuses the fixture instructor being imported as a student', async () => {
     const res = await post(inst, PREVIEW(), { csv: `email,name\n${fx.instructor.email},Me\n` }).expect(200)
     expect(res.body.rows[0].problems[0]).toMatchObject({ column: 'role' })
