@@ -29,6 +29,7 @@ import {
   setGradesReleased,
   setModuleWeight,
 } from '../repositories/grades'
+import { listExtensions } from '../repositories/due-extensions'
 import { courseTimeZone, findModule, findVersions, listModuleRows } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
 import { regradeViews } from './regrade-service'
@@ -75,8 +76,27 @@ async function gradedModules(db: Database, courseId: number): Promise<GradedModu
   return out
 }
 
-/** A closed module, or one whose due date has passed: no hand-in there counts as 0 %. */
-const isPastDue = (m: GradedModule, now: Date) => m.status === 'closed' || (m.dueAt !== null && now.getTime() >= m.dueAt.getTime())
+/** Each student's extended due dates, keyed by module and person. */
+type Extensions = ReadonlyMap<string, Date>
+const extensionKey = (moduleId: number, userId: number) => `${moduleId}:${userId}`
+const NO_EXTENSIONS: Extensions = new Map()
+
+async function extensionsOf(db: Database, courseId: number): Promise<Extensions> {
+  const rows = await listExtensions(db, courseId)
+  return new Map(rows.map((r) => [extensionKey(r.moduleId, r.userId), r.dueAt]))
+}
+
+/**
+ * A closed module, or one whose due date (the student's extended one, if granted) has passed:
+ * no hand-in there counts as 0 %.
+ */
+function isPastDue(m: GradedModule, now: Date, userId: number, ext: Extensions): boolean {
+  if (m.status === 'closed') return true
+  if (m.dueAt === null) return false
+  const extended = ext.get(extensionKey(m.id, userId))
+  const due = extended && extended.getTime() > m.dueAt.getTime() ? extended : m.dueAt
+  return now.getTime() >= due.getTime()
+}
 
 /**
  * The counting rule: the latest graded attempt of the student's own hand-ins, or of their lab
@@ -125,7 +145,7 @@ function scopeOf(e: CourseEnrollment, q: GradebookQuery): GradebookQuery | null 
 export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQuery, now = new Date()): Promise<Gradebook> {
   const scope = scopeOf(e, q)
   const mods = await gradedModules(db, e.courseId)
-  const [students, graded, allSections, allGroups, everyone] = await Promise.all([
+  const [students, graded, allSections, allGroups, everyone, ext] = await Promise.all([
     scope ? listStudents(db, e.courseId, scope) : Promise.resolve([] as StudentRow[]),
     listGraded(
       db,
@@ -135,6 +155,7 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
     listSectionOptions(db, e.courseId),
     listLabGroupOptions(db, e.courseId),
     listStudents(db, e.courseId),
+    extensionsOf(db, e.courseId),
   ])
 
   const rows: GradebookStudent[] = students.map((st) => {
@@ -143,8 +164,9 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
       const s = countedFor(st, m, graded)
       if (s) cells[String(m.id)] = cellOf(s)
     }
-    const totalPercent = weightedTotal(mods.map((m) => ({ weight: m.weight, percent: cells[String(m.id)]?.percent ?? null, pastDue: isPastDue(m, now) })))
-    return { ...st, cells, totalPercent }
+    const totalPercent = weightedTotal(mods.map((m) => ({ weight: m.weight, percent: cells[String(m.id)]?.percent ?? null, pastDue: isPastDue(m, now, st.userId, ext) })))
+    const extendedOpen = mods.filter((m) => isPastDue(m, now, 0, NO_EXTENSIONS) && !isPastDue(m, now, st.userId, ext)).map((m) => m.id)
+    return { ...st, cells, totalPercent, extendedOpen }
   })
 
   const countedIds = new Set<number>()
@@ -180,7 +202,8 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
     status: m.status,
     weight: m.weight,
     dueAt: m.dueAt?.toISOString() ?? null,
-    pastDue: isPastDue(m, now),
+    // The module's own due date; students with a later extension are listed in `extendedOpen`.
+    pastDue: isPastDue(m, now, 0, NO_EXTENSIONS),
     releasedAt: m.releasedAt?.toISOString() ?? null,
     results: m.fm.results,
     groupSubmission: m.fm.groupSubmission,
@@ -280,13 +303,14 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
   if (e.role !== 'student') throw forbidden('“My grades” is for students; staff see every grade in the gradebook.')
   const course = await courseTimeZone(db, e.courseId)
   const mods = await gradedModules(db, e.courseId)
-  const [graded, attempts] = await Promise.all([
+  const [graded, attempts, ext] = await Promise.all([
     listGraded(
       db,
       e.courseId,
       mods.map((m) => m.id),
     ),
     listAttemptsOf(db, e.courseId, e.userId, e.labGroupId),
+    extensionsOf(db, e.courseId),
   ])
   const me = { userId: e.userId, labGroupId: e.labGroupId }
   const counted = new Map<number, GradedRow>()
@@ -350,7 +374,7 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
       return {
         weight: m.weight,
         percent: shown ? percentOf(r.points!, r.maxScore!) : null,
-        pastDue: r.state === 'not-handed-in' || r.state === 'awaiting-grade' ? isPastDue(m, now) : false,
+        pastDue: r.state === 'not-handed-in' || r.state === 'awaiting-grade' ? isPastDue(m, now, e.userId, ext) : false,
       }
     }),
   )

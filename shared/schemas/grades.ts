@@ -105,6 +105,8 @@ export interface GradebookStudent {
   cells: Record<string, GradebookCell>
   /** Weighted total in percent; null when no module counts yet. */
   totalPercent: number | null
+  /** Modules (by id) whose due date this student has had extended to a time not yet reached. */
+  extendedOpen: number[]
 }
 
 export interface CheckFailures {

@@ -234,6 +234,25 @@ describe('the gradebook', () => {
     expect(rowOf(b, S.s5.email)!.totalPercent).toBe(0)
   })
 
+  it('a student with an extension not yet reached is not counted as missing on that module; once withdrawn, they are', async () => {
+    const ext = `${R()}/extensions/${m3.id}/${S.s5.id}`
+    const later = new Date(Date.now() + 7 * 86_400_000).toISOString()
+    await inst.agent.put(ext).set('x-csrf-token', inst.csrf).send({ dueAt: later, note: 'Gradebook test' }).expect(200)
+    try {
+      const b = await book(inst)
+      // M3's own due date has passed, but S5's extended one has not: no module counts for S5 yet.
+      expect(b.modules.find((m) => m.id === m3.id)!.pastDue).toBe(true)
+      expect(rowOf(b, S.s5.email)!.extendedOpen).toEqual([m3.id])
+      expect(rowOf(b, S.s5.email)!.totalPercent).toBeNull()
+      expect(rowOf(b, S.s2.email)!.extendedOpen).toEqual([])
+    } finally {
+      await inst.agent.delete(ext).set('x-csrf-token', inst.csrf).expect(200)
+    }
+    const after = await book(inst)
+    expect(rowOf(after, S.s5.email)!.extendedOpen).toEqual([])
+    expect(rowOf(after, S.s5.email)!.totalPercent).toBe(0)
+  })
+
   it('a TA sees only the students of their own section; filters by section and lab group', async () => {
     const a = await book(taA)
     expect(a.students.map((s) => s.email).sort()).toEqual([S.s1.email, S.s3.email, S.s5.email].sort())
