@@ -17,6 +17,17 @@ import {
   users,
 } from '../db/schema'
 
+/** The flag reasons that occur on the course's hand-ins, each with one flag's message. */
+export async function listFlagReasons(db: Executor, courseId: number): Promise<{ code: string; example: string }[]> {
+  return db
+    .select({ code: submissionFlags.code, example: sql<string>`MIN(${submissionFlags.message})` })
+    .from(submissionFlags)
+    .innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId))
+    .where(eq(submissions.courseId, courseId))
+    .groupBy(submissionFlags.code)
+    .orderBy(asc(submissionFlags.code))
+}
+
 /** The review queue of a course; `sectionId` limits it to one section (a TA's own). */
 export async function listQueue(db: Executor, courseId: number, q: ReviewQuery): Promise<{ rows: ReviewRow[]; total: number }> {
   const where: SQL[] = [eq(submissions.courseId, courseId)]

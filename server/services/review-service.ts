@@ -10,6 +10,7 @@ import {
   insertGradeChange,
   listComments,
   listGradeChanges,
+  listFlagReasons,
   listQueue,
   lockRevision,
   setCheckPoints,
@@ -17,7 +18,9 @@ import {
   submitterSection,
   sumAwarded,
 } from '../repositories/review'
+import { listSectionOptions } from '../repositories/grades'
 import { findSubmission } from '../repositories/submissions'
+import { REGRADE_REASON } from '../../shared/schemas/grades'
 
 /**
  * A TA works the submissions of their own section; the instructor sees every section. A
@@ -35,14 +38,19 @@ export async function inScope(db: Database, e: CourseEnrollment, submissionId: n
 
 export async function reviewQueue(db: Database, e: CourseEnrollment, q: ReviewQuery): Promise<ReviewPage> {
   if (e.role === 'ta') {
-    if (e.sectionId === null) return { rows: [], total: 0, page: q.page, pageSize: q.pageSize }
     if (q.sectionId !== undefined && q.sectionId !== e.sectionId) {
       throw new AppError('forbidden', 'You review the submissions of your own section only.', 403)
     }
+  }
+  const [allSections, reasons] = await Promise.all([listSectionOptions(db, e.courseId), listFlagReasons(db, e.courseId)])
+  const sections = e.role === 'ta' ? allSections.filter((s) => s.id === e.sectionId) : allSections
+  const facets = { sections, reasons: [...reasons, { code: REGRADE_REASON, example: 'A student asked for a regrade' }] }
+  if (e.role === 'ta') {
+    if (e.sectionId === null) return { rows: [], total: 0, page: q.page, pageSize: q.pageSize, facets }
     q = { ...q, sectionId: e.sectionId }
   }
   const { rows, total } = await listQueue(db, e.courseId, q)
-  return { rows, total, page: q.page, pageSize: q.pageSize }
+  return { rows, total, page: q.page, pageSize: q.pageSize, facets }
 }
 
 const conflict = () =>

@@ -31,11 +31,19 @@ export interface ReviewRow {
   flagCodes: string[]
 }
 
+/** A flag reason that occurs in the course, with the words of one of its flags (for the filter). */
+export interface ReviewReason {
+  code: string
+  example: string
+}
+
 export interface ReviewPage {
   rows: ReviewRow[]
   total: number
   page: number
   pageSize: number
+  /** What the filters can offer the caller: the sections they may review, the reasons that occur. */
+  facets: { sections: { id: number; name: string }[]; reasons: ReviewReason[] }
 }
 
 const reason = z

@@ -32,7 +32,7 @@ export const REVIEW_STATUS_WORDS: Record<string, string> = {
 }
 
 export type QueueQuery = Required<Pick<ReviewQuery, 'page' | 'pageSize' | 'sort' | 'order' | 'status'>> &
-  Pick<ReviewQuery, 'moduleId' | 'reason'>
+  Pick<ReviewQuery, 'moduleId' | 'sectionId' | 'reason'>
 
 /** One page of the review queue; re-loads whenever the query changes (server-side paging, sorting, filters). */
 export function useReviewQueue(courseId: Ref<number>, query: Ref<QueueQuery>) {

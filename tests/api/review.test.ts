@@ -2,7 +2,7 @@ import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEFAULT_DEMO_PASSWORD, DEMO_INSTRUCTOR, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { gradeChanges, submissionChecks, submissions } from '../../server/db/schema'
+import { gradeChanges, submissionChecks, submissionFlags, submissions } from '../../server/db/schema'
 import type { Client, TestContext } from '../helpers/app'
 import { signedInAs, startTestApp } from '../helpers/app'
 
@@ -53,6 +53,26 @@ describe('review queue', () => {
     const bad = await inst.agent.get(`${R()}/review?pageSize=1000`)
     expect(bad.status).toBe(400)
     expect(bad.body.error.message).toContain('pageSize')
+  })
+
+  it('offers the instructor every section and a TA only their own; the reasons are those that occur, and the section filter narrows the queue', async () => {
+    const all = (await inst.agent.get(`${R()}/review?status=all`).expect(200)).body
+    expect(all.facets.sections.map((s: { name: string }) => s.name)).toEqual(expect.arrayContaining(DEMO_SECTIONS.map((s) => s.name)))
+    const a = (await taA.agent.get(`${R()}/review?status=all`).expect(200)).body
+    expect(a.facets.sections.map((s: { name: string }) => s.name)).toEqual([DEMO_SECTIONS[0].name])
+    // Every reason a row carries is offered, and nothing that no hand-in has (besides a regrade request).
+    const codes = new Set(all.facets.reasons.map((r: { code: string }) => r.code))
+    for (const r of all.rows as { flagCodes: string[] }[]) for (const c of r.flagCodes) expect(codes.has(c), c).toBe(true)
+    const flagged = new Set(
+      (await ctx.handle.db.select({ code: submissionFlags.code }).from(submissionFlags).innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId)).where(eq(submissions.courseId, courseId))).map(
+        (f) => f.code,
+      ),
+    )
+    expect(new Set([...codes].filter((c) => c !== 'regrade-requested'))).toEqual(flagged)
+    const sectionB = all.facets.sections.find((s: { name: string }) => s.name === DEMO_SECTIONS[1].name)
+    const onlyB = (await inst.agent.get(`${R()}/review?status=all&sectionId=${sectionB.id}`).expect(200)).body
+    expect(onlyB.total).toBe((await firstOpen(taB)).total)
+    expect(onlyB.rows.every((r: { sectionName: string }) => r.sectionName === DEMO_SECTIONS[1].name)).toBe(true)
   })
 
   it('an override needs a reason and points within range, is audited, and a stale revision is refused', async () => {
