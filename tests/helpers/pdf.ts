@@ -1,28 +1,6 @@
 import yauzl from 'yauzl'
 
-// pdf.js 6 is written for Node 22 (engines: >=22.13); on Node 20 it needs Promise.withResolvers and
-// ArrayBuffer.prototype.transferToFixedLength (ES2024), added here before pdf.js is loaded. Without
-// the second, getOperatorList quietly returns a nearly empty list.
-// https://developer.mozilla.org/en-US/docs/Web/JavaScript/Reference/Global_Objects/Promise/withResolvers
-// https://developer.mozilla.org/en-US/docs/Web/JavaScript/Reference/Global_Objects/ArrayBuffer/transferToFixedLength
-const P = Promise as unknown as { withResolvers?: () => unknown }
-P.withResolvers ??= function withResolvers<T>() {
-  let resolve!: (value: T | PromiseLike<T>) => void
-  let reject!: (reason?: unknown) => void
-  const promise = new Promise<T>((res, rej) => {
-    resolve = res
-    reject = rej
-  })
-  return { promise, resolve, reject }
-}
-const AB = ArrayBuffer.prototype as unknown as { transferToFixedLength?: (n?: number) => ArrayBuffer; transfer?: (n?: number) => ArrayBuffer }
-AB.transferToFixedLength ??= function transferToFixedLength(this: ArrayBuffer, length = this.byteLength) {
-  // A copy rather than a move: enough for reading, where nothing uses the old buffer again.
-  const out = new ArrayBuffer(length)
-  new Uint8Array(out).set(new Uint8Array(this, 0, Math.min(length, this.byteLength)))
-  return out
-}
-AB.transfer ??= AB.transferToFixedLength
+// pdf.js 5.6 is the newest release that supports Node 20 (engines: >=20.19); 6.x needs Node 22.
 const pdfjs = await import('pdfjs-dist/legacy/build/pdf.mjs')
 
 /** Whitespace collapsed to single spaces, so wrapped lines compare with the text that was wrapped. */
