@@ -1,4 +1,4 @@
-// `npm run bench`: the formula library, the grading step, and hand-in throughput over HTTP on
+// `npm run bench`: the formula library, the grading step, the feedback report PDF, and hand-in throughput over HTTP on
 // loopback (against a project-owned bench database, started and stopped here). Prints figures;
 // speed goals are read from these, never asserted in tests.
 import { existsSync } from 'node:fs'
@@ -22,6 +22,7 @@ const runTs = (file, env = process.env) => spawnSync(tsx[0], [tsx[1], file], { c
 
 let ok = runTs('scripts/bench/physics.ts')
 if (existsSync(path.join(ROOT, 'scripts/bench/grading.ts'))) ok = runTs('scripts/bench/grading.ts') && ok
+ok = runTs('scripts/bench/report.ts') && ok
 
 let db = null
 try {

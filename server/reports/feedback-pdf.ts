@@ -12,7 +12,7 @@
 import PDFDocument from 'pdfkit'
 import type { ChartData, CheckOutcome } from '../../shared/schemas/submissions'
 import { formatInZone } from '../../shared/time'
-import { allFaces, defaultFontFile, fontRuns, fontStacks } from './fonts'
+import { allFaces, defaultFont, fontRuns, fontStacks } from './fonts'
 import type { FontRole } from './fonts'
 import { formatCompact, formatScore, percentText, valueText } from './format'
 
@@ -578,8 +578,9 @@ export function renderFeedbackPdf(d: FeedbackReportData): Doc {
     size: 'A4',
     margins: MARGIN,
     bufferPages: true,
-    // Our own sans as the starting font, so pdfkit never loads a standard 14 font.
-    font: defaultFontFile(),
+    // Our own sans as the starting font, so pdfkit never loads a standard 14 font. pdfkit's
+    // font() takes a Buffer as well as a path (the typings say path only).
+    font: defaultFont() as unknown as string,
     lang: 'en',
     info: {
       Title: `Feedback report: ${d.module.title}`,

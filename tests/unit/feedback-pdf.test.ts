@@ -1,7 +1,9 @@
 import { describe, expect, it } from 'vitest'
 import { feedbackPdfBuffer, niceTicks } from '../../server/reports/feedback-pdf'
 import type { FeedbackReportData } from '../../server/reports/feedback-pdf'
-import { fontRuns } from '../../server/reports/fonts'
+import { readFileSync } from 'node:fs'
+import { createRequire } from 'node:module'
+import { fontRuns, woffToSfnt } from '../../server/reports/fonts'
 import { fileSlug } from '../../server/reports/format'
 import { markdownToParagraphs } from '../../server/reports/plain-text'
 import { pdfFonts, readPdf } from '../helpers/pdf'
@@ -93,5 +95,24 @@ describe('report helpers', () => {
     expect(niceTicks(0, 21.9, 8).ticks).toEqual([0, 5, 10, 15, 20, 25])
     expect(niceTicks(0, 870, 6).ticks).toEqual([0, 200, 400, 600, 800, 1000])
     expect(niceTicks(0, 0, 6).ticks).toEqual([0, 0.2, 0.4, 0.6, 0.8, 1])
+  })
+
+  it('unpacks a shipped WOFF font into a TrueType font that fontkit reads with the same glyphs and names', () => {
+    const require = createRequire(import.meta.url)
+    // fontkit is the font reader pdfkit itself uses (its dependency), so this is what the PDF sees.
+    interface Font {
+      numGlyphs: number
+      postscriptName: string
+      glyphForCodePoint(cp: number): { advanceWidth: number }
+    }
+    const fontkit = require(require.resolve('fontkit', { paths: [require.resolve('pdfkit')] })) as { create(b: Buffer): Font }
+    const woff = readFileSync(require.resolve('@fontsource/noto-serif/files/noto-serif-latin-ext-400-normal.woff'))
+    const sfnt = woffToSfnt(woff)
+    expect(sfnt.readUInt32BE(0)).toBe(woff.readUInt32BE(4))
+    const a = fontkit.create(woff)
+    const b = fontkit.create(sfnt)
+    expect(b.numGlyphs).toBe(a.numGlyphs)
+    expect(b.postscriptName).toBe(a.postscriptName)
+    for (const ch of 'Dvořák ŁŽ') expect(b.glyphForCodePoint(ch.codePointAt(0)!).advanceWidth).toBe(a.glyphForCodePoint(ch.codePointAt(0)!).advanceWidth)
   })
 })
