@@ -18,7 +18,7 @@ export function rosterImportRoutes(db: Database, opts: RosterImportOptions & { o
 
   r.post('/preview', courseMember(db, INSTRUCTOR), body, async (_req, res) => {
     const { csv } = valid(res, 'body', RosterImportRequestSchema)
-    res.json(await previewRosterImport(db, enrollmentOf(res), csv))
+    res.json(await previewRosterImport(db, enrollmentOf(res), csv, opts))
   })
 
   r.post('/', courseMember(db, INSTRUCTOR), body, async (req, res) => {

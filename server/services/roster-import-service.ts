@@ -84,7 +84,7 @@ function refuseFile(problems: { message: string; columns?: string[] }[]): AppErr
   )
 }
 
-async function plan(db: Executor, courseId: number, csv: string, now: Date): Promise<Plan> {
+async function plan(db: Executor, courseId: number, csv: string, now: Date, invitationTtlHours: number): Promise<Plan> {
   const parsed = parseRosterCsv(csv)
   if (!parsed.ok) throw refuseFile(parsed.problems)
 
@@ -224,6 +224,7 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date): Pro
       newSections: [...newSections.values()],
       newGroups: [...newGroups.values()].map((g) => g.name),
       ignoredColumns: parsed.ignoredColumns,
+      invitationValidHours: invitationTtlHours,
     },
     rows,
     newSections,
@@ -232,8 +233,8 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date): Pro
 }
 
 /** What importing `csv` would do; writes nothing. */
-export async function previewRosterImport(db: Database, e: CourseEnrollment, csv: string): Promise<RosterImportPreview> {
-  return (await plan(db, e.courseId, csv, new Date())).preview
+export async function previewRosterImport(db: Database, e: CourseEnrollment, csv: string, opts: Pick<RosterImportOptions, 'invitationTtlHours'>): Promise<RosterImportPreview> {
+  return (await plan(db, e.courseId, csv, new Date(), opts.invitationTtlHours)).preview
 }
 
 /** A set-password token: what goes in the link, and what is stored. */
@@ -261,7 +262,7 @@ export async function confirmRosterImport(
   if (!course) throw notFound('That course')
   try {
     return await db.transaction(async (tx) => {
-      const p = await plan(tx, e.courseId, csv, now)
+      const p = await plan(tx, e.courseId, csv, now, opts.invitationTtlHours)
       if (!p.preview.ok) {
         const n = p.preview.counts.invalid
         throw new AppError(

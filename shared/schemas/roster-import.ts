@@ -80,6 +80,8 @@ export interface RosterImportPreview {
   newGroups: string[]
   /** Header cells that were not read (not one of the roster's columns). */
   ignoredColumns: string[]
+  /** How long each set-password link stays valid, in hours (the server's setting). */
+  invitationValidHours: number
 }
 
 export interface RosterImportResult {

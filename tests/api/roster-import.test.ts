@@ -19,7 +19,7 @@ const PREVIEW = () => `${IMPORT()}/preview`
 const INVITE = (token: string) => `/api/auth/invitations/${token}`
 
 beforeAll(async () => {
-  ctx = startTestApp({ APP_URL })
+  ctx = startTestApp({ APP_URL, INVITATION_TTL_HOURS: '72' })
   fx = await seedFixture(ctx)
   inst = await signedInAs(ctx, fx.instructor.email)
 })
@@ -84,6 +84,7 @@ describe('roster import: preview', () => {
     const body = res.body
     expect(body.ok).toBe(false)
     expect(body.counts).toMatchObject({ rows: 5, new: 1, changed: 2, unchanged: 1, invalid: 1, invitations: 1, enrollmentMails: 1 })
+    expect(body.invitationValidHours).toBe(72)
     const byRow = new Map(body.rows.map((r: { row: number }) => [r.row, r]))
     expect(byRow.get(2)).toMatchObject({ kind: 'new', invite: true, section: 'A', group: 'G1' })
     expect(byRow.get(3)).toMatchObject({ kind: 'existing', changes: [], invite: false, notify: false })
@@ -279,8 +280,8 @@ describe('roster import: confirm, mail and invitations', () => {
       const stored = await ctx.handle.db.select().from(invitations).where(eq(invitations.userId, user!.id))
       expect(stored).toHaveLength(1)
       expect(stored[0]!.tokenHash).toBe(createHash('sha256').update(token).digest('hex'))
-      // INVITATION_TTL_HOURS defaults to 168 (a week).
-      expect(Math.abs(stored[0]!.expiresAt.getTime() - stored[0]!.createdAt.getTime() - 168 * 3_600_000)).toBeLessThan(60_000)
+      // INVITATION_TTL_HOURS is 72 for this file (the default is 168, a week).
+      expect(Math.abs(stored[0]!.expiresAt.getTime() - stored[0]!.createdAt.getTime() - 72 * 3_600_000)).toBeLessThan(60_000)
       expect(stored[0]!.usedAt).toBeNull()
       expect(JSON.stringify(stored)).not.toContain(token)
       tokens[address] = token

@@ -69,6 +69,8 @@ describe('roster import in the browser', () => {
     await page.screenshot({ path: screenshotPath('roster-import-preview-375'), fullPage: true })
 
     const confirm = page.getByRole('button', { name: 'Import: create 2 accounts, e-mail 2 invitations' })
+    // The server's link lifetime (INVITATION_TTL_HOURS, 168 by default) in the person's words.
+    await page.getByText('Each invitation link works once and for 7 days', { exact: false }).waitFor()
     await confirm.click()
     const done = page.getByTestId('import-result')
     await done.getByText('2 accounts created').waitFor()
