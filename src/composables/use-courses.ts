@@ -1,4 +1,7 @@
-import type { Ref } from 'vue'
+import { computed } from 'vue'
+import type { ComputedRef, Ref } from 'vue'
+import type { CourseRole } from '@shared/schemas/auth'
+import { useCourseRolesStore } from '@/stores/course-roles'
 import { fetchCourseHome, fetchMyCourses, fetchRoster } from '@/api/courses'
 import { useResource } from './use-resource'
 
@@ -12,4 +15,13 @@ export function useCourseHome(courseId: Ref<number>) {
 
 export function useRoster(courseId: Ref<number>) {
   return useResource(() => fetchRoster(courseId.value), courseId)
+}
+
+/**
+ * The signed-in person's role in a course (null until known), from the shared roles store: no
+ * extra request per page once "my courses" has been read.
+ */
+export function useCourseRole(courseId: Ref<number>): ComputedRef<CourseRole | null> {
+  const roles = useCourseRolesStore()
+  return computed(() => roles.roleIn(courseId.value))
 }

@@ -13,18 +13,21 @@ export const useCourseRolesStore = defineStore('course-roles', () => {
   const roles = ref<Record<number, CourseRole>>({})
   let loadedFor: number | null = null
   let loading: Promise<void> | null = null
+  /** Courses missing from a loaded list that were asked about once more (a newer enrollment). */
+  const rechecked = new Set<number>()
 
   watch(
     () => session.user?.id ?? null,
     () => {
       roles.value = {}
       loadedFor = null
+      rechecked.clear()
     },
   )
 
-  function load(): Promise<void> {
+  function load(again = false): Promise<void> {
     const userId = session.user?.id ?? null
-    if (userId === null || loadedFor === userId) return Promise.resolve()
+    if (userId === null || (loadedFor === userId && !again)) return Promise.resolve()
     loading ??= fetchMyCourses()
       .then((list) => {
         if ((session.user?.id ?? null) !== userId) return
@@ -39,10 +42,19 @@ export const useCourseRolesStore = defineStore('course-roles', () => {
     return loading
   }
 
-  /** The role in one course, or null until it is known (starts loading on first ask). */
+  /**
+   * The role in one course, or null until it is known (starts loading on first ask). A course
+   * the loaded list lacks is looked up once more, for someone enrolled since the list was read.
+   */
   function roleIn(courseId: number): CourseRole | null {
     const known = roles.value[courseId]
-    if (known === undefined) void load()
+    if (known === undefined) {
+      const userId = session.user?.id ?? null
+      if (loadedFor !== null && loadedFor === userId && !rechecked.has(courseId)) {
+        rechecked.add(courseId)
+        void load(true)
+      } else void load()
+    }
     return known ?? null
   }
 
