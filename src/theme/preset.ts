@@ -69,4 +69,8 @@ export const IsentropePreset = definePreset(Aura, {
       },
     },
   },
+  components: {
+    // A toast fits a phone: the stock 25rem is wider than a 375 px screen.
+    toast: { root: { width: 'min(25rem, calc(100vw - 2.5rem))' } },
+  },
 })

@@ -84,6 +84,14 @@ describe('the instructor’s gradebook', () => {
 
     await page.setViewportSize({ width: 375, height: 812 })
     await noSideways(page)
+    // The toast area (fixed, so it never makes the page scroll) fits the phone's width.
+    const toast = await page.evaluate(() => {
+      const r = document.querySelector('.p-toast')?.getBoundingClientRect()
+      return r ? { left: r.left, right: r.right } : null
+    })
+    expect(toast).not.toBeNull()
+    expect(toast!.left).toBeGreaterThanOrEqual(0)
+    expect(toast!.right).toBeLessThanOrEqual(375)
     await page.screenshot({ path: screenshotPath('gradebook-375'), fullPage: true })
     await ctx.close()
   }, 120_000)
