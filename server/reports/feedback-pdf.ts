@@ -14,7 +14,7 @@ import type { ChartData, CheckOutcome } from '../../shared/schemas/submissions'
 import { formatInZone } from '../../shared/time'
 import { allFaces, defaultFont, fontRuns, fontStacks } from './fonts'
 import type { FontRole } from './fonts'
-import { formatCompact, formatScore, percentText, valueText } from './format'
+import { formatCompact, formatScore, percentText, valueText } from '../../shared/format'
 
 export interface ReportCheck {
   label: string

@@ -2,6 +2,10 @@ import { onBeforeUnmount, ref, shallowRef, watch } from 'vue'
 import type { Ref, ShallowRef, WatchSource } from 'vue'
 import { UNITS, fromSI, gaugeToAbsolute, toSI } from '@shared/units'
 import type { UnitSymbol } from '@shared/units'
+import { formatCompact, formatNumber, unitLabel } from '@shared/format'
+
+// The shared number and unit wording, for the calculators and everything that imports it from here.
+export { formatCompact, formatNumber, unitLabel }
 
 /**
  * Helpers shared by the live calculators (src/components/calculators/): reading what a person
@@ -104,69 +108,9 @@ export function absolutePressure(value: number, unit: UnitSymbol, reading: Press
   return reading === 'gauge' ? gaugeToAbsolute(si, ambient) : si
 }
 
-/** How a unit symbol is written on the page (°C rather than degC, m³ rather than m3). */
-export function unitLabel(unit: UnitSymbol): string {
-  const written: Partial<Record<UnitSymbol, string>> = {
-    degC: '°C',
-    degF: '°F',
-    m2: 'm²',
-    mm2: 'mm²',
-    cm2: 'cm²',
-    in2: 'in²',
-    m3: 'm³',
-  }
-  return written[unit] ?? unit
-}
-
 /** Options of a unit picker: the symbols given, each with its written label and its name as a hint. */
 export function unitOptions(units: readonly UnitSymbol[]): { label: string; value: UnitSymbol; name: string }[] {
   return units.map((u) => ({ label: unitLabel(u), value: u, name: UNITS[u].name }))
-}
-
-const SUPERSCRIPT: Record<string, string> = {
-  '-': '⁻',
-  '0': '⁰',
-  '1': '¹',
-  '2': '²',
-  '3': '³',
-  '4': '⁴',
-  '5': '⁵',
-  '6': '⁶',
-  '7': '⁷',
-  '8': '⁸',
-  '9': '⁹',
-}
-
-/**
- * A result for display with a fixed number of significant figures (trailing zeros kept, so
- * "0.12780" shows five). Very small or very large magnitudes are written as "2.3563 × 10⁻⁵".
- */
-export function formatNumber(value: number, significant = 5): string {
-  if (Number.isNaN(value)) return '—'
-  if (value === Infinity) return '∞'
-  if (value === -Infinity) return '−∞'
-  if (value === 0) return '0'
-  const magnitude = Math.abs(value)
-  if (magnitude < 1e-3 || magnitude >= 1e9) {
-    const [mantissa, exponent] = value.toExponential(significant - 1).split('e')
-    const power = String(Number(exponent))
-      .split('')
-      .map((c) => SUPERSCRIPT[c] ?? c)
-      .join('')
-    return `${mantissa?.replace('-', '−')} × 10${power}`
-  }
-  return new Intl.NumberFormat('en-US', {
-    minimumSignificantDigits: significant,
-    maximumSignificantDigits: significant,
-  })
-    .format(value)
-    .replace('-', '−')
-}
-
-/** Like {@link formatNumber} without trailing zeros, for echoing a value the person typed ("20 s", not "20.00 s"). */
-export function formatCompact(value: number, significant = 5): string {
-  const text = formatNumber(value, significant)
-  return text.includes('×') || !text.includes('.') ? text : text.replace(/\.?0+$/, '')
 }
 
 /** A pressure in Pa absolute written in the given unit, e.g. "701.33 kPa". */

@@ -20,8 +20,11 @@ import { fetchModule } from '@/api/modules'
 import { fetchMySubmissions, fetchSubmission, submitHandIn } from '@/api/submissions'
 import type { HandInFile } from '@/api/submissions'
 import type { ChartSeries } from '@/components/calculators/chart-series'
-import { formatCompact, unitLabel } from './use-calculator'
+import { formatCompact, formatScore, percentText, unitText, valueText, withUnit } from '@shared/format'
 import { useResource } from './use-resource'
+
+// The shared wording of values, units and scores, for the hand-in and result pages.
+export { formatScore, percentText, unitText, valueText, withUnit }
 
 // ---------------------------------------------------------------------------------------------
 // Loading.
@@ -84,13 +87,6 @@ export function studentAssignment(frontMatter: Record<string, unknown> | null | 
 // ---------------------------------------------------------------------------------------------
 // Units as written on the page.
 
-/** A unit symbol as a person reads it: °C, m³, N·s; an empty string for a pure number. */
-export function unitText(unit: string): string {
-  if (unit === DIMENSIONLESS) return ''
-  if (isUnitSymbol(unit)) return unitLabel(unit)
-  return unit.replace('*', '·')
-}
-
 /** Its name, for a tooltip or a screen reader. */
 export function unitName(unit: string): string {
   if (unit === DIMENSIONLESS) return 'no unit (a pure number)'
@@ -125,12 +121,6 @@ export const PRESSURE_SENSES: readonly { label: string; value: 'gauge' | 'absolu
   { label: 'absolute', value: 'absolute' },
 ]
 
-/** "12.3 kPa" or "0.672" (no unit for a pure number). */
-export function withUnit(value: string, unit: string): string {
-  const u = unitText(unit)
-  return u ? `${value} ${u}` : value
-}
-
 /** A measurement's plausible range in words, e.g. "Plausible range: 60 to 110 kPa absolute". */
 export function rangeText(m: MeasurementSpec): string | null {
   const sense = m.pressure ? ` ${m.pressure}` : ''
@@ -140,11 +130,6 @@ export function rangeText(m: MeasurementSpec): string | null {
   if (m.min !== undefined) return `Plausible range: at least ${formatCompact(m.min)}${unit}${sense}`
   if (m.max !== undefined) return `Plausible range: at most ${formatCompact(m.max)}${unit}${sense}`
   return null
-}
-
-/** A score for display: whole numbers plain, otherwise up to two decimals ("7.5"). */
-export function formatScore(x: number): string {
-  return String(Math.round(x * 100) / 100)
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -603,21 +588,4 @@ export function invalidSubmissionIssues(err: ApiError): { issues: SubmissionFiel
       )
     : []
   return { issues, more: typeof d?.more === 'number' ? d.more : 0 }
-}
-
-// ---------------------------------------------------------------------------------------------
-// The result page.
-
-/** Relative error as a percentage with two significant figures ("1.2 %"), or a dash. */
-export function percentText(rel: number | null): string {
-  if (rel === null || !Number.isFinite(rel)) return '—'
-  if (rel === 0) return '0 %'
-  // Below a hundredth of a per cent the digits only show rounding.
-  if (rel < 1e-4) return '< 0.01 %'
-  return `${formatCompact(rel * 100, 2)} %`
-}
-
-/** A checked value in its result's unit with up to five significant figures, or a dash. */
-export function valueText(x: number | null, unit: string): string {
-  return x === null || !Number.isFinite(x) ? '—' : withUnit(formatCompact(x, 5), unit)
 }
