@@ -34,6 +34,33 @@ export function checkForm<S extends z.ZodType>(schema: S, value: unknown): { dat
   return { data: null, error: new ApiError(400, 'validation_failed', first?.message ?? 'Check the form.', [{ path: first?.path.join('.') ?? '', message: first?.message ?? '' }]) }
 }
 
+/**
+ * Editing rows of an admin list in place: which row is open, the error of the row last saved or
+ * deleted, and which row waits for its delete to be confirmed.
+ */
+export function useRowEdits(remove: (id: number) => Promise<ApiError | null>) {
+  const editing = ref<number | null>(null)
+  const rowError = ref<{ id: number; error: ApiError } | null>(null)
+  const confirming = ref<number | null>(null)
+  function open(id: number) {
+    editing.value = id
+    rowError.value = null
+    confirming.value = null
+  }
+  /** Runs the row's change; the row closes when it succeeds and shows the error when not. */
+  async function save(id: number, change: () => Promise<ApiError | null>) {
+    const err = await change()
+    rowError.value = err ? { id, error: err } : null
+    if (!err) editing.value = null
+  }
+  async function del(id: number) {
+    const err = await remove(id)
+    rowError.value = err ? { id, error: err } : null
+    confirming.value = null
+  }
+  return { editing, rowError, confirming, open, save, del }
+}
+
 /** The field a 400/409 answer points at (`name`, `sectionId`, `dueAt`…), if any. */
 export function errorField(err: ApiError | null): string | null {
   if (!err) return null
