@@ -3,7 +3,7 @@ import Papa from 'papaparse'
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import type { Gradebook } from '../../shared/schemas/grades'
 import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
@@ -124,6 +124,22 @@ describe('the instructor’s gradebook', () => {
     expect(await regrade.locator('li.open').count()).toBe(1)
     await noSideways(page)
     await page.screenshot({ path: screenshotPath('submission-regrade-375'), fullPage: true })
+    const submissionId = Number(/\/submissions\/(\d+)/.exec(page.url())?.[1])
+    const courseId = Number(/\/courses\/(\d+)/.exec(page.url())?.[1])
     await ctx.close()
+
+    // The section's TA answers it from the review page; the request then reads as answered.
+    const staff = await browser.newContext({ viewport: { width: 1280, height: 900 } })
+    const tp = await staff.newPage()
+    await signIn(tp, app.url, DEMO_SECTIONS[0].ta.email)
+    await tp.goto(`${app.url}/courses/${courseId}/review/${submissionId}`)
+    const answers = tp.getByTestId('regrade-review')
+    await answers.locator('li.open').waitFor()
+    const answer = `We checked the zero: the **peak stands** (${Date.now()}).`
+    await answers.getByLabel('Answer to the student (Markdown)').fill(answer)
+    await answers.getByRole('button', { name: 'Send answer' }).click()
+    await expect.poll(() => answers.locator('li.answered').filter({ hasText: 'peak stands' }).count()).toBe(1)
+    expect(await answers.locator('li.answered strong', { hasText: 'peak stands' }).count()).toBe(1)
+    await staff.close()
   }, 120_000)
 })
