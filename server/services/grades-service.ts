@@ -144,6 +144,8 @@ function scopeOf(e: CourseEnrollment, q: GradebookQuery): GradebookQuery | null 
  */
 export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQuery, now = new Date()): Promise<Gradebook> {
   const scope = scopeOf(e, q)
+  // The rows in scope are the whole class when nothing narrows them; read the class once then.
+  const wholeClass = scope !== null && scope.sectionId === undefined && scope.labGroupId === undefined
   const mods = await gradedModules(db, e.courseId)
   const [students, graded, allSections, allGroups, everyone, ext] = await Promise.all([
     scope ? listStudents(db, e.courseId, scope) : Promise.resolve([] as StudentRow[]),
@@ -154,7 +156,7 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
     ),
     listSectionOptions(db, e.courseId),
     listLabGroupOptions(db, e.courseId),
-    listStudents(db, e.courseId),
+    wholeClass ? Promise.resolve(null) : listStudents(db, e.courseId),
     extensionsOf(db, e.courseId),
   ])
 
@@ -216,7 +218,7 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
     sections: allSections.filter((s) => taSection === undefined || s.id === taSection),
     labGroups: allGroups.filter((g) => taSection === undefined || g.sectionId === taSection),
     canManage: e.role === 'instructor',
-    enrolledStudents: everyone.length,
+    enrolledStudents: (everyone ?? students).length,
   }
 }
 
