@@ -1,3 +1,4 @@
+import { dueFor } from '../../shared/grading/due'
 import { histogram, mean, median, percentOf, weightedTotal } from '../../shared/grading/gradebook'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import type {
@@ -92,10 +93,8 @@ async function extensionsOf(db: Database, courseId: number): Promise<Extensions>
  */
 function isPastDue(m: GradedModule, now: Date, userId: number, ext: Extensions): boolean {
   if (m.status === 'closed') return true
-  if (m.dueAt === null) return false
-  const extended = ext.get(extensionKey(m.id, userId))
-  const due = extended && extended.getTime() > m.dueAt.getTime() ? extended : m.dueAt
-  return now.getTime() >= due.getTime()
+  const due = dueFor(m.dueAt, ext.get(extensionKey(m.id, userId)))
+  return due !== null && now.getTime() >= due.getTime()
 }
 
 /**

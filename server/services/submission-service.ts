@@ -39,6 +39,7 @@ import {
 } from '../repositories/submissions'
 import { submitterSection } from '../repositories/review'
 import { findExtensionDue } from '../repositories/due-extensions'
+import { dueFor } from '../../shared/grading/due'
 import { findUserById } from '../repositories/users'
 import { commentsFor } from './review-service'
 import { escapeHtml } from './text'
@@ -99,8 +100,8 @@ function ownerOf(e: CourseEnrollment, fm: ModuleFrontMatter): Owner {
  * `acceptUntil` would leave no late window at all, and one close to it would shrink it).
  */
 function lateness(p: Published, now: Date, timeZone: string, extendedDue: Date | null = null): { isLate: boolean; daysLate: number; penalty: number } {
-  const shift = p.dueAt && extendedDue ? Math.max(0, extendedDue.getTime() - p.dueAt.getTime()) : 0
-  const dueAt = p.dueAt ? new Date(p.dueAt.getTime() + shift) : null
+  const dueAt = dueFor(p.dueAt, extendedDue)
+  const shift = dueAt && p.dueAt ? dueAt.getTime() - p.dueAt.getTime() : 0
   if (!dueAt || now.getTime() <= dueAt.getTime()) return { isLate: false, daysLate: 0, penalty: 0 }
   const late = p.fm.late
   if (!late) {
@@ -531,7 +532,8 @@ export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId:
   const rows = await listOwnerSubmissions(db, p.moduleId, owner)
   const vis = visibility(p, now, course.timeZone)
   const extendedDue = p.dueAt && e.role === 'student' ? await findExtensionDue(db, p.moduleId, e.userId) : null
-  const dueExtended = p.dueAt !== null && extendedDue !== null && extendedDue.getTime() > p.dueAt.getTime()
+  const dueAt = dueFor(p.dueAt, extendedDue)
+  const dueExtended = dueAt !== p.dueAt
   const used = rows.length
   if (!blockedReason) {
     if (!p.fm.assignment) blockedReason = 'This module has nothing to hand in.'
@@ -551,7 +553,7 @@ export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId:
     canSubmit: blockedReason === null && e.role === 'student',
     blockedReason: e.role === 'student' ? blockedReason : 'Staff do not hand in work.',
     // A student with an extension sees their own due date.
-    dueAt: (dueExtended ? extendedDue : p.dueAt)?.toISOString() ?? null,
+    dueAt: dueAt?.toISOString() ?? null,
     dueExtended,
     groupSubmission: p.fm.groupSubmission,
     labGroupName: await labGroupName(db, e.labGroupId),
