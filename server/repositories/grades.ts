@@ -1,3 +1,4 @@
+import type { SubmissionStatus } from '../../shared/schemas/submissions'
 import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import type { Executor } from '../db/client'
@@ -93,7 +94,7 @@ export interface AnyAttemptRow {
   userId: number
   labGroupId: number | null
   attempt: number
-  status: 'received' | 'graded' | 'grading-failed'
+  status: SubmissionStatus
 }
 
 /** Every hand-in (graded or not) of one student or lab group for these modules, newest first. */

@@ -1,3 +1,4 @@
+import type { SubmissionStatus } from '../../shared/schemas/submissions'
 import { and, asc, count, desc, eq, ne, or, sql } from 'drizzle-orm'
 import type { Executor } from '../db/client'
 import {
@@ -19,7 +20,7 @@ export interface SubmissionRow {
   userId: number
   labGroupId: number | null
   attempt: number
-  status: 'received' | 'graded' | 'grading-failed'
+  status: SubmissionStatus
   gradingError: string | null
   inputs: SubmissionInputs
   isLate: boolean

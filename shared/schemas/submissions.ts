@@ -86,12 +86,19 @@ export interface ChartData {
   supersonicSpans: [number, number][]
 }
 
+/**
+ * The life of a hand-in: stored and waiting for the grader ('received'), claimed by a grading
+ * worker ('grading'), 'graded', or 'grading-failed' (could not be graded automatically; staff grade it).
+ */
+export const SUBMISSION_STATUSES = ['received', 'grading', 'graded', 'grading-failed'] as const
+export type SubmissionStatus = (typeof SUBMISSION_STATUSES)[number]
+
 export interface SubmissionSummary {
   id: number
   attempt: number
   submittedAt: string
   submittedBy: string
-  status: 'received' | 'graded' | 'grading-failed'
+  status: SubmissionStatus
   isLate: boolean
   daysLate: number
   latePenalty: number

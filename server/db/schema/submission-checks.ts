@@ -1,4 +1,4 @@
-import { boolean, double, index, mysqlEnum, mysqlTable, varchar } from 'drizzle-orm/mysql-core'
+import { boolean, double, index, mysqlEnum, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, ref, timestamps } from './columns'
 import { submissions } from './submissions'
 
@@ -31,5 +31,9 @@ export const submissionChecks = mysqlTable(
     error: varchar('error', { length: 1000 }),
     ...timestamps,
   },
-  (t) => [index('submission_checks_submission_idx').on(t.submissionId)],
+  (t) => [
+    index('submission_checks_submission_idx').on(t.submissionId),
+    // One check per result of a hand-in: a grade is written once, by key, never twice.
+    uniqueIndex('submission_checks_submission_result_uq').on(t.submissionId, t.resultKey),
+  ],
 )

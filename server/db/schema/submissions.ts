@@ -6,8 +6,10 @@ import { labGroups } from './lab-groups'
 import { moduleVersions } from './module-versions'
 import { modules } from './modules'
 import { users } from './users'
+import { SUBMISSION_STATUSES } from '../../../shared/schemas/submissions'
 
-export const SUBMISSION_STATUSES = ['received', 'graded', 'grading-failed'] as const
+export { SUBMISSION_STATUSES }
+
 export const REVIEW_STATUSES = ['none', 'open', 'in-review', 'resolved'] as const
 
 /** What the student typed, kept as typed (value and unit) besides the SI values used to grade. */
@@ -60,11 +62,18 @@ export const submissions = mysqlTable(
       .notNull()
       .default(sql`CURRENT_TIMESTAMP(3)`),
     gradedAt: timestamp('graded_at', { fsp: 3, mode: 'date' }),
+    // Grading is a durable job on this row: claimed by a worker (status 'grading', claimed_at set,
+    // grade_attempts + 1 as the claim's token), retried after grade_after on transient errors,
+    // and released when a claim goes stale (a worker that died).
+    gradeAttempts: int('grade_attempts').notNull().default(0),
+    gradeAfter: timestamp('grade_after', { fsp: 3, mode: 'date' }),
+    gradeClaimedAt: timestamp('grade_claimed_at', { fsp: 3, mode: 'date' }),
     ...timestamps,
   },
   (t) => [
     index('submissions_module_user_idx').on(t.moduleId, t.userId),
     index('submissions_module_group_idx').on(t.moduleId, t.labGroupId),
     index('submissions_course_review_idx').on(t.courseId, t.reviewStatus),
+    index('submissions_grading_idx').on(t.status, t.gradeAfter),
   ],
 )
