@@ -11,6 +11,10 @@ import { createPassport } from './auth/passport'
 import type { Config } from './config'
 import { dbConnectionOptions } from './config'
 import type { Database } from './db/client'
+import { createGrader } from './grading/grading-pool'
+import type { Grader } from './grading/grading-pool'
+import { queueHandInReceipt } from './services/submission-service'
+import type { GradingContext } from './services/grading-service'
 import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
@@ -31,6 +35,10 @@ export interface AppDeps {
   logger: Logger
   /** Called after something queued mail, so the outbox worker can send it without waiting. */
   onMailQueued?: () => void
+  /** The grading threads; when absent the app makes its own (and closes them in `close`). */
+  grader?: Grader
+  /** Called after a hand-in was stored, so the background grader looks at the queue at once. */
+  onHandInStored?: () => void
 }
 
 export interface CreatedApp {
@@ -40,8 +48,11 @@ export interface CreatedApp {
 }
 
 /** Builds the Express app without listening, so tests drive it through supertest. */
-export function createApp({ config, db, logger, onMailQueued }: AppDeps): CreatedApp {
+export function createApp({ config, db, logger, onMailQueued, grader: givenGrader, onHandInStored }: AppDeps): CreatedApp {
   const app = express()
+  const grader =
+    givenGrader ?? createGrader({ timeoutMs: config.GRADING_TIMEOUT_MS, memoryMb: config.GRADING_MEMORY_MB, threads: config.GRADING_THREADS })
+  const grading = gradingContext(db, { grader, logger, appUrl: config.APP_URL, onMailQueued })
   const secureCookies = config.APP_URL.startsWith('https://')
   if (config.TRUST_PROXY > 0) app.set('trust proxy', config.TRUST_PROXY)
   app.disable('x-powered-by')
@@ -130,7 +141,7 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
   api.use(csrf.protect)
   api.use('/auth', authRoutes(passport, csrf))
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
-  api.use('/courses/:courseId', handInRoutes(db, { appUrl: config.APP_URL, uploadLimitMb: config.UPLOAD_LIMIT_MB, onMailQueued: () => onMailQueued?.() }))
+  api.use('/courses/:courseId', handInRoutes(db, { uploadLimitMb: config.UPLOAD_LIMIT_MB, grading, onHandInStored: () => onHandInStored?.() }))
   api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId', gradeRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   // Feedback reports; before the module router, so /modules/:moduleId/reports.zip is answered here.
@@ -159,6 +170,22 @@ export function createApp({ config, db, logger, onMailQueued }: AppDeps): Create
     app,
     close: async () => {
       await store.close()
+      if (!givenGrader) await grader.close()
+    },
+  }
+}
+
+/** How hand-ins are graded in this process: the threads, the log, and the receipt once graded. */
+export function gradingContext(
+  db: Database,
+  o: { grader: Grader; logger: Logger; appUrl: string; onMailQueued?: (() => void) | undefined },
+): GradingContext {
+  return {
+    grader: o.grader,
+    logger: o.logger,
+    onGraded: async (submissionId) => {
+      await queueHandInReceipt(db, submissionId, o.appUrl)
+      o.onMailQueued?.()
     },
   }
 }

@@ -56,6 +56,15 @@ const ConfigSchema = z
     SIGNIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
     SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),
     UPLOAD_LIMIT_MB: z.coerce.number().positive().default(20),
+    /** Grading budget per hand-in: wall-clock time and the grading thread's heap. */
+    GRADING_TIMEOUT_MS: z.coerce.number().int().min(100).default(20_000),
+    GRADING_MEMORY_MB: z.coerce.number().int().min(64).default(512),
+    /** Grading threads in this process. */
+    GRADING_THREADS: z.coerce.number().int().min(1).max(16).default(1),
+    /** How often the background grader looks for hand-ins left waiting; 0 turns it off in this process. */
+    GRADING_POLL_MS: z.coerce.number().int().min(0).default(2000),
+    /** A grading claim older than this belongs to a process that died; the job is taken up again. */
+    GRADING_STALE_SECONDS: z.coerce.number().int().min(1).default(120),
     /** How long a set-password invitation link from a roster import stays valid. */
     INVITATION_TTL_HOURS: z.coerce.number().positive().default(168),
     /** Folder of the built client to serve; empty to serve the API only. */

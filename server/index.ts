@@ -1,11 +1,13 @@
 import type { Server } from 'node:http'
-import { createApp } from './app'
+import { createApp, gradingContext } from './app'
 import { ConfigError, dbConnectionOptions, loadConfig } from './config'
 import { createDb } from './db/client'
 import { createLogger } from './logger'
 import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from './mail/outbox-worker'
 import { createSmtpSender } from './mail/transport'
 import { queueFlagDigests } from './services/flag-digest'
+import { createGrader } from './grading/grading-pool'
+import { startGradingWorker } from './grading/grading-worker'
 
 // Entry point: read configuration, listen, and shut down cleanly on SIGINT/SIGTERM.
 let config
@@ -39,7 +41,25 @@ const digestTimer =
           .catch((err: unknown) => logger.warn({ err }, 'flag digest failed; will retry'))
       }, config.FLAG_DIGEST_MINUTES * 60_000)
     : null
-const { app, close } = createApp({ config, db: dbHandle.db, logger, onMailQueued: () => worker?.kick() })
+const grader = createGrader({ timeoutMs: config.GRADING_TIMEOUT_MS, memoryMb: config.GRADING_MEMORY_MB, threads: config.GRADING_THREADS })
+// Load the grading threads now so the first hand-in does not wait for them.
+grader.warmUp().catch((err: unknown) => logger.error({ err }, 'grading threads failed to start'))
+const gradingWorker =
+  config.GRADING_POLL_MS > 0
+    ? startGradingWorker(
+        dbHandle.db,
+        gradingContext(dbHandle.db, { grader, logger, appUrl: config.APP_URL, onMailQueued: () => worker?.kick() }),
+        { pollMs: config.GRADING_POLL_MS, batchSize: 4 * config.GRADING_THREADS, staleMs: config.GRADING_STALE_SECONDS * 1000 },
+      )
+    : null
+const { app, close } = createApp({
+  config,
+  db: dbHandle.db,
+  logger,
+  grader,
+  onMailQueued: () => worker?.kick(),
+  onHandInStored: () => gradingWorker?.kick(),
+})
 
 const server: Server = app.listen(config.PORT, config.HOST, () => {
   logger.info({ url: `http://${config.HOST}:${config.PORT}`, appUrl: config.APP_URL }, 'Isentrope is listening')
@@ -53,6 +73,8 @@ async function shutdown(signal: string): Promise<void> {
   server.close()
   server.closeAllConnections()
   if (digestTimer) clearInterval(digestTimer)
+  await gradingWorker?.stop().catch((err: unknown) => logger.warn({ err }, 'grading worker stop failed'))
+  await grader.close().catch((err: unknown) => logger.warn({ err }, 'grading threads close failed'))
   await worker?.stop().catch((err: unknown) => logger.warn({ err }, 'outbox worker stop failed'))
   await close().catch((err: unknown) => logger.warn({ err }, 'session store close failed'))
   await dbHandle.close().catch((err: unknown) => logger.warn({ err }, 'database pool close failed'))

@@ -6,7 +6,10 @@ import type { Database } from '../../server/db/client'
 import { courses, enrollments, labGroups, moduleVersions, modules, sections, users } from '../../server/db/schema'
 import { insertModuleWithVersion, markPublished } from '../../server/repositories/modules'
 import { toVersion } from '../../server/services/module-service'
-import { submitHandIn } from '../../server/services/submission-service'
+import { queueHandInReceipt, submitHandIn } from '../../server/services/submission-service'
+import { createGrader } from '../../server/grading/grading-pool'
+import { createLogger } from '../../server/logger'
+import type { GradingContext } from '../../server/services/grading-service'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { demoRuns } from './demo-runs'
 import {
@@ -130,6 +133,25 @@ async function seedHandIns(db: Database, courseId: number) {
   if (!fm?.assignment) return
   const a = fm.assignment
   const table = a.tables[0]!
+  // The seeded hand-ins go through the real service and are graded as a student's would be.
+  const appUrl = process.env.APP_URL ?? 'http://127.0.0.1:3000'
+  const grader = createGrader()
+  const grading = { grader, logger: createLogger('warn'), onGraded: (id: number) => queueHandInReceipt(db, id, appUrl) }
+  try {
+    await seedGroupRuns(db, courseId, mod.id, a, table, grading)
+  } finally {
+    await grader.close()
+  }
+}
+
+async function seedGroupRuns(
+  db: Database,
+  courseId: number,
+  moduleId: number,
+  a: NonNullable<ModuleFrontMatter['assignment']>,
+  table: NonNullable<ModuleFrontMatter['assignment']>['tables'][number],
+  grading: GradingContext,
+) {
   for (const run of demoRuns(a)) {
     if (run.group === DEMO_GROUP_WITHOUT_HAND_IN) continue
     const member = DEMO_STUDENTS.find((s) => s.labGroup === run.group)
@@ -143,7 +165,7 @@ async function seedHandIns(db: Database, courseId: number) {
     await submitHandIn(
       db,
       { courseId, userId: e.userId, role: 'student', sectionId: e.sectionId, labGroupId: e.labGroupId },
-      mod.id,
+      moduleId,
       {
         mappings: { [table.key]: { ...run.mapping } },
         measurements: Object.fromEntries(
@@ -152,7 +174,7 @@ async function seedHandIns(db: Database, courseId: number) {
         reported: Object.fromEntries(a.results.map((r) => [r.key, { value: run.reported[r.key]!, unit: r.unit }])),
       },
       [{ field: `table:${table.key}`, filename: `run-${run.group.toLowerCase()}.csv`, contentType: 'text/csv', bytes: Buffer.from(run.csv, 'utf8') }],
-      { appUrl: process.env.APP_URL ?? 'http://127.0.0.1:3000' },
+      { grading },
     )
   }
 }

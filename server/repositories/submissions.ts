@@ -152,24 +152,62 @@ export interface FlagWrite {
   detail: Record<string, number | string> | null
 }
 
+/**
+ * Writes a grade in one short transaction with a fixed lock order: the submission row first (FOR
+ * UPDATE), then its checks and flags. It writes only for the claim that holds the job (status
+ * 'grading' with this token), so a retried, duplicated or stale job never writes a grade twice.
+ * Checks are written by key (one per result, insert-or-update), never deleted and re-inserted:
+ * deleting takes gap locks that concurrent hand-ins' inserts deadlock on.
+ *
+ * @returns false when the claim no longer holds the job (nothing was written)
+ */
 export async function saveGrade(
   tx: Executor,
-  submissionId: number,
+  claim: { submissionId: number; token: number },
   g: { status: 'graded' | 'grading-failed'; gradingError: string | null; rawScore: number | null; score: number | null; maxScore: number | null },
   checks: CheckWrite[],
   flags: FlagWrite[],
-): Promise<void> {
-  await tx.delete(submissionChecks).where(eq(submissionChecks.submissionId, submissionId))
-  if (checks.length) await tx.insert(submissionChecks).values(checks.map((c) => ({ ...c, submissionId })))
+): Promise<boolean> {
+  const submissionId = claim.submissionId
+  const [row] = await tx
+    .select({ status: submissions.status, token: submissions.gradeAttempts })
+    .from(submissions)
+    .where(eq(submissions.id, submissionId))
+    .for('update')
+  if (!row || row.status !== 'grading' || row.token !== claim.token) return false
+  if (checks.length) {
+    const c = submissionChecks
+    await tx
+      .insert(c)
+      .values(checks.map((x) => ({ ...x, submissionId })))
+      .onDuplicateKeyUpdate({
+        set: {
+          label: sql`VALUES(${c.label})`,
+          unit: sql`VALUES(${c.unit})`,
+          reported: sql`VALUES(${c.reported})`,
+          expected: sql`VALUES(${c.expected})`,
+          absError: sql`VALUES(${c.absError})`,
+          relError: sql`VALUES(${c.relError})`,
+          tolerance: sql`VALUES(${c.tolerance})`,
+          pointsPossible: sql`VALUES(${c.pointsPossible})`,
+          pointsAwarded: sql`VALUES(${c.pointsAwarded})`,
+          pass: sql`VALUES(${c.pass})`,
+          outcome: sql`VALUES(${c.outcome})`,
+          error: sql`VALUES(${c.error})`,
+        },
+      })
+  }
   if (flags.length) await tx.insert(submissionFlags).values(flags.map((f) => ({ ...f, submissionId })))
   await tx
     .update(submissions)
     .set({
       ...g,
       gradedAt: sql`CURRENT_TIMESTAMP(3)`,
+      gradeClaimedAt: null,
       ...(flags.length ? { reviewStatus: 'open' as const } : {}),
     })
     .where(eq(submissions.id, submissionId))
+  return true
 }
 
 export async function addFlags(tx: Executor, submissionId: number, flags: FlagWrite[]): Promise<void> {
@@ -217,6 +255,12 @@ export async function findSubmission(db: Executor, courseId: number, id: number)
     .innerJoin(users, eq(users.id, submissions.userId))
     .where(and(eq(submissions.id, id), eq(submissions.courseId, courseId)))
     .limit(1)
+  return rows[0] ?? null
+}
+
+/** A submission by id alone (the grading worker's view, not a person's). */
+export async function findSubmissionById(db: Executor, id: number): Promise<SubmissionRow | null> {
+  const rows = await db.select(cols).from(submissions).innerJoin(users, eq(users.id, submissions.userId)).where(eq(submissions.id, id)).limit(1)
   return rows[0] ?? null
 }
 

@@ -8,11 +8,12 @@ import { AppError } from '../errors'
 import { ANY_MEMBER, courseMember, enrollmentOf } from '../middleware/authorize'
 import { valid, validate } from '../middleware/validate'
 import { mySubmissions, submissionDetail, submissionFile, submitHandIn } from '../services/submission-service'
+import type { GradingContext } from '../services/grading-service'
 
 interface Opts {
-  appUrl: string
   uploadLimitMb: number
-  onMailQueued: () => void
+  grading: GradingContext
+  onHandInStored: () => void
 }
 
 /**
@@ -76,8 +77,9 @@ export function handInRoutes(db: Database, opts: Opts): Router {
         contentType: f.mimetype,
         bytes: f.buffer,
       }))
-      const detail = await submitHandIn(db, enrollmentOf(res), moduleId, payload, files, { appUrl: opts.appUrl })
-      opts.onMailQueued()
+      const detail = await submitHandIn(db, enrollmentOf(res), moduleId, payload, files, { grading: opts.grading })
+      // Stored: when this request could not grade it, the background grader does.
+      if (detail.status === 'received' || detail.status === 'grading') opts.onHandInStored()
       res.status(201).json(detail)
     },
   )

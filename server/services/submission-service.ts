@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto'
-import { gradeSubmission, chartSeries } from '../../shared/grading/grade'
+import { chartSeries } from '../../shared/grading/grade'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
-import { valueToSI } from '../../shared/modules/quantities'
+import { GRADING_FAILED_MESSAGE } from '../../shared/schemas/submissions'
 import type {
   CheckView,
   MySubmissions,
@@ -11,18 +11,18 @@ import type {
 } from '../../shared/schemas/submissions'
 import { formatInZone, zonedTimeToUtc } from '../../shared/time'
 import type { Database } from '../db/client'
-import type { SubmissionInputs } from '../db/schema'
+import { retryOnLockConflict } from '../db/retry'
 import { AppError, forbidden, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
+import { findEnrollment } from '../repositories/enrollments'
 import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
-import type { CheckWrite, FlagWrite, Owner, SubmissionRow } from '../repositories/submissions'
+import type { Owner, SubmissionRow } from '../repositories/submissions'
 import {
-  addFlags,
   countAttempts,
   findFileBytes,
-  findIdenticalFiles,
   findSubmission,
+  findSubmissionById,
   groupMemberEmails,
   insertFile,
   insertSubmission,
@@ -32,7 +32,6 @@ import {
   listFlags,
   listOwnerSubmissions,
   lockOwner,
-  saveGrade,
 } from '../repositories/submissions'
 import { submitterSection } from '../repositories/review'
 import { findExtensionDue } from '../repositories/due-extensions'
@@ -40,11 +39,12 @@ import { dueFor } from '../../shared/grading/due'
 import { findUserById } from '../repositories/users'
 import { commentsFor } from './review-service'
 import { escapeHtml } from './text'
-import { readingSense, validateHandIn } from './hand-in-validation'
+import { validateHandIn } from './hand-in-validation'
 import type { UploadedTable } from './hand-in-validation'
+import { gradeNow, gradingInputOf } from './grading-service'
+import type { GradingContext } from './grading-service'
 
 export type { UploadedTable }
-
 
 const DAY_MS = 86_400_000
 const isStaff = (e: CourseEnrollment) => e.role !== 'student'
@@ -138,7 +138,7 @@ export async function submitHandIn(
   moduleId: number,
   payload: SubmissionPayload,
   uploads: UploadedTable[],
-  opts: { appUrl: string; now?: Date },
+  opts: { now?: Date; grading?: GradingContext },
 ): Promise<SubmissionDetail> {
   if (e.role !== 'student') throw forbidden('Only students hand in work; staff can see submissions in the review queue.')
   const now = opts.now ?? new Date()
@@ -162,7 +162,8 @@ export async function submitHandIn(
     )
   }
 
-  const submissionId = await db.transaction(async (tx) => {
+  // The whole transaction runs again if InnoDB picks it as a deadlock victim in a burst.
+  const stored = await retryOnLockConflict(() => db.transaction(async (tx) => {
     await lockOwner(tx, e.courseId, owner)
     const used = await countAttempts(tx, p.moduleId, owner)
     if (used >= p.fm.attempts) {
@@ -195,78 +196,48 @@ export async function submitHandIn(
         rowCount: f.rowCount,
       })
     }
-    return id
-  })
+    return { id, attempt: used + 1 }
+  }))
 
-  await gradeStored(db, submissionId, p, { measurements: v.measurements, reported: v.reported, tables: v.tables, pressures: v.pressures }, late.penalty, e)
-  const detail = await submissionDetail(db, e, submissionId, now)
-  await queueReceipt(db, detail, course, opts.appUrl, e)
-  return detail
-}
-
-/** Grades a stored submission; failures are recorded on it, never thrown at the student. */
-async function gradeStored(
-  db: Database,
-  submissionId: number,
-  p: Published,
-  data: {
-    measurements: Record<string, number>
-    reported: Record<string, number>
-    tables: Record<string, Record<string, number[]>>
-    pressures: Record<string, 'gauge' | 'absolute'>
-  },
-  latePenalty: number,
-  e: CourseEnrollment,
-): Promise<void> {
+  // From here the hand-in is stored and acknowledged whatever happens next: grading is a job the
+  // background worker finishes if this request cannot (a database hiccup, a full grading pool).
   try {
-    const result = gradeSubmission({
-      assignment: p.fm.assignment!,
-      data: { tables: data.tables, measurements: data.measurements, pressures: data.pressures },
-      reported: data.reported,
-      latePenalty,
-    })
-    const checks: CheckWrite[] = result.checks.map((c) => ({
-      resultKey: c.key,
-      label: c.label,
-      unit: c.unit,
-      reported: c.reported,
-      expected: c.expected ?? null,
-      absError: c.absError ?? null,
-      relError: c.relError ?? null,
-      tolerance: c.tolerance ?? null,
-      pointsPossible: c.pointsPossible,
-      pointsAwarded: c.pointsAwarded,
-      pass: c.pass,
-      outcome: c.outcome,
-      error: c.error ?? null,
-    }))
-    const flags: FlagWrite[] = result.flags.map((f) => ({ code: f.code, message: f.message, detail: f.detail ?? null }))
-    await db.transaction((tx) =>
-      saveGrade(tx, submissionId, { status: 'graded', gradingError: null, rawScore: result.rawScore, score: result.score, maxScore: result.maxScore }, checks, flags),
-    )
+    if (opts.grading) await gradeNow(db, opts.grading, stored.id)
   } catch (err) {
-    const message = err instanceof Error ? err.message : String(err)
-    await db.transaction((tx) =>
-      saveGrade(tx, submissionId, { status: 'grading-failed', gradingError: message.slice(0, 1000), rawScore: null, score: null, maxScore: null }, [], [
-        { code: 'grading-failed', message: `Automatic grading failed: ${message.slice(0, 800)}`, detail: null },
-      ]),
-    )
+    opts.grading?.logger.warn({ err, submissionId: stored.id }, 'hand-in stored; grading left to the worker')
   }
-  // A file byte-identical to another group's in this course is for staff to look at.
-  const files = await listFiles(db, submissionId)
-  for (const f of files) {
-    const same = await findIdenticalFiles(db, e.courseId, f.sha256, { userId: e.userId, labGroupId: e.labGroupId })
-    if (same.length) {
-      const who = same.map((s) => s.labGroupName ?? s.submittedBy).join(', ')
-      await db.transaction((tx) =>
-        addFlags(tx, submissionId, [
-          {
-            code: 'identical-file',
-            message: `The uploaded file ${f.filename} is byte-for-byte identical to a file handed in by ${who}.`,
-            detail: { otherSubmissionId: same[0]!.submissionId },
-          },
-        ]),
-      )
+  try {
+    return await submissionDetail(db, e, stored.id, now)
+  } catch (err) {
+    opts.grading?.logger.warn({ err, submissionId: stored.id }, 'hand-in stored; its detail could not be read back')
+    return {
+      id: stored.id,
+      attempt: stored.attempt,
+      submittedAt: now.toISOString(),
+      submittedBy: '',
+      status: 'received',
+      isLate: late.isLate,
+      daysLate: late.daysLate,
+      latePenalty: late.penalty,
+      score: null,
+      maxScore: null,
+      flagCount: 0,
+      courseId: e.courseId,
+      moduleId: p.moduleId,
+      moduleTitle: p.title,
+      moduleVersion: p.versionNumber,
+      labGroupName: null,
+      resultsVisible: false,
+      resultsHiddenReason: 'Your hand-in is stored and waiting to be graded.',
+      rawScore: null,
+      checks: [],
+      flags: [],
+      chart: null,
+      files: [],
+      inputs: v.inputs,
+      attemptsAllowed: p.fm.attempts,
+      attemptsUsed: stored.attempt,
+      comments: [],
     }
   }
 }
@@ -289,14 +260,16 @@ function summary(s: SubmissionRow & { flagCount?: number }, visible: boolean): S
 }
 
 /**
- * May this person see this submission? Its submitter, their lab-group partners, the instructors,
- * and the TAs of the submitter's section.
+ * May this person see this submission? Its submitter, the instructors, the TAs of the submitter's
+ * section, and, only on a module handed in by lab group, the submitter's lab-group partners.
  */
 async function canSee(db: Database, e: CourseEnrollment, s: SubmissionRow): Promise<boolean> {
   if (e.role === 'instructor') return true
   if (e.role === 'ta') return e.sectionId !== null && (await submitterSection(db, s.id)) === e.sectionId
   if (s.userId === e.userId) return true
-  return s.labGroupId !== null && s.labGroupId === e.labGroupId
+  if (s.labGroupId === null || s.labGroupId !== e.labGroupId) return false
+  const version = await findVersion(db, s.moduleVersionId)
+  return (version?.frontMatter as unknown as ModuleFrontMatter | null)?.groupSubmission === true
 }
 
 export async function submissionDetail(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<SubmissionDetail> {
@@ -344,11 +317,8 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
   const mainFile = files[0]
   if (mainFile && fm.assignment) {
     try {
-      const table = fm.assignment.tables.find((t) => t.key === mainFile.tableKey)
-      if (table) {
-        const si = siDataOf(fm, s.inputs, { [table.key]: mainFile.mapping })
-        chart = chartSeries(fm.assignment, { tables: { [table.key]: mainFile.parsed }, ...si })
-      }
+      const input = gradingInputOf(fm, s.inputs, [mainFile], 0)
+      chart = chartSeries(fm.assignment, input.data)
     } catch {
       chart = null
     }
@@ -374,28 +344,6 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
     attemptsUsed: used,
     comments,
   }
-}
-
-/** The stored inputs as the grading engine's SI data (the same conversion as at hand-in). */
-function siDataOf(fm: ModuleFrontMatter, inputs: SubmissionInputs, mappings: Record<string, Record<string, { pressure?: 'gauge' | 'absolute' }>>) {
-  const measurements: Record<string, number> = {}
-  const pressures: Record<string, 'gauge' | 'absolute'> = {}
-  const a = fm.assignment
-  if (!a) return { measurements, pressures }
-  for (const m of a.measurements) {
-    const t = inputs.measurements[m.key]
-    if (!t) continue
-    measurements[m.key] = valueToSI(t.value, t.unit)
-    const sense = readingSense(m, t)
-    if (m.pressure && sense && sense !== m.pressure) pressures[m.key] = sense
-  }
-  for (const t of a.tables) {
-    for (const c of t.columns) {
-      const sense = mappings[t.key]?.[c.key]?.pressure
-      if (c.pressure && sense && sense !== c.pressure) pressures[c.key] = sense
-    }
-  }
-  return { measurements, pressures }
 }
 
 export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId: number, now = new Date()): Promise<MySubmissions> {
@@ -448,23 +396,29 @@ export async function submissionFile(db: Database, e: CourseEnrollment, submissi
   return f
 }
 
-/** A receipt to the submitter (and group partners), with the score when results are visible. */
-async function queueReceipt(
-  db: Database,
-  d: SubmissionDetail,
-  course: { code: string; title: string; timeZone: string },
-  appUrl: string,
-  e: CourseEnrollment,
-): Promise<void> {
-  const me = await findUserById(db, e.userId)
-  const people = d.labGroupName && e.labGroupId !== null ? await groupMemberEmails(db, e.labGroupId) : me ? [{ email: me.email, displayName: me.displayName }] : []
+/**
+ * The receipt for a hand-in, once it is graded (or could not be): to the submitter, and to the lab
+ * group on a group module, with the score when results are visible. Queued once per hand-in.
+ */
+export async function queueHandInReceipt(db: Database, submissionId: number, appUrl: string): Promise<void> {
+  const s = await findSubmissionById(db, submissionId)
+  if (!s) return
+  const e = await findEnrollment(db, s.userId, s.courseId)
+  if (!e) return
+  const d = await submissionDetail(db, e, submissionId)
+  const course = await courseTimeZone(db, e.courseId)
+  const version = await findVersion(db, s.moduleVersionId)
+  const group = (version?.frontMatter as unknown as ModuleFrontMatter | null)?.groupSubmission === true && s.labGroupId !== null
+  const me = await findUserById(db, s.userId)
+  const people = group ? await groupMemberEmails(db, s.labGroupId!) : me ? [{ email: me.email, displayName: me.displayName }] : []
   const link = `${appUrl.replace(/\/$/, '')}/courses/${d.courseId}/submissions/${d.id}`
   const when = formatInZone(new Date(d.submittedAt), course.timeZone)
-  const scoreLine = d.resultsVisible && d.score !== null && d.maxScore !== null
-    ? `Score: ${Number(d.score.toFixed(2))} of ${d.maxScore}${d.latePenalty > 0 ? ` (after a ${Math.round(d.latePenalty * 100)} % late penalty)` : ''}.`
-    : d.status === 'grading-failed'
-      ? 'Automatic grading could not finish; the course staff will grade it.'
-      : (d.resultsHiddenReason ?? 'Results are not shown yet.')
+  const scoreLine =
+    d.status === 'grading-failed'
+      ? GRADING_FAILED_MESSAGE
+      : d.resultsVisible && d.score !== null && d.maxScore !== null
+        ? `Score: ${Number(d.score.toFixed(2))} of ${d.maxScore}${d.latePenalty > 0 ? ` (after a ${Math.round(d.latePenalty * 100)} % late penalty)` : ''}.`
+        : (d.resultsHiddenReason ?? 'Results are not shown yet.')
   await enqueueMail(
     db,
     people.map((p) => ({
@@ -475,7 +429,7 @@ async function queueReceipt(
       textBody: [
         `Hello ${p.displayName},`,
         '',
-        `Isentrope received ${d.labGroupName ? `${d.labGroupName}'s` : 'your'} hand-in for “${d.moduleTitle}” (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${when}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.`,
+        `Isentrope received ${group && d.labGroupName ? `${d.labGroupName}'s` : 'your'} hand-in for “${d.moduleTitle}” (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${when}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.`,
         scoreLine,
         '',
         `See the checks: ${link}`,
@@ -483,7 +437,7 @@ async function queueReceipt(
         '— Isentrope',
       ].join('\n'),
       htmlBody: `<p>Hello ${escapeHtml(p.displayName)},</p>
-<p>Isentrope received ${d.labGroupName ? `${escapeHtml(d.labGroupName)}'s` : 'your'} hand-in for <strong>${escapeHtml(d.moduleTitle)}</strong> (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${escapeHtml(when)}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.</p>
+<p>Isentrope received ${group && d.labGroupName ? `${escapeHtml(d.labGroupName)}'s` : 'your'} hand-in for <strong>${escapeHtml(d.moduleTitle)}</strong> (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${escapeHtml(when)}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.</p>
 <p>${escapeHtml(scoreLine)}</p>
 <p><a href="${escapeHtml(link)}">See the checks</a></p>
 <p style="color:#5d574c">— Isentrope</p>`,

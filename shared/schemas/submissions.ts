@@ -93,6 +93,12 @@ export interface ChartData {
 export const SUBMISSION_STATUSES = ['received', 'grading', 'graded', 'grading-failed'] as const
 export type SubmissionStatus = (typeof SUBMISSION_STATUSES)[number]
 
+/**
+ * What a person is told when a hand-in could not be graded automatically, wherever it shows (the
+ * result, the flag, the e-mail, the report). The cause is logged on the server, never shown.
+ */
+export const GRADING_FAILED_MESSAGE = 'This hand-in could not be graded automatically; the course staff have been told and will grade it.'
+
 export interface SubmissionSummary {
   id: number
   attempt: number
