@@ -9,7 +9,7 @@ import { pinoHttp } from 'pino-http'
 import { createCsrf } from './auth/csrf'
 import { createPassport } from './auth/passport'
 import type { Config } from './config'
-import { dbConnectionOptions } from './config'
+import { dbConnectionOptions, gradingBudget } from './config'
 import type { Database } from './db/client'
 import { createGrader } from './grading/grading-pool'
 import type { Grader } from './grading/grading-pool'
@@ -51,7 +51,7 @@ export interface CreatedApp {
 export function createApp({ config, db, logger, onMailQueued, grader: givenGrader, onHandInStored }: AppDeps): CreatedApp {
   const app = express()
   const grader =
-    givenGrader ?? createGrader({ timeoutMs: config.GRADING_TIMEOUT_MS, memoryMb: config.GRADING_MEMORY_MB, threads: config.GRADING_THREADS })
+    givenGrader ?? createGrader(gradingBudget(config))
   const grading = gradingContext(db, { grader, logger, appUrl: config.APP_URL, onMailQueued })
   const secureCookies = config.APP_URL.startsWith('https://')
   if (config.TRUST_PROXY > 0) app.set('trust proxy', config.TRUST_PROXY)

@@ -37,6 +37,9 @@ const ConfigSchema = z
     APP_URL: z.string().url().default('http://127.0.0.1:3000'),
     LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
     DB_POOL_SIZE: z.coerce.number().int().positive().default(10),
+    /** Fail fast on a stalled database: longest wait for a pooled connection and per statement. */
+    DB_ACQUIRE_TIMEOUT_MS: z.coerce.number().int().min(100).default(5000),
+    DB_QUERY_TIMEOUT_MS: z.coerce.number().int().min(0).default(8000),
     SESSION_SECRET: z
       .string({ error: 'required: a random secret of at least 32 characters that signs session cookies' })
       .min(32, 'SESSION_SECRET must be at least 32 characters'),
@@ -128,3 +131,15 @@ export function dbConnectionOptions(c: DbEnv): DbConnectionOptions {
     database: c.DB_NAME ?? '',
   }
 }
+
+/** The app's pool: connection options, its size, and the fail-fast timeouts. */
+export function appDbOptions(c: Config): DbConnectionOptions & { poolSize: number; timeouts: { acquireMs: number; queryMs: number } } {
+  return {
+    ...dbConnectionOptions(c),
+    poolSize: c.DB_POOL_SIZE,
+    timeouts: { acquireMs: c.DB_ACQUIRE_TIMEOUT_MS, queryMs: c.DB_QUERY_TIMEOUT_MS },
+  }
+}
+
+/** The grading budget and threads from the configuration. */
+export const gradingBudget = (c: Config) => ({ timeoutMs: c.GRADING_TIMEOUT_MS, memoryMb: c.GRADING_MEMORY_MB, threads: c.GRADING_THREADS })

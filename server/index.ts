@@ -1,6 +1,6 @@
 import type { Server } from 'node:http'
 import { createApp, gradingContext } from './app'
-import { ConfigError, dbConnectionOptions, loadConfig } from './config'
+import { ConfigError, appDbOptions, gradingBudget, loadConfig } from './config'
 import { createDb } from './db/client'
 import { createLogger } from './logger'
 import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from './mail/outbox-worker'
@@ -22,7 +22,7 @@ try {
 }
 
 const logger = createLogger(config.LOG_LEVEL)
-const dbHandle = createDb({ ...dbConnectionOptions(config), poolSize: config.DB_POOL_SIZE })
+const dbHandle = createDb(appDbOptions(config))
 const worker =
   config.MAIL_POLL_MS > 0
     ? startOutboxWorker(dbHandle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: config.MAIL_POLL_MS })
@@ -41,7 +41,7 @@ const digestTimer =
           .catch((err: unknown) => logger.warn({ err }, 'flag digest failed; will retry'))
       }, config.FLAG_DIGEST_MINUTES * 60_000)
     : null
-const grader = createGrader({ timeoutMs: config.GRADING_TIMEOUT_MS, memoryMb: config.GRADING_MEMORY_MB, threads: config.GRADING_THREADS })
+const grader = createGrader(gradingBudget(config))
 // Load the grading threads now so the first hand-in does not wait for them.
 grader.warmUp().catch((err: unknown) => logger.error({ err }, 'grading threads failed to start'))
 const gradingWorker =

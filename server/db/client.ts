@@ -3,6 +3,8 @@ import type { MySql2Database } from 'drizzle-orm/mysql2'
 import mysql from 'mysql2/promise'
 import type { DbConnectionOptions } from '../config'
 import * as schema from './schema'
+import { withTimeouts } from './timeouts'
+import type { DbTimeouts } from './timeouts'
 
 export type Database = MySql2Database<typeof schema>
 /** The handle passed to `db.transaction(async (tx) => …)`. */
@@ -16,7 +18,7 @@ export interface DbHandle {
   close: () => Promise<void>
 }
 
-export function createDb(options: DbConnectionOptions & { poolSize?: number }): DbHandle {
+export function createDb(options: DbConnectionOptions & { poolSize?: number; timeouts?: DbTimeouts }): DbHandle {
   const pool = mysql.createPool({
     host: options.host,
     port: options.port,
@@ -32,6 +34,6 @@ export function createDb(options: DbConnectionOptions & { poolSize?: number }): 
   })
   // MariaDB lacks LATERAL joins; 'planetscale' mode makes relational queries avoid them.
   // https://orm.drizzle.team/docs/rqb
-  const db = drizzle(pool, { schema, mode: 'planetscale' })
+  const db = drizzle(options.timeouts ? withTimeouts(pool, options.timeouts) : pool, { schema, mode: 'planetscale' })
   return { db, pool, close: () => pool.end() }
 }

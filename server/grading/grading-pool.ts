@@ -40,6 +40,16 @@ export interface Grader {
  */
 export function createGrader(budget: GradingBudget = DEFAULT_GRADING_BUDGET): Grader {
   let pool: Piscina | null = null
+  // One job per thread at a time, taken in order: the time budget then counts the job's own run,
+  // not its wait in a queue behind a burst of others.
+  let free = budget.threads
+  const waiting: (() => void)[] = []
+  const acquire = () => (free > 0 ? (free--, Promise.resolve()) : new Promise<void>((r) => waiting.push(r)))
+  const release = () => {
+    const next = waiting.shift()
+    if (next) next()
+    else free++
+  }
   const getPool = () =>
     (pool ??= new Piscina({
       filename: new URL('./grade-task.mjs', import.meta.url).href,
@@ -51,18 +61,25 @@ export function createGrader(budget: GradingBudget = DEFAULT_GRADING_BUDGET): Gr
     }))
   return {
     async grade(input) {
-      const signal = AbortSignal.timeout(budget.timeoutMs)
+      await acquire()
+      let signal: AbortSignal | null = null
       try {
+        // A thread that replaced one stopped for its budget loads its libraries first (a second or
+        // more), outside the job's budget.
+        await getPool().run(null, { name: 'ping' })
+        signal = AbortSignal.timeout(budget.timeoutMs)
         return (await getPool().run(input, { signal })) as GradeResult
       } catch (err) {
         const e = err as { name?: string; code?: string; message?: string }
-        if (signal.aborted) {
+        if (signal?.aborted) {
           throw new GradingBudgetError('time', `grading ran past its ${budget.timeoutMs} ms budget and was stopped`)
         }
         if (e.code === 'ERR_WORKER_OUT_OF_MEMORY' || /out of memory|heap limit/i.test(e.message ?? '')) {
           throw new GradingBudgetError('memory', `grading ran past its ${budget.memoryMb} MB memory budget and was stopped`)
         }
         throw err
+      } finally {
+        release()
       }
     },
     async warmUp() {

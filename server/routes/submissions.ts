@@ -2,7 +2,7 @@ import { Router } from 'express'
 import type { NextFunction, Request, Response } from 'express'
 import multer from 'multer'
 import { ModuleParamsSchema } from '../../shared/schemas/modules'
-import { SubmissionFileParamsSchema, SubmissionParamsSchema, SubmissionPayloadSchema } from '../../shared/schemas/submissions'
+import { SubmissionFileParamsSchema, SubmissionParamsSchema, SubmissionPayloadSchema, isAwaitingGrade } from '../../shared/schemas/submissions'
 import type { Database } from '../db/client'
 import { AppError } from '../errors'
 import { ANY_MEMBER, courseMember, enrollmentOf } from '../middleware/authorize'
@@ -79,7 +79,7 @@ export function handInRoutes(db: Database, opts: Opts): Router {
       }))
       const detail = await submitHandIn(db, enrollmentOf(res), moduleId, payload, files, { grading: opts.grading })
       // Stored: when this request could not grade it, the background grader does.
-      if (detail.status === 'received' || detail.status === 'grading') opts.onHandInStored()
+      if (isAwaitingGrade(detail.status)) opts.onHandInStored()
       res.status(201).json(detail)
     },
   )

@@ -1,3 +1,4 @@
+import { GRADING_FAILED_MESSAGE, isAwaitingGrade } from '../../shared/schemas/submissions'
 /**
  * Feedback reports: the data of one hand-in's printed report, and the per-module archive of every
  * lab group's or student's counted report.
@@ -43,13 +44,13 @@ export interface FeedbackReport {
  */
 export async function feedbackReport(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<FeedbackReport> {
   const detail = await submissionDetail(db, e, submissionId, now)
-  if (detail.status === 'received') {
+  if (isAwaitingGrade(detail.status)) {
     throw new AppError('not_graded', 'This hand-in is still being graded. The feedback report can be downloaded once it is graded.', 409)
   }
   if (detail.status === 'grading-failed') {
     throw new AppError(
       'not_graded',
-      'The automatic check could not grade this hand-in, so there is no feedback report for it. The course staff will grade it by hand.',
+      `${GRADING_FAILED_MESSAGE} There is no feedback report for it until then.`,
       409,
     )
   }

@@ -138,7 +138,7 @@ export async function submitHandIn(
   moduleId: number,
   payload: SubmissionPayload,
   uploads: UploadedTable[],
-  opts: { now?: Date; grading?: GradingContext },
+  opts: { now?: Date; grading?: GradingContext } = {},
 ): Promise<SubmissionDetail> {
   if (e.role !== 'student') throw forbidden('Only students hand in work; staff can see submissions in the review queue.')
   const now = opts.now ?? new Date()

@@ -93,6 +93,9 @@ export interface ChartData {
 export const SUBMISSION_STATUSES = ['received', 'grading', 'graded', 'grading-failed'] as const
 export type SubmissionStatus = (typeof SUBMISSION_STATUSES)[number]
 
+/** States that end on their own: the hand-in is stored and its grade is on the way. */
+export const isAwaitingGrade = (status: SubmissionStatus) => status === 'received' || status === 'grading'
+
 /**
  * What a person is told when a hand-in could not be graded automatically, wherever it shows (the
  * result, the flag, the e-mail, the report). The cause is logged on the server, never shown.

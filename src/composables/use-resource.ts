@@ -9,6 +9,8 @@ export interface Resource<T> {
   data: Ref<T | null>
   error: Ref<ApiError | null>
   reload: () => Promise<void>
+  /** Loads again without passing through 'loading' (the page keeps showing what it has). */
+  refresh: () => Promise<void>
 }
 
 /**
@@ -22,10 +24,12 @@ export function useResource<T>(load: () => Promise<T>, source?: WatchSource): Re
   const error = shallowRef<ApiError | null>(null)
   let run = 0
 
-  async function reload() {
+  async function reload(quiet = false) {
     const mine = ++run
-    state.value = 'loading'
-    error.value = null
+    if (!quiet) {
+      state.value = 'loading'
+      error.value = null
+    }
     try {
       const value = await load()
       if (mine !== run) return
@@ -40,5 +44,5 @@ export function useResource<T>(load: () => Promise<T>, source?: WatchSource): Re
 
   if (source) watch(source, () => void reload(), { immediate: true })
   else void reload()
-  return { state, data, error, reload }
+  return { state, data, error, reload: () => reload(), refresh: () => reload(true) }
 }

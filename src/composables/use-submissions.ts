@@ -4,7 +4,7 @@
  * `api/submissions.ts`.
  */
 import Papa from 'papaparse/papaparse.min.js'
-import { computed, reactive, ref, shallowRef, watch } from 'vue'
+import { computed, onScopeDispose, reactive, ref, shallowRef, watch } from 'vue'
 import type { ComputedRef, Ref, ShallowRef } from 'vue'
 import { z } from 'zod'
 import { parseDecimal, parseLog, sniffBinary, suggestMapping } from '@shared/grading/csv'
@@ -12,6 +12,7 @@ import type { ColumnMappingEntry, LogIssue, LogParseResult } from '@shared/gradi
 import { DIMENSIONLESS, dataUnitKind, isPressureUnit, valueFromSI } from '@shared/modules/quantities'
 import { MeasurementSchema, ResultSpecSchema, TableSchema } from '@shared/modules/schema'
 import type { MeasurementSpec, TableSpec } from '@shared/modules/schema'
+import { isAwaitingGrade } from '@shared/schemas/submissions'
 import type { SubmissionDetail, SubmissionFieldIssue, SubmissionPayload } from '@shared/schemas/submissions'
 import { compatibleUnits, isCompatibleUnit, toSpecSense, toSpecUnit } from '@shared/typed-values'
 import { UNITS, isUnitSymbol } from '@shared/units'
@@ -37,8 +38,27 @@ export function useMySubmissions(courseId: Ref<number>, moduleId: Ref<number | n
   )
 }
 
+/** Looks again at 1 s, 2 s, 3 s … up to every 5 s, for at most this long. */
+const GRADE_WAIT_MS = 5 * 60_000
+
 export function useSubmission(courseId: Ref<number>, submissionId: Ref<number>) {
-  return useResource(() => fetchSubmission(courseId.value, submissionId.value), () => [courseId.value, submissionId.value])
+  const resource = useResource(() => fetchSubmission(courseId.value, submissionId.value), () => [courseId.value, submissionId.value])
+  let timer: ReturnType<typeof setTimeout> | null = null
+  let waitedMs = 0
+  const stop = () => {
+    if (timer) clearTimeout(timer)
+    timer = null
+  }
+  watch(resource.data, (d) => {
+    stop()
+    if (!d || !isAwaitingGrade(d.status) || waitedMs >= GRADE_WAIT_MS) return
+    const delay = Math.min(5000, 1000 + waitedMs / 4)
+    waitedMs += delay
+    timer = setTimeout(() => void resource.refresh(), delay)
+  })
+  watch([courseId, submissionId], () => (waitedMs = 0))
+  onScopeDispose(stop)
+  return resource
 }
 
 /**
@@ -53,6 +73,13 @@ export function useSubmissionPage(courseId: Ref<number>, submissionId: Ref<numbe
     () => [courseId.value, moduleId.value],
   )
   const mine = useMySubmissions(courseId, moduleId)
+  // When the grade arrives, the attempts list shows it too.
+  watch(
+    () => detail.data.value?.status,
+    (now, before) => {
+      if (before && isAwaitingGrade(before) && now && !isAwaitingGrade(now)) void mine.refresh()
+    },
+  )
   return { detail, reading, mine }
 }
 

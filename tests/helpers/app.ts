@@ -5,7 +5,7 @@ import { createApp } from '../../server/app'
 import type { CreatedApp } from '../../server/app'
 import { hashPassword } from '../../server/auth/password'
 import type { Config } from '../../server/config'
-import { dbConnectionOptions, loadConfig } from '../../server/config'
+import { appDbOptions, loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
 import type { DbHandle } from '../../server/db/client'
 import { courses, enrollments, labGroups, sections, users } from '../../server/db/schema'
@@ -25,7 +25,7 @@ export interface TestContext {
 
 export function startTestApp(overrides: Partial<Record<string, string>> = {}): TestContext {
   const config = testConfig(overrides)
-  const handle = createDb(dbConnectionOptions(config))
+  const handle = createDb(appDbOptions(config))
   const created = createApp({ config, db: handle.db, logger: createLogger(config.LOG_LEVEL) })
   return {
     config,

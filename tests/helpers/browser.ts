@@ -7,12 +7,14 @@ import { chromium } from 'playwright-core'
 import type { Browser, Page } from 'playwright-core'
 import { expect } from 'vitest'
 import { DEFAULT_DEMO_PASSWORD } from '../../scripts/demo/scenario'
-import { createApp } from '../../server/app'
-import { dbConnectionOptions } from '../../server/config'
+import { createApp, gradingContext } from '../../server/app'
+import { appDbOptions, gradingBudget } from '../../server/config'
 import { createDb } from '../../server/db/client'
 import { createLogger } from '../../server/logger'
 import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from '../../server/mail/outbox-worker'
 import { createSmtpSender } from '../../server/mail/transport'
+import { createGrader } from '../../server/grading/grading-pool'
+import { DEFAULT_GRADING_WORKER_OPTIONS, startGradingWorker } from '../../server/grading/grading-worker'
 import { testConfig } from './app'
 
 /** Debian's Chromium, never a downloaded browser; playwright gives it a fresh temporary profile. */
@@ -44,11 +46,17 @@ export async function serveApp(): Promise<{ url: string; db: ReturnType<typeof c
   const { port } = server.address() as AddressInfo
   const url = `http://127.0.0.1:${port}`
   const config = testConfig({ CLIENT_DIST: 'dist/client', APP_URL: url })
-  const handle = createDb(dbConnectionOptions(config))
+  const handle = createDb(appDbOptions(config))
   const logger = createLogger(config.LOG_LEVEL)
   // The real outbox worker, polling fast so journeys see their e-mail within a second or two.
   const worker = startOutboxWorker(handle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: 300 })
-  const created = createApp({ config, db: handle.db, logger, onMailQueued: () => worker.kick() })
+  // The real background grader too, as `npm start` runs it.
+  const grader = createGrader(gradingBudget(config))
+  const grading = startGradingWorker(handle.db, gradingContext(handle.db, { grader, logger, appUrl: url, onMailQueued: () => worker.kick() }), {
+    ...DEFAULT_GRADING_WORKER_OPTIONS,
+    pollMs: 500,
+  })
+  const created = createApp({ config, db: handle.db, logger, grader, onMailQueued: () => worker.kick(), onHandInStored: () => grading.kick() })
   server.on('request', created.app)
   return {
     url,
@@ -57,6 +65,8 @@ export async function serveApp(): Promise<{ url: string; db: ReturnType<typeof c
       server.closeAllConnections()
       await new Promise<void>((r) => server.close(() => r()))
       await worker.stop()
+      await grading.stop()
+      await grader.close()
       await created.close()
       await handle.close()
     },
