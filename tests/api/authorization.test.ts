@@ -545,3 +545,64 @@ describe('what each person can see', () => {
     expect(res.body.error.message).toContain('courseId')
   })
 })
+
+describe('hand-in routes for both kinds of module', () => {
+  // A lab-group partner of the fixture student (same group G1, section A).
+  let partner: Client
+  let submitter: Client
+  const made: Record<'group' | 'individual', { submissionId: number; fileId: number }> = {} as never
+
+  beforeAll(async () => {
+    const tag = uniq()
+    const { hashPassword } = await import('../../server/auth/password')
+    const email = `partner.${tag}@test.example`
+    const [u] = await ctx.handle.db
+      .insert(users)
+      .values({ email, displayName: `Partner ${tag}`, passwordHash: await hashPassword('partner-password-1') })
+      .$returningId()
+    await ctx.handle.db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA, labGroupId: await groupG1(fx) })
+    partner = await signedInAs(ctx, email, 'partner-password-1')
+    submitter = await signedInAs(ctx, fx.student.email)
+    const inst = await signedInAs(ctx, fx.instructor.email)
+    const cold = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+    for (const kind of ['group', 'individual'] as const) {
+      const source = cold
+        .replace(/^groupSubmission: true$/m, `groupSubmission: ${kind === 'group'}`)
+        .replace(/^title: .*$/m, `title: Cold flow, ${kind} hand-in`)
+      const m = await createModuleAs(inst, fx.courseId, source)
+      await publishAs(inst, fx.courseId, m)
+      const log = coldFlowCsv()
+      const res = await submitter.agent
+        .post(`${M(fx)}/${m.id}/submissions`)
+        .set('x-csrf-token', submitter.csrf)
+        .field('payload', JSON.stringify(coldFlowPayload(log)))
+        .attach('table:run', Buffer.from(log.csv), 'run.csv')
+      if (res.status !== 201) throw new Error(`${kind} hand-in failed: ${res.status} ${JSON.stringify(res.body)}`)
+      made[kind] = { submissionId: res.body.id, fileId: res.body.files[0].id }
+    }
+  })
+
+  const routes: [string, (k: 'group' | 'individual') => string][] = [
+    ['GET /api/courses/:courseId/submissions/:submissionId', (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}`],
+    ['GET /api/courses/:courseId/submissions/:submissionId/files/:fileId', (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}/files/${made[k].fileId}`],
+    ['GET /api/courses/:courseId/submissions/:submissionId/report.pdf', (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}/report.pdf`],
+  ]
+  const expected = { group: { submitter: 200, partner: 200 }, individual: { submitter: 200, partner: 404 } } as const
+
+  for (const [route, url] of routes) {
+    for (const kind of ['group', 'individual'] as const) {
+      for (const who of ['submitter', 'partner'] as const) {
+        it(`${route} on a ${kind} module as the ${who} → ${expected[kind][who]}`, async () => {
+          const c = who === 'submitter' ? submitter : partner
+          const res = await c.agent.get(url(kind))
+          expect(res.status).toBe(expected[kind][who])
+        })
+      }
+    }
+  }
+
+  it('on an individual module a partner’s own attempts list does not include the submitter’s hand-in', async () => {
+    const d = await partner.agent.get(`/api/courses/${fx.courseId}/submissions/${made.individual.submissionId}`)
+    expect(d.status).toBe(404)
+  })
+})
