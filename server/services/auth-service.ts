@@ -25,11 +25,11 @@ export async function signIn(
   const ok = user?.passwordHash
     ? await verifyPassword(user.passwordHash, input.password)
     : (await verifyPassword(await decoyHash(), input.password), false)
-  if (!user || !ok) {
-    await pruneSignInCounters(db, policy)
-    throw new AppError('bad_credentials', BAD_CREDENTIALS, 401)
-  }
-  await settleSuccessfulSignIn(db, reservation)
+  if (user && ok) await settleSuccessfulSignIn(db, reservation)
+  // Counters past their window count as zero anyway; pruning a few here keeps the table small
+  // without a timer in every replica.
+  await pruneSignInCounters(db, policy)
+  if (!user || !ok) throw new AppError('bad_credentials', BAD_CREDENTIALS, 401)
   return { id: user.id, email: user.email, displayName: user.displayName, isSiteAdmin: user.isSiteAdmin }
 }
 

@@ -1,5 +1,5 @@
 import { randomInt } from 'node:crypto'
-import { and, eq, sql } from 'drizzle-orm'
+import { and, eq, or, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { signInThrottles } from '../../server/db/schema'
 import type { SignInScope } from '../../server/db/schema'
@@ -74,6 +74,14 @@ async function letTimePass(email: string, address: string, seconds: number): Pro
     .update(signInThrottles)
     .set({ lastFailedAt: sql`${signInThrottles.lastFailedAt} - INTERVAL ${seconds} SECOND` })
     .where(and(eq(signInThrottles.scope, 'account_address'), eq(signInThrottles.email, email), eq(signInThrottles.address, address)))
+}
+
+/** Pretends `seconds` have passed since every counter of this e-mail or this address last failed. */
+async function ageAllCounters(email: string, address: string, seconds: number): Promise<void> {
+  await ctx.handle.db
+    .update(signInThrottles)
+    .set({ lastFailedAt: sql`${signInThrottles.lastFailedAt} - INTERVAL ${seconds} SECOND` })
+    .where(or(eq(signInThrottles.email, email), eq(signInThrottles.address, address)))
 }
 
 const count = (statuses: number[], status: number) => statuses.filter((s) => s === status).length
@@ -198,6 +206,28 @@ describe('sign-in slow-down', () => {
     expect(await failures('address', '', sprayer)).toBe(ADDRESS_FREE)
     const ok = await attempt(await anonymous(ctx), freshAddress(), fx.outsider.email, PASSWORD)
     expect(ok.status).toBe(200)
+  })
+
+  it('forgets failures after the window without one, and prunes counters past it', async () => {
+    const email = `forgetful-${uniq()}@test.example`
+    const from = freshAddress()
+    expect(await failSequentially(from, email, FREE + 1)).toEqual([...Array(FREE).fill(401), 429])
+    // An hour and a minute later (the window is an hour), the count starts over.
+    await ageAllCounters(email, from, 61 * 60)
+    expect(await failSequentially(from, email, 1)).toEqual([401])
+    expect(await failures('account_address', email, from)).toBe(1)
+    expect(await failures('address', email, from)).toBe(1)
+    expect(await failures('account', email, '')).toBe(1)
+
+    // Once past the window again, the next sign-in anywhere removes the rows.
+    await ageAllCounters(email, from, 61 * 60)
+    const ok = await attempt(await anonymous(ctx), freshAddress(), fx.admin.email, PASSWORD)
+    expect(ok.status).toBe(200)
+    const left = await ctx.handle.db
+      .select()
+      .from(signInThrottles)
+      .where(or(eq(signInThrottles.email, email), eq(signInThrottles.address, from)))
+    expect(left).toEqual([])
   })
 
   it('answers an unknown e-mail exactly as a known one with a wrong password, refusals included', async () => {
