@@ -28,6 +28,7 @@ import { reportRoutes } from './routes/reports'
 import { reviewRoutes } from './routes/review'
 import { rosterImportRoutes } from './routes/roster-import'
 import { handInRoutes } from './routes/submissions'
+import { signInPolicy } from './services/sign-in-throttle'
 
 export interface AppDeps {
   config: Config
@@ -128,10 +129,7 @@ export function createApp({ config, db, logger, onMailQueued, grader: givenGrade
     }),
   )
 
-  const passport = createPassport(db, {
-    maxFailures: config.SIGNIN_MAX_FAILURES,
-    windowMinutes: config.SIGNIN_WINDOW_MINUTES,
-  })
+  const passport = createPassport(db, signInPolicy(config))
   app.use(passport.session())
 
   const csrf = createCsrf(config.SESSION_SECRET, secureCookies)

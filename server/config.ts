@@ -55,9 +55,26 @@ const ConfigSchema = z
     MAIL_POLL_MS: z.coerce.number().int().min(0).default(2000),
     /** Minutes between the teaching assistants' flag digests; 0 turns them off in this process. */
     FLAG_DIGEST_MINUTES: z.coerce.number().min(0).default(15),
-    /** Sign-in: failures per e-mail address allowed in the window before refusing. */
-    SIGNIN_MAX_FAILURES: z.coerce.number().int().positive().default(5),
-    SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(15),
+    // Sign-in slow-down (README, "Sign-in policy"). Nothing locks an account: past a free
+    // allowance each further failure doubles the wait before the next attempt from that address.
+    /** Failures on one account from one client address before its attempts are slowed down. */
+    SIGNIN_FREE_FAILURES: z.coerce.number().int().positive().default(5),
+    /** Failures from one client address across all accounts before that address is slowed down. */
+    SIGNIN_ADDRESS_FREE_FAILURES: z.coerce.number().int().positive().default(50),
+    /**
+     * Failures on one account from all addresses after which an address that has already failed
+     * on it gets only one free failure (addresses that have not failed on it are not affected).
+     */
+    SIGNIN_ACCOUNT_FREE_FAILURES: z.coerce.number().int().positive().default(20),
+    /** The first wait once an allowance is used up; each further failure doubles it. */
+    SIGNIN_FIRST_DELAY_SECONDS: z.coerce.number().positive().default(1),
+    SIGNIN_MAX_DELAY_SECONDS: z.coerce.number().positive().default(300),
+    /** A counter starts over after this many minutes without a new failure. */
+    SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(60),
+    /** Replaced: failures no longer lock an account; refuse it so an old setting is not silently ignored. */
+    SIGNIN_MAX_FAILURES: z.undefined({
+      error: 'replaced by SIGNIN_FREE_FAILURES (failures allowed before sign-ins slow down; nothing is locked any more): remove it',
+    }).optional(),
     UPLOAD_LIMIT_MB: z.coerce.number().positive().default(20),
     /** Grading budget per hand-in: wall-clock time and the grading thread's heap. */
     GRADING_TIMEOUT_MS: z.coerce.number().int().min(100).default(20_000),
@@ -72,6 +89,15 @@ const ConfigSchema = z
     INVITATION_TTL_HOURS: z.coerce.number().positive().default(168),
     /** Folder of the built client to serve; empty to serve the API only. */
     CLIENT_DIST: z.string().default('dist/client'),
+  })
+  .superRefine((c, ctx) => {
+    if (c.SIGNIN_MAX_DELAY_SECONDS < c.SIGNIN_FIRST_DELAY_SECONDS) {
+      ctx.addIssue({ code: 'custom', path: ['SIGNIN_MAX_DELAY_SECONDS'], message: 'must be at least SIGNIN_FIRST_DELAY_SECONDS' })
+    }
+    // A wait longer than the window would never be served: the counter would start over first.
+    if (c.SIGNIN_MAX_DELAY_SECONDS >= c.SIGNIN_WINDOW_MINUTES * 60) {
+      ctx.addIssue({ code: 'custom', path: ['SIGNIN_MAX_DELAY_SECONDS'], message: 'must be shorter than SIGNIN_WINDOW_MINUTES' })
+    }
   })
 
 export type Config = z.infer<typeof ConfigSchema>

@@ -4,7 +4,7 @@ import { Strategy as LocalStrategy } from 'passport-local'
 import { SignInSchema } from '../../shared/schemas/auth'
 import type { Database } from '../db/client'
 import { loadSessionUser, signIn } from '../services/auth-service'
-import type { SignInPolicy } from '../services/auth-service'
+import type { SignInPolicy } from '../services/sign-in-throttle'
 
 /**
  * One Passport instance per app (not the global singleton) so test apps stay independent.
@@ -18,7 +18,8 @@ export function createPassport(db: Database, policy: SignInPolicy): Authenticato
       (req, _email, _password, done) => {
         // The route has already validated the body with the shared schema.
         const input = SignInSchema.parse(req.body)
-        signIn(db, policy, { ...input, ip: req.ip ?? 'unknown' }).then(
+        // req.ip honours TRUST_PROXY: behind a load balancer it is the client's address, not the balancer's.
+        signIn(db, policy, { ...input, ip: req.ip }).then(
           (user) => done(null, user),
           (err: unknown) => done(err),
         )

@@ -4,11 +4,13 @@ import type { SessionState, SessionUser } from '../../shared/schemas/auth'
 import { SignInSchema } from '../../shared/schemas/auth'
 import type { CsrfTokens } from '../auth/csrf'
 import { validate } from '../middleware/validate'
+import { retryAfterSeconds } from '../services/sign-in-throttle'
 
 /**
  * Who may call:
  * - GET  /api/auth/session   anyone (returns user or null, and a CSRF token)
- * - POST /api/auth/sign-in   anyone (CSRF-protected like every POST)
+ * - POST /api/auth/sign-in   anyone (CSRF-protected like every POST); slowed down after failures,
+ *                              429 + Retry-After when an attempt comes too early (README, "Sign-in policy")
  * - POST /api/auth/sign-out  anyone; signs out whoever is signed in
  */
 export function authRoutes(passport: Authenticator, csrf: CsrfTokens): Router {
@@ -21,7 +23,13 @@ export function authRoutes(passport: Authenticator, csrf: CsrfTokens): Router {
 
   r.post('/sign-in', validate('body', SignInSchema), (req, res, next) => {
     passport.authenticate('local', { session: true }, (err: unknown, user: SessionUser | false) => {
-      if (err) return next(err)
+      if (err) {
+        // A refused attempt says when to come back, for people (the message) and for clients.
+        // https://www.rfc-editor.org/rfc/rfc9110#field.retry-after
+        const wait = retryAfterSeconds(err)
+        if (wait !== null) res.set('Retry-After', String(wait))
+        return next(err)
+      }
       if (!user) return next(new Error('local strategy returned no user and no error'))
       // passport ≥ 0.6 regenerates the session id at logIn (session fixation defence).
       req.logIn(user, (loginErr) => {

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { eq } from 'drizzle-orm'
-import { signInFailures } from '../../server/db/schema'
+import { and, eq } from 'drizzle-orm'
+import { signInThrottles } from '../../server/db/schema'
 import { BAD_CREDENTIALS } from '../../server/services/auth-service'
 import type { Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, anonymous, seedFixture, signedInAs, startTestApp } from '../helpers/app'
@@ -9,7 +9,7 @@ let ctx: TestContext
 let fx: Fixture
 
 beforeAll(async () => {
-  ctx = startTestApp({ SIGNIN_MAX_FAILURES: '3', SIGNIN_WINDOW_MINUTES: '15' })
+  ctx = startTestApp({ SIGNIN_FREE_FAILURES: '3', SIGNIN_FIRST_DELAY_SECONDS: '60', SIGNIN_WINDOW_MINUTES: '15' })
   fx = await seedFixture(ctx)
 })
 afterAll(async () => {
@@ -58,18 +58,25 @@ describe('sign-in', () => {
     expect(unknown.body).toEqual(wrong.body)
   })
 
-  it('refuses an address after repeated failures, even with the right password, and records them in the database', async () => {
+  it('after the free failures, an early attempt from the same address waits, even with the right password, and is not counted', async () => {
     const c = await anonymous(ctx)
     const email = fx.outsider.email
     for (let i = 0; i < 3; i++) {
       await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email, password: `wrong-${i}` }).expect(401)
     }
-    const rows = await ctx.handle.db.select().from(signInFailures).where(eq(signInFailures.email, email))
-    expect(rows.length).toBe(3)
-    const limited = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email, password: PASSWORD })
-    expect(limited.status).toBe(429)
-    expect(limited.body.error.code).toBe('too_many_attempts')
-    expect(limited.body.error.details.retryAfterSeconds).toBeGreaterThan(0)
+    const pair = () =>
+      ctx.handle.db
+        .select({ failures: signInThrottles.failures })
+        .from(signInThrottles)
+        .where(and(eq(signInThrottles.scope, 'account_address'), eq(signInThrottles.email, email)))
+    expect(await pair()).toEqual([{ failures: 3 }])
+    const early = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email, password: PASSWORD })
+    expect(early.status).toBe(429)
+    expect(early.body.error.code).toBe('too_many_attempts')
+    expect(early.body.error.message).toMatch(/Try again in \d+ seconds/)
+    expect(Number(early.headers['retry-after'])).toBe(early.body.error.details.retryAfterSeconds)
+    expect(early.body.error.details.retryAfterSeconds).toBeGreaterThan(0)
+    expect(await pair()).toEqual([{ failures: 3 }])
   })
 
   it('names the field when the e-mail is malformed', async () => {
