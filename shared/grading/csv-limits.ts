@@ -69,7 +69,7 @@ export function listSome(items: readonly string[], max = MAX_LISTED_NAMES): stri
 export interface LogLines {
   /** '\r' for a file from an old Mac export, otherwise '\n' (a '\r' before it is part of the line end). */
   newline: '\n' | '\r'
-  /** The first line with something other than white space: offsets into the text and its row number (1-based). */
+  /** The first line that is not blank (see {@link checkLines}): offsets into the text and its row number (1-based). */
   header: { start: number; end: number; row: number }
 }
 
@@ -85,10 +85,11 @@ function lineEnding(text: string): '\n' | '\r' {
   return cr > 0 && crlf * 2 < cr ? '\r' : '\n'
 }
 
+/** A line of nothing but spaces, tabs and commas: a row of empty cells, as parseLog skips them. */
 function isBlankLine(text: string, start: number, end: number): boolean {
   for (let i = start; i < end; i++) {
     const c = text.charCodeAt(i)
-    if (c !== 32 && c !== 9 && c !== 13) return false
+    if (c !== 32 && c !== 9 && c !== 13 && c !== 44) return false
   }
   return true
 }
@@ -96,6 +97,7 @@ function isBlankLine(text: string, start: number, end: number): boolean {
 /**
  * The first pass over a log's text: the length of every line and the number of lines, stopping at
  * the first one over a limit. Row numbers are the file's lines (header = row 1 when it is first).
+ * The header is the first line that is not blank (nothing but spaces, tabs and commas).
  *
  * @param text - the file's text, not blank
  * @returns the line ending and the header line, or the limit passed with its row
@@ -134,8 +136,8 @@ export function checkLines(text: string): { ok: true; lines: LogLines } | { ok: 
         },
       }
     }
-    if (length === 0) blank++
-    else if (header === undefined && !isBlankLine(text, start, start + length)) header = { start, end: start + length, row }
+    if (isBlankLine(text, start, start + length)) blank++
+    else header ??= { start, end: start + length, row }
     start = end + 1
   }
   // A blank text is refused before this pass; a header is always found.

@@ -65,6 +65,11 @@ describe('a log is refused early when it passes a limit, and the message names t
     expect(only(parseLog(text, table, mapping)).message).toMatch(/^The file has more than 200,001 rows, most of them blank;/)
   })
 
+  it('19 MB of rows of empty cells (",,") count as blank rows too', () => {
+    const text = `${[HEADER, ...rows(6)].join('\n')}\n${',,\n'.repeat(MB19 / 3)}`
+    expect(only(parseLog(text, table, mapping)).message).toMatch(/^The file has more than 200,001 rows, most of them blank;/)
+  })
+
   it('a line of 5 KB', () => {
     const lines = ['note,t,thrust,p_chamber', ...rows(6).map((r) => `a,${r}`)]
     lines[4] = `${'x'.repeat(5000)},${rows(4)[3]}`
