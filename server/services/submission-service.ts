@@ -39,7 +39,7 @@ import { dueFor } from '../../shared/grading/due'
 import { findUserById } from '../repositories/users'
 import { commentsFor } from './review-service'
 import { escapeHtml } from './text'
-import { validateHandIn } from './hand-in-validation'
+import { handInRefusal, validateHandIn } from './hand-in-validation'
 import type { UploadedTable } from './hand-in-validation'
 import { gradeNow, gradingInputOf } from './grading-service'
 import type { GradingContext } from './grading-service'
@@ -151,16 +151,8 @@ export async function submitHandIn(
   const late = lateness(p, now, course.timeZone, await findExtensionDue(db, p.moduleId, e.userId))
 
   const v = validateHandIn(p.fm, payload, uploads)
-  if (v.issues.length) {
-    const shown = v.issues.slice(0, 20)
-    const more = v.issues.length - shown.length + Math.max(0, v.totalFileErrors - v.issues.filter((i) => i.row).length)
-    throw new AppError(
-      'invalid_submission',
-      `${v.issues.length === 1 ? 'One problem' : `${v.issues.length} problems`} to fix before this can be handed in: ${shown[0]!.message}`,
-      422,
-      { issues: shown, more },
-    )
-  }
+  const refusal = handInRefusal(v)
+  if (refusal) throw refusal
 
   // The whole transaction runs again if InnoDB picks it as a deadlock victim in a burst.
   const stored = await retryOnLockConflict(() => db.transaction(async (tx) => {

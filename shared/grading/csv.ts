@@ -11,14 +11,21 @@
  * first value row is row 2, and blank lines count (a quoted cell that spans lines counts each line).
  *
  * Cells are data, never code: a cell such as "=1+2" or "@SUM(A1)" is kept as text and refused as
- * "text in a number column"; nothing here evaluates it.
+ * a spreadsheet formula; nothing here evaluates it.
+ *
+ * A log is bounded before papaparse reads it (lines, line length, columns, header names: see
+ * `csv-limits.ts`), and every message stays short whatever the file holds: cells and names are
+ * cut to 40 characters and lists to 10 items.
  */
 import Papa from 'papaparse/papaparse.min.js'
 import { DIMENSIONLESS, dataUnitKind, isDataUnit } from '../modules/quantities'
 import type { ColumnSpec, TableSpec } from '../modules/schema'
-import { UNITS, unitsOfKind } from '../units'
+import { SI_UNITS, UNITS, unitsOfKind } from '../units'
 import type { UnitKind, UnitSymbol } from '../units'
+import { checkHeader, checkLines, clip, listSome, quote, quoteCells, scanRows } from './csv-limits'
 import { readHeader, readUnit } from './units-text'
+
+export { LOG_LIMITS, MAX_LISTED_NAMES } from './csv-limits'
 
 /** The file's column for one column of the spec, and the unit (and gauge/absolute sense) it is in. */
 export interface ColumnMappingEntry {
@@ -90,8 +97,12 @@ function fail(issues: IssueList, headers?: string[]): LogParseResult {
 }
 
 function failWith(message: string, headers?: string[]): LogParseResult {
+  return failWithIssue({ message }, headers)
+}
+
+function failWithIssue(issue: LogIssue, headers?: string[]): LogParseResult {
   const issues = new IssueList()
-  issues.add({ message })
+  issues.add(issue)
   return fail(issues, headers)
 }
 
@@ -110,18 +121,6 @@ function separatorCounts(line: string): { comma: number; semicolon: number; tab:
     else if (c === 9) tab++
   }
   return { comma, semicolon, tab }
-}
-
-function firstNonBlankLine(text: string): { line: string; end: number } {
-  let start = 0
-  while (start < text.length) {
-    let end = text.indexOf('\n', start)
-    if (end < 0) end = text.length
-    const line = text.slice(start, end).replace(/\r$/, '')
-    if (line.trim() !== '') return { line, end }
-    start = end + 1
-  }
-  return { line: '', end: text.length }
 }
 
 /** Exact powers of ten up to 10²² (every one is a double without rounding). */
@@ -213,11 +212,6 @@ function parseDecimalSlow(cell: string): number {
   return Number.isFinite(value) ? value : Number.NaN
 }
 
-function quote(cell: string): string {
-  const t = cell.trim()
-  return `"${t.length > 40 ? `${t.slice(0, 37)}…` : t}"`
-}
-
 /** Why a cell is not a usable number, in words. */
 function describeBadCell(cell: string): string {
   const t = cell.trim()
@@ -228,7 +222,7 @@ function describeBadCell(cell: string): string {
   }
   if (/^[+-]?\d*,\d+$/.test(t)) return `${quote(cell)} uses ',' as the decimal mark; write ${t.replace(',', '.')}`
   if (t.length > 1 && /^[=+\-@]/.test(t)) {
-    return `${quote(cell)} is text, not a number (it starts like a spreadsheet formula; it is kept as text and never calculated — export the values, not formulas)`
+    return `${quote(cell)} is a spreadsheet formula, not a number (it is kept as text, never calculated); export the values, not the formulas`
   }
   if (/^[+-]?0[xob]/i.test(t)) return `${quote(cell)} is not a decimal number`
   return `${quote(cell)} is text, not a number`
@@ -262,6 +256,8 @@ interface MappedColumn {
   index: number
   header: string
   toSI: (value: number) => number
+  /** The SI unit the values end up in, for messages. */
+  siUnit: string
   temperature: boolean
 }
 
@@ -280,21 +276,42 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1)
   if (text.trim() === '') return failWith('The file is empty: upload the CSV file the data logger wrote.')
 
+  // The cheap checks first, on the raw text: line lengths and the number of lines, so that no
+  // later step (papaparse above all) ever sees a line over 4 KB or more than 200 001 lines.
+  const lines = checkLines(text)
+  if (!lines.ok) return failWithIssue(lines.issue)
+  const { header, newline } = lines.lines
+  const headerLine = text.slice(header.start, header.end)
+
   // The separator is decided from the header line, before papaparse sees the file, so a
   // semicolon file gets one clear message instead of a column-not-found for every column.
-  const first = firstNonBlankLine(text)
-  const counts = separatorCounts(first.line)
+  const counts = separatorCounts(headerLine)
   if (counts.semicolon > 0 && counts.semicolon >= counts.comma && counts.semicolon >= counts.tab) {
-    const sample = text.slice(first.end, first.end + 4000)
+    const sample = text.slice(header.end, header.end + 4000)
     return failWith(/\d,\d/.test(sample) ? SEMICOLON_AND_DECIMAL_COMMA : SEMICOLON_ONLY)
   }
   const delimiter = counts.tab > counts.comma ? '\t' : ','
+
+  const headerProblem = checkHeader(headerLine, header.row, delimiter)
+  if (headerProblem) return failWithIssue(headerProblem)
+  const afterHeader = text.indexOf(newline, header.end)
+  const scan = scanRows(text, afterHeader < 0 ? text.length : afterHeader + 1, header.row + 1, delimiter, newline)
+  if (scan.issue) return failWithIssue(scan.issue)
+  // A formula with quote marks in it, written without quoting, would make papaparse read the rest
+  // of the file as one cell; quoted, it is one cell, refused below as a formula at its own row.
+  const readable = scan.formulaCells.length > 0 ? quoteCells(text, scan.formulaCells) : text
 
   // header: false and our own blank-line handling rather than papaparse's header: true with
   // skipEmptyLines: 'greedy' (same rows kept): it parses about three times faster on a
   // 50 000-row log, and row i of the result is then line i + 1 of the file, which the messages need.
   // https://www.papaparse.com/docs#config
-  const parsed = Papa.parse(text, { delimiter, header: false, skipEmptyLines: false, dynamicTyping: false })
+  const parsed = Papa.parse(readable, {
+    delimiter,
+    header: false,
+    skipEmptyLines: false,
+    dynamicTyping: false,
+    ...(newline === '\r' ? { newline } : {}),
+  })
   const rows = parsed.data
   const lineOf = lineNumbers(text, rows)
 
@@ -305,7 +322,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
   const headers = headerRow.map((h) => h.trim())
 
   if (headers.every((h) => h === '' || !Number.isNaN(parseDecimal(h)))) {
-    const names = table.columns.map((c) => c.key).join(', ')
+    const names = listSome(table.columns.map((c) => c.key))
     return failWith(
       `Row ${lineOf(headerIndex)} holds numbers, not column names: the file has no header row. Add one as the first row, naming each column (for example ${names}).`,
     )
@@ -322,19 +339,21 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
       issues.add({ message: `No column of the file is chosen for ${spec.label} (${spec.key}): choose one in the column mapping.` })
       continue
     }
+    // The mapping comes from the form: its header may be anything, so it is cut in messages.
     const header = entry.header.trim()
     const positions = headers.flatMap((h, i) => (h === header ? [i] : []))
     if (positions.length === 0) {
       issues.add({
-        column: entry.header,
-        message: `The file has no column "${entry.header}" (chosen for ${spec.label}). Its columns are: ${headers.map((h) => `"${h}"`).join(', ')}.`,
+        column: clip(header),
+        message: `The file has no column ${quote(header)} (chosen for ${spec.label}). Its columns are: ${listSome(headers.map(quote))}.`,
       })
       continue
     }
     if (positions.length > 1) {
+      const where = positions.map((p) => String(p + 1))
       issues.add({
         column: header,
-        message: `The file has ${positions.length} columns named "${header}" (columns ${positions.map((p) => p + 1).join(' and ')}); rename them so each name is used once.`,
+        message: `The file has ${positions.length} columns named ${quote(header)} (columns ${where.length === 2 ? where.join(' and ') : listSome(where)}); rename them so each name is used once.`,
       })
       continue
     }
@@ -342,7 +361,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
     if (!isDataUnit(entry.unit)) {
       issues.add({
         column: header,
-        message: `Column "${header}" (${spec.label}): "${entry.unit}" is not a unit Isentrope knows; choose one of ${unitChoices(kind)}.`,
+        message: `Column ${quote(header)} (${spec.label}): ${quote(entry.unit)} is not a unit Isentrope knows; choose one of ${unitChoices(kind)}.`,
       })
       continue
     }
@@ -350,7 +369,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
     if (given !== kind) {
       issues.add({
         column: header,
-        message: `Column "${header}" (${spec.label}): ${entry.unit} measures ${kindWords(given)}, but this column holds ${kindWords(kind)}; choose one of ${unitChoices(kind)}.`,
+        message: `Column ${quote(header)} (${spec.label}): ${entry.unit} measures ${kindWords(given)}, but this column holds ${kindWords(kind)}; choose one of ${unitChoices(kind)}.`,
       })
       continue
     }
@@ -358,12 +377,22 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
       const sense = entry.pressure ?? spec.pressure
       if (sense) pressures[spec.key] = sense
     }
-    mapped.push({ spec, index: positions[0] as number, header, toSI: siConverter(entry.unit), temperature: kind === 'temperature' })
+    mapped.push({
+      spec,
+      index: positions[0] as number,
+      header,
+      toSI: siConverter(entry.unit),
+      siUnit: kind === 'dimensionless' ? 'a pure number' : SI_UNITS[kind],
+      temperature: kind === 'temperature',
+    })
   }
   if (issues.total > 0) return fail(issues, headers)
 
+  // papaparse may report one bad quote twice (a stray quote and the cell it leaves open): once per row.
+  const quoteRows = new Set<number | undefined>()
   for (const error of parsed.errors) {
-    if (error.type === 'Quotes') {
+    if (error.type === 'Quotes' && !quoteRows.has(error.row)) {
+      quoteRows.add(error.row)
       const row = error.row === undefined ? undefined : lineOf(error.row)
       issues.add({
         ...(row === undefined ? {} : { row }),
@@ -380,7 +409,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
   let start = 0
   const firstData = dataRows[0] === undefined ? undefined : rows[dataRows[0]]
   if (firstData && dataRows[0] !== undefined && looksLikeUnitsRow(firstData, mapped)) {
-    const units = mapped.map((m) => (firstData[m.index] ?? '').trim()).join(', ')
+    const units = listSome(mapped.map((m) => clip((firstData[m.index] ?? '').trim(), 40)))
     issues.add({
       row: lineOf(dataRows[0]),
       message: `Row ${lineOf(dataRows[0])} holds units (${units}), not numbers. Delete that row and upload again; the units are chosen in the column mapping.`,
@@ -443,12 +472,20 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
       const cell = row[m.index] as string
       const v = parseDecimal(cell)
       if (Number.isNaN(v)) {
-        issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column "${m.header}": ${describeBadCell(cell)}.` })
+        issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${describeBadCell(cell)}.` })
         continue
       }
       const si = m.toSI(v)
+      if (!Number.isFinite(si)) {
+        issues.add({
+          row: lineOf(r),
+          column: m.header,
+          message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${quote(cell)} is too large: it is not a finite number once converted to ${m.siUnit}; check the value and the column's unit.`,
+        })
+        continue
+      }
       if (m.temperature && si < 0) {
-        issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column "${m.header}": ${quote(cell)} is below absolute zero.` })
+        issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${quote(cell)} is below absolute zero.` })
         continue
       }
       ;(values[j] as number[])[n] = si
@@ -461,7 +498,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
         issues.add({
           row: lineOf(r),
           column: m.header,
-          message: `Row ${lineOf(r)}, column "${m.header}": the time ${quote(row[m.index] ?? '')} does not increase from the row before (${quote(previousTimeCell)}); times must strictly increase.`,
+          message: `Row ${lineOf(r)}, column ${quote(m.header)}: the time ${quote(row[m.index] ?? '')} does not increase from the row before (${quote(previousTimeCell)}); times must strictly increase.`,
         })
       }
       previousTime = time

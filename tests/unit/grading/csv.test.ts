@@ -241,9 +241,9 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
     const list = errors(parseLog(text, table, mapping))
     expect(list.map((e) => e.row)).toEqual([3, 4, 5, 6, 7])
     expect(list[0]?.message).toBe(
-      'Row 3, column "thrust": "=1+2" is text, not a number (it starts like a spreadsheet formula; it is kept as text and never calculated — export the values, not formulas).',
+      'Row 3, column "thrust": "=1+2" is a spreadsheet formula, not a number (it is kept as text, never calculated); export the values, not the formulas.',
     )
-    expect(list[3]?.message).toMatch(/"-2\+3" is text, not a number/)
+    expect(list[3]?.message).toMatch(/"-2\+3" is a spreadsheet formula, not a number/)
   })
 
   it('a sign on a number is fine', () => {
