@@ -4,6 +4,7 @@ import cookieParser from 'cookie-parser'
 import express from 'express'
 import session from 'express-session'
 import MySQLStoreFactory from 'express-mysql-session'
+import mysql from 'mysql2/promise'
 import helmet from 'helmet'
 import { pinoHttp } from 'pino-http'
 import { createCsrf } from './auth/csrf'
@@ -11,6 +12,7 @@ import { createPassport } from './auth/passport'
 import type { Config } from './config'
 import { dbConnectionOptions, gradingBudget } from './config'
 import type { Database } from './db/client'
+import { withTimeouts } from './db/timeouts'
 import { createGrader } from './grading/grading-pool'
 import type { Grader } from './grading/grading-pool'
 import { queueHandInReceipt } from './services/submission-service'
@@ -105,13 +107,22 @@ export function createApp({ config, db, logger, onMailQueued, grader: givenGrade
   // Sessions live in MariaDB so any replica can serve any request.
   // https://github.com/chill117/express-mysql-session#usage
   const MySQLStore = MySQLStoreFactory(session)
-  const store = new MySQLStore({
-    ...dbConnectionOptions(config),
-    createDatabaseTable: true,
-    clearExpired: true,
-    checkExpirationInterval: 15 * 60_000,
-    schema: { tableName: 'sessions', columnNames: { session_id: 'session_id', expires: 'expires', data: 'data' } },
-  })
+  // Its own small pool, with the same fail-fast timeouts as the app's: a stalled database must
+  // not hold a request in the session lookup either.
+  const storePool = withTimeouts(
+    mysql.createPool({ ...dbConnectionOptions(config), connectionLimit: 5, connectTimeout: 3000, timezone: 'Z' }),
+    { acquireMs: config.DB_ACQUIRE_TIMEOUT_MS, queryMs: config.DB_QUERY_TIMEOUT_MS },
+  )
+  const store = new MySQLStore(
+    {
+      createDatabaseTable: true,
+      clearExpired: true,
+      checkExpirationInterval: 15 * 60_000,
+      schema: { tableName: 'sessions', columnNames: { session_id: 'session_id', expires: 'expires', data: 'data' } },
+    },
+    // The store accepts a promise pool (it awaits what query() returns).
+    storePool as unknown as ConstructorParameters<typeof MySQLStore>[1],
+  )
   app.use(
     session({
       name: SESSION_COOKIE,
@@ -168,6 +179,7 @@ export function createApp({ config, db, logger, onMailQueued, grader: givenGrade
     app,
     close: async () => {
       await store.close()
+      await storePool.end()
       if (!givenGrader) await grader.close()
     },
   }
