@@ -96,6 +96,14 @@ export function createApp({ config, db, logger, onMailQueued, grader: givenGrade
     }),
   )
 
+  // Every API reply is about one signed-in person (JSON, CSV, PDF, their files): no shared or
+  // browser cache may keep it. Set first, so a route that needs its own policy simply replaces it.
+  // https://developer.mozilla.org/en-US/docs/Web/HTTP/Reference/Headers/Cache-Control#no-store
+  app.use('/api', (_req, res, next) => {
+    res.set('Cache-Control', 'no-store')
+    next()
+  })
+
   // 1 MB for ordinary JSON; the module routes parse their own bodies with a larger limit for
   // Markdown sources.
   const smallJson = express.json({ limit: '1mb' })

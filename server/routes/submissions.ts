@@ -1,12 +1,12 @@
 import { Router } from 'express'
-import type { NextFunction, Request, Response } from 'express'
-import multer from 'multer'
 import { ModuleParamsSchema } from '../../shared/schemas/modules'
 import { SubmissionFileParamsSchema, SubmissionParamsSchema, SubmissionPayloadSchema, isAwaitingGrade } from '../../shared/schemas/submissions'
 import type { Database } from '../db/client'
 import { AppError } from '../errors'
 import { ANY_MEMBER, courseMember, enrollmentOf } from '../middleware/authorize'
+import { handInUpload } from '../middleware/hand-in-upload'
 import { valid, validate } from '../middleware/validate'
+import { handInFileFields } from '../services/hand-in-spec'
 import { mySubmissions, submissionDetail, submissionFile, submitHandIn } from '../services/submission-service'
 import type { GradingContext } from '../services/grading-service'
 
@@ -25,42 +25,20 @@ interface Opts {
  */
 export function handInRoutes(db: Database, opts: Opts): Router {
   const r = Router({ mergeParams: true })
-  const limitBytes = Math.round(opts.uploadLimitMb * 1024 * 1024)
-  // Files stay in memory until the transaction stores them; the size limit bounds that memory.
-  // https://github.com/expressjs/multer#limits
-  const upload = multer({
-    storage: multer.memoryStorage(),
-    limits: { fileSize: limitBytes, files: 5, fields: 5, fieldSize: 2 * 1024 * 1024, parts: 12 },
-  }).any()
-
-  /** Refuses an oversized upload from its Content-Length before reading any of it. */
-  const earlySizeCheck = (req: Request, _res: Response, next: NextFunction) => {
-    const declared = Number(req.headers['content-length'] ?? 0)
-    if (declared > limitBytes + 2 * 1024 * 1024) {
-      throw new AppError('upload_too_large', `The upload is ${(declared / 1048576).toFixed(0)} MB; the limit is ${opts.uploadLimitMb} MB per hand-in.`, 413)
-    }
-    next()
-  }
-
-  const parseUpload = (req: Request, res: Response, next: NextFunction) => {
-    upload(req, res, (err: unknown) => {
-      if (!err) return next()
-      if (err instanceof multer.MulterError) {
-        if (err.code === 'LIMIT_FILE_SIZE') {
-          return next(new AppError('upload_too_large', `${err.field ?? 'The file'} is larger than the ${opts.uploadLimitMb} MB limit.`, 413, { field: err.field }))
-        }
-        return next(new AppError('bad_upload', `The upload was refused: ${err.message}.`, 400, { field: err.field }))
-      }
-      next(err)
-    })
-  }
+  // The body is read only after the module's declared files are known; see the middleware.
+  const upload = handInUpload({
+    limitMb: opts.uploadLimitMb,
+    fileFields: (_req, res) => {
+      const { moduleId } = valid(res, 'params', ModuleParamsSchema)
+      return handInFileFields(db, enrollmentOf(res).courseId, moduleId)
+    },
+  })
 
   r.post(
     '/modules/:moduleId/submissions',
     courseMember(db, ANY_MEMBER),
     validate('params', ModuleParamsSchema),
-    earlySizeCheck,
-    parseUpload,
+    upload,
     async (req, res) => {
       const { moduleId } = valid(res, 'params', ModuleParamsSchema)
       const body = req.body as Record<string, unknown>

@@ -66,7 +66,7 @@ import {
   RESULT_FIELDS,
 } from './expression-names'
 import type { FieldTree } from './expression-names'
-import { MAX_EXPRESSION_LENGTH } from './schema'
+import { MAX_EXPRESSION_LENGTH, MAX_LIST_VALUES } from './schema'
 import type { Assignment } from './schema'
 import { buildExpressionScope, syntheticSubmission, ScopeError } from './scope'
 import type { ExpressionScope, ExpressionValue } from './scope'
@@ -337,10 +337,49 @@ function describeArity(name: string, min: number, max: number): string {
   return `${name} takes ${min} to ${max} arguments`
 }
 
+/** Values written out in a list literal, nested lists' entries included. */
+function listValues(node: MathNode): number {
+  if (math.isParenthesisNode(node)) return listValues(node.content)
+  if (!math.isArrayNode(node)) return 1
+  let n = 0
+  for (const item of node.items) n += listValues(item)
+  return n
+}
+
+function tooManyListValues(values: number): string {
+  return `a list written out in the expression has ${values} values; at most ${MAX_LIST_VALUES} are allowed in one list`
+}
+
+/**
+ * The first size budget an expression breaks, in words, or null. Checked before anything runs
+ * it: its length ({@link MAX_EXPRESSION_LENGTH}) and the values of any list written out in it
+ * ({@link MAX_LIST_VALUES}). An expression that cannot be parsed breaks no budget here; its
+ * validation says what is wrong with it.
+ */
+export function expressionBudgetProblem(expr: string): string | null {
+  if (expr.length > MAX_EXPRESSION_LENGTH) {
+    return `the expression has ${expr.length} characters; at most ${MAX_EXPRESSION_LENGTH} are allowed`
+  }
+  let node: MathNode
+  try {
+    node = parseExpression(expr)
+  } catch {
+    return null
+  }
+  // A list holds at least as many values as any list inside it, so the largest count is an outermost one's.
+  let largest = 0
+  node.traverse((n) => {
+    if (math.isArrayNode(n)) largest = Math.max(largest, listValues(n))
+  })
+  return largest > MAX_LIST_VALUES ? tooManyListValues(largest) : null
+}
+
 class Checker {
   readonly refusals: Refusal[] = []
   /** Names read as values that are neither constants nor functions: they must come from the scope. */
   readonly freeNames = new Set<string>()
+  /** Inside a written-out list, whose values the outermost list has already counted. */
+  private inList = false
 
   /** `known` lists the scope's names, or is null when the scope is not known yet (checked at evaluation). */
   constructor(private readonly known: ReadonlySet<string> | null) {}
@@ -379,7 +418,15 @@ class Checker {
       this.check(node.trueExpr)
       this.check(node.falseExpr)
     } else if (math.isArrayNode(node)) {
+      // The outermost list counts the values of all its nested lists (a matrix's entries).
+      if (!this.inList) {
+        const values = listValues(node)
+        if (values > MAX_LIST_VALUES) this.refuse(tooManyListValues(values))
+      }
+      const outer = this.inList
+      this.inList = true
       node.items.forEach((item) => this.check(item))
+      this.inList = outer
     } else if (math.isRelationalNode(node)) {
       for (const c of node.conditionals) if (!OPERATORS.has(c)) this.refuse(`the comparison "${c}" is not available`)
       node.params.forEach((p) => this.check(p))
@@ -698,22 +745,48 @@ export interface LocatedExpressionIssue extends ExpressionIssue {
 }
 
 /**
- * Validates every expected-value expression and review rule of an assignment.
+ * Rows of each made-up table in the save-time trial run, whatever the table's minRows: enough for
+ * every helper (at, interp, select) and for a run window, and small, because the trial checks that
+ * an expression runs and gives the right kind of value, not how it scales. (With the tables at
+ * minRows: 2000, a save of many results spent seconds multiplying made-up columns.)
+ */
+const TRIAL_ROWS = 41
+
+/** The assignment with each table's minRows lowered to {@link TRIAL_ROWS} for the made-up data. */
+function trialSized(assignment: Assignment): Assignment {
+  if (!assignment.tables.some((t) => t.minRows > TRIAL_ROWS)) return assignment
+  return { ...assignment, tables: assignment.tables.map((t) => (t.minRows > TRIAL_ROWS ? { ...t, minRows: TRIAL_ROWS } : t)) }
+}
+
+/**
+ * Validates every expected-value expression and review rule of an assignment: first its size
+ * budgets ({@link expressionBudgetProblem}; such an expression is not run at all), then the checks
+ * of {@link validateExpression} with a trial run on {@link TRIAL_ROWS}-row tables. An expression may
+ * count on the rows minRows promises (`at(thrust, 100)` with minRows: 200), so one that fails on
+ * the small tables is tried once more on tables of minRows rows before it is refused.
  *
  * @returns problems with their front-matter path, e.g. ['assignment', 'results', 2, 'expected']
  */
 export function validateAssignmentExpressions(assignment: Assignment): LocatedExpressionIssue[] {
-  const contexts = assignmentContexts(assignment)
   const issues: LocatedExpressionIssue[] = []
-  assignment.results.forEach((r, i) => {
-    for (const issue of validateExpression(r.expected, contexts.expected)) {
-      issues.push({ ...issue, path: ['assignment', 'results', i, 'expected'] })
+  const trial = trialSized(assignment)
+  const small = assignmentContexts(trial)
+  let full: AssignmentContexts | undefined
+  const check = (expr: string, pick: (c: AssignmentContexts) => ExpressionContext): ExpressionIssue[] => {
+    const found = validateExpression(expr, pick(small))
+    if (found.length === 0 || trial === assignment) return found
+    full ??= assignmentContexts(assignment)
+    return validateExpression(expr, pick(full))
+  }
+  const validate = (owner: string, expr: string, path: (string | number)[], pick: (c: AssignmentContexts) => ExpressionContext) => {
+    const over = expressionBudgetProblem(expr)
+    if (over !== null) {
+      issues.push({ message: `${owner}: ${over}`, path })
+      return
     }
-  })
-  assignment.reviewRules.forEach((rule, i) => {
-    for (const issue of validateExpression(rule.when, contexts.review)) {
-      issues.push({ ...issue, path: ['assignment', 'reviewRules', i, 'when'] })
-    }
-  })
+    for (const issue of check(expr, pick)) issues.push({ ...issue, path })
+  }
+  assignment.results.forEach((r, i) => validate(`result "${r.key}"`, r.expected, ['assignment', 'results', i, 'expected'], (c) => c.expected))
+  assignment.reviewRules.forEach((rule, i) => validate(`review rule "${rule.key}"`, rule.when, ['assignment', 'reviewRules', i, 'when'], (c) => c.review))
   return issues
 }

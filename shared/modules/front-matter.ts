@@ -17,7 +17,7 @@ import { LineCounter, isMap, isScalar, isSeq, parseDocument } from 'yaml'
 import type { Document } from 'yaml'
 import { z } from 'zod'
 import { utf8ByteLength } from '../text'
-import { FrontMatterSchema } from './schema'
+import { FrontMatterSchema, ModuleTitleSchema } from './schema'
 import type { ModuleFrontMatter } from './schema'
 
 /** One problem with a module, for the editor. `line` is 1-based in the whole source. */
@@ -188,7 +188,8 @@ export function parseModuleSource(source: string, name: string): ParsedModule {
     errors,
     body: split.body,
     bodyLine: split.bodyLine,
-    ...(typeof title === 'string' && title.trim() !== '' ? { title: title.trim() } : {}),
+    // A title that breaks the title rule (a line break, 300 characters) is not shown either.
+    ...(ModuleTitleSchema.safeParse(title).success ? { title: (title as string).trim() } : {}),
   })
 
   const lineCounter = new LineCounter()

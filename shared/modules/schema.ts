@@ -13,10 +13,25 @@
 import { z } from 'zod'
 import { RESERVED_NAMES } from './expression-names'
 import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, isDataUnit, isPressureUnit, isResultUnit } from './quantities'
+import { singleLineName } from '../schemas/names'
 import { UNITS } from '../units'
 
+/**
+ * Size budgets of an assignment, checked when a module is saved: each bounds the work one save
+ * (every expression is parsed, checked and run once on made-up data) and one grading can cost.
+ */
 /** Longest expression accepted; a lab formula is a line or two, and the limit bounds parsing work. */
 export const MAX_EXPRESSION_LENGTH = 2000
+/**
+ * Most values in one list written out in an expression (`[1, 2, 3]`, or all the entries of a
+ * matrix `[[1], [2]]`). A short table of coefficients fits; a list of hundreds, multiplied with a
+ * logged column, makes a matrix of hundreds of rows per sample.
+ */
+export const MAX_LIST_VALUES = 64
+/** Most results one assignment grades. */
+export const MAX_RESULTS = 40
+/** Most review rules one assignment has. */
+export const MAX_REVIEW_RULES = 40
 
 const KEY_PATTERN = /^[a-z][a-zA-Z0-9_]*$/
 
@@ -33,7 +48,12 @@ const TableKeySchema = z
   .max(40, 'a key has at most 40 characters')
   .regex(KEY_PATTERN, 'a key starts with a lower-case letter and has only letters, digits and _ (for example run_log)')
 
-const LabelSchema = z.string().trim().min(1, 'the label must not be empty').max(200, 'a label has at most 200 characters')
+// Labels are names too: they head form fields, CSV columns and the feedback report.
+const LabelSchema = singleLineName({
+  field: 'label',
+  max: 200,
+  messages: { tooShort: 'the label must not be empty', tooLong: 'a label has at most 200 characters' },
+})
 
 const LOCAL_DATE_TIME = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/
 
@@ -221,11 +241,18 @@ export const MeasurementSchema = z
     }
   })
 
-const ExpressionTextSchema = z
-  .string()
-  .trim()
-  .min(1, 'the expression is empty')
-  .max(MAX_EXPRESSION_LENGTH, `an expression has at most ${MAX_EXPRESSION_LENGTH} characters`)
+// The length limit is checked with the key of the result or rule (checkExpressionLength), not here.
+const ExpressionTextSchema = z.string().trim().min(1, 'the expression is empty')
+
+/** A refusal of an over-long expression that names whose expression it is and the limit. */
+function checkExpressionLength(owner: string, expr: string, ctx: z.RefinementCtx, path: string): void {
+  if (expr.length <= MAX_EXPRESSION_LENGTH) return
+  ctx.addIssue({
+    code: 'custom',
+    path: [path],
+    message: `${owner}: the expression has ${expr.length} characters; at most ${MAX_EXPRESSION_LENGTH} are allowed`,
+  })
+}
 
 export const ToleranceSchema = z
   .strictObject({
@@ -249,31 +276,54 @@ export const PartialCreditSchema = z.strictObject({
   fraction: z.number().min(0, 'a fraction of the points, from 0 to 1').max(1, 'a fraction of the points, from 0 to 1'),
 })
 
-export const ResultSpecSchema = z.strictObject({
-  key: KeySchema,
-  label: LabelSchema,
-  unit: ResultUnitSchema,
-  /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
-  expected: ExpressionTextSchema,
-  tolerance: ToleranceSchema,
-  points: z.number().positive('points must be greater than 0'),
-  partial: PartialCreditSchema.optional(),
-})
+export const ResultSpecSchema = z
+  .strictObject({
+    key: KeySchema,
+    label: LabelSchema,
+    unit: ResultUnitSchema,
+    /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
+    expected: ExpressionTextSchema,
+    tolerance: ToleranceSchema,
+    points: z.number().positive('points must be greater than 0'),
+    partial: PartialCreditSchema.optional(),
+  })
+  .superRefine((r, ctx) => checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected'))
 
-export const ReviewRuleSchema = z.strictObject({
-  key: KeySchema,
-  /** Boolean expression over the data and the reported results; true flags the submission. */
-  when: ExpressionTextSchema,
-  /** What staff read in the review queue. */
-  reason: z.string().trim().min(1, 'say in words why the rule flags a submission').max(500, 'a reason has at most 500 characters'),
-})
+export const ReviewRuleSchema = z
+  .strictObject({
+    key: KeySchema,
+    /** Boolean expression over the data and the reported results; true flags the submission. */
+    when: ExpressionTextSchema,
+    /** What staff read in the review queue. */
+    reason: z.string().trim().min(1, 'say in words why the rule flags a submission').max(500, 'a reason has at most 500 characters'),
+  })
+  .superRefine((r, ctx) => checkExpressionLength(`review rule "${r.key}"`, r.when, ctx, 'when'))
+
+/** "… (the 41st is "isp_2")": the first entry over a count limit, by its key. */
+function firstOver(input: unknown, limit: number): string {
+  const entry: unknown = Array.isArray(input) ? input[limit] : undefined
+  const key = typeof entry === 'object' && entry !== null && 'key' in entry ? (entry as { key: unknown }).key : undefined
+  return typeof key === 'string' ? `; the first over the limit is "${key}"` : ''
+}
 
 export const AssignmentSchema = z
   .strictObject({
     tables: z.array(TableSchema).default([]),
     measurements: z.array(MeasurementSchema).default([]),
-    results: z.array(ResultSpecSchema).default([]),
-    reviewRules: z.array(ReviewRuleSchema).default([]),
+    results: z
+      .array(ResultSpecSchema)
+      .max(MAX_RESULTS, {
+        error: (issue) =>
+          `an assignment grades at most ${MAX_RESULTS} results; this one has ${Array.isArray(issue.input) ? issue.input.length : 'more'}${firstOver(issue.input, MAX_RESULTS)}`,
+      })
+      .default([]),
+    reviewRules: z
+      .array(ReviewRuleSchema)
+      .max(MAX_REVIEW_RULES, {
+        error: (issue) =>
+          `an assignment has at most ${MAX_REVIEW_RULES} review rules; this one has ${Array.isArray(issue.input) ? issue.input.length : 'more'}${firstOver(issue.input, MAX_REVIEW_RULES)}`,
+      })
+      .default([]),
   })
   .superRefine((a, ctx) => {
     // Table keys, column keys, measurement keys and result keys share one namespace: the expressions'.
@@ -367,11 +417,18 @@ export const AssignmentSchema = z
     }
   })
 
+/** A module's title: one line of text (also the rule for the title a broken module is listed under). */
+export const ModuleTitleSchema = singleLineName({
+  field: 'title',
+  max: 200,
+  messages: { tooShort: 'the title must not be empty', tooLong: 'a title has at most 200 characters' },
+})
+
 export const RESULTS_VISIBILITY = ['immediately', 'after-due', 'after-release'] as const
 
 export const FrontMatterSchema = z
   .strictObject({
-    title: z.string().trim().min(1, 'the title must not be empty').max(200, 'a title has at most 200 characters'),
+    title: ModuleTitleSchema,
     summary: z.string().trim().max(1000, 'a summary has at most 1000 characters').optional(),
     due: DueSchema.optional(),
     attempts: z.number().int('must be a whole number').positive('must be at least 1').max(100, 'must be at most 100').default(3),

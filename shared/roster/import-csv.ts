@@ -9,6 +9,7 @@
 import Papa from 'papaparse/papaparse.min.js'
 import { z } from 'zod'
 import type { ImportRole, RosterFileProblem, RosterRowProblem } from '../schemas/roster-import'
+import { singleLineProblem } from '../schemas/names'
 import { ROSTER_IMPORT_MAX_BYTES, ROSTER_IMPORT_MAX_ROWS } from '../schemas/roster-import'
 import { utf8ByteLength } from '../text'
 
@@ -153,9 +154,13 @@ function readRow(row: number, cells: string[], cell: (cells: string[], c: Roster
   else if (email.length > 254 || !EmailSchema.safeParse(email).success) {
     problems.push({ column: 'email', message: `email: ${shown(email)} is not a valid e-mail address.` })
   }
+  // Runs of white space (a line break inside a quoted cell, a tab) become one space; any other
+  // control character is refused below.
   const displayName = cell(cells, 'name').replace(/\s+/g, ' ')
+  const nameProblem = singleLineProblem(displayName)
   if (displayName === '') problems.push({ column: 'name', message: 'name: empty; every person needs a name.' })
   else if (displayName.length > MAX_NAME_LENGTH) problems.push({ column: 'name', message: `name: at most ${MAX_NAME_LENGTH} characters.` })
+  else if (nameProblem) problems.push({ column: 'name', message: `name: a display name is one line of plain text; this one contains ${nameProblem}.` })
   const roleText = cell(cells, 'role')
   let role: ImportRole = 'student'
   if (roleText !== '') {
@@ -169,10 +174,14 @@ function readRow(row: number, cells: string[], cell: (cells: string[], c: Roster
   if (section !== null && section.length > MAX_SECTION_LENGTH) {
     problems.push({ column: 'section', message: `section: a section name has at most ${MAX_SECTION_LENGTH} characters.` })
   }
+  const sectionProblem = section === null ? null : singleLineProblem(section)
+  if (sectionProblem) problems.push({ column: 'section', message: `section: a section name is one line of plain text; this one contains ${sectionProblem}.` })
   const group = cell(cells, 'group') || null
   if (group !== null && group.length > MAX_GROUP_LENGTH) {
     problems.push({ column: 'group', message: `group: a lab-group name has at most ${MAX_GROUP_LENGTH} characters.` })
   }
+  const groupProblem = group === null ? null : singleLineProblem(group)
+  if (groupProblem) problems.push({ column: 'group', message: `group: a lab-group name is one line of plain text; this one contains ${groupProblem}.` })
   if (group !== null && role === 'ta') {
     problems.push({ column: 'group', message: 'group: teaching assistants are not put in lab groups; leave the cell empty.' })
   }

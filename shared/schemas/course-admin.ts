@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { CourseIdParamsSchema } from './courses'
+import { singleLineName } from './names'
 
 /**
  * Course administration by the instructor: sections, lab groups, where each person is placed
@@ -15,11 +16,11 @@ export const LabGroupParamsSchema = CourseIdParamsSchema.extend({ labGroupId: id
 export const MemberParamsSchema = CourseIdParamsSchema.extend({ userId: idOf('userId') })
 export const ExtensionParamsSchema = CourseIdParamsSchema.extend({ moduleId: idOf('moduleId'), userId: idOf('userId') })
 
-const sectionName = z
-  .string({ error: 'name: give the section a name.' })
-  .trim()
-  .min(1, 'name: give the section a name.')
-  .max(60, 'name: at most 60 characters.')
+const sectionName = singleLineName({
+  field: 'section name',
+  max: 60,
+  messages: { missing: 'name: give the section a name.', tooShort: 'name: give the section a name.', tooLong: 'name: at most 60 characters.' },
+})
 const meets = z.string({ error: 'meets: write when and where the section meets, or leave it empty.' }).trim().max(120, 'meets: at most 120 characters.')
 
 /** A new section: its name (unique in the course) and, optionally, when and where it meets. */
@@ -32,11 +33,11 @@ export const SectionUpdateSchema = z
   .refine((v) => v.name !== undefined || v.meets !== undefined, 'Send a new name or a new meeting time.')
 export type SectionUpdate = z.infer<typeof SectionUpdateSchema>
 
-const groupName = z
-  .string({ error: 'name: give the lab group a name.' })
-  .trim()
-  .min(1, 'name: give the lab group a name.')
-  .max(60, 'name: at most 60 characters.')
+const groupName = singleLineName({
+  field: 'lab-group name',
+  max: 60,
+  messages: { missing: 'name: give the lab group a name.', tooShort: 'name: give the lab group a name.', tooLong: 'name: at most 60 characters.' },
+})
 /** null: the group is not tied to a section and takes students of any section. */
 const optionalSectionId = z.number({ error: 'sectionId: choose a section or none.' }).int().positive('sectionId must be a positive whole number.').nullable()
 

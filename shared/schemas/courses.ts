@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import type { CourseRole } from './auth'
+import { singleLineName } from './names'
 
 const isTimeZone = (tz: string): boolean => {
   try {
@@ -12,10 +13,10 @@ const isTimeZone = (tz: string): boolean => {
 
 /** Creating a course (site administrators). */
 export const CreateCourseSchema = z.object({
-  code: z.string().trim().min(2, 'Course code needs at least 2 characters.').max(32, 'Course code: at most 32 characters.'),
-  title: z.string().trim().min(3, 'Title needs at least 3 characters.').max(200, 'Title: at most 200 characters.'),
-  term: z.string().trim().min(2, 'Term needs at least 2 characters.').max(40, 'Term: at most 40 characters.'),
-  institution: z.string().trim().min(2, 'Institution needs at least 2 characters.').max(200),
+  code: singleLineName({ field: 'course code', min: 2, max: 32, messages: { tooShort: 'Course code needs at least 2 characters.', tooLong: 'Course code: at most 32 characters.' } }),
+  title: singleLineName({ field: 'course title', min: 3, max: 200, messages: { tooShort: 'Title needs at least 3 characters.', tooLong: 'Title: at most 200 characters.' } }),
+  term: singleLineName({ field: 'term', min: 2, max: 40, messages: { tooShort: 'Term needs at least 2 characters.', tooLong: 'Term: at most 40 characters.' } }),
+  institution: singleLineName({ field: 'institution', min: 2, max: 200, messages: { tooShort: 'Institution needs at least 2 characters.' } }),
   timeZone: z.string().trim().refine(isTimeZone, 'Time zone must be an IANA name such as America/Denver.'),
 })
 export type CreateCourse = z.infer<typeof CreateCourseSchema>
