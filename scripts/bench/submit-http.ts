@@ -1,15 +1,20 @@
 // Throughput of the hand-in endpoint on loopback: N concurrent students each post a 5,000-row
-// cold-flow log (multipart), measured end to end (upload, parse, store, grade, respond).
+// cold-flow log (multipart), measured end to end (upload, parse, store, grade, respond). A hand-in
+// counts as a success only when it ends graded (whether the request or the background grader
+// graded it); failed and stuck ones are counted apart.
 // Run by `npm run bench` with a project-owned bench database; stops by itself.
 import { readFileSync } from 'node:fs'
 import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { createServer } from 'node:http'
 import type { AddressInfo } from 'node:net'
-import { createApp } from '../../server/app'
+import { inArray } from 'drizzle-orm'
+import { createApp, gradingContext } from '../../server/app'
 import { hashPassword } from '../../server/auth/password'
-import { dbConnectionOptions, loadConfig } from '../../server/config'
+import { appDbOptions, gradingBudget, loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
-import { courses, enrollments, labGroups, users } from '../../server/db/schema'
+import { courses, enrollments, labGroups, submissions, users } from '../../server/db/schema'
+import { createGrader } from '../../server/grading/grading-pool'
+import { DEFAULT_GRADING_WORKER_OPTIONS, startGradingWorker } from '../../server/grading/grading-worker'
 import { createLogger } from '../../server/logger'
 import { createModule, publishModule } from '../../server/services/module-service'
 import { coldFlowCsv, coldFlowPayload } from '../../tests/helpers/cold-flow'
@@ -18,9 +23,18 @@ const STUDENTS = Number(process.env.BENCH_STUDENTS ?? 50)
 const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 4)
 
 const config = loadConfig({ ...process.env, CLIENT_DIST: '', LOG_LEVEL: 'silent', DB_POOL_SIZE: '20' })
-const handle = createDb({ ...dbConnectionOptions(config), poolSize: 20 })
+const handle = createDb(appDbOptions(config))
 const db = handle.db
-const created = createApp({ config, db, logger: createLogger('silent') })
+const logger = createLogger('silent')
+// As `npm start` runs it: grading threads shared by the requests and the background grader.
+const grader = createGrader(gradingBudget(config))
+await grader.warmUp()
+const worker = startGradingWorker(db, gradingContext(db, { grader, logger, appUrl: 'http://127.0.0.1' }), {
+  ...DEFAULT_GRADING_WORKER_OPTIONS,
+  pollMs: 500,
+  batchSize: 4 * config.GRADING_THREADS,
+})
+const created = createApp({ config, db, logger, grader, onHandInStored: () => worker.kick() })
 const server = createServer(created.app)
 await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()))
 const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`
@@ -71,6 +85,7 @@ async function session(email: string): Promise<{ cookie: string; csrf: string }>
 
 const sessions = await Promise.all(emails.map(session))
 const latencies: number[] = []
+const ids: number[] = []
 let errors = 0
 const statuses = new Map<number, number>()
 const started = performance.now()
@@ -86,21 +101,45 @@ await Promise.all(
         headers: { cookie: s.cookie, 'x-csrf-token': s.csrf },
         body: form,
       })
-      await res.arrayBuffer()
+      const answer = (await res.json()) as { id?: number }
       latencies.push(performance.now() - t0)
+      if (res.status === 201 && answer.id) ids.push(answer.id)
       statuses.set(res.status, (statuses.get(res.status) ?? 0) + 1)
       if (res.status !== 201) errors++
     }
   }),
 )
+const answered = (performance.now() - started) / 1000
+
+// Wait (up to two minutes) for the background grader to finish what the requests left.
+const counts = async () => {
+  const rows = ids.length ? await db.select({ s: submissions.status }).from(submissions).where(inArray(submissions.id, ids)) : []
+  const c = { graded: 0, failed: 0, stuck: 0 }
+  for (const r of rows) {
+    if (r.s === 'graded') c.graded++
+    else if (r.s === 'grading-failed') c.failed++
+    else c.stuck++
+  }
+  return c
+}
+let c = await counts()
+for (const until = Date.now() + 120_000; c.stuck > 0 && Date.now() < until; c = await counts()) {
+  await new Promise((r) => setTimeout(r, 250))
+}
 const elapsed = (performance.now() - started) / 1000
 latencies.sort((a, b) => a - b)
 const q = (p: number) => latencies[Math.min(latencies.length - 1, Math.floor(p * latencies.length))]!
-console.log(`  requests ${latencies.length}   errors ${errors}   statuses ${JSON.stringify(Object.fromEntries(statuses))}`)
-console.log(`  throughput ${(latencies.length / elapsed).toFixed(1)} hand-ins/s   p50 ${q(0.5).toFixed(0)} ms   p95 ${q(0.95).toFixed(0)} ms   max ${latencies.at(-1)!.toFixed(0)} ms`)
+const total = STUDENTS * ROUNDS
+console.log(`  requests ${latencies.length}   statuses ${JSON.stringify(Object.fromEntries(statuses))}`)
+console.log(`  graded ${c.graded} of ${total}   could not be graded ${c.failed}   stuck (still waiting) ${c.stuck}   refused ${total - ids.length}`)
+console.log(`  answered in ${answered.toFixed(1)} s, all graded after ${elapsed.toFixed(1)} s: ${(c.graded / elapsed).toFixed(1)} graded hand-ins/s`)
+console.log(`  answer latency p50 ${q(0.5).toFixed(0)} ms   p95 ${q(0.95).toFixed(0)} ms   max ${latencies.at(-1)!.toFixed(0)} ms`)
+errors += total - c.graded
 
 server.closeAllConnections()
 await new Promise<void>((r) => server.close(() => r()))
+await worker.stop()
 await created.close()
+await grader.close()
 await handle.close()
 process.exit(errors === 0 ? 0 : 1)

@@ -28,6 +28,8 @@ export class GradingBudgetError extends Error {
 
 export interface Grader {
   grade(input: GradeInput): Promise<GradeResult>
+  /** True when a thread is free now (a hand-in request then grades at once instead of queueing). */
+  idle(): boolean
   /** Starts the threads now, so the first hand-in does not wait for them to load. */
   warmUp(): Promise<void>
   close(): Promise<void>
@@ -82,6 +84,7 @@ export function createGrader(budget: GradingBudget = DEFAULT_GRADING_BUDGET): Gr
         release()
       }
     },
+    idle: () => free > 0,
     async warmUp() {
       const p = getPool()
       // Piscina starts minThreads at once; wait until one of them has loaded its module.

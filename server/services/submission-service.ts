@@ -193,8 +193,10 @@ export async function submitHandIn(
 
   // From here the hand-in is stored and acknowledged whatever happens next: grading is a job the
   // background worker finishes if this request cannot (a database hiccup, a full grading pool).
+  // When every grading thread is busy (a deadline burst) the answer does not wait in their queue:
+  // the background grader takes the job, and the result page shows the grade when it is in.
   try {
-    if (opts.grading) await gradeNow(db, opts.grading, stored.id)
+    if (opts.grading?.grader.idle()) await gradeNow(db, opts.grading, stored.id)
   } catch (err) {
     opts.grading?.logger.warn({ err, submissionId: stored.id }, 'hand-in stored; grading left to the worker')
   }

@@ -62,7 +62,8 @@ const statusOf = async (id: number) => (await ctx.handle.db.select({ s: submissi
 const receipts = (id: number) => ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${id}`))
 
 beforeAll(async () => {
-  ctx = startTestApp()
+  // This file runs the grading cycle itself, step by step.
+  ctx = startTestApp({ GRADING_POLL_MS: '0' })
   fx = await seedFixture(ctx)
   inst = await signedInAs(ctx, fx.instructor.email)
   student = await signedInAs(ctx, fx.student.email)
@@ -125,6 +126,7 @@ describe('grading as a durable job', () => {
     const [claim] = await claimGradingJobs(ctx.handle.db, 1, id)
     const deadlocking: Grader = {
       grade: () => Promise.reject(Object.assign(new Error('Deadlock found when trying to get lock'), { errno: 1213, code: 'ER_LOCK_DEADLOCK', sqlMessage: 'Deadlock' })),
+      idle: () => true,
       warmUp: () => Promise.resolve(),
       close: () => Promise.resolve(),
     }
@@ -139,7 +141,8 @@ describe('grading as a durable job', () => {
     const id = await storeOnly()
     const [claim] = await claimGradingJobs(ctx.handle.db, 1, id)
     const secret = 'Failed query: insert into `submission_checks` (`expected`) values (114.8031) at Object.run (/srv/grade.ts:12:3)'
-    const broken: Grader = { grade: () => Promise.reject(new TypeError(secret)), warmUp: () => Promise.resolve(), close: () => Promise.resolve() }
+    const broken: Grader = { grade: () => Promise.reject(new TypeError(secret)), idle: () => true,
+      warmUp: () => Promise.resolve(), close: () => Promise.resolve() }
     expect(await runClaimed(ctx.handle.db, { ...grading, grader: broken }, claim!)).toBe('failed')
     const [row] = await ctx.handle.db.select().from(submissions).where(eq(submissions.id, id))
     expect(row!.status).toBe('grading-failed')

@@ -1,15 +1,17 @@
 import { randomUUID } from 'node:crypto'
 import request from 'supertest'
 import type TestAgent from 'supertest/lib/agent'
-import { createApp } from '../../server/app'
+import { createApp, gradingContext } from '../../server/app'
 import type { CreatedApp } from '../../server/app'
 import { hashPassword } from '../../server/auth/password'
 import type { Config } from '../../server/config'
-import { appDbOptions, loadConfig } from '../../server/config'
+import { appDbOptions, gradingBudget, loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
 import type { DbHandle } from '../../server/db/client'
 import { courses, enrollments, labGroups, sections, users } from '../../server/db/schema'
 import { createLogger } from '../../server/logger'
+import { createGrader } from '../../server/grading/grading-pool'
+import { DEFAULT_GRADING_WORKER_OPTIONS, startGradingWorker } from '../../server/grading/grading-worker'
 
 /** The test database from the environment `npm test` sets up (never the demo database). */
 export function testConfig(overrides: Partial<Record<string, string>> = {}): Config {
@@ -26,13 +28,24 @@ export interface TestContext {
 export function startTestApp(overrides: Partial<Record<string, string>> = {}): TestContext {
   const config = testConfig(overrides)
   const handle = createDb(appDbOptions(config))
-  const created = createApp({ config, db: handle.db, logger: createLogger(config.LOG_LEVEL) })
+  const logger = createLogger(config.LOG_LEVEL)
+  // The grading threads and the background grader, as `npm start` runs them: a hand-in that
+  // arrives while the threads are busy is graded by the background grader a moment later.
+  const grader = createGrader(gradingBudget(config))
+  // GRADING_POLL_MS=0 leaves it out, for tests that drive the grading cycle themselves.
+  const worker =
+    config.GRADING_POLL_MS > 0
+      ? startGradingWorker(handle.db, gradingContext(handle.db, { grader, logger, appUrl: config.APP_URL }), { ...DEFAULT_GRADING_WORKER_OPTIONS, pollMs: 300 })
+      : null
+  const created = createApp({ config, db: handle.db, logger, grader, onHandInStored: () => worker?.kick() })
   return {
     config,
     handle,
     created,
     close: async () => {
+      await worker?.stop()
       await created.close()
+      await grader.close()
       await handle.close()
     },
   }
