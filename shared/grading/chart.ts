@@ -1,0 +1,127 @@
+/**
+ * The result page's chart: the log thinned to at most {@link CHART_MAX_POINTS} points per series
+ * (each bucket's extremes kept), with the ideal thrust and the spans of supersonic flow.
+ */
+import type { Assignment } from '../modules/schema'
+import { buildExpressionScope } from '../modules/scope'
+import type { SubmissionData } from '../modules/scope'
+import { nozzlePressureRatios } from '../physics'
+import { CHECK_GAMMA, idealAt, roleData } from './data-flags'
+// ---------------------------------------------------------------------------------------------
+// Chart.
+
+/** Most points a chart series has (the decimation keeps each bucket's minimum and maximum). */
+export const CHART_MAX_POINTS = 2000
+
+/** What the result page plots, in SI: s, N, Pa absolute. */
+export interface ChartSeries {
+  time: number[]
+  thrust?: number[]
+  chamberPressure?: number[]
+  receiverPressure?: number[]
+  /** Ideal thrust for the logged chamber pressure at each plotted sample (γ = 1.4), N; 0 with no flow. */
+  idealThrust?: number[]
+  /** [start, end] times, s, of each stretch of samples during which the nozzle exit is supersonic. */
+  supersonicSpans: [number, number][]
+}
+
+/** Per bucket of consecutive samples, the samples holding each series' minimum and maximum, in time order. */
+function bucketExtremes(n: number, series: readonly (readonly number[])[], buckets: number): number[] {
+  const size = n / buckets
+  const out: number[] = []
+  const chosen = new Set<number>()
+  for (let b = 0; b < buckets; b++) {
+    const from = Math.floor(b * size)
+    const to = b === buckets - 1 ? n : Math.floor((b + 1) * size)
+    if (to <= from) continue
+    chosen.clear()
+    if (series.length === 0) {
+      chosen.add(from)
+      chosen.add(to - 1)
+    }
+    for (const s of series) {
+      let lo = from
+      let hi = from
+      for (let i = from + 1; i < to; i++) {
+        const v = s[i] as number
+        if (v < (s[lo] as number)) lo = i
+        if (v > (s[hi] as number)) hi = i
+      }
+      chosen.add(lo)
+      chosen.add(hi)
+    }
+    out.push(...[...chosen].sort((x, y) => x - y))
+  }
+  return out
+}
+
+/**
+ * Indices to plot: all when there are few; otherwise each bucket's minimum and maximum of every
+ * series, so peaks survive. Series often share their extremes (smooth pressures), so the number of
+ * buckets is raised from the one that is sure to fit (maxPoints / (2 × series)) towards filling
+ * maxPoints, in a few passes.
+ */
+function decimate(n: number, series: readonly (readonly number[])[], maxPoints: number): number[] {
+  if (n <= maxPoints) return Array.from({ length: n }, (_, i) => i)
+  const safe = Math.max(1, Math.floor(maxPoints / (2 * Math.max(1, series.length))))
+  let best = bucketExtremes(n, series, safe)
+  let buckets = safe
+  for (let pass = 0; pass < 4 && best.length < 0.9 * maxPoints; pass++) {
+    buckets = Math.floor((buckets * maxPoints) / Math.max(best.length, 1))
+    const tried = bucketExtremes(n, series, buckets)
+    if (tried.length > maxPoints) break
+    best = tried
+  }
+  return best
+}
+
+/**
+ * The series for the result page's chart: logged thrust and pressures against time, the ideal
+ * thrust for the logged chamber pressure, and the spans where the exit was supersonic.
+ *
+ * Supersonic at a sample means nozzleFlow's regime is over-expanded, ideal or under-expanded,
+ * which happens exactly when pa/p0 ≤ the shock-at-exit ratio of the nozzle (nozzlePressureRatios,
+ * the bound nozzleFlow itself uses), so the ratio is computed once and compared per sample.
+ * Spans are found on every sample; the series are then thinned to at most
+ * {@link CHART_MAX_POINTS} points keeping each bucket's minimum and maximum.
+ *
+ * @param assignment - the assignment (its roles say which columns are which)
+ * @param data - the submission's data in SI, as for {@link gradeSubmission}
+ * @returns the series (the optional ones only when the module declares their roles)
+ * @throws ScopeError when the data do not fit the assignment
+ */
+export function chartSeries(assignment: Assignment, data: SubmissionData): ChartSeries {
+  const scope = buildExpressionScope(assignment, { tables: data.tables, measurements: data.measurements, ...(data.pressures ? { pressures: data.pressures } : {}) }, { units: 'si' })
+  const d = roleData(assignment, scope)
+  const time = d.time ?? []
+  const n = time.length
+  const spans: [number, number][] = []
+  if (d.chamber && d.ambient !== undefined && d.throatArea !== undefined && d.exitArea !== undefined && d.exitArea >= d.throatArea) {
+    const limit = nozzlePressureRatios(d.exitArea / d.throatArea, CHECK_GAMMA).shockAtExit
+    let start = -1
+    for (let i = 0; i < n; i++) {
+      const p0 = d.chamber[i] as number
+      const supersonic = p0 > 0 && d.ambient / p0 <= limit
+      if (supersonic && start < 0) start = i
+      if (!supersonic && start >= 0) {
+        spans.push([time[start] as number, time[i - 1] as number])
+        start = -1
+      }
+    }
+    if (start >= 0) spans.push([time[start] as number, time[n - 1] as number])
+  }
+  const plotted = [d.thrust, d.chamber, d.receiver].filter((s): s is readonly number[] => s !== undefined && s.length === n)
+  const idx = decimate(n, plotted, CHART_MAX_POINTS)
+  const pick = (xs: readonly number[]) => idx.map((i) => xs[i] as number)
+  const out: ChartSeries = { time: pick(time), supersonicSpans: spans }
+  if (d.thrust && d.thrust.length === n) out.thrust = pick(d.thrust)
+  if (d.chamber && d.chamber.length === n) {
+    out.chamberPressure = pick(d.chamber)
+    const chamber = d.chamber
+    const ideal = idx.map((i) => idealAt(chamber[i] as number, d))
+    if (ideal.every((v): v is number => v !== undefined)) out.idealThrust = ideal
+  }
+  if (d.receiver && d.receiver.length === n) out.receiverPressure = pick(d.receiver)
+  return out
+}
+

@@ -1,0 +1,333 @@
+/**
+ * The built-in data checks: flags that put a hand-in in the staff review queue when its data look
+ * wrong (thrust above the ideal for the logged chamber pressure, a pressure logged in the other
+ * sense, the chamber above the receiver that feeds it, gaps in the clock, too few samples).
+ */
+import type { Assignment } from '../modules/schema'
+import type { ExpressionValue, SubmissionData } from '../modules/scope'
+import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust } from '../physics'
+import type { GradeFlag } from './grade'
+import { roleKeys } from './roles'
+import type { RoleKeys } from './roles'
+
+// ---------------------------------------------------------------------------------------------
+// Thresholds of the built-in data checks. None has a published source: each is a plain margin
+// chosen above the scatter a teaching stand's instruments show (load cells and pressure
+// transducers of about ±1 % of full scale, loggers that sample steadily), so that a flag means a
+// mistake rather than noise. They are exported so screens and tests can quote them.
+
+/**
+ * Ratio of specific heats for the ideal thrust and the supersonic spans: air. For a hot gas
+ * (γ ≈ 1.2–1.3) the ideal thrust at the same pressures is only 1–3 % higher, well inside
+ * {@link THRUST_ABOVE_IDEAL_MARGIN}, so the same check serves hot-fire runs.
+ */
+export const CHECK_GAMMA = 1.4
+
+/**
+ * How far the peak logged thrust may exceed the ideal (isentropic, quasi-1D) thrust for the chamber
+ * pressure logged at that sample before it is flagged: 10 %. A real nozzle delivers less than the
+ * ideal (typically 90–98 % of it), so anything above it is a calibration or data mistake; the margin
+ * leaves room for load-cell and transducer error. Common practice, no published source.
+ */
+export const THRUST_ABOVE_IDEAL_MARGIN = 0.1
+
+/** How many samples at each end of the log are taken as "at rest" (valve closed): up to 5, at most a quarter of the log. */
+export const REST_SAMPLES = 5
+
+/**
+ * A pressure declared absolute whose resting value is below this fraction of the ambient pressure
+ * looks gauge: an absolute transducer at rest reads the barometric pressure (60–105 kPa on any
+ * campus), a gauge one about 0.
+ */
+export const LOOKS_GAUGE_BELOW = 0.25
+
+/**
+ * A pressure declared gauge whose resting value is within this fraction of the ambient pressure
+ * (or of one standard atmosphere) looks absolute: a gauge transducer at rest reads about 0. The
+ * resting value is the lower of the medians of the first and last {@link REST_SAMPLES} samples, so a
+ * receiver log that ends with the receiver closed off at about one atmosphere gauge looks the same
+ * and is flagged too; the message asks staff to look, it does not change the grade.
+ */
+export const LOOKS_ABSOLUTE_BAND = 0.2
+
+/**
+ * The chamber may read above the receiver that feeds it by at most this fraction of the peak
+ * receiver pressure (absolute), and at least {@link CHAMBER_ABOVE_RECEIVER_FLOOR}, before it is
+ * flagged: twice the error of two ±1 % transducers.
+ */
+export const CHAMBER_ABOVE_RECEIVER_MARGIN = 0.02
+/** Smallest margin of the chamber-above-receiver check, Pa: noise at rest must not trip it. */
+export const CHAMBER_ABOVE_RECEIVER_FLOOR = 5000
+
+/** A step between samples longer than this multiple of the median step is a gap in the log. */
+export const TIME_GAP_FACTOR = 5
+
+/**
+ * Fewest samples with thrust above {@link THRUST_ACTIVE_FRACTION} of its peak: with fewer, the
+ * trapezoid rule misses much of the thrust curve's shape and the total impulse is unreliable. 20
+ * samples over a run keep the trapezoid error of a smooth, single-humped curve to a few per cent.
+ */
+export const MIN_THRUST_SAMPLES = 20
+/** Thrust above this fraction of the peak counts as "during the run" for {@link MIN_THRUST_SAMPLES}. */
+export const THRUST_ACTIVE_FRACTION = 0.05
+
+// ---------------------------------------------------------------------------------------------
+// Built-in data checks.
+
+/** The role-bearing data of a submission, in SI with absolute pressures. */
+interface RoleData {
+  keys: RoleKeys
+  time?: readonly number[]
+  thrust?: readonly number[]
+  chamber?: readonly number[]
+  receiver?: readonly number[]
+  ambient?: number
+  throatArea?: number
+  exitArea?: number
+}
+
+function numbers(scope: Record<string, ExpressionValue>, key: string | undefined): readonly number[] | undefined {
+  if (key === undefined) return undefined
+  const v = scope[key]
+  return Array.isArray(v) ? (v as readonly number[]) : undefined
+}
+
+function scalar(scope: Record<string, ExpressionValue>, key: string | undefined): number | undefined {
+  if (key === undefined) return undefined
+  const v = scope[key]
+  return typeof v === 'number' ? v : undefined
+}
+
+export function roleData(assignment: Assignment, scope: Record<string, ExpressionValue>): RoleData {
+  const keys = roleKeys(assignment)
+  const out: RoleData = { keys }
+  const time = numbers(scope, keys.time)
+  const thrust = numbers(scope, keys.thrust)
+  const chamber = numbers(scope, keys.chamberPressure)
+  const receiver = numbers(scope, keys.receiverPressure)
+  const ambient = scalar(scope, keys.ambientPressure)
+  const throat = scalar(scope, keys.throatDiameter)
+  const exit = scalar(scope, keys.exitDiameter)
+  if (time) out.time = time
+  if (thrust) out.thrust = thrust
+  if (chamber) out.chamber = chamber
+  if (receiver) out.receiver = receiver
+  if (ambient !== undefined) out.ambient = ambient
+  if (throat !== undefined && throat > 0) out.throatArea = areaFromDiameter(throat)
+  if (exit !== undefined && exit > 0) out.exitArea = areaFromDiameter(exit)
+  return out
+}
+
+/** 3 significant figures, without exponent for everyday magnitudes. */
+function fmt(x: number): string {
+  if (x === 0 || !Number.isFinite(x)) return String(x)
+  const a = Math.abs(x)
+  if (a >= 1e-3 && a < 1e7) return String(Number(x.toPrecision(3)))
+  return x.toPrecision(3)
+}
+
+const kPa = (pa: number) => `${fmt(pa / 1000)} kPa`
+
+function argmax(xs: readonly number[]): number {
+  let best = 0
+  for (let i = 1; i < xs.length; i++) if ((xs[i] as number) > (xs[best] as number)) best = i
+  return best
+}
+
+/**
+ * Median by selection (Hoare's quickselect, expected O(n)) on a copy: the time-gap check takes the
+ * median of 50 000 steps, where a full sort would cost several times more.
+ */
+function median(xs: ArrayLike<number>): number {
+  const a = Float64Array.from(xs)
+  const n = a.length
+  const mid = n >> 1
+  let lo = 0
+  let hi = n - 1
+  while (lo < hi) {
+    const pivot = a[(lo + hi) >> 1] as number
+    let i = lo
+    let j = hi
+    while (i <= j) {
+      while ((a[i] as number) < pivot) i++
+      while ((a[j] as number) > pivot) j--
+      if (i <= j) {
+        const t = a[i] as number
+        a[i] = a[j] as number
+        a[j] = t
+        i++
+        j--
+      }
+    }
+    if (mid <= j) hi = j
+    else if (mid >= i) lo = i
+    else break
+  }
+  const upper = a[mid] as number
+  if (n % 2 === 1) return upper
+  // Everything left of mid is ≤ a[mid]; the other middle value is the largest of them.
+  let lower = -Infinity
+  for (let k = 0; k < mid; k++) if ((a[k] as number) > lower) lower = a[k] as number
+  return (lower + upper) / 2
+}
+
+/** The ideal thrust, 0 when the chamber is not above ambient (no flow), undefined when the library refuses the inputs. */
+export function idealAt(p0: number, d: RoleData): number | undefined {
+  if (d.ambient === undefined || d.throatArea === undefined || d.exitArea === undefined) return undefined
+  if (!(p0 > d.ambient)) return 0
+  try {
+    return idealThrust(p0, d.ambient, d.throatArea, d.exitArea, CHECK_GAMMA)
+  } catch (error) {
+    if (error instanceof RangeError) return undefined
+    throw error
+  }
+}
+
+export function dataFlags(assignment: Assignment, data: SubmissionData, scope: Record<string, ExpressionValue>): GradeFlag[] {
+  const d = roleData(assignment, scope)
+  const flags: GradeFlag[] = []
+  const thrustFlag = thrustAboveIdeal(d)
+  if (thrustFlag) flags.push(thrustFlag)
+  for (const which of ['chamber', 'receiver'] as const) {
+    const f = pressureSense(data, d, which)
+    if (f) flags.push(f)
+  }
+  const above = chamberAboveReceiver(d)
+  if (above) flags.push(above)
+  const gap = timeGap(d)
+  if (gap) flags.push(gap)
+  const few = tooFewSamples(d)
+  if (few) flags.push(few)
+  return flags
+}
+
+function thrustAboveIdeal(d: RoleData): GradeFlag | undefined {
+  if (!d.thrust || !d.chamber || d.thrust.length === 0) return undefined
+  const i = argmax(d.thrust)
+  const peak = d.thrust[i] as number
+  const p0 = d.chamber[i] as number
+  const ideal = idealAt(p0, d)
+  if (ideal === undefined || !(peak > (1 + THRUST_ABOVE_IDEAL_MARGIN) * ideal) || !(peak > 0)) return undefined
+  const at = d.time ? ` at t = ${fmt(d.time[i] as number)} s` : ''
+  const what =
+    ideal > 0
+      ? `The peak thrust, ${fmt(peak)} N${at}, is ${fmt((peak / ideal - 1) * 100)} % above the ideal thrust of ${fmt(ideal)} N for the chamber pressure logged at that moment (${kPa(p0)} absolute).`
+      : `The peak thrust, ${fmt(peak)} N${at}, was logged while the chamber pressure (${kPa(p0)} absolute) was not above the ambient pressure (${kPa(d.ambient as number)}), when an ideal nozzle gives no thrust at all.`
+  return {
+    code: 'thrust-above-ideal',
+    message: `${what} A real nozzle gives less than the ideal; check the load-cell calibration and whether the chamber pressure is gauge or absolute.`,
+    detail: {
+      sample: i + 1,
+      ...(d.time ? { time: d.time[i] as number } : {}),
+      peakThrust: peak,
+      idealThrust: ideal,
+      chamberPressure: p0,
+      margin: THRUST_ABOVE_IDEAL_MARGIN,
+    },
+  }
+}
+
+/** Median of the first and of the last few samples; the lower is the resting value. */
+function restingValue(xs: readonly number[]): number | undefined {
+  const k = Math.min(REST_SAMPLES, Math.floor(xs.length / 4))
+  if (k < 1) return undefined
+  return Math.min(median(xs.slice(0, k)), median(xs.slice(xs.length - k)))
+}
+
+function pressureSense(data: SubmissionData, d: RoleData, which: 'chamber' | 'receiver'): GradeFlag | undefined {
+  const key = which === 'chamber' ? d.keys.chamberPressure : d.keys.receiverPressure
+  const values = which === 'chamber' ? d.chamber : d.receiver
+  if (key === undefined || !values || d.ambient === undefined) return undefined
+  const spec = d.keys.table?.columns.find((c) => c.key === key)
+  const sense = data.pressures?.[key] ?? spec?.pressure
+  const rest = restingValue(values)
+  if (rest === undefined || sense === undefined) return undefined
+  const pa = d.ambient
+  const name = which === 'chamber' ? 'chamber pressure' : 'receiver pressure'
+  const Name = which === 'chamber' ? 'The chamber pressure' : 'The receiver pressure'
+  // The value as logged: the scope added the ambient to a gauge column.
+  const logged = sense === 'gauge' ? rest - pa : rest
+  const detail = { column: key, declared: sense, restingValue: logged, ambientPressure: pa }
+  if (sense === 'absolute' && logged < LOOKS_GAUGE_BELOW * pa) {
+    return {
+      code: 'pressure-looks-gauge',
+      message: `${Name} is declared absolute, but at rest (the start or end of the log) it reads about ${kPa(logged)}, where an absolute reading would be near the barometric pressure (${kPa(pa)}). It looks like a gauge reading: check the gauge/absolute choice for this column.`,
+      detail,
+    }
+  }
+  if (sense === 'gauge' && (Math.abs(logged - pa) <= LOOKS_ABSOLUTE_BAND * pa || Math.abs(logged - STANDARD_ATMOSPHERE) <= LOOKS_ABSOLUTE_BAND * STANDARD_ATMOSPHERE)) {
+    return {
+      code: 'pressure-looks-absolute',
+      message: `${Name} is declared gauge, but at rest (the start or end of the log) it reads about ${kPa(logged)}, close to the barometric pressure (${kPa(pa)}), where a gauge reading would be near 0. It looks like an absolute reading: check the gauge/absolute choice for the ${name}.`,
+      detail,
+    }
+  }
+  return undefined
+}
+
+function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
+  const { chamber, receiver } = d
+  if (!chamber || !receiver || chamber.length === 0) return undefined
+  let worst = 0
+  let peakReceiver = -Infinity
+  for (let i = 0; i < chamber.length; i++) {
+    if ((chamber[i] as number) - (receiver[i] as number) > (chamber[worst] as number) - (receiver[worst] as number)) worst = i
+    if ((receiver[i] as number) > peakReceiver) peakReceiver = receiver[i] as number
+  }
+  const excess = (chamber[worst] as number) - (receiver[worst] as number)
+  const margin = Math.max(CHAMBER_ABOVE_RECEIVER_MARGIN * peakReceiver, CHAMBER_ABOVE_RECEIVER_FLOOR)
+  if (!(excess > margin)) return undefined
+  const at = d.time ? ` at t = ${fmt(d.time[worst] as number)} s` : ''
+  return {
+    code: 'chamber-above-receiver',
+    message: `The chamber pressure reads ${kPa(excess)} above the receiver pressure that feeds it${at} (${kPa(chamber[worst] as number)} against ${kPa(receiver[worst] as number)}, absolute). Air flows from the receiver to the chamber, so the chamber cannot be higher: check whether the two pressure columns are swapped or one is gauge and the other absolute.`,
+    detail: {
+      sample: worst + 1,
+      ...(d.time ? { time: d.time[worst] as number } : {}),
+      chamberPressure: chamber[worst] as number,
+      receiverPressure: receiver[worst] as number,
+      margin,
+    },
+  }
+}
+
+function timeGap(d: RoleData): GradeFlag | undefined {
+  const t = d.time
+  if (!t || t.length < 3) return undefined
+  const steps = new Float64Array(t.length - 1)
+  for (let i = 1; i < t.length; i++) steps[i - 1] = (t[i] as number) - (t[i - 1] as number)
+  const typical = median(steps)
+  if (!(typical > 0)) return undefined
+  let count = 0
+  let largest = -1
+  for (let i = 0; i < steps.length; i++) {
+    const s = steps[i] as number
+    if (s > TIME_GAP_FACTOR * typical) {
+      count++
+      if (largest < 0 || s > (steps[largest] as number)) largest = i
+    }
+  }
+  if (largest < 0) return undefined
+  const gap = steps[largest] as number
+  return {
+    code: 'time-gap',
+    message: `The log has ${count === 1 ? 'a gap' : `${count} gaps`} between samples: the largest, ${fmt(gap)} s after t = ${fmt(t[largest] as number)} s, is ${fmt(gap / typical)} times the usual step of ${fmt(typical)} s. Samples may be missing; the impulse is integrated straight across a gap.`,
+    detail: { gaps: count, largestGap: gap, after: t[largest] as number, sample: largest + 2, medianStep: typical, factor: TIME_GAP_FACTOR },
+  }
+}
+
+function tooFewSamples(d: RoleData): GradeFlag | undefined {
+  const thrust = d.thrust
+  if (!thrust || thrust.length === 0) return undefined
+  const peak = thrust[argmax(thrust)] as number
+  if (!(peak > 0)) return undefined
+  let active = 0
+  for (const f of thrust) if (f > THRUST_ACTIVE_FRACTION * peak) active++
+  if (active >= MIN_THRUST_SAMPLES) return undefined
+  return {
+    code: 'too-few-samples',
+    message: `Only ${active} sample${active === 1 ? '' : 's'} of the log have thrust above ${fmt(THRUST_ACTIVE_FRACTION * 100)} % of the peak; at least ${MIN_THRUST_SAMPLES} are needed to integrate the impulse well. Log faster or longer.`,
+    detail: { samples: active, needed: MIN_THRUST_SAMPLES },
+  }
+}
+
