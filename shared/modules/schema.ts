@@ -276,18 +276,22 @@ export const PartialCreditSchema = z.strictObject({
   fraction: z.number().min(0, 'a fraction of the points, from 0 to 1').max(1, 'a fraction of the points, from 0 to 1'),
 })
 
-export const ResultSpecSchema = z
-  .strictObject({
-    key: KeySchema,
-    label: LabelSchema,
-    unit: ResultUnitSchema,
-    /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
-    expected: ExpressionTextSchema,
-    tolerance: ToleranceSchema,
-    points: z.number().positive('points must be greater than 0'),
-    partial: PartialCreditSchema.optional(),
-  })
-  .superRefine((r, ctx) => checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected'))
+/** A result's fields before the expression budget is checked (zod cannot make a refined schema partial). */
+const ResultSpecFields = z.strictObject({
+  key: KeySchema,
+  label: LabelSchema,
+  unit: ResultUnitSchema,
+  /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
+  expected: ExpressionTextSchema,
+  tolerance: ToleranceSchema,
+  points: z.number().positive('points must be greater than 0'),
+  partial: PartialCreditSchema.optional(),
+})
+
+export const ResultSpecSchema = ResultSpecFields.superRefine((r, ctx) => checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected'))
+
+/** A result as a student's browser receives it: the expected-value expression is removed. */
+export const StudentResultSpecSchema = ResultSpecFields.partial({ expected: true })
 
 export const ReviewRuleSchema = z
   .strictObject({

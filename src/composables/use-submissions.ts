@@ -10,7 +10,7 @@ import { z } from 'zod'
 import { parseDecimal, parseLog, sniffBinary, suggestMapping } from '@shared/grading/csv'
 import type { ColumnMappingEntry, LogIssue, LogParseResult } from '@shared/grading/csv'
 import { DIMENSIONLESS, dataUnitKind, isPressureUnit, valueFromSI } from '@shared/modules/quantities'
-import { MeasurementSchema, ResultSpecSchema, TableSchema } from '@shared/modules/schema'
+import { MeasurementSchema, StudentResultSpecSchema, TableSchema } from '@shared/modules/schema'
 import type { MeasurementSpec, TableSpec } from '@shared/modules/schema'
 import { isAwaitingGrade } from '@shared/schemas/submissions'
 import type { SubmissionDetail, SubmissionFieldIssue, SubmissionPayload } from '@shared/schemas/submissions'
@@ -86,7 +86,7 @@ export function useSubmissionPage(courseId: Ref<number>, submissionId: Ref<numbe
 // ---------------------------------------------------------------------------------------------
 // The assignment as a student receives it (expected-value expressions and review rules removed).
 
-const StudentResultSchema = ResultSpecSchema.partial({ expected: true })
+const StudentResultSchema = StudentResultSpecSchema
 
 const StudentAssignmentSchema = z.object({
   tables: z.array(TableSchema).default([]),

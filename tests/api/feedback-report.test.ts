@@ -113,9 +113,10 @@ beforeAll(async () => {
     .send({ checkId: null, points: 4.5, reason: 'Thrust rescaled by hand after the calibration check.', revision: rev })
   expect(o.status).toBe(200)
 
-  // A later G1 attempt that is not graded: it neither gets a report nor counts in the archive.
+  // A later G1 attempt that is not graded (a grading thread holds it, claimed just now): it neither
+  // gets a report nor counts in the archive.
   subG1Later = await handIn(groupMate, mod.id, 1.0)
-  await db.update(submissions).set({ status: 'received' }).where(eq(submissions.id, subG1Later))
+  await db.update(submissions).set({ status: 'grading', gradeClaimedAt: new Date() }).where(eq(submissions.id, subG1Later))
 }, 120_000)
 afterAll(async () => {
   await ctx.close()
@@ -235,8 +236,8 @@ describe('feedback report (PDF)', () => {
     await ctx.handle.db.update(submissions).set({ status: 'grading-failed' }).where(eq(submissions.id, subG1Later))
     const failed = await download(inst, `${C()}/submissions/${subG1Later}/report.pdf`)
     expect(failed.status).toBe(409)
-    expect(failed.json().error.message).toContain('could not grade')
-    await ctx.handle.db.update(submissions).set({ status: 'received' }).where(eq(submissions.id, subG1Later))
+    expect(failed.json().error.message).toContain('could not be graded automatically')
+    await ctx.handle.db.update(submissions).set({ status: 'grading', gradeClaimedAt: new Date() }).where(eq(submissions.id, subG1Later))
   })
 
   it('names a bad or unknown submission id', async () => {
