@@ -15,7 +15,7 @@ import type { Database } from './db/client'
 import { withTimeouts } from './db/timeouts'
 import { createGrader } from './grading/grading-pool'
 import type { Grader } from './grading/grading-pool'
-import { queueHandInReceipt } from './services/submission-service'
+import { handInReceipt } from './services/submission-service'
 import type { GradingContext } from './services/grading-service'
 import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
@@ -201,9 +201,7 @@ export function gradingContext(
   return {
     grader: o.grader,
     logger: o.logger,
-    onGraded: async (submissionId) => {
-      await queueHandInReceipt(db, submissionId, o.appUrl)
-      o.onMailQueued?.()
-    },
+    receipt: (submissionId, outcome) => handInReceipt(db, submissionId, o.appUrl, outcome),
+    ...(o.onMailQueued ? { onMailQueued: o.onMailQueued } : {}),
   }
 }

@@ -136,6 +136,81 @@ console.log(`  answered in ${answered.toFixed(1)} s, all graded after ${elapsed.
 console.log(`  answer latency p50 ${q(0.5).toFixed(0)} ms   p95 ${q(0.95).toFixed(0)} ms   max ${latencies.at(-1)!.toFixed(0)} ms`)
 errors += total - c.graded
 
+// Health while hostile inputs are refused: the event loop must stay free (goal: health < 1 s).
+{
+  const s = sessions[0]!
+  const healthMs: number[] = []
+  let polling = true
+  const poll = (async () => {
+    while (polling) {
+      const t0 = performance.now()
+      await (await fetch(`${base}/api/health`)).arrayBuffer()
+      healthMs.push(performance.now() - t0)
+      await new Promise((r) => setTimeout(r, 100))
+    }
+  })()
+  const post = async (parts: [string, Blob | string, string?][]) => {
+    const form = new FormData()
+    form.append('payload', body)
+    for (const [name, value, filename] of parts) if (typeof value === 'string') form.append(name, value)
+    else form.append(name, value, filename)
+    const res = await fetch(`${base}/api/courses/${courseId}/modules/${mod.id}/submissions`, {
+      method: 'POST',
+      headers: { cookie: s.cookie, 'x-csrf-token': s.csrf },
+      body: form,
+    })
+    await res.arrayBuffer()
+    return res.status
+  }
+  const MB19 = 19 * 1024 * 1024
+  // A chunked body (no Content-Length) with five 19 MB file parts: refused while it streams.
+  const chunked = async () => {
+    const boundary = 'bench-boundary'
+    const chunk = new Uint8Array(1024 * 1024).fill(0x31)
+    let sent = 0
+    const stream = new ReadableStream<Uint8Array>({
+      pull(controller) {
+        if (sent === 0) controller.enqueue(new TextEncoder().encode(`--${boundary}\r\nContent-Disposition: form-data; name="payload"\r\n\r\n${body}\r\n`))
+        const part = Math.floor(sent / 19)
+        if (part >= 5) {
+          controller.enqueue(new TextEncoder().encode(`\r\n--${boundary}--\r\n`))
+          controller.close()
+          return
+        }
+        if (sent % 19 === 0) controller.enqueue(new TextEncoder().encode(`\r\n--${boundary}\r\nContent-Disposition: form-data; name="table:run"; filename="r${part}.csv"\r\n\r\n`))
+        controller.enqueue(chunk)
+        sent++
+      },
+    })
+    try {
+      const res = await fetch(`${base}/api/courses/${courseId}/modules/${mod.id}/submissions`, {
+        method: 'POST',
+        headers: { cookie: s.cookie, 'x-csrf-token': s.csrf, 'content-type': `multipart/form-data; boundary=${boundary}` },
+        body: stream,
+        duplex: 'half',
+      } as RequestInit)
+      await res.arrayBuffer()
+      return res.status
+    } catch {
+      return 'connection closed by the server'
+    }
+  }
+  const t0 = performance.now()
+  const statuses = await Promise.all([
+    post([['table:run', new Blob(['time_s' + ','.repeat(MB19)], { type: 'text/csv' }), 'commas.csv']]),
+    post([['table:run', new Blob(['time_s,thrust_N\n' + '\n'.repeat(MB19)], { type: 'text/csv' }), 'blank.csv']]),
+    chunked(),
+  ])
+  const refusedIn = performance.now() - t0
+  await new Promise((r) => setTimeout(r, 300))
+  polling = false
+  await poll
+  healthMs.sort((a, b) => a - b)
+  console.log(`Health while hostile uploads are refused (19 MB of commas, 19 MB of blank lines, 5 × 19 MB chunked parts)`)
+  console.log(`  answers ${JSON.stringify(statuses)} in ${refusedIn.toFixed(0)} ms`)
+  console.log(`  health: ${healthMs.length} probes, median ${healthMs[Math.floor(healthMs.length / 2)]!.toFixed(0)} ms, max ${healthMs.at(-1)!.toFixed(0)} ms (goal < 1000 ms)`)
+}
+
 server.closeAllConnections()
 await new Promise<void>((r) => server.close(() => r()))
 await worker.stop()

@@ -6,7 +6,7 @@ import type { Database } from '../../server/db/client'
 import { courses, enrollments, labGroups, moduleVersions, modules, sections, users } from '../../server/db/schema'
 import { insertModuleWithVersion, markPublished } from '../../server/repositories/modules'
 import { toVersion } from '../../server/services/module-service'
-import { queueHandInReceipt, submitHandIn } from '../../server/services/submission-service'
+import { handInReceipt, submitHandIn } from '../../server/services/submission-service'
 import { createGrader } from '../../server/grading/grading-pool'
 import { createLogger } from '../../server/logger'
 import type { GradingContext } from '../../server/services/grading-service'
@@ -136,7 +136,11 @@ async function seedHandIns(db: Database, courseId: number) {
   // The seeded hand-ins go through the real service and are graded as a student's would be.
   const appUrl = process.env.APP_URL ?? 'http://127.0.0.1:3000'
   const grader = createGrader()
-  const grading = { grader, logger: createLogger('warn'), onGraded: (id: number) => queueHandInReceipt(db, id, appUrl) }
+  const grading: GradingContext = {
+    grader,
+    logger: createLogger('warn'),
+    receipt: (id, outcome) => handInReceipt(db, id, appUrl, outcome),
+  }
   try {
     await seedGroupRuns(db, courseId, mod.id, a, table, grading)
   } finally {

@@ -13,7 +13,9 @@ import { claimGradingJobs, releaseStaleGradingClaims, requeueGradingJob } from '
 import type { GradingClaim } from '../repositories/grading-jobs'
 import { findVersion } from '../repositories/modules'
 import type { CheckWrite, FlagWrite } from '../repositories/submissions'
-import { addFlags, findIdenticalFiles, findSubmissionById, listFiles, saveGrade } from '../repositories/submissions'
+import { findIdenticalFiles, findSubmissionById, listFiles, saveGrade } from '../repositories/submissions'
+import { enqueueMail } from '../repositories/outbox'
+import type { NewMail } from '../repositories/outbox'
 import { readingSense } from './hand-in-validation'
 
 /** How many times a hand-in is claimed before its grading is given up as failed. */
@@ -22,8 +24,16 @@ export const MAX_GRADE_ATTEMPTS = 6
 export interface GradingContext {
   grader: Grader
   logger: Logger
-  /** Called once a hand-in is graded or has failed (the receipt e-mail). */
-  onGraded?: (submissionId: number) => Promise<void>
+  /** The receipt e-mails for a hand-in with this outcome; queued in the grade's own transaction. */
+  receipt?: (submissionId: number, outcome: GradeOutcome) => Promise<NewMail[]>
+  /** Called after mail was queued, so the outbox worker sends it without waiting. */
+  onMailQueued?: () => void
+}
+
+export interface GradeOutcome {
+  status: 'graded' | 'grading-failed'
+  score: number | null
+  maxScore: number | null
 }
 
 export type JobOutcome = 'graded' | 'failed' | 'requeued' | 'superseded'
@@ -85,15 +95,35 @@ function checkWrites(result: GradeResult): CheckWrite[] {
   }))
 }
 
-/** Records a hand-in as not gradable automatically: the cause stays in the log and in grading_error. */
-async function saveFailure(db: Database, claim: GradingClaim, cause: string): Promise<boolean> {
-  return retryOnLockConflict(() =>
-    db.transaction((tx) =>
-      saveGrade(tx, claim, { status: 'grading-failed', gradingError: cause.slice(0, 1000), rawScore: null, score: null, maxScore: null }, [], [
-        { code: 'grading-failed', message: GRADING_FAILED_MESSAGE, detail: null },
-      ]),
-    ),
+/**
+ * Writes the outcome in one transaction: the grade (or the failure), its flags, and the receipt.
+ * Nothing of it is written when the claim no longer holds the job.
+ */
+async function saveOutcome(
+  db: Database,
+  ctx: GradingContext,
+  claim: GradingClaim,
+  grade: { gradingError: string | null; rawScore: number | null; score: number | null; maxScore: number | null; status: 'graded' | 'grading-failed' },
+  checks: CheckWrite[],
+  flags: FlagWrite[],
+): Promise<boolean> {
+  const mails = ctx.receipt ? await ctx.receipt(claim.submissionId, { status: grade.status, score: grade.score, maxScore: grade.maxScore }) : []
+  const saved = await retryOnLockConflict(() =>
+    db.transaction(async (tx) => {
+      if (!(await saveGrade(tx, claim, grade, checks, flags))) return false
+      await enqueueMail(tx, mails)
+      return true
+    }),
   )
+  if (saved && mails.length) ctx.onMailQueued?.()
+  return saved
+}
+
+/** Records a hand-in as not gradable automatically: the cause stays in the log and in grading_error. */
+function saveFailure(db: Database, ctx: GradingContext, claim: GradingClaim, cause: string): Promise<boolean> {
+  return saveOutcome(db, ctx, claim, { status: 'grading-failed', gradingError: cause.slice(0, 1000), rawScore: null, score: null, maxScore: null }, [], [
+    { code: 'grading-failed', message: GRADING_FAILED_MESSAGE, detail: null },
+  ])
 }
 
 /**
@@ -107,7 +137,7 @@ export async function runGradingJob(db: Database, ctx: GradingContext, claim: Gr
   const log = ctx.logger.child({ submissionId: s.id, gradeAttempt: claim.token })
   if (claim.token > MAX_GRADE_ATTEMPTS) {
     log.error('grading given up after repeated attempts')
-    return (await saveFailure(db, claim, `given up after ${claim.token - 1} attempts`)) ? finish(ctx, s.id, 'failed') : 'superseded'
+    return (await saveFailure(db, ctx, claim, `given up after ${claim.token - 1} attempts`)) ? 'failed' : 'superseded'
   }
   const version = await findVersion(db, s.moduleVersionId)
   const fm = version?.frontMatter as unknown as ModuleFrontMatter | null
@@ -121,48 +151,30 @@ export async function runGradingJob(db: Database, ctx: GradingContext, claim: Gr
     if (!(err instanceof GradingBudgetError) && isDatabaseError(err)) throw err
     log.error({ err }, 'automatic grading failed')
     const cause = err instanceof Error ? `${err.name}: ${err.message}` : String(err)
-    return (await saveFailure(db, claim, cause)) ? finish(ctx, s.id, 'failed') : 'superseded'
+    return (await saveFailure(db, ctx, claim, cause)) ? 'failed' : 'superseded'
   }
-  const flags: FlagWrite[] = result.flags.map((f) => ({ code: f.code, message: f.message, detail: f.detail ?? null }))
-  const saved = await retryOnLockConflict(() =>
-    db.transaction((tx) =>
-      saveGrade(tx, claim, { status: 'graded', gradingError: null, rawScore: result.rawScore, score: result.score, maxScore: result.maxScore }, checkWrites(result), flags),
-    ),
-  )
-  if (!saved) return 'superseded'
-  await flagIdenticalFiles(db, s)
-  return finish(ctx, s.id, 'graded')
-}
-
-async function finish(ctx: GradingContext, submissionId: number, outcome: 'graded' | 'failed'): Promise<JobOutcome> {
-  try {
-    await ctx.onGraded?.(submissionId)
-  } catch (err) {
-    // The grade is stored; a receipt that could not be queued is not worth failing the job for.
-    ctx.logger.warn({ err, submissionId }, 'could not queue the hand-in receipt')
-  }
-  return outcome
+  const flags: FlagWrite[] = [
+    ...result.flags.map((f) => ({ code: f.code, message: f.message, detail: f.detail ?? null })),
+    ...(await identicalFileFlags(db, s)),
+  ]
+  const grade = { status: 'graded' as const, gradingError: null, rawScore: result.rawScore, score: result.score, maxScore: result.maxScore }
+  return (await saveOutcome(db, ctx, claim, grade, checkWrites(result), flags)) ? 'graded' : 'superseded'
 }
 
 /** A file byte-identical to another person's or group's in this course is for staff to look at. */
-async function flagIdenticalFiles(db: Database, s: { id: number; courseId: number; userId: number; labGroupId: number | null }): Promise<void> {
-  const files = await listFiles(db, s.id)
-  for (const f of files) {
+async function identicalFileFlags(db: Database, s: { id: number; courseId: number; userId: number; labGroupId: number | null }): Promise<FlagWrite[]> {
+  const flags: FlagWrite[] = []
+  for (const f of await listFiles(db, s.id)) {
     const same = await findIdenticalFiles(db, s.courseId, f.sha256, { userId: s.userId, labGroupId: s.labGroupId })
     if (!same.length) continue
     const who = same.map((x) => x.labGroupName ?? x.submittedBy).join(', ')
-    await retryOnLockConflict(() =>
-      db.transaction((tx) =>
-        addFlags(tx, s.id, [
-          {
-            code: 'identical-file',
-            message: `The uploaded file ${f.filename} is byte-for-byte identical to a file handed in by ${who}.`,
-            detail: { otherSubmissionId: same[0]!.submissionId },
-          },
-        ]),
-      ),
-    )
+    flags.push({
+      code: 'identical-file',
+      message: `The uploaded file ${f.filename} is byte-for-byte identical to a file handed in by ${who}.`,
+      detail: { otherSubmissionId: same[0]!.submissionId },
+    })
   }
+  return flags
 }
 
 /** Errors that come from the database (or the way to it), as opposed to the data being graded. */

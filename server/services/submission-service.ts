@@ -16,7 +16,7 @@ import { AppError, forbidden, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
 import { findEnrollment } from '../repositories/enrollments'
 import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
-import { enqueueMail } from '../repositories/outbox'
+import type { NewMail } from '../repositories/outbox'
 import type { Owner, SubmissionRow } from '../repositories/submissions'
 import {
   countAttempts,
@@ -391,15 +391,28 @@ export async function submissionFile(db: Database, e: CourseEnrollment, submissi
 }
 
 /**
- * The receipt for a hand-in, once it is graded (or could not be): to the submitter, and to the lab
- * group on a group module, with the score when results are visible. Queued once per hand-in.
+ * The receipt for a hand-in with the grade about to be written (or the news that it could not be
+ * graded): to the submitter, and to the lab group on a group module, with the score when results
+ * are visible. The grading job queues it in the same transaction as the grade, so it is sent once
+ * and never lost.
  */
-export async function queueHandInReceipt(db: Database, submissionId: number, appUrl: string): Promise<void> {
+export async function handInReceipt(
+  db: Database,
+  submissionId: number,
+  appUrl: string,
+  outcome: { status: 'graded' | 'grading-failed'; score: number | null; maxScore: number | null },
+): Promise<NewMail[]> {
   const s = await findSubmissionById(db, submissionId)
-  if (!s) return
+  if (!s) return []
   const e = await findEnrollment(db, s.userId, s.courseId)
-  if (!e) return
-  const d = await submissionDetail(db, e, submissionId)
+  if (!e) return []
+  const seen = await submissionDetail(db, e, submissionId)
+  const d = {
+    ...seen,
+    status: outcome.status,
+    score: seen.resultsVisible ? outcome.score : null,
+    maxScore: seen.resultsVisible ? outcome.maxScore : null,
+  }
   const course = await courseTimeZone(db, e.courseId)
   const version = await findVersion(db, s.moduleVersionId)
   const group = (version?.frontMatter as unknown as ModuleFrontMatter | null)?.groupSubmission === true && s.labGroupId !== null
@@ -413,9 +426,7 @@ export async function queueHandInReceipt(db: Database, submissionId: number, app
       : d.resultsVisible && d.score !== null && d.maxScore !== null
         ? `Score: ${Number(d.score.toFixed(2))} of ${d.maxScore}${d.latePenalty > 0 ? ` (after a ${Math.round(d.latePenalty * 100)} % late penalty)` : ''}.`
         : (d.resultsHiddenReason ?? 'Results are not shown yet.')
-  await enqueueMail(
-    db,
-    people.map((p) => ({
+  return people.map((p) => ({
       dedupeKey: `submission-receipt:${d.id}`,
       toAddress: p.email,
       toName: p.displayName,
@@ -435,6 +446,5 @@ export async function queueHandInReceipt(db: Database, submissionId: number, app
 <p>${escapeHtml(scoreLine)}</p>
 <p><a href="${escapeHtml(link)}">See the checks</a></p>
 <p style="color:#5d574c">— Isentrope</p>`,
-    })),
-  )
+    }))
 }
