@@ -27,6 +27,7 @@ export {
   NOZZLE_REGIMES,
 } from './nozzle'
 export type { NozzleInput, NozzleFlow, NozzlePressureRatios, NozzleRegime } from './nozzle'
+export { machDiskDistanceLewisCarlson, LEWIS_CARLSON_COEFFICIENT, SEPARATION_PRESSURE_RATIO } from './nozzle'
 export { tankBlowdown, dischargeMassFlow, blowdownTimeConstant, BLOWDOWN_PROCESSES, MAX_BLOWDOWN_SAMPLES } from './blowdown'
 export type { BlowdownInput, Blowdown, BlowdownProcess } from './blowdown'
 export {
