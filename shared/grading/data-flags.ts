@@ -234,8 +234,9 @@ function windowMedian(xs: readonly number[], i: number, sorted: Float64Array): n
 
 /**
  * The thrust a nozzle can at most give at chamber pressure p0: the full-flowing ideal thrust and,
- * when the flow separates (Summerfield criterion), the separated-nozzle estimate; 0 for both when
- * the chamber is not above ambient; undefined when the library refuses the inputs.
+ * when the flow separates (Summerfield criterion), the separated-nozzle estimate; 0 and no
+ * separated estimate when the chamber is not above ambient; undefined when the library refuses the
+ * inputs.
  */
 function thrustCeilingAt(p0: number, d: RoleData): { fullFlowing: number; separated: number | null } | undefined {
   if (d.ambient === undefined || d.throatArea === undefined || d.exitArea === undefined) return undefined
