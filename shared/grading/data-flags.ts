@@ -5,7 +5,7 @@
  */
 import type { Assignment } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
-import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust } from '../physics'
+import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust, nozzleFlow } from '../physics'
 import type { GradeFlag } from './grade'
 import { roleKeys } from './roles'
 import type { RoleKeys } from './roles'
@@ -28,8 +28,17 @@ export const CHECK_GAMMA = 1.4
  * pressure logged at that sample before it is flagged: 10 %. A real nozzle delivers less than the
  * ideal (typically 90–98 % of it), so anything above it is a calibration or data mistake; the margin
  * leaves room for load-cell and transducer error. Common practice, no published source.
+ * The ideal here is the larger of the full-flowing thrust and the estimate for a nozzle whose flow
+ * separates from the wall (nozzleFlow's separatedThrust): a strongly over-expanded nozzle separates
+ * and gives more thrust than it would running full.
  */
 export const THRUST_ABOVE_IDEAL_MARGIN = 0.1
+
+/**
+ * Width of the centred moving median the thrust-above-ideal check reads the peak through, samples:
+ * one ringing sample at valve opening must not become the peak.
+ */
+export const THRUST_PEAK_MEDIAN_WINDOW = 5
 
 /** How many samples at each end of the log are taken as "at rest" (valve closed): up to 5, at most a quarter of the log. */
 export const REST_SAMPLES = 5
@@ -201,17 +210,82 @@ export function dataFlags(assignment: Assignment, data: SubmissionData, scope: R
   return flags
 }
 
+/**
+ * Median of the samples in a centred window of {@link THRUST_PEAK_MEDIAN_WINDOW} around index i,
+ * the window shortened at the ends of the log (an even count gives the mean of the middle two).
+ * `sorted` is scratch space of at least the window's length.
+ */
+function windowMedian(xs: readonly number[], i: number, sorted: Float64Array): number {
+  const half = THRUST_PEAK_MEDIAN_WINDOW >> 1
+  const to = Math.min(xs.length - 1, i + half)
+  let n = 0
+  for (let k = Math.max(0, i - half); k <= to; k++) {
+    // Insertion into the sorted window: five values at most.
+    const v = xs[k] as number
+    let j = n++
+    while (j > 0 && (sorted[j - 1] as number) > v) {
+      sorted[j] = sorted[j - 1] as number
+      j--
+    }
+    sorted[j] = v
+  }
+  return n % 2 === 1 ? (sorted[n >> 1] as number) : ((sorted[(n >> 1) - 1] as number) + (sorted[n >> 1] as number)) / 2
+}
+
+/**
+ * The thrust a nozzle can at most give at chamber pressure p0: the full-flowing ideal thrust and,
+ * when the flow separates (Summerfield criterion), the separated-nozzle estimate; 0 and no
+ * separated estimate when the chamber is not above ambient; undefined when the library refuses the
+ * inputs.
+ */
+function thrustCeilingAt(p0: number, d: RoleData): { fullFlowing: number; separated: number | null } | undefined {
+  if (d.ambient === undefined || d.throatArea === undefined || d.exitArea === undefined) return undefined
+  if (!(p0 > d.ambient)) return { fullFlowing: 0, separated: null }
+  try {
+    // Thrust does not depend on T0 or R for given pressures and areas (see idealThrust).
+    const flow = nozzleFlow({
+      chamberPressure: p0,
+      chamberTemperature: 1,
+      ambientPressure: d.ambient,
+      throatArea: d.throatArea,
+      exitArea: d.exitArea,
+      gamma: CHECK_GAMMA,
+      gasConstant: 1,
+    })
+    return { fullFlowing: flow.thrust, separated: flow.separatedThrust }
+  } catch (error) {
+    if (error instanceof RangeError) return undefined
+    throw error
+  }
+}
+
 function thrustAboveIdeal(d: RoleData): GradeFlag | undefined {
   if (!d.thrust || !d.chamber || d.thrust.length === 0) return undefined
-  const i = argmax(d.thrust)
-  const peak = d.thrust[i] as number
-  const p0 = d.chamber[i] as number
-  const ideal = idealAt(p0, d)
-  if (ideal === undefined || !(peak > (1 + THRUST_ABOVE_IDEAL_MARGIN) * ideal) || !(peak > 0)) return undefined
+  // The peak read through the moving median, and the chamber pressure read the same way there, so
+  // neither a ringing thrust sample nor a dropout in the chamber reading decides the check.
+  const scratch = new Float64Array(THRUST_PEAK_MEDIAN_WINDOW)
+  let i = 0
+  let peak = -Infinity
+  for (let k = 0; k < d.thrust.length; k++) {
+    const smoothed = windowMedian(d.thrust, k, scratch)
+    if (smoothed > peak) {
+      peak = smoothed
+      i = k
+    }
+  }
+  const p0 = windowMedian(d.chamber, i, scratch)
+  const ceiling = thrustCeilingAt(p0, d)
+  if (ceiling === undefined) return undefined
+  const ideal = Math.max(ceiling.fullFlowing, ceiling.separated ?? 0)
+  if (!(peak > (1 + THRUST_ABOVE_IDEAL_MARGIN) * ideal) || !(peak > 0)) return undefined
   const at = d.time ? ` at t = ${fmt(d.time[i] as number)} s` : ''
+  const separatedWords =
+    ceiling.separated !== null
+      ? ` That ideal already allows for the flow separating from the nozzle wall, which at this pressure gives more than the ${fmt(ceiling.fullFlowing)} N of a nozzle running full.`
+      : ''
   const what =
     ideal > 0
-      ? `The peak thrust, ${fmt(peak)} N${at}, is ${fmt((peak / ideal - 1) * 100)} % above the ideal thrust of ${fmt(ideal)} N for the chamber pressure logged at that moment (${kPa(p0)} absolute).`
+      ? `The peak thrust, ${fmt(peak)} N${at}, is ${fmt((peak / ideal - 1) * 100)} % above the ideal thrust of ${fmt(ideal)} N for the chamber pressure logged at that moment (${kPa(p0)} absolute).${separatedWords}`
       : `The peak thrust, ${fmt(peak)} N${at}, was logged while the chamber pressure (${kPa(p0)} absolute) was not above the ambient pressure (${kPa(d.ambient as number)}), when an ideal nozzle gives no thrust at all.`
   return {
     code: 'thrust-above-ideal',
@@ -221,8 +295,11 @@ function thrustAboveIdeal(d: RoleData): GradeFlag | undefined {
       ...(d.time ? { time: d.time[i] as number } : {}),
       peakThrust: peak,
       idealThrust: ideal,
+      fullFlowingThrust: ceiling.fullFlowing,
+      ...(ceiling.separated !== null ? { separatedThrust: ceiling.separated } : {}),
       chamberPressure: p0,
       margin: THRUST_ABOVE_IDEAL_MARGIN,
+      medianWindow: THRUST_PEAK_MEDIAN_WINDOW,
     },
   }
 }

@@ -198,6 +198,9 @@ export const RESULT_FIELDS: Readonly<Record<string, FieldTree>> = {
     shockMach: true,
     stagnationPressureRatio: true,
     pressureRatios: PRESSURE_RATIO_FIELDS,
+    separated: true,
+    separationAreaRatio: true,
+    separatedThrust: true,
   } satisfies Record<keyof NozzleFlow, true | FieldTree>,
 }
 

@@ -6,7 +6,8 @@
  * Rocket Propulsion Elements, eq. 3-24 (choked flow); the closed forms of the choked blow-down are
  * derived below. Equation numbers are cited from memory.
  */
-import { requireGamma, requireInterval, requireObject, requireOneOf, requirePositive } from './validate'
+import { chokedMassFlowUnchecked, nozzleFlow, nozzlePressureRatios } from './nozzle'
+import { requireAtLeast, requireGamma, requireInterval, requireObject, requireOneOf, requirePositive } from './validate'
 
 /**
  * Mass flow of a gas through a restriction from a reservoir at rest, choked or not.
@@ -118,6 +119,12 @@ export interface BlowdownInput {
   ambientPressure: number
   /** Geometric throat area At, m², > 0. */
   throatArea: number
+  /**
+   * Exit area Ae of a converging–diverging nozzle, m², ≥ throatArea. Optional: without it the
+   * outlet is a plain orifice (or converging nozzle), Ae = At. It sets when the throat unchokes
+   * (see {@link tankBlowdown}).
+   */
+  exitArea?: number
   /** Discharge coefficient Cd, dimensionless, in (0, 1]. */
   dischargeCoefficient: number
   /** Ratio of specific heats, > 1. */
@@ -187,10 +194,17 @@ export function blowdownTimeConstant(
  * Pressure, temperature and mass-flow history of a tank discharging through a nozzle.
  *
  * State: tank pressure p; the tank temperature is T_i (isothermal) or T_i·(p/p_i)^((γ−1)/γ)
- * (adiabatic). With m = pV/(RT): dp/dt = −n·(R·T/V)·ṁ(p, T), n = 1 (isothermal) or γ (adiabatic),
- * and ṁ from {@link dischargeMassFlow} (choked while pa/p is below the critical ratio, orifice flow
- * after). Integrated by the classical fourth-order Runge–Kutta method with a fixed step; against
- * the closed forms of {@link blowdownTimeConstant} it agrees to better than 1e-4 relative when the
+ * (adiabatic). With m = pV/(RT): dp/dt = −n·(R·T/V)·ṁ(p, T), n = 1 (isothermal) or γ (adiabatic).
+ * The outlet is a nozzle of throat At and exit Ae (a plain orifice when Ae is not given, Ae = At):
+ * the throat is choked while pa/p ≤ chokeLimit of {@link nozzlePressureRatios}(Ae/At, γ), and then
+ * ṁ = Cd·{@link chokedMassFlow}; above it ṁ = Cd times the subsonic mass flow of
+ * {@link nozzleFlow} (isentropic to the exit at pa, ρe·ve·Ae). A converging–diverging nozzle stays
+ * choked to a much higher back-pressure ratio than an orifice, because its diverging part
+ * recovers pressure as a subsonic diffuser: pa/p ≈ 0.88 for ε = 1.5 in air, against 0.528
+ * (NACA Report 1135, area–Mach relation, subsonic branch). For Ae = At both give the
+ * compressible-orifice law of {@link dischargeMassFlow}. Integrated by the classical fourth-order
+ * Runge–Kutta method with a fixed step; against the closed forms of {@link blowdownTimeConstant}
+ * (which hold while the throat is choked, whatever Ae) it agrees to better than 1e-4 relative when the
  * step is below about τ/20. The run ends at `duration` or when the tank reaches ambient pressure:
  * near the end ṁ ∝ √(p − pa), so p − pa falls as (t_end − t)², and the last sample is placed at
  * t + 2(p − pa)/|dp/dt| with p = pa and no flow.
@@ -199,9 +213,10 @@ export function blowdownTimeConstant(
  * ed., eq. 17.1.3 (from memory).
  *
  * @param input - volume (m³, > 0), initialPressure (Pa abs, > ambientPressure), initialTemperature
- *   (K, > 0), ambientPressure (Pa abs, ≥ 0), throatArea (m², > 0), dischargeCoefficient (in (0, 1]),
- *   gamma (> 1), gasConstant (J/(kg·K), > 0), process ('isothermal' | 'adiabatic'), duration (s,
- *   > 0), step (s, > 0, ≥ duration/MAX_BLOWDOWN_SAMPLES)
+ *   (K, > 0), ambientPressure (Pa abs, ≥ 0), throatArea (m², > 0), exitArea (optional, m²,
+ *   ≥ throatArea), dischargeCoefficient (in (0, 1]), gamma (> 1), gasConstant (J/(kg·K), > 0),
+ *   process ('isothermal' | 'adiabatic'), duration (s, > 0), step (s, > 0,
+ *   ≥ duration/MAX_BLOWDOWN_SAMPLES)
  * @returns time (s), pressure (Pa abs), temperature (K) and massFlow (kg/s) arrays, one entry per step
  * @throws RangeError naming the argument when any input is out of range
  * @example
@@ -209,6 +224,11 @@ export function blowdownTimeConstant(
  *   ambientPressure: 101325, throatArea: 1e-5, dischargeCoefficient: 1, gamma: 1.4,
  *   gasConstant: 287, process: 'isothermal', duration: 10, step: 0.01 })
  * // → pressure[100] (t = 1 s) ≈ 1e6·exp(−1/25.175) ≈ 961 056 Pa
+ * tankBlowdown({ volume: 0.05, initialPressure: 784e3, initialTemperature: 293.15,
+ *   ambientPressure: 84e3, throatArea: 1.2566e-5, exitArea: 1.8857e-5, dischargeCoefficient: 0.98,
+ *   gamma: 1.4, gasConstant: 287.05, process: 'adiabatic', duration: 60, step: 0.06 })
+ * // → choked (p > 84 kPa / 0.880 ≈ 95.5 kPa) for about 35.9 s; as a plain orifice (no exitArea,
+ * //   p > 84 kPa / 0.528 ≈ 159 kPa) for about 26.2 s
  */
 export function tankBlowdown(input: BlowdownInput): Blowdown {
   requireObject('input', input)
@@ -222,6 +242,8 @@ export function tankBlowdown(input: BlowdownInput): Blowdown {
     { value: initialPressure, open: true, text: `initialPressure (${initialPressure})` },
   )
   const throatArea = requirePositive('throatArea', input.throatArea)
+  const exitArea =
+    input.exitArea === undefined ? throatArea : requireAtLeast('exitArea', input.exitArea, throatArea, `throatArea (${throatArea})`)
   const cd = requireInterval('dischargeCoefficient', input.dischargeCoefficient, { value: 0, open: true }, { value: 1, open: false })
   const gamma = requireGamma(input.gamma)
   const gasConstant = requirePositive('gasConstant', input.gasConstant)
@@ -237,11 +259,18 @@ export function tankBlowdown(input: BlowdownInput): Blowdown {
   const adiabatic = process === 'adiabatic'
   const n = adiabatic ? gamma : 1
   const temperatureExponent = (gamma - 1) / gamma
-  const critical = (2 / (gamma + 1)) ** (gamma / (gamma - 1))
+  // Highest pa/p at which the throat is still choked: 0.528 for an orifice in air, more with a diffuser.
+  const chokeLimit = nozzlePressureRatios(exitArea / throatArea, gamma).chokeLimit
   const temperatureAt = (p: number): number =>
     adiabatic ? initialTemperature * (p / initialPressure) ** temperatureExponent : initialTemperature
-  const flowAt = (p: number, t: number): number =>
-    dischargeMassFlowUnchecked(p, t, ambientPressure, throatArea, cd, gamma, gasConstant)
+  const flowAt = (p: number, t: number): number => {
+    if (!(p > ambientPressure)) return 0
+    if (ambientPressure / p <= chokeLimit) return cd * chokedMassFlowUnchecked(p, t, throatArea, gamma, gasConstant)
+    return (
+      cd *
+      nozzleFlow({ chamberPressure: p, chamberTemperature: t, ambientPressure, throatArea, exitArea, gamma, gasConstant }).massFlow
+    )
+  }
   const rate = (p: number): number => {
     if (!(p > ambientPressure)) return 0
     const t = temperatureAt(p)
@@ -269,7 +298,7 @@ export function tankBlowdown(input: BlowdownInput): Blowdown {
     const k1 = rate(p)
     const excess = p - ambientPressure
     const timeToAmbient = k1 < 0 ? (2 * excess) / -k1 : Infinity
-    const unchoked = ambientPressure / p > critical
+    const unchoked = ambientPressure / p > chokeLimit
     if (unchoked && timeToAmbient <= h) {
       finish(t + timeToAmbient)
       break

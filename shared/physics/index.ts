@@ -21,12 +21,12 @@ export {
   nozzlePressureRatios,
   chokedMassFlow,
   idealThrust,
-  machDiskDistance,
   IDEAL_EXPANSION_BAND,
-  MACH_DISK_COEFFICIENT,
   NOZZLE_REGIMES,
 } from './nozzle'
 export type { NozzleInput, NozzleFlow, NozzlePressureRatios, NozzleRegime } from './nozzle'
+export { SEPARATION_PRESSURE_RATIO } from './nozzle'
+export { machDiskDistance, machDiskDistanceLewisCarlson, MACH_DISK_COEFFICIENT, LEWIS_CARLSON_COEFFICIENT } from './free-jet'
 export { tankBlowdown, dischargeMassFlow, blowdownTimeConstant, BLOWDOWN_PROCESSES, MAX_BLOWDOWN_SAMPLES } from './blowdown'
 export type { BlowdownInput, Blowdown, BlowdownProcess } from './blowdown'
 export {

@@ -1,11 +1,14 @@
 /**
  * Quasi-one-dimensional flow of a calorically perfect gas through a converging–diverging nozzle
  * fed from a chamber at rest: operating regime, mass flow, exit state, thrust and performance
- * figures; choked mass flow; ideal thrust; the Mach-disk location of an under-expanded jet.
+ * figures; flow separation in an over-expanded nozzle; choked mass flow; ideal thrust. The jet
+ * outside the nozzle (the Mach disk) is in free-jet.ts.
  *
  * Sources: G. P. Sutton & O. Biblarz, "Rocket Propulsion Elements" (8th ed.), ch. 3; J. D. Anderson,
  * "Modern Compressible Flow", 3rd ed., ch. 5 (nozzle regimes, shock in the nozzle); NACA Report
- * 1135 (1953). Equation numbers are cited from memory.
+ * 1135 (1953); M. Summerfield, C. R. Foster & W. C. Swan, "Flow separation in overexpanded
+ * supersonic exhaust nozzles", Jet Propulsion 24 (1954) 319–321 (separation). Equation numbers and
+ * the separation ratio are cited from memory.
  */
 import { G0 } from './constants'
 import {
@@ -15,7 +18,7 @@ import {
   solveMachFromAreaRatio,
 } from './isentropic'
 import { machFromStagnationPressureRatioUnchecked, normalShockUnchecked } from './shocks'
-import { requireAtLeast, requireGamma, requireGreaterThan, requireInterval, requireObject, requirePositive } from './validate'
+import { requireAtLeast, requireGamma, requireInterval, requireObject, requirePositive } from './validate'
 
 /** How a converging–diverging nozzle is running, from high to low back pressure. */
 export type NozzleRegime = 'subsonic' | 'shock-in-nozzle' | 'overexpanded' | 'ideal' | 'underexpanded'
@@ -181,7 +184,35 @@ export interface NozzleFlow {
   stagnationPressureRatio: number
   /** The regime bounds for this nozzle (see {@link nozzlePressureRatios}). */
   pressureRatios: NozzlePressureRatios
+  /**
+   * Whether the flow separates from the wall inside the diverging section by the Summerfield
+   * criterion (see {@link SEPARATION_PRESSURE_RATIO}): the wall pressure of the full-flowing nozzle
+   * falls to that fraction of ambient before the exit (or before the normal shock of the
+   * 'shock-in-nozzle' regime). Never true for a subsonic, ideal or under-expanded nozzle.
+   */
+  separated: boolean
+  /** Local-to-throat area ratio A/At at the separation point, dimensionless, in (1, ε), when separated; otherwise null. */
+  separationAreaRatio: number | null
+  /**
+   * Thrust of the separated nozzle, N, when separated; otherwise null. Estimated as the full-flowing
+   * thrust of the nozzle cut off at the separation point, F = ṁ·vs + (ps − pa)·As, with ambient
+   * pressure on the wall downstream of it (see {@link nozzleFlow} for the model and its limits).
+   * It is always above {@link NozzleFlow.thrust}: the cut-off wall felt less than ambient pressure.
+   */
+  separatedThrust: number | null
 }
+
+/**
+ * Summerfield criterion for flow separation in an over-expanded nozzle: the boundary layer
+ * separates where the wall pressure has fallen to about 0.4 of the ambient pressure,
+ * ps ≈ 0.4·pa.
+ *
+ * Source: M. Summerfield, C. R. Foster & W. C. Swan, "Flow separation in overexpanded supersonic
+ * exhaust nozzles", Jet Propulsion 24 (1954) 319–321 (the ratio from memory; later work quotes
+ * 0.25–0.4 and a weak dependence on the Mach number at separation, so treat the point it gives as
+ * an estimate). Dimensionless.
+ */
+export const SEPARATION_PRESSURE_RATIO = 0.4
 
 /**
  * Quasi-one-dimensional flow through a converging–diverging nozzle for a given back pressure.
@@ -204,18 +235,38 @@ export interface NozzleFlow {
  * from memory). Thrust is continuous across every regime boundary (momentum is conserved across
  * the shock when it stands at the exit).
  *
+ * Flow separation (Summerfield, Foster & Swan 1954, ratio from memory): while the throat is choked
+ * the wall pressure follows the supersonic isentrope p/p0(M) down to the exit (or to the normal
+ * shock). If it falls below ps = SEPARATION_PRESSURE_RATIO·pa on the way, the flow leaves the wall
+ * where p = ps: separationAreaRatio = (A/A*)(Ms) with p/p0(Ms) = ps/p0 (supersonic branch).
+ * separatedThrust models the nozzle as cut off there: F = ṁ·vs + (ps − pa)·As, with vs and As at
+ * Ms and ambient pressure on the wall downstream. By the momentum balance on the wall the
+ * full-flowing thrust is this minus ∫(pa − p)dA over the cut-off wall, so the estimate is the
+ * larger. Limits: one-dimensional; the 0.4 ratio is an empirical mean with scatter (0.25–0.4); the
+ * real wall pressure behind separation recovers from ps towards pa over a short distance and
+ * stays a little below pa, so the estimate is somewhat high; restricted-shock separation in
+ * contoured nozzles, hysteresis between opening and closing, and side loads are not modelled; in
+ * the 'shock-in-nozzle' regime it replaces the normal shock of the full-flowing model, so
+ * separatedThrust is not continuous with thrust where separation sets in there.
+ *
  * @param input - chamberPressure (Pa abs, > 0), chamberTemperature (K, > 0), ambientPressure
  *   (Pa abs, 0 ≤ pa < p0), throatArea (m², > 0), exitArea (m², ≥ throatArea), gamma (> 1),
  *   gasConstant (J/(kg·K), > 0)
  * @returns regime, mass flow (kg/s), exit Mach, pressure (Pa), velocity (m/s), thrust (N), thrust
  *   coefficient, c* (m/s), Isp (s), plus exit temperature and density, area ratio, the shock's
- *   area (m²) and Mach number when there is one, and the regime bounds
+ *   area (m²) and Mach number when there is one, the regime bounds, and whether the flow
+ *   separates, where (A/At) and the thrust then (N)
  * @throws RangeError naming the argument when any input is out of range
  * @example
  * nozzleFlow({ chamberPressure: 1e6, chamberTemperature: 300, ambientPressure: 101325,
  *   throatArea: 1e-4, exitArea: 1.6875e-4, gamma: 1.4, gasConstant: 287 })
  * // → regime 'underexpanded' (design exit pressure 127.8 kPa > 101.3 kPa), exitMach 2,
- * //   massFlow ≈ 0.23336 kg/s, thrust ≈ 125.24 N, thrustCoefficient ≈ 1.2524, c* ≈ 428.53 m/s
+ * //   massFlow ≈ 0.23336 kg/s, thrust ≈ 125.24 N, thrustCoefficient ≈ 1.2524, c* ≈ 428.53 m/s,
+ * //   separated false
+ * nozzleFlow({ chamberPressure: 1e6, chamberTemperature: 300, ambientPressure: 2e5,
+ *   throatArea: 1e-4, exitArea: 4e-4, gamma: 1.4, gasConstant: 287 })
+ * // → regime 'overexpanded', thrust ≈ 76.1 N (CF ≈ 0.761); separated true,
+ * //   separationAreaRatio ≈ 2.19 (ps = 80 kPa, Ms ≈ 2.30), separatedThrust ≈ 103.6 N (CF ≈ 1.036)
  */
 export function nozzleFlow(input: NozzleInput): NozzleFlow {
   requireObject('input', input)
@@ -270,6 +321,25 @@ export function nozzleFlow(input: NozzleInput): NozzleFlow {
     regime === 'subsonic' ? exitDensity * exitVelocity * exitArea : chokedMassFlowUnchecked(p0, t0, throatArea, gamma, gasConstant)
   const thrust = massFlow * exitVelocity + (exitPressure - pa) * exitArea
 
+  // Separation: where the supersonic wall pressure first reaches ps, if it does before the exit
+  // (or before the normal shock). pressureRatioUnchecked(M) is the isentropic p/p0 there.
+  const separationRatio = SEPARATION_PRESSURE_RATIO * r
+  const lowestWallRatio =
+    regime === 'subsonic'
+      ? 1
+      : regime === 'shock-in-nozzle' && shockMach !== null
+        ? pressureRatioUnchecked(shockMach, gamma)
+        : bounds.design
+  let separationAreaRatio: number | null = null
+  let separatedThrust: number | null = null
+  if (lowestWallRatio < separationRatio) {
+    const separationMach = machFromPressureRatioUnchecked(separationRatio, gamma)
+    separationAreaRatio = areaRatioUnchecked(separationMach, gamma)
+    const separationTemperature = t0 / (1 + 0.5 * (gamma - 1) * separationMach * separationMach)
+    const separationVelocity = separationMach * Math.sqrt(gamma * gasConstant * separationTemperature)
+    separatedThrust = massFlow * separationVelocity + (separationRatio * p0 - pa) * separationAreaRatio * throatArea
+  }
+
   return {
     regime,
     massFlow,
@@ -288,6 +358,9 @@ export function nozzleFlow(input: NozzleInput): NozzleFlow {
     shockMach,
     stagnationPressureRatio,
     pressureRatios: { chokeLimit: bounds.chokeLimit, shockAtExit: bounds.shockAtExit, design: bounds.design },
+    separated: separationAreaRatio !== null,
+    separationAreaRatio,
+    separatedThrust,
   }
 }
 
@@ -326,31 +399,4 @@ export function idealThrust(
     gamma,
     gasConstant: 1,
   }).thrust
-}
-
-/** Coefficient of the Mach-disk fit of Ashkenas and Sherman (1966): x/D = 0.67·√(p0/pa). */
-export const MACH_DISK_COEFFICIENT = 0.67
-
-/**
- * Distance from the nozzle exit to the Mach disk of an under-expanded free jet.
- *
- * x = 0.67·D·√(p0/pa).
- *
- * Source: H. Ashkenas and F. S. Sherman, "The structure and utilization of supersonic free jets in
- * low density wind tunnels", Rarefied Gas Dynamics, 4th Symposium, vol. 2 (1966). The fit was made
- * for sonic orifices and strongly under-expanded jets (p0/pa of roughly 15 up to about 17 000, from
- * memory); with the exit diameter of a converging–diverging nozzle it is a rough estimate.
- *
- * @param exitDiameter - nozzle exit (or orifice) diameter D, m, finite, > 0
- * @param chamberPressure - stagnation pressure p0, Pa absolute, finite, > ambientPressure
- * @param ambientPressure - ambient pressure pa, Pa absolute, finite, > 0
- * @returns distance from the exit plane to the Mach disk, m
- * @example
- * machDiskDistance(0.01, 2e6, 1e5) // ≈ 0.02996 m (0.67 · 0.01 · √20)
- */
-export function machDiskDistance(exitDiameter: number, chamberPressure: number, ambientPressure: number): number {
-  requirePositive('exitDiameter', exitDiameter)
-  requirePositive('ambientPressure', ambientPressure)
-  requireGreaterThan('chamberPressure', chamberPressure, ambientPressure, `ambientPressure (${ambientPressure})`)
-  return MACH_DISK_COEFFICIENT * exitDiameter * Math.sqrt(chamberPressure / ambientPressure)
 }

@@ -66,8 +66,10 @@ describe('unit table: linear units against their exact definitions', () => {
     expectClose(toSI(1, 'gal'), 231 * 0.0254 ** 3, 1e-14)
   })
 
-  it('2.73 kgf is 26.8 N (common practice, no published source)', () => {
+  it('2.73 kgf is 26.8 N: a unit definition, 1 kgf = 9.80665 N exactly (NIST SP 811, appendix B), not common practice', () => {
+    // 2.73 × 9.80665 = 26.7721545 N by the definition.
     expect(convert(2.73, 'kgf', 'N').toFixed(1)).toBe('26.8')
+    expectClose(convert(2.73, 'kgf', 'N'), 2.73 * 9.80665, 1e-15)
   })
 
   it('68 psi is 468.8 kPa (worked from 1 psi = 6894.757 Pa)', () => {

@@ -62,12 +62,12 @@ describe('the demo modules in content/', () => {
     expect(checkModule(readFileSync(join(CONTENT, file), 'utf8'), file, 'America/Denver').issues).toEqual([])
   })
 
-  it('the nozzle-flow module is reading only and embeds the isentropic, nozzle and normal-shock calculators', () => {
+  it('the nozzle-flow module is reading only and embeds the isentropic, blow-down, nozzle and normal-shock calculators', () => {
     const { frontMatter, body } = load('01-nozzle-flow-fundamentals.md')
     expect(frontMatter.assignment).toBeUndefined()
     const calculators = scanTags(renderModule(body)).filter((t) => t.attributes.class === 'isentrope-calculator')
-    expect(calculators.map((c) => c.attributes['data-kind'])).toEqual(['isentropic', 'nozzle', 'normal-shock'])
-    const nozzle = JSON.parse(calculators[1]?.attributes['data-defaults'] ?? '{}') as Record<string, unknown>
+    expect(calculators.map((c) => c.attributes['data-kind'])).toEqual(['isentropic', 'blowdown', 'nozzle', 'normal-shock'])
+    const nozzle = JSON.parse(calculators[2]?.attributes['data-defaults'] ?? '{}') as Record<string, unknown>
     expect(nozzle).toMatchObject({ chamberPressure: 500, chamberPressureReading: 'gauge', throatDiameter: 4, exitDiameter: 4.9 })
   })
 

@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest'
-import { blowdownTimeConstant, chokedMassFlow, dischargeMassFlow, tankBlowdown } from '../../../shared/physics/index'
+import { blowdownTimeConstant, chokedMassFlow, dischargeMassFlow, nozzleFlow, nozzlePressureRatios, tankBlowdown } from '../../../shared/physics/index'
 import type { BlowdownInput } from '../../../shared/physics/index'
 import { expectClose } from '../../helpers/expect-close'
 import { expectRangeError } from '../../helpers/expect-range-error'
+import { expectPrinted } from '../../helpers/printed'
 
 // A 50 L air receiver at 10 bar absolute discharging through a 3.6 mm throat to the room.
 const base: BlowdownInput = {
@@ -168,5 +169,148 @@ describe('tankBlowdown argument checks', () => {
     expectRangeError(() => tankBlowdown({ ...base, step: 0 }), 'step')
     expectRangeError(() => tankBlowdown({ ...base, step: 300 }), 'step', 'at most duration')
     expectRangeError(() => tankBlowdown({ ...base, duration: 1e4, step: 1e-4 }), 'step', 'at least duration / 1000000')
+    expectRangeError(() => tankBlowdown({ ...base, exitArea: 0.5e-5 }), 'exitArea', 'at least throatArea')
+    expectRangeError(() => tankBlowdown({ ...base, exitArea: Number.NaN }), 'exitArea', 'NaN')
+  })
+})
+
+// ---- A converging–diverging outlet: choking judged by the nozzle's own limit ----
+
+/** The area–Mach relation, NACA Report 1135 eq. 80 (from memory), written out here. */
+const areaRatioOf = (m: number, g: number) => Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
+/** p/p0 = (1 + (γ−1)/2·M²)^(−γ/(γ−1)), NACA Report 1135 eq. 44 (from memory). */
+const pOverP0 = (m: number, g: number) => Math.pow(1 + ((g - 1) / 2) * m * m, -g / (g - 1))
+/**
+ * Highest pa/p0 at which a nozzle of area ratio ε still has a sonic throat: the exit then holds the
+ * subsonic Mach number of A/A* = ε, and pa equals its static pressure. Solved by bisection here.
+ */
+function chokeLimitOf(areaRatio: number, g: number): number {
+  let lo = 1e-9
+  let hi = 1
+  for (let i = 0; i < 200; i++) {
+    const mid = 0.5 * (lo + hi)
+    if (areaRatioOf(mid, g) > areaRatio) lo = mid
+    else hi = mid
+  }
+  return pOverP0(0.5 * (lo + hi), g)
+}
+
+/** First time the sampled pressure falls below `threshold`, linear between samples. */
+function crossing(run: ReturnType<typeof tankBlowdown>, threshold: number): number {
+  for (let i = 1; i < run.pressure.length; i++) {
+    const p = run.pressure[i]!
+    if (p < threshold) {
+      const before = run.pressure[i - 1]!
+      return run.time[i - 1]! + ((before - threshold) / (before - p)) * (run.time[i]! - run.time[i - 1]!)
+    }
+  }
+  return Number.NaN
+}
+
+describe('the choke limit of a converging–diverging nozzle', () => {
+  it('is pa/p0 ≈ 0.88 for ε = 1.5 in air, the p/p0 of the subsonic Mach number of A/A* = 1.5 (NACA Report 1135)', () => {
+    // NACA Report 1135, Table I (γ = 1.4), as recalled from memory: M = 0.43 has A/A* = 1.5007 and
+    // p/p0 = 0.88065; the equations written out above give the same figures.
+    expectPrinted(areaRatioOf(0.43, 1.4), '1.5007')
+    expectPrinted(pOverP0(0.43, 1.4), '0.88065')
+    const limit = nozzlePressureRatios(1.5, 1.4).chokeLimit
+    expectClose(limit, chokeLimitOf(1.5, 1.4), 1e-12)
+    expectPrinted(limit, '0.88')
+    // Far above the 0.528 of a plain orifice.
+    expectClose(nozzlePressureRatios(1, 1.4).chokeLimit, Math.pow(2 / 2.4, 3.5), 1e-14)
+  })
+})
+
+describe('tankBlowdown through a converging–diverging nozzle (exitArea given)', () => {
+  // The stand's receiver and nozzle as in the cold-flow module: 50 L at 700 kPa gauge, 84 kPa
+  // barometer, 20 °C, a 4.0 mm throat and a 4.9 mm exit (ε = 1.5006), Cd 0.98.
+  const throatArea = (Math.PI * 0.004 ** 2) / 4
+  const exitArea = (Math.PI * 0.0049 ** 2) / 4
+  const stand: BlowdownInput = {
+    volume: 0.05,
+    initialPressure: 784e3,
+    initialTemperature: 293.15,
+    ambientPressure: 84e3,
+    throatArea,
+    exitArea,
+    dischargeCoefficient: 0.98,
+    gamma: 1.4,
+    gasConstant: 287.05,
+    process: 'adiabatic',
+    duration: 60,
+    step: 0.01,
+  }
+
+  it('stays choked until the receiver falls to pa/chokeLimit, at the time the closed forms give (adiabatic and isothermal)', () => {
+    const limit = chokeLimitOf(exitArea / throatArea, 1.4)
+    const unchokeAt = stand.ambientPressure / limit
+    const g = 1.4
+    // Closed forms, from the header of this file: adiabatic p = p_i·(1 + (γ−1)/2·t/τ)^(−2γ/(γ−1)),
+    // isothermal p = p_i·exp(−t/τ); solved for the time p reaches unchokeAt.
+    const adiabatic = ((2 * tau(stand)) / (g - 1)) * (Math.pow(stand.initialPressure / unchokeAt, (g - 1) / (2 * g)) - 1)
+    const isothermal = tau(stand) * Math.log(stand.initialPressure / unchokeAt)
+    expectClose(crossing(tankBlowdown(stand), unchokeAt), adiabatic, 1e-4, 'adiabatic')
+    expectClose(crossing(tankBlowdown({ ...stand, process: 'isothermal' }), unchokeAt), isothermal, 1e-4, 'isothermal')
+    expectPrinted(adiabatic, '35.9', 'choked for, s (hand computation)')
+  })
+
+  it('is choked for about 36 s where a plain orifice of the same throat is choked for about 26 s', () => {
+    const orifice: BlowdownInput = { ...stand }
+    delete orifice.exitArea
+    const criticalAt = stand.ambientPressure / Math.pow(2 / 2.4, 3.5)
+    const g = 1.4
+    const expected = ((2 * tau(stand)) / (g - 1)) * (Math.pow(stand.initialPressure / criticalAt, (g - 1) / (2 * g)) - 1)
+    expectClose(crossing(tankBlowdown(orifice), criticalAt), expected, 1e-4, 'orifice')
+    expectPrinted(expected, '26.2', 'orifice choked for, s (hand computation)')
+    // Up to that time both runs are the same choked discharge.
+    const withNozzle = tankBlowdown(stand)
+    const plain = tankBlowdown(orifice)
+    for (let i = 0; i < 2000; i += 100) expect(withNozzle.pressure[i]).toBe(plain.pressure[i])
+  })
+
+  it('after unchoking, carries the subsonic nozzle flow Cd·ρe·ve·Ae at the exit, as nozzleFlow gives it (and as the orifice law with Ae)', () => {
+    const run = tankBlowdown(stand)
+    const g = 1.4
+    const R = stand.gasConstant
+    let checked = 0
+    for (let i = 0; i < run.time.length - 1; i++) {
+      const p = run.pressure[i]!
+      const t = run.temperature[i]!
+      const r = stand.ambientPressure / p
+      if (r <= chokeLimitOf(exitArea / throatArea, g)) {
+        expectClose(run.massFlow[i]!, 0.98 * chokedMassFlow(p, t, throatArea, g, R), 1e-12, `choked, t=${run.time[i]}`)
+        continue
+      }
+      // Isentropic from the receiver to the exit at pa: ṁ = Ae·p·√(2γ/((γ−1)RT)·(r^(2/γ) − r^((γ+1)/γ))).
+      const orificeWithAe = exitArea * p * Math.sqrt(((2 * g) / ((g - 1) * R * t)) * (Math.pow(r, 2 / g) - Math.pow(r, (g + 1) / g)))
+      expectClose(run.massFlow[i]!, 0.98 * orificeWithAe, 1e-9, `unchoked, t=${run.time[i]}`)
+      const viaNozzle = nozzleFlow({ chamberPressure: p, chamberTemperature: t, ambientPressure: stand.ambientPressure, throatArea, exitArea, gamma: g, gasConstant: R })
+      expectClose(run.massFlow[i]!, 0.98 * viaNozzle.massFlow, 1e-12)
+      checked++
+    }
+    expect(checked).toBeGreaterThan(100)
+  })
+
+  it('has no jump in mass flow where the throat unchokes, conserves mass, and ends at ambient pressure', () => {
+    const run = tankBlowdown(stand)
+    let largest = 0
+    for (let i = 1; i < run.time.length - 1; i++) largest = Math.max(largest, Math.abs(run.massFlow[i]! - run.massFlow[i - 1]!))
+    // The steepest change of the smooth decay is at the start: ṁ ∝ p/√T ∝ P^((γ+1)/(2γ)) and
+    // dP/dt = −(γ/τ)·P^((3γ−1)/(2γ)), so |dṁ/dt| = ṁ0·(γ+1)/(2τ) at P = 1. A jump would be far larger.
+    expect(largest).toBeLessThan(run.massFlow[0]! * (0.01 / tau(stand)) * 1.2 * 1.05)
+    let outflow = 0
+    for (let i = 1; i < run.time.length; i++) outflow += 0.5 * (run.time[i]! - run.time[i - 1]!) * (run.massFlow[i]! + run.massFlow[i - 1]!)
+    const last = run.time.length - 1
+    const mass = (i: number) => (run.pressure[i]! * stand.volume) / (stand.gasConstant * run.temperature[i]!)
+    expectClose(outflow, mass(0) - mass(last), 1e-4, 'outflow vs mass lost')
+    expect(run.pressure[last]).toBe(stand.ambientPressure)
+    expect(run.time[last]).toBeLessThan(stand.duration)
+  })
+
+  it('with exitArea equal to the throat area is the plain orifice', () => {
+    const same = tankBlowdown({ ...base, exitArea: base.throatArea })
+    const plain = tankBlowdown(base)
+    expect(same.time.length).toBe(plain.time.length)
+    for (let i = 0; i < plain.time.length; i += 50) expectClose(same.pressure[i]!, plain.pressure[i]!, 1e-12, `t=${plain.time[i]}`)
   })
 })
