@@ -190,7 +190,9 @@ export const ColumnSchema = z
      * over the thrust run's quiet samples before and after the run is removed along the run's tare
      * line (`tareAlongRun` in shared/physics), before any expression sees it. For a column that
      * reads ambient before and after the run (a chamber behind a closed valve), never for a
-     * receiver charged before it. Applies when the hand-in reads the column gauge.
+     * receiver charged before it. Applies when the hand-in reads the column gauge, and only to a
+     * zero of at most 10 % of the ambient pressure (`MAX_TARE_ZERO` in scope.ts): a column reading
+     * more at rest is another mistake, left for the review rules and data checks to see.
      */
     tare: z.boolean().optional(),
   })

@@ -13,7 +13,7 @@
  *   and window of the thrust run logged beside it (see {@link buildExpressionScope}).
  */
 import { gaugeToAbsolute } from '../units'
-import { tareWithRun } from '../physics/thrust-run'
+import { signalZeros, tareWithRun } from '../physics/thrust-run'
 import { cachedThrustRun } from './run-cache'
 import { DIMENSIONLESS, dataUnitKind, valueFromSI, valueToSI } from './quantities'
 import type { Assignment, ColumnSpec, MeasurementSpec, TableSpec } from './schema'
@@ -125,12 +125,22 @@ function siColumn(samples: readonly number[], gauge: boolean, ambient: number | 
 }
 
 /**
+ * Largest transducer zero that `tare: true` takes, as a fraction of the ambient pressure: 10 %
+ * (8–10 kPa on a campus), above the ±1 % of full scale of a teaching stand's transducers. A column
+ * that reads more than that at rest is not off by a zero: it is another column (the receiver, swapped
+ * in) or an absolute reading declared gauge, and taking its "zero" would hide the mistake from the
+ * review rules. Such a column stays as logged. Common practice, no published source.
+ */
+export const MAX_TARE_ZERO = 0.1
+
+/**
  * Tares a table's gauge pressure columns marked `tare: true` (and read gauge in this hand-in) with
  * the zero and window of the table's thrust run: each column's own median over the run's quiet
  * samples before and after it, removed along the run's tare line, so the column reads exactly the
- * ambient pressure at rest (`tareWithRun` in shared/physics/thrust-run.ts). When the thrust shows
- * no run to reduce, the columns stay as logged: every expression that reduces the run fails with
- * the library's reason, and the grading engine flags it for staff.
+ * ambient pressure at rest (`tareWithRun` in shared/physics/thrust-run.ts). A column whose zero
+ * before or after the run is larger than {@link MAX_TARE_ZERO} × the ambient pressure stays as
+ * logged. When the thrust shows no run to reduce, the columns stay as logged too: every expression
+ * that reduces the run fails with the library's reason, and the grading engine flags it for staff.
  */
 function tareColumns(table: TableSpec, scope: Record<string, ExpressionValue>, data: SubmissionData, ambient: number | undefined): void {
   const columns = table.columns.filter((c) => c.tare === true && isGauge(data, c.key, c.pressure))
@@ -146,7 +156,11 @@ function tareColumns(table: TableSpec, scope: Record<string, ExpressionValue>, d
     throw error
   }
   for (const column of columns) {
-    const tared = tareWithRun(time, scope[column.key] as readonly number[], run)
+    const values = scope[column.key] as readonly number[]
+    // The column is absolute here (the ambient added); its gauge zeros are these less the ambient.
+    const zeros = signalZeros(time, values, run)
+    if (Math.max(Math.abs(zeros.before - ambient), Math.abs(zeros.after - ambient)) > MAX_TARE_ZERO * ambient) continue
+    const tared = tareWithRun(time, values, run)
     for (let i = 0; i < tared.length; i++) {
       const absolute = (tared[i] as number) + ambient
       if (absolute < 0) throw new ScopeError(`${column.key}[row ${i + 1}]: after its zero is taken, the gauge pressure ${tared[i]} Pa is below vacuum at an ambient of ${ambient} Pa`)

@@ -443,9 +443,27 @@ export function tareAlongRun(
  * tareWithRun(t, pc, analyseThrustRun(t, F)) // = tareAlongRun(t, pc, F)
  */
 export function tareWithRun(time: readonly number[], values: readonly number[], run: ThrustRunAnalysis): number[] {
+  const { before, after } = signalZeros(time, values, run)
+  return Array.from(tare(time, values, before, after, run.start, run.end, new Float64Array(values.length)))
+}
+
+/**
+ * The zero of another logged signal before and after the thrust run: its medians over the
+ * thrust's quiet samples before the run and over its quiet tail (`after` equals `before` when the
+ * log ends inside the run). {@link tareWithRun} removes these along the run's tare line.
+ *
+ * @param time - the sample times the run was analysed on, s
+ * @param values - the signal, finite, as many samples as time
+ * @param run - the analysed thrust run
+ * @returns before and after, in the unit of values
+ * @throws RangeError when values has another length than time or a non-finite entry
+ * @example
+ * signalZeros(t, pc, analyseThrustRun(t, F)) // → { before: 1500, after: 1500 } for the example above
+ */
+export function signalZeros(time: readonly number[], values: readonly number[], run: ThrustRunAnalysis): { before: number; after: number } {
   requireSamples('values', values, 1)
   requireSameLength('time', time, 'values', values)
-  const zb = medianOf(values, 0, run.quietBeforeEnd)
-  const za = run.quietAfterStart === null ? zb : medianOf(values, run.quietAfterStart, values.length)
-  return Array.from(tare(time, values, zb, za, run.start, run.end, new Float64Array(values.length)))
+  const before = medianOf(values, 0, run.quietBeforeEnd)
+  const after = run.quietAfterStart === null ? before : medianOf(values, run.quietAfterStart, values.length)
+  return { before, after }
 }
