@@ -41,9 +41,9 @@ export const TAIL_FRACTION = 0.005
 export const TAIL_NOISE_BAND = 4
 
 /**
- * A run must stand more than this many noise standard deviations above the zero. The noise is
- * estimated from the second differences r = F_i − (F_{i−1} + F_{i+1})/2 of the samples below half
- * the run's height, whose standard deviation is √1.5 σ for white noise (derived here: 1 + ¼ + ¼),
+ * A run must stand more than this many noise standard deviations above the zero (and above the
+ * log's lowest moving median). The noise is estimated from the second differences
+ * r = F_i − (F_{i−1} + F_{i+1})/2 of the samples below half the log's range, whose standard deviation is √1.5 σ for white noise (derived here: 1 + ¼ + ¼),
  * robustly as 1.4826 × median |r| / √1.5 (the median absolute deviation's consistency factor for
  * normal data; Rousseeuw & Croux, J. Am. Stat. Assoc. 88 (1993), from memory). A smooth run adds
  * almost nothing to the second differences. In simulations of pure white noise for this library,
@@ -221,36 +221,37 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
   if (!(top > lowest)) {
     throw new RangeError(`thrust shows no run above the noise: its 5-sample moving median is flat at ${top}`)
   }
-  const quietLevel = lowBefore + QUIET_FRACTION * (top - lowBefore)
-  let k = ip
-  while (k >= 0 && (smooth[k] as number) > quietLevel) k--
-  const quietBeforeEnd = k + 1
-  const zeroBefore = medianOf(thrust, 0, quietBeforeEnd)
-  const height = top - zeroBefore
-
-  // Noise: second differences of the samples below half the run's height (all interior samples
+  // Noise: second differences of the samples below half the log's range (all interior samples
   // when fewer than 5 are), as a standard deviation.
   const residual = new Float64Array(n)
   let count = 0
   for (let pass = 0; pass < 2 && count < 5; pass++) {
     count = 0
     for (let i = 1; i < n - 1; i++) {
-      if (pass === 1 || (smooth[i] as number) - zeroBefore < 0.5 * height) {
+      if (pass === 1 || (smooth[i] as number) - lowest < 0.5 * (top - lowest)) {
         residual[count++] = Math.abs((thrust[i] as number) - 0.5 * ((thrust[i - 1] as number) + (thrust[i + 1] as number)))
       }
     }
   }
   const noise = (1.4826 / Math.sqrt(1.5)) * medianInPlace(residual.subarray(0, count))
-  if (!(height > 0) || !(height > NOISE_FACTOR * noise)) {
-    throw new RangeError(
-      `thrust shows no run above the noise: its 5-sample moving median rises ${height} above the zero of ${zeroBefore}, and a run must rise more than ${NOISE_FACTOR} × the noise (standard deviation about ${noise})`,
+  const noRun = (rise: number, from: number) =>
+    new RangeError(
+      `thrust shows no run above the noise: its 5-sample moving median rises ${rise} above ${from}, and a run must rise more than ${NOISE_FACTOR} × the noise (standard deviation about ${noise})`,
     )
-  }
+  if (!(top - lowest > NOISE_FACTOR * noise)) throw noRun(top - lowest, `its lowest value, ${lowest}`)
   if (lowBefore - lowest > threshold * (top - lowest)) {
     throw new RangeError(
       'thrust shows no quiet samples before the run to take the load-cell zero from (the log starts inside the run, or the zero drifts down by more than the run threshold): start logging before the valve opens',
     )
   }
+
+  const quietLevel = lowBefore + QUIET_FRACTION * (top - lowBefore)
+  let k = ip
+  while (k >= 0 && (smooth[k] as number) > quietLevel) k--
+  const quietBeforeEnd = k + 1
+  const zeroBefore = medianOf(thrust, 0, quietBeforeEnd)
+  const height = top - zeroBefore
+  if (!(height > NOISE_FACTOR * noise)) throw noRun(height, `the zero of ${zeroBefore}`)
 
   // The quiet tail: the trailing stretch that stays within a narrow band of the last samples'
   // median, unless the log still sits above the run threshold at its end.
@@ -333,7 +334,7 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
  *   with the integrand interpolated at start and end.
  * - **No run above the noise**: the moving median's peak must rise more than {@link NOISE_FACTOR}
  *   (10) noise standard deviations above zeroBefore, the noise being estimated robustly from the
- *   second differences of the samples below half the run's height (see {@link NOISE_FACTOR}).
+ *   second differences of the samples below half the log's range (see {@link NOISE_FACTOR}).
  * - A log that starts inside the run (its moving median never comes down near the zero before the
  *   peak) has no zero to take and is refused too.
  *
