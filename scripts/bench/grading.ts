@@ -78,7 +78,7 @@ function gradeOnly(): void {
   sink += gradeSubmission({ assignment, data: preParsed, reported }).score
 }
 
-// The module's own expressions (7 expected values, 5 review rules) over the prepared scope: the part
+// The module's own expressions (expected values and review rules) over the prepared scope: the part
 // of gradeSubmission that is mathjs evaluating the instructor's formulas.
 const dataScope = buildExpressionScope(assignment, preParsed, { units: 'si' })
 const ruleScope: Record<string, ExpressionValue> = { ...dataScope }
@@ -107,8 +107,8 @@ const kernels: [string, () => void][] = [
   ['papaparse alone, default options (arrays)', bareParse],
   ["papaparse alone, header: true, skipEmptyLines: 'greedy'", headerParse],
   ['  parseLog (parse, map, validate, SI)', () => void parseOnly()],
-  ['  gradeSubmission (7 results, 5 rules, data checks)', gradeOnly],
-  ["    of which the module's 12 expressions alone (mathjs)", expressionsOnly],
+  [`  gradeSubmission (${assignment.results.length} results, ${assignment.reviewRules.length} rules, data checks)`, gradeOnly],
+  [`    of which the module's ${assignment.results.length + assignment.reviewRules.length} expressions alone (mathjs)`, expressionsOnly],
   ['  chartSeries (spans, ideal thrust, ≤ 2000 points)', chartOnly],
   ['whole grading step (parseLog + gradeSubmission + chartSeries)', wholeGrading],
 ]

@@ -95,11 +95,17 @@ export interface ThrustRunAnalysis extends ThrustRun {
 // ---------------------------------------------------------------------------------------------
 // Small numerical helpers.
 
-const med3 = (a: number, b: number, c: number): number => Math.max(Math.min(a, b), Math.min(Math.max(a, b), c))
+// Plain comparisons rather than Math.min/Math.max, which also sort out NaN and −0 and cost several
+// times more; the samples are finite numbers by the time they get here.
+const lo = (a: number, b: number): number => (a < b ? a : b)
+const hi = (a: number, b: number): number => (a < b ? b : a)
+const med3 = (a: number, b: number, c: number): number => hi(lo(a, b), lo(hi(a, b), c))
 
-/** Median of five values by comparisons only (checked against sorting for every ordering with ties). */
-const med5 = (a: number, b: number, c: number, d: number, e: number): number =>
-  med3(e, Math.max(Math.min(a, b), Math.min(c, d)), Math.min(Math.max(a, b), Math.max(c, d)))
+/**
+ * Median of five values by comparisons only: the median of e, the larger of the two pairs' minima
+ * and the smaller of their maxima (checked against sorting for every ordering with ties).
+ */
+const med5 = (a: number, b: number, c: number, d: number, e: number): number => med3(e, hi(lo(a, b), lo(c, d)), lo(hi(a, b), hi(c, d)))
 
 /**
  * Centred 5-sample moving median. The window shrinks symmetrically at the ends (3 samples next to
@@ -116,6 +122,14 @@ function movingMedian5(x: ArrayLike<number>, out: Float64Array): Float64Array {
   out[1] = med3(x[0] as number, x[1] as number, x[2] as number)
   out[n - 2] = med3(x[n - 3] as number, x[n - 2] as number, x[n - 1] as number)
   return out
+}
+
+/** {@link movingMedian5} into `out`, returning the largest filtered value (one pass over the data). */
+function movingMedian5Peak(x: Float64Array, out: Float64Array): number {
+  movingMedian5(x, out)
+  let peak = -Infinity
+  for (let i = 0; i < out.length; i++) if ((out[i] as number) > peak) peak = out[i] as number
+  return peak
 }
 
 /** Median of x[from..to) by selection (Hoare's quickselect) on a copy; from < to. */
@@ -206,6 +220,9 @@ function crossings(t: readonly number[], g: Float64Array, level: number): { star
 /** Most passes of the window–tare fixed point; the second pass already moves the window by far less than a sample. */
 const MAX_PASSES = 4
 
+/** The window has settled when a pass moves its ends by less than this fraction of the log's span in all. */
+const WINDOW_SETTLED = 1e-9
+
 function analyse(time: readonly number[], thrust: readonly number[], threshold: number): ThrustRunAnalysis {
   const n = thrust.length
   const smooth = movingMedian5(thrust, new Float64Array(n))
@@ -267,30 +284,23 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
   const za = zeroAfter ?? zeroBefore
 
   // The window and the tare line depend on each other: start from the line drawn between the
-  // quiet stretches, then redraw it between the crossings found, until the window stays put.
+  // quiet stretches, then redraw it between the crossings found, until the window stays put (moves
+  // by less than WINDOW_SETTLED of the log's span: the tare line then moves by less than that
+  // fraction of the drift, far below any load cell's resolution).
   let start = time[Math.max(quietBeforeEnd - 1, 0)] as number
   let end = quietAfterStart === null ? (time[n - 1] as number) : (time[quietAfterStart] as number)
+  const settledWithin = WINDOW_SETTLED * ((time[n - 1] as number) - (time[0] as number))
   const tared = new Float64Array(n)
   const filtered = new Float64Array(n)
   let peak = -Infinity
-  // Each pass tares with the current window and finds the window again; when it comes out where it
-  // went in, the tared and filtered signals are those of the final window.
-  let settled = false
-  for (let pass = 0; pass < MAX_PASSES && !settled; pass++) {
+  for (let pass = 0; pass < MAX_PASSES; pass++) {
     tare(time, thrust, zeroBefore, za, start, end, tared)
-    movingMedian5(tared, filtered)
-    peak = -Infinity
-    for (let i = 0; i < n; i++) if ((filtered[i] as number) > peak) peak = filtered[i] as number
+    peak = movingMedian5Peak(tared, filtered)
     const window = crossings(time, filtered, threshold * peak)
-    settled = window.start === start && window.end === end
+    const moved = Math.abs(window.start - start) + Math.abs(window.end - end)
     start = window.start
     end = window.end
-  }
-  if (!settled) {
-    tare(time, thrust, zeroBefore, za, start, end, tared)
-    movingMedian5(tared, filtered)
-    peak = -Infinity
-    for (let i = 0; i < n; i++) if ((filtered[i] as number) > peak) peak = filtered[i] as number
+    if (moved <= settledWithin) break
   }
 
   const burnTime = end - start
