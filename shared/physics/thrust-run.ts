@@ -251,7 +251,7 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
     }
   }
   const noise = (1.4826 / Math.sqrt(1.5)) * medianInPlace(residual.subarray(0, count))
-  const noRun = (rise: number, from: number) =>
+  const noRun = (rise: number, from: string) =>
     new RangeError(
       `thrust shows no run above the noise: its 5-sample moving median rises ${rise} above ${from}, and a run must rise more than ${NOISE_FACTOR} × the noise (standard deviation about ${noise})`,
     )
@@ -283,12 +283,29 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
   const zeroAfter = quietAfterStart === null ? null : medianOf(thrust, quietAfterStart, n)
   const za = zeroAfter ?? zeroBefore
 
-  // The window and the tare line depend on each other: start from the line drawn between the
-  // quiet stretches, then redraw it between the crossings found, until the window stays put (moves
-  // by less than WINDOW_SETTLED of the log's span: the tare line then moves by less than that
-  // fraction of the drift, far below any load cell's resolution).
-  let start = time[Math.max(quietBeforeEnd - 1, 0)] as number
-  let end = quietAfterStart === null ? (time[n - 1] as number) : (time[quietAfterStart] as number)
+  // The window and the tare line depend on each other. A first guess needs no new filtering: the
+  // crossings of the moving median less zeroBefore on the way up and less zeroAfter on the way down
+  // (where the tare line equals those zeros). Then the line is drawn between the crossings, the
+  // tared thrust filtered and the crossings found again, until the window stays put (moves by less
+  // than WINDOW_SETTLED of the log's span: the tare line then moves by less than that fraction of
+  // the drift, far below any load cell's resolution). Usually the first pass already settles it.
+  let start: number
+  let end: number
+  {
+    const levelUp = zeroBefore + threshold * height
+    const levelDown = za + threshold * (top - za)
+    let i = 0
+    while (i < ip && (smooth[i] as number) < levelUp) i++
+    let j = n - 1
+    while (j > ip && (smooth[j] as number) < levelDown) j--
+    const cross = (k0: number, k1: number, level: number): number => {
+      const g0 = smooth[k0] as number
+      const t0 = time[k0] as number
+      return t0 + (((time[k1] as number) - t0) * (level - g0)) / ((smooth[k1] as number) - g0)
+    }
+    start = i === 0 ? (time[0] as number) : cross(i - 1, i, levelUp)
+    end = j === n - 1 ? (time[n - 1] as number) : cross(j, j + 1, levelDown)
+  }
   const settledWithin = WINDOW_SETTLED * ((time[n - 1] as number) - (time[0] as number))
   const tared = new Float64Array(n)
   const filtered = new Float64Array(n)
@@ -455,7 +472,11 @@ export function tareAlongRun(
  */
 export function tareWithRun(time: readonly number[], values: readonly number[], run: ThrustRunAnalysis): number[] {
   const { before, after } = signalZeros(time, values, run)
-  return Array.from(tare(time, values, before, after, run.start, run.end, new Float64Array(values.length)))
+  const tared = tare(time, values, before, after, run.start, run.end, new Float64Array(values.length))
+  // A plain array like every other column (Array.from of a typed array is several times slower).
+  const out = new Array<number>(tared.length)
+  for (let i = 0; i < tared.length; i++) out[i] = tared[i] as number
+  return out
 }
 
 /**
