@@ -308,7 +308,7 @@ describe('the expression sandbox', () => {
 
 describe('max and min of a logged column', () => {
   // A plain mathjs instance, without the expression engine's direct loops, is the reference.
-  const reference = create(all)
+  const reference = create(all!)
 
   it('give exactly what mathjs gives, nearly-equal values and all', () => {
     const columns: number[][] = [
