@@ -95,27 +95,41 @@ export interface ThrustRunAnalysis extends ThrustRun {
 // ---------------------------------------------------------------------------------------------
 // Small numerical helpers.
 
-// Plain comparisons rather than Math.min/Math.max, which also sort out NaN and −0 and cost several
-// times more; the samples are finite numbers by the time they get here.
-const lo = (a: number, b: number): number => (a < b ? a : b)
-const hi = (a: number, b: number): number => (a < b ? b : a)
-const med3 = (a: number, b: number, c: number): number => hi(lo(a, b), lo(hi(a, b), c))
-
-/**
- * Median of five values by comparisons only: the median of e, the larger of the two pairs' minima
- * and the smaller of their maxima (checked against sorting for every ordering with ties).
- */
-const med5 = (a: number, b: number, c: number, d: number, e: number): number => med3(e, hi(lo(a, b), lo(c, d)), lo(hi(a, b), hi(c, d)))
+const med3 = (a: number, b: number, c: number): number => {
+  const low = a < b ? a : b
+  const high = a < b ? b : a
+  const mid = high < c ? high : c
+  return low > mid ? low : mid
+}
 
 /**
  * Centred 5-sample moving median. The window shrinks symmetrically at the ends (3 samples next to
  * them, the sample itself at them), so the filter stays centred and leaves a monotone stretch
  * exactly as it is.
+ *
+ * The median of five is med3(e, max(min(a, b), min(c, d)), min(max(a, b), max(c, d))) for the
+ * centre e and its neighbours a, b, c, d (checked against sorting for every ordering with ties),
+ * written out with plain comparisons: Math.min and Math.max also sort out NaN and −0 and cost
+ * several times more, and the samples are finite here.
  */
 function movingMedian5(x: ArrayLike<number>, out: Float64Array): Float64Array {
   const n = x.length
   for (let i = 2; i < n - 2; i++) {
-    out[i] = med5(x[i - 2] as number, x[i - 1] as number, x[i] as number, x[i + 1] as number, x[i + 2] as number)
+    const a = x[i - 2] as number
+    const b = x[i - 1] as number
+    const c = x[i + 1] as number
+    const d = x[i + 2] as number
+    const e = x[i] as number
+    const abLow = a < b ? a : b
+    const abHigh = a < b ? b : a
+    const cdLow = c < d ? c : d
+    const cdHigh = c < d ? d : c
+    const p = abLow > cdLow ? abLow : cdLow
+    const q = abHigh < cdHigh ? abHigh : cdHigh
+    const low = e < p ? e : p
+    const high = e < p ? p : e
+    const mid = high < q ? high : q
+    out[i] = low > mid ? low : mid
   }
   out[0] = x[0] as number
   out[n - 1] = x[n - 1] as number
@@ -186,7 +200,7 @@ function thresholdOf(options: ThrustRunOptions | undefined): number {
 }
 
 /** The zero line: zb up to start, linear to za at end, za after; the tared signal is x − zero. */
-function tare(t: readonly number[], x: readonly number[], zb: number, za: number, start: number, end: number, out: Float64Array): Float64Array {
+function tare(t: ArrayLike<number>, x: ArrayLike<number>, zb: number, za: number, start: number, end: number, out: Float64Array): Float64Array {
   const slope = end > start ? (za - zb) / (end - start) : 0
   for (let i = 0; i < t.length; i++) {
     const ti = t[i] as number
@@ -197,7 +211,7 @@ function tare(t: readonly number[], x: readonly number[], zb: number, za: number
 }
 
 /** First and last crossing of `level` by g, interpolated linearly; g reaches level somewhere. */
-function crossings(t: readonly number[], g: Float64Array, level: number): { start: number; end: number } {
+function crossings(t: ArrayLike<number>, g: Float64Array, level: number): { start: number; end: number } {
   const n = g.length
   let i = 0
   while ((g[i] as number) < level) i++
@@ -216,6 +230,9 @@ function crossings(t: readonly number[], g: Float64Array, level: number): { star
 
 // ---------------------------------------------------------------------------------------------
 // The reduction.
+
+/** Most second differences the noise estimate takes from one log (spread evenly over it). */
+const NOISE_SAMPLES = 8192
 
 /** Most passes of the window–tare fixed point; the second pass already moves the window by far less than a sample. */
 const MAX_PASSES = 4
@@ -239,12 +256,14 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
     throw new RangeError(`thrust shows no run above the noise: its 5-sample moving median is flat at ${top}`)
   }
   // Noise: second differences of the samples below half the log's range (all interior samples
-  // when fewer than 5 are), as a standard deviation.
-  const residual = new Float64Array(n)
+  // when fewer than 5 are), as a standard deviation. A long log is sampled every `stride` samples
+  // (at most about NOISE_SAMPLES of them): plenty for a median, and it keeps the selection cheap.
+  const stride = Math.max(1, Math.floor(n / NOISE_SAMPLES))
+  const residual = new Float64Array(Math.ceil(n / stride))
   let count = 0
   for (let pass = 0; pass < 2 && count < 5; pass++) {
     count = 0
-    for (let i = 1; i < n - 1; i++) {
+    for (let i = 1; i < n - 1; i += stride) {
       if (pass === 1 || (smooth[i] as number) - lowest < 0.5 * (top - lowest)) {
         residual[count++] = Math.abs((thrust[i] as number) - 0.5 * ((thrust[i - 1] as number) + (thrust[i + 1] as number)))
       }

@@ -7,7 +7,7 @@
 import { requireInterval, requireSameLength, requireSamples } from './validate'
 
 /** Index of the first sample with t[i] > at (binary search; t strictly increasing). */
-function firstAfter(t: readonly number[], at: number): number {
+function firstAfter(t: ArrayLike<number>, at: number): number {
   let lo = 0
   let hi = t.length
   while (lo < hi) {
@@ -19,7 +19,7 @@ function firstAfter(t: readonly number[], at: number): number {
 }
 
 /** x at time `at` by linear interpolation; t strictly increasing, t[0] ≤ at ≤ t[n−1]. */
-function valueAt(t: readonly number[], x: ArrayLike<number>, at: number): number {
+function valueAt(t: ArrayLike<number>, x: ArrayLike<number>, at: number): number {
   const i = firstAfter(t, at)
   if (i === 0) return x[0] as number
   if (i >= t.length) return x[t.length - 1] as number
@@ -41,7 +41,7 @@ function valueAt(t: readonly number[], x: ArrayLike<number>, at: number): number
  * @example
  * windowIntegralUnchecked([0, 1, 2, 3], [0, 10, 10, 0], 0.5, 2.5) // = 17.5
  */
-export function windowIntegralUnchecked(t: readonly number[], x: ArrayLike<number>, start: number, end: number): number {
+export function windowIntegralUnchecked(t: ArrayLike<number>, x: ArrayLike<number>, start: number, end: number): number {
   if (end <= start) return 0
   const i = firstAfter(t, start) // first sample strictly inside (start, …]
   const j = firstAfter(t, end) // first sample after end
