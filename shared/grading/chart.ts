@@ -91,7 +91,8 @@ function decimate(n: number, series: readonly (readonly number[])[], maxPoints: 
  * @throws ScopeError when the data do not fit the assignment
  */
 export function chartSeries(assignment: Assignment, data: SubmissionData): ChartSeries {
-  const scope = buildExpressionScope(assignment, { tables: data.tables, measurements: data.measurements, ...(data.pressures ? { pressures: data.pressures } : {}) }, { units: 'si' })
+  // The chart shows the columns as logged (no transducer zero taken), as the data checks see them.
+  const scope = buildExpressionScope(assignment, { tables: data.tables, measurements: data.measurements, ...(data.pressures ? { pressures: data.pressures } : {}) }, { units: 'si', tare: false })
   const d = roleData(assignment, scope)
   const time = d.time ?? []
   const n = time.length

@@ -13,7 +13,7 @@
 import { ExpressionError, evaluateExpression } from '../modules/expressions'
 import { valueFromSI, valueToSI } from '../modules/quantities'
 import type { Assignment, ResultSpec } from '../modules/schema'
-import { buildExpressionScope } from '../modules/scope'
+import { buildExpressionScope, taredScope } from '../modules/scope'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { dataFlags } from './data-flags'
 
@@ -198,7 +198,9 @@ export function gradeSubmission(input: GradeInput): GradeResult {
   }
   const { assignment, reported } = input
   const data: SubmissionData = { tables: input.data.tables, measurements: input.data.measurements, ...(input.data.pressures ? { pressures: input.data.pressures } : {}) }
-  const scope = buildExpressionScope(assignment, data, { units: 'si' })
+  // Expressions see pressures with their transducer zero taken (tare: true); the data checks see them as logged.
+  const logged = buildExpressionScope(assignment, data, { units: 'si', tare: false })
+  const scope = taredScope(assignment, data, logged)
 
   const flags: GradeFlag[] = []
   const checks = assignment.results.map((spec) => {
@@ -213,7 +215,7 @@ export function gradeSubmission(input: GradeInput): GradeResult {
     return check
   })
 
-  flags.push(...dataFlags(assignment, data, scope))
+  flags.push(...dataFlags(assignment, data, logged))
   flags.push(...ruleFlags(assignment, scope, reported))
 
   const rawScore = round6(checks.reduce((sum, c) => sum + c.pointsAwarded, 0))

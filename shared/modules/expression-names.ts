@@ -7,7 +7,7 @@
  * shadow a function without pulling the expression engine into every bundle that validates a form.
  * `expressions.ts` enforces these lists; `schema.ts` uses {@link RESERVED_NAMES}.
  */
-import type { IsentropicRatios, NormalShock, NozzleFlow, NozzleInput, NozzlePressureRatios } from '../physics'
+import type { IsentropicRatios, NormalShock, NozzleFlow, NozzleInput, NozzlePressureRatios, ThrustRun, ThrustRunOptions } from '../physics'
 
 /** Smallest and largest argument count; `max` is Infinity for variadic functions. */
 export interface Arity {
@@ -39,6 +39,9 @@ export const LIBRARY_FUNCTIONS: Readonly<Record<string, Arity>> = {
   meanValue: between(1, 2),
   peakValue: exactly(1),
   areaFromDiameter: exactly(1),
+  reduceThrustRun: between(2, 3),
+  windowMean: exactly(4),
+  windowIntegral: exactly(4),
 }
 
 /**
@@ -202,6 +205,16 @@ export const RESULT_FIELDS: Readonly<Record<string, FieldTree>> = {
     separationAreaRatio: true,
     separatedThrust: true,
   } satisfies Record<keyof NozzleFlow, true | FieldTree>,
+  reduceThrustRun: {
+    zeroBefore: true,
+    zeroAfter: true,
+    start: true,
+    end: true,
+    burnTime: true,
+    totalImpulse: true,
+    peakThrust: true,
+    meanThrust: true,
+  } satisfies Record<keyof ThrustRun, true>,
 }
 
 /** Library functions that take one object of named inputs, with the names it must contain. */
@@ -215,6 +228,15 @@ export const OBJECT_ARGUMENTS: Readonly<Record<string, readonly string[]>> = {
     gamma: true,
     gasConstant: true,
   } satisfies Record<keyof NozzleInput, true>),
+}
+
+/**
+ * Library functions whose trailing argument may be an object of options, by argument position
+ * (0-based), with the option names it may contain (all optional):
+ * `reduceThrustRun(t, thrust, {threshold: 0.1})`.
+ */
+export const OPTION_ARGUMENTS: Readonly<Record<string, { index: number; keys: readonly string[] }>> = {
+  reduceThrustRun: { index: 2, keys: Object.keys({ threshold: true } satisfies Record<keyof ThrustRunOptions, true>) },
 }
 
 /** Words the mathjs parser treats as operators or literals; they cannot be used as names. */

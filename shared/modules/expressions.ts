@@ -17,14 +17,21 @@
  * - **Functions:** the formula library (isentropic, machFromAreaRatio, machFromPressureRatio,
  *   criticalPressureRatio, normalShock, prandtlMeyer, nozzleFlow, nozzlePressureRatios,
  *   chokedMassFlow, idealThrust, machDiskDistance, totalImpulse, specificImpulse,
- *   characteristicVelocity, thrustCoefficient, meanValue, peakValue, areaFromDiameter), the constant
+ *   characteristicVelocity, thrustCoefficient, meanValue, peakValue, areaFromDiameter,
+ *   reduceThrustRun, windowMean, windowIntegral), the constant
  *   G0, the helpers at, argmax, argmin, interp, select and regimeCode defined below, and the plain
  *   mathematics listed in `expression-names.ts` (sqrt, exp, log, min, max, mean, sum, …).
  *   Arithmetic on arrays is element-wise with the dotted operators (`F ./ pc`); comparisons of an
  *   array give an array of true/false (`pa ./ pc < 0.5`) for `select`.
  * - **Result objects:** `nozzleFlow({chamberPressure: …, …}).exitMach`, `isentropic(M, 1.4).areaRatio`,
  *   `normalShock(M, 1.4).mach2` and `nozzlePressureRatios(eps, 1.4).chokeLimit` read one field of
- *   the library's result. That is the only property access allowed.
+ *   the library's result, and `reduceThrustRun(t, thrust).totalImpulse` (or .zeroBefore, .zeroAfter,
+ *   .start, .end, .burnTime, .peakThrust, .meanThrust) one field of the reduced run — tared, its
+ *   window found, see shared/physics/thrust-run.ts; `reduceThrustRun(t, thrust, {threshold: 0.1})`
+ *   sets the window's threshold. That is the only property access allowed. The means and integrals
+ *   over the run window are `windowMean(t, x, start, end)` and `windowIntegral(t, x, start, end)`,
+ *   e.g. `windowMean(t, p_chamber, reduceThrustRun(t, thrust).start, reduceThrustRun(t, thrust).end)`
+ *   (the run is reduced once however often it is named).
  *
  * ## What is refused
  * Assignments, function definitions, several statements, ranges, indexing with brackets (use
@@ -56,13 +63,19 @@ import {
   specificImpulse,
   thrustCoefficient,
   totalImpulse,
+  windowIntegral,
+  windowMean,
 } from '../physics'
+import type { ThrustRun, ThrustRunOptions } from '../physics'
+import { runResult } from '../physics/thrust-run'
+import { cachedThrustRun } from './run-cache'
 import {
   CONSTANTS,
   DISABLED_FUNCTIONS,
   FUNCTIONS,
   OBJECT_ARGUMENTS,
   OPERATORS,
+  OPTION_ARGUMENTS,
   RESULT_FIELDS,
 } from './expression-names'
 import type { FieldTree } from './expression-names'
@@ -156,6 +169,14 @@ function select(values: unknown, flags: unknown): number[] {
   return out
 }
 
+/**
+ * reduceThrustRun(t, thrust[, {threshold}]): the library's reduction, computed once per run and
+ * grading however many of its fields the module reads (see run-cache.ts).
+ */
+function reduceThrustRun(time: readonly number[], thrust: readonly number[], options?: ThrustRunOptions): ThrustRun {
+  return runResult(cachedThrustRun(time, thrust, options))
+}
+
 /** regimeCode(regime): 1 subsonic, 2 shock in nozzle, 3 over-expanded, 4 ideal, 5 under-expanded. */
 function regimeCode(regime: unknown): number {
   const i = (NOZZLE_REGIMES as readonly unknown[]).indexOf(regime)
@@ -197,6 +218,9 @@ const scopeFunctions = {
   meanValue,
   peakValue,
   areaFromDiameter,
+  reduceThrustRun,
+  windowMean,
+  windowIntegral,
   at,
   argmax,
   argmin,
@@ -267,6 +291,38 @@ const isNumberArray = (x: unknown): x is number[] => {
     })
   }
   math.import(replacements, { override: true })
+}
+
+// max(column) and min(column) of one plain number array take a direct loop too: mathjs walks the
+// array with its generic deep-forEach (about 1 ms per 50 000 samples), and a module reads
+// max(p_chamber) several times. The loop keeps mathjs's rule exactly: a later value replaces the
+// one held only when it is larger (smaller) and not nearly equal to it. Anything else — several
+// arguments, a dimension, an empty list, NaN or ±Infinity — goes to mathjs unchanged.
+{
+  type Fn = (...args: unknown[]) => unknown
+  const typed = (math as unknown as { typed: (name: string, signatures: Record<string, Fn>) => unknown }).typed
+  // sign +1 finds the largest, −1 the smallest (comparing sign·value). A later value replaces the
+  // held one only when it is beyond it by more than mathjs's nearlyEqual tolerance.
+  const extreme = (name: 'max' | 'min', sign: 1 | -1) => {
+    const original = (math as unknown as Record<string, Fn>)[name]!
+    return typed(name, {
+      Array: (a: unknown) => {
+        const xs = a as unknown[]
+        const first = xs[0]
+        if (typeof first !== 'number' || !Number.isFinite(first)) return original(xs)
+        let held = first
+        for (let i = 1; i < xs.length; i++) {
+          const v = xs[i]
+          if (typeof v !== 'number' || !Number.isFinite(v)) return original(xs)
+          const beyond = sign * (v - held)
+          if (beyond > 0 && beyond > absTol && beyond > relTol * Math.max(Math.abs(v), Math.abs(held))) held = v
+        }
+        return held
+      },
+      '...any': (args: unknown) => original(...(args as unknown[])),
+    })
+  }
+  math.import({ max: extreme('max', 1), min: extreme('min', -1) }, { override: true })
 }
 
 // https://mathjs.org/docs/expressions/security.html: replace every function that parses, compiles
@@ -439,7 +495,7 @@ class Checker {
     } else if (math.isRangeNode(node)) {
       this.refuse('ranges (a:b) are not supported in module expressions')
     } else if (math.isObjectNode(node)) {
-      this.refuse('an object {…} is allowed only as the input of nozzleFlow({…})')
+      this.refuse('an object {…} is allowed only as the input of nozzleFlow({…}) and as the options of reduceThrustRun(t, thrust, {threshold: …})')
     } else {
       this.refuse(`"${node.toString()}" (${node.type}) is not supported in module expressions`)
     }
@@ -491,7 +547,16 @@ class Checker {
       node.args.slice(1).forEach((a) => this.check(a))
       return
     }
-    node.args.forEach((a) => this.check(a))
+    const options = OPTION_ARGUMENTS[name]
+    node.args.forEach((a, i) => {
+      if (options && i === options.index && math.isObjectNode(a)) {
+        const extra = Object.keys(a.properties).filter((k) => !options.keys.includes(k))
+        if (extra.length > 0) this.refuse(`${name}(…, {…}) has no option named ${extra.join(', ')}; its options are ${options.keys.join(', ')}`)
+        for (const value of Object.values(a.properties)) this.check(value)
+      } else {
+        this.check(a)
+      }
+    })
   }
 
   private accessor(node: MathNode): void {

@@ -185,10 +185,27 @@ export const ColumnSchema = z
     role: z
       .enum(COLUMN_ROLES, { message: `a column role is one of ${COLUMN_ROLES.join(', ')}` })
       .optional(),
+    /**
+     * A gauge pressure whose transducer zero is taken like the load cell's: the column's median
+     * over the thrust run's quiet samples before and after the run is removed along the run's tare
+     * line (`tareAlongRun` in shared/physics), before any expression sees it. For a column that
+     * reads ambient before and after the run (a chamber behind a closed valve), never for a
+     * receiver charged before it. Applies when the hand-in reads the column gauge, and only to a
+     * zero of at most 10 % of the ambient pressure (`MAX_TARE_ZERO` in scope.ts): a column reading
+     * more at rest is another mistake, left for the review rules and data checks to see.
+     */
+    tare: z.boolean().optional(),
   })
   .superRefine((column, ctx) => {
     checkPressureSense(column, ctx)
     checkRoleUnit(column, ctx)
+    if (column.tare === true && column.pressure !== 'gauge') {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['tare'],
+        message: 'tare: true takes the zero of a gauge pressure transducer, so it needs a pressure column with "pressure: gauge"',
+      })
+    }
   })
 
 export const TableSchema = z
@@ -205,6 +222,17 @@ export const TableSchema = z
     for (const i of timeColumns.slice(1)) {
       ctx.addIssue({ code: 'custom', path: ['columns', i, 'role'], message: 'a table has at most one column with role: time' })
     }
+    // A tared column takes its zero and window from the thrust run logged beside it.
+    const hasRun = timeColumns.length > 0 && table.columns.some((c) => c.role === 'thrust')
+    table.columns.forEach((c, i) => {
+      if (c.tare === true && !hasRun) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['columns', i, 'tare'],
+          message: 'tare: true takes the zero and the window of the thrust run, so the table needs a column with role: thrust and one with role: time',
+        })
+      }
+    })
   })
 
 export const MeasurementSchema = z

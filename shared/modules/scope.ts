@@ -8,11 +8,15 @@
  *   N·s, kg/s, m/s, rad as declared in `quantities.ts`);
  * - pressures are absolute: a column or measurement declared `pressure: gauge` gets the submission's
  *   ambient pressure (the measurement with `role: ambient-pressure`, itself absolute) added to every
- *   value. A reported result in a pressure unit is taken as absolute.
+ *   value. A reported result in a pressure unit is taken as absolute;
+ * - a gauge pressure column with `tare: true` also has its transducer zero removed, with the zero
+ *   and window of the thrust run logged beside it (see {@link buildExpressionScope}).
  */
 import { gaugeToAbsolute } from '../units'
+import { signalZeros, tareWithRun } from '../physics/thrust-run'
+import { cachedThrustRun } from './run-cache'
 import { DIMENSIONLESS, dataUnitKind, valueFromSI, valueToSI } from './quantities'
-import type { Assignment, ColumnSpec, MeasurementSpec } from './schema'
+import type { Assignment, ColumnSpec, MeasurementSpec, TableSpec } from './schema'
 
 /** Values an expression can see by name. */
 export type ExpressionValue = number | boolean | readonly number[]
@@ -49,6 +53,11 @@ export interface ScopeOptions {
    * result; the default) or 'si' (already SI, as `parseLog` and the grading engine hold them).
    */
   units?: 'declared' | 'si'
+  /**
+   * Remove the transducer zero of the gauge pressure columns marked `tare: true` (default true).
+   * The grading engine's data checks look at the columns as logged, with `tare: false`.
+   */
+  tare?: boolean
 }
 
 /** A submission whose data cannot be turned into a scope; the message says which value and why. */
@@ -116,6 +125,71 @@ function siColumn(samples: readonly number[], gauge: boolean, ambient: number | 
 }
 
 /**
+ * Largest transducer zero that `tare: true` takes, as a fraction of the ambient pressure: 10 %
+ * (8–10 kPa on a campus), above the ±1 % of full scale of a teaching stand's transducers. A column
+ * that reads more than that at rest is not off by a zero: it is another column (the receiver, swapped
+ * in) or an absolute reading declared gauge, and taking its "zero" would hide the mistake from the
+ * review rules. Such a column stays as logged. Common practice, no published source.
+ */
+export const MAX_TARE_ZERO = 0.1
+
+/**
+ * Tares a table's gauge pressure columns marked `tare: true` (and read gauge in this hand-in) with
+ * the zero and window of the table's thrust run: each column's own median over the run's quiet
+ * samples before and after it, removed along the run's tare line, so the column reads exactly the
+ * ambient pressure at rest (`tareWithRun` in shared/physics/thrust-run.ts). A column whose zero
+ * before or after the run is larger than {@link MAX_TARE_ZERO} × the ambient pressure stays as
+ * logged. When the thrust shows no run to reduce, the columns stay as logged too: every expression
+ * that reduces the run fails with the library's reason, and the grading engine flags it for staff.
+ */
+function tareColumns(table: TableSpec, scope: Record<string, ExpressionValue>, data: SubmissionData, ambient: number | undefined): void {
+  const columns = table.columns.filter((c) => c.tare === true && isGauge(data, c.key, c.pressure))
+  if (columns.length === 0 || ambient === undefined) return
+  const time = scope[table.columns.find((c) => c.role === 'time')?.key ?? '']
+  const thrust = scope[table.columns.find((c) => c.role === 'thrust')?.key ?? '']
+  if (!Array.isArray(time) || !Array.isArray(thrust)) return
+  let run: ReturnType<typeof cachedThrustRun>
+  try {
+    run = cachedThrustRun(time, thrust)
+  } catch (error) {
+    if (error instanceof RangeError) return
+    throw error
+  }
+  for (const column of columns) {
+    const values = scope[column.key] as readonly number[]
+    // The column is absolute here (the ambient added); its gauge zeros are these less the ambient.
+    const zeros = signalZeros(time, values, run)
+    if (Math.max(Math.abs(zeros.before - ambient), Math.abs(zeros.after - ambient)) > MAX_TARE_ZERO * ambient) continue
+    const tared = tareWithRun(time, values, run)
+    for (let i = 0; i < tared.length; i++) {
+      const absolute = (tared[i] as number) + ambient
+      if (absolute < 0) throw new ScopeError(`${column.key}[row ${i + 1}]: after its zero is taken, the gauge pressure ${tared[i]} Pa is below vacuum at an ambient of ${ambient} Pa`)
+      tared[i] = absolute
+    }
+    scope[column.key] = tared
+  }
+}
+
+/**
+ * A scope built with `tare: false` (the columns as logged), with the `tare: true` columns tared:
+ * the same as building it with `tare: true`, without converting the data twice. The grading engine
+ * keeps both: expressions see the tared columns, the data checks the logged ones.
+ *
+ * @param assignment - the validated assignment spec
+ * @param data - the submission's data (for the gauge/absolute choices)
+ * @param logged - the scope built with `tare: false`
+ * @returns `logged` itself when no column is tared, else a copy with the tared columns
+ */
+export function taredScope(assignment: Assignment, data: SubmissionData, logged: Record<string, ExpressionValue>): Record<string, ExpressionValue> {
+  if (!assignment.tables.some((t) => t.columns.some((c) => c.tare === true))) return logged
+  const ambientKey = assignment.measurements.find((m) => m.role === 'ambient-pressure')?.key
+  const ambient = ambientKey === undefined ? undefined : logged[ambientKey]
+  const scope: Record<string, ExpressionValue> = Object.assign(Object.create(null) as Record<string, ExpressionValue>, logged)
+  for (const table of assignment.tables) tareColumns(table, scope, data, typeof ambient === 'number' ? ambient : undefined)
+  return scope
+}
+
+/**
  * The scope of an assignment's expressions for one submission.
  *
  * @param assignment - the validated assignment spec
@@ -123,6 +197,7 @@ function siColumn(samples: readonly number[], gauge: boolean, ambient: number | 
  * @param options.withResults - add the reported results (review rules see them; expected-value
  *   expressions must not)
  * @param options.units - 'declared' (default) or 'si'
+ * @param options.tare - take the zero of the `tare: true` columns (default true)
  * @throws ScopeError naming the missing or unusable value
  */
 export function buildExpressionScope(
@@ -150,6 +225,7 @@ export function buildExpressionScope(
         : samples.map((v, i) => convert(v, column.unit, gauge, ambient, `${column.key}[row ${i + 1}]`))
     }
   }
+  if (options.tare !== false) for (const table of assignment.tables) tareColumns(table, scope, data, ambient)
   for (const m of assignment.measurements) {
     const value = data.measurements[m.key]
     if (value === undefined) throw new ScopeError(`the measurement "${m.key}" is missing`)
@@ -181,17 +257,26 @@ const TYPICAL_SI: Record<string, number> = {
   dimensionless: 1,
 }
 
+/** Fraction of the synthetic rows logged at rest before the run, and again after it. */
+const SYNTHETIC_REST = 0.15
+
 function syntheticColumn(column: ColumnSpec, rows: number, pressureIndex: number, ambient: number): number[] {
   const kind = dataUnitKind(column.unit) ?? 'dimensionless'
   const out: number[] = []
   for (let i = 0; i < rows; i++) {
     const f = i / (rows - 1)
+    // The run: the middle 70 % of the rows, u going from 0 to 1 across it.
+    const running = f >= SYNTHETIC_REST && f <= 1 - SYNTHETIC_REST
+    const u = (f - SYNTHETIC_REST) / (1 - 2 * SYNTHETIC_REST)
     let si: number
     if (column.role === 'time' || kind === 'time') si = i * 0.05
     // A blow-down: 6 bar falling to 2 bar absolute, each further pressure column 3 % below the last
-    // (a chamber reads a little below the receiver that feeds it).
+    // (a chamber reads a little below the receiver that feeds it). A column whose zero is taken
+    // reads the ambient pressure at rest and follows the blow-down during the run.
+    else if (kind === 'pressure' && column.tare === true) si = running ? (6e5 - 4e5 * u) * 0.97 ** pressureIndex : ambient
     else if (kind === 'pressure') si = (6e5 - 4e5 * f) * 0.97 ** pressureIndex
-    else if (kind === 'force') si = 60 - 45 * f
+    // A load cell with a 0.3 N zero: at rest, then 60 N falling to 15 N during the run.
+    else if (kind === 'force') si = 0.3 + (running ? 60 - 45 * u : 0)
     else si = TYPICAL_SI[kind] ?? 1
     if (column.pressure === 'gauge') si -= ambient
     out.push(column.unit === DIMENSIONLESS ? si : valueFromSI(si, column.unit))
@@ -211,8 +296,9 @@ function syntheticMeasurement(m: MeasurementSpec, ambient: number): number {
 
 /**
  * Made-up but plausible data for an assignment, in the declared units, for trial runs of its
- * expressions: times 0, 0.05, 0.1 … s; pressures falling from 6 to 2 bar absolute; thrust falling
- * from 60 to 15 N; measurements in the middle of their min–max range (so a spec with ranges gets
+ * expressions: times 0, 0.05, 0.1 … s; pressures falling from 6 to 2 bar absolute (a `tare: true`
+ * column at the ambient before and after the run); a run in the middle 70 % of the rows with the
+ * thrust falling from 60 to 15 N, on a load-cell zero of 0.3 N; measurements in the middle of their min–max range (so a spec with ranges gets
  * sensible trial values, e.g. an exit diameter larger than the throat's), otherwise a typical value
  * of their kind. Results are left out; the caller fills them from the expected values.
  */

@@ -38,3 +38,6 @@ export {
   peakValue,
 } from './reduction'
 export { areaFromDiameter, diameterFromArea } from './geometry'
+export { reduceThrustRun, tareAlongRun, RUN_THRESHOLD } from './thrust-run'
+export type { ThrustRun, ThrustRunOptions } from './thrust-run'
+export { windowIntegral, windowMean } from './window'

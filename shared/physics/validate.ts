@@ -186,9 +186,11 @@ export function requireSamples(name: string, values: readonly number[], minLengt
   if (values.length < minLength) {
     throw new RangeError(`${name} must have at least ${minLength} samples (got ${values.length})`)
   }
-  values.forEach((v, i) => {
+  // A plain loop: logs of 50 000 samples are checked several times per hand-in.
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i]
     if (!isFiniteNumber(v)) fail(`${name}[${i}]`, 'a finite number', v)
-  })
+  }
   return values
 }
 

@@ -50,16 +50,16 @@ describe('handing in a cold-flow run', () => {
     expect(d.attempt).toBe(1)
     expect(d.resultsVisible).toBe(true)
     const byKey = Object.fromEntries(d.checks.map((c: { key: string }) => [c.key, c]))
-    // Impulse and peak thrust were computed here independently (trapezoid rule written out in the
-    // test helper, and the maximum of the logged column): both pass.
+    // Impulse and peak thrust were computed here independently (trapezoid rule and a 5-sample
+    // moving median written out in the test helper): both pass.
     expect(byKey.impulse.outcome).toBe('pass')
     expect(byKey.peak_thrust.outcome).toBe('pass')
     // The deliberately wrong values fail.
-    for (const k of ['cf_mean', 'air_mass', 'isp', 'exit_mach', 'regime']) expect(byKey[k].outcome, k).toBe('fail')
+    for (const k of ['burn_time', 'mean_thrust', 'cf_mean', 'air_mass', 'isp', 'exit_mach', 'regime']) expect(byKey[k].outcome, k).toBe('fail')
     // showExpected is false in this module: the student does not see expected values.
     expect(byKey.impulse.expected).toBeNull()
     expect(d.score).toBe(3)
-    expect(d.maxScore).toBe(10)
+    expect(d.maxScore).toBe(12)
     expect(d.chart.time.length).toBeGreaterThan(10)
     expect(d.chart.thrust.length).toBe(d.chart.time.length)
 
@@ -70,7 +70,7 @@ describe('handing in a cold-flow run', () => {
     // The receipt e-mail is queued for the lab group (student is in G1 alone in this fixture).
     const mail = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${d.id}`))
     expect(mail.map((m) => m.toAddress)).toEqual([fx.student.email])
-    expect(mail[0]!.textBody).toContain('Score: 3 of 10')
+    expect(mail[0]!.textBody).toContain('Score: 3 of 12')
   })
 
   it('staff see the expected values; another student cannot see the submission at all', async () => {

@@ -3,7 +3,9 @@ import { areaFromDiameter, nozzleFlow, tankBlowdown } from '../../shared/physics
 /**
  * A cold-flow log for API tests, from the formula library's blow-down through a nozzle (no noise):
  * 40 L receiver at 700 kPa gauge, throat 6 mm, exit 9 mm, barometer 84 kPa, chamber at 97 % of the
- * receiver pressure. Invented test data, not a measurement.
+ * receiver pressure. Logged as a stand logs a run: half a second at rest before the valve opens
+ * (thrust and chamber at 0), the valve opening over 5 samples, the blow-down, and half a second at
+ * rest after the valve closes. Invented test data, not a measurement.
  */
 export const COLD_FLOW = {
   ambientKPa: 84,
@@ -14,8 +16,13 @@ export const COLD_FLOW = {
   airC: 20,
 }
 
+/** Samples logged at rest before the valve opens and after it closes, and while it opens. */
+const REST_ROWS = 25
+const OPENING_ROWS = 5
+
 export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; step?: number } = {}): { csv: string; t: number[]; thrust: number[]; finalKPaGauge: number } {
   const pa = COLD_FLOW.ambientKPa * 1000
+  const step = opts.step ?? 0.02
   const run = tankBlowdown({
     volume: COLD_FLOW.volumeL / 1000,
     initialPressure: COLD_FLOW.initialKPaGauge * 1000 + pa,
@@ -27,12 +34,10 @@ export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; ste
     gasConstant: 287.05,
     process: 'isothermal',
     duration: opts.duration ?? 6,
-    step: opts.step ?? 0.02,
+    step,
   })
-  const rows = ['time_s,thrust_N,p_receiver_kPa,p_chamber_kPa']
-  const t: number[] = []
-  const thrust: number[] = []
-  let last = 0
+  // Rows of [time, thrust N, receiver kPa gauge, chamber kPa gauge] before rounding.
+  const samples: [number, number, number, number][] = []
   for (let i = 0; i < run.time.length; i++) {
     const pr = run.pressure[i]!
     const pc = 0.97 * pr
@@ -47,15 +52,43 @@ export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; ste
         gamma: 1.4,
         gasConstant: 287.05,
       }).thrust * (opts.thrustScale ?? 1)
+    samples.push([run.time[i]! + (REST_ROWS + OPENING_ROWS) * step, f, (pr - pa) / 1000, (pc - pa) / 1000])
+  }
+  const first = samples[0]!
+  const last = samples[samples.length - 1]!
+  const before: [number, number, number, number][] = []
+  for (let k = 0; k < REST_ROWS + OPENING_ROWS; k++) {
+    const open = k < REST_ROWS ? 0 : (k - REST_ROWS + 1) / (OPENING_ROWS + 1)
+    before.push([k * step, open * first[1], first[2], open * first[3]])
+  }
+  const after: [number, number, number, number][] = []
+  for (let k = 1; k <= REST_ROWS; k++) after.push([last[0] + k * step, 0, last[2], 0])
+
+  const rows = ['time_s,thrust_N,p_receiver_kPa,p_chamber_kPa']
+  const t: number[] = []
+  const thrust: number[] = []
+  for (const [ts, f, pr, pc] of [...before, ...samples, ...after]) {
     // Rounded as a logger would write them; the values in the file are the truth for grading.
-    const ti = Number(run.time[i]!.toFixed(3))
+    const ti = Number(ts.toFixed(3))
     const fi = Number(f.toFixed(3))
     t.push(ti)
     thrust.push(fi)
-    last = (pr - pa) / 1000
-    rows.push(`${ti},${fi},${((pr - pa) / 1000).toFixed(3)},${((pc - pa) / 1000).toFixed(3)}`)
+    rows.push(`${ti},${fi},${pr.toFixed(3)},${pc.toFixed(3)}`)
   }
-  return { csv: rows.join('\n') + '\n', t, thrust, finalKPaGauge: Number(last.toFixed(1)) }
+  return { csv: rows.join('\n') + '\n', t, thrust, finalKPaGauge: Number(last[2].toFixed(1)) }
+}
+
+/**
+ * The peak thrust read as the cold-flow module reads it, written out here independently of the
+ * library: the largest value of a centred 5-sample moving median (the log's zero is 0 N).
+ */
+export function medianPeak(f: number[]): number {
+  let peak = -Infinity
+  for (let i = 2; i < f.length - 2; i++) {
+    const window = f.slice(i - 2, i + 3).sort((a, b) => a - b)
+    peak = Math.max(peak, window[2]!)
+  }
+  return peak
 }
 
 /** The trapezoid rule written out here, independent of the library's totalImpulse. */
@@ -77,7 +110,8 @@ const MAPPING = {
 /**
  * The hand-in form's payload for the cold-flow demo module (content/02): measurements as typed
  * (the initial pressure in psi, to exercise unit conversion), impulse and peak thrust computed
- * independently here, the other results deliberately wrong unless overridden.
+ * independently here (the log's zero is 0 N, so the tared impulse is the plain trapezoid sum), the
+ * other results deliberately wrong unless overridden.
  */
 export function coldFlowPayload(log: ReturnType<typeof coldFlowCsv>, overrides: Record<string, { value: number; unit: string }> = {}) {
   return {
@@ -94,7 +128,9 @@ export function coldFlowPayload(log: ReturnType<typeof coldFlowCsv>, overrides: 
     } as Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>,
     reported: {
       impulse: { value: trapezoid(log.t, log.thrust), unit: 'N*s' },
-      peak_thrust: { value: Math.max(...log.thrust), unit: 'N' },
+      peak_thrust: { value: medianPeak(log.thrust), unit: 'N' },
+      burn_time: { value: 1, unit: 's' },
+      mean_thrust: { value: 1, unit: 'N' },
       cf_mean: { value: 0.5, unit: '1' },
       air_mass: { value: 0.1, unit: 'kg' },
       isp: { value: 10, unit: 's' },

@@ -5,6 +5,7 @@ import { parseLog } from '../../shared/grading/csv'
 import { gradeSubmission } from '../../shared/grading/grade'
 import type { GradeResult } from '../../shared/grading/grade'
 import { valueToSI } from '../../shared/modules/quantities'
+import { areaFromDiameter, idealThrust, reduceThrustRun } from '../../shared/physics'
 
 const assignment = coldFlowAssignment()
 const table = assignment.tables[0]!
@@ -66,6 +67,27 @@ describe('the demo runs', () => {
     }
   })
 
+  it('carry what a real load cell adds: a zero offset of 0.15–0.4 N, a zero that creeps, and a ring at valve opening', () => {
+    const drifts: number[] = []
+    for (const run of runs) {
+      const rows = run.csv.trim().split('\n').slice(1).map((l) => l.split(',').map(Number))
+      const thrust = rows.map((r) => r[1] as number)
+      const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[xs.length >> 1] as number
+      // The first second (the valve opens at 2 s) and the last second (2 s after the flow stops).
+      const before = median(thrust.slice(0, 100))
+      const after = median(thrust.slice(-100))
+      expect(before, run.group).toBeGreaterThan(0.14)
+      expect(before, run.group).toBeLessThan(0.41)
+      drifts.push(Math.abs(after - before))
+      // One sample at valve opening stands far above its neighbours: the largest sample is more
+      // than 5 % above the peak read through a 5-sample moving median.
+      const largest = Math.max(...thrust) - before
+      const smoothed = rows.slice(2, -2).map((_, i) => median(thrust.slice(i, i + 5)))
+      expect(largest / (Math.max(...smoothed) - before), run.group).toBeGreaterThan(1.05)
+    }
+    expect(Math.max(...drifts)).toBeGreaterThan(0.02)
+  })
+
   it('have distinct logs except the copied one, which is byte for byte its original', () => {
     const copy = DEMO_WRONG_RUNS.find((w) => w.copiesGroup)
     expect(copy).toMatchObject({ group: 'A3', copiesGroup: 'A1' })
@@ -83,18 +105,38 @@ describe('grading the demo runs', () => {
     }
   })
 
-  it.each(DEMO_WRONG_RUNS.map((w) => [w.group, w.problem, w.flags] as const))('%s (%s) raises exactly %j', (group, _problem, flags) => {
-    const codes = (results.get(group)?.flags ?? []).map((f) => f.code)
-    expect([...codes].sort()).toEqual([...flags].sort())
-  })
+  it.each(DEMO_WRONG_RUNS.map((w) => [w.group, w.problem, w.flags, w.mayAlso ?? []] as const))(
+    '%s (%s) raises %j and nothing else (but possibly %j)',
+    (group, _problem, flags, mayAlso) => {
+      const codes = (results.get(group)?.flags ?? []).map((f) => f.code)
+      for (const f of flags) expect(codes, group).toContain(f)
+      for (const c of codes) expect([...flags, ...mayAlso], `${group} raised ${c}`).toContain(c)
+    },
+  )
 
-  it('the groups that report carefully get full marks; their small errors stay within tolerance', () => {
+  it('every group whose results come from a careful (tared) reduction gets full marks from the real module and engine', () => {
+    // The reported values are the model's own (noise-free) values with a small human error, worked
+    // out in demo-runs.ts without the grading engine; the engine has only the noisy logs.
     const mistaken = new Set(DEMO_REPORTING_MISTAKES.map((m) => m.group))
-    for (const group of ['A1', 'A3', 'A4', 'B3', 'B4']) {
-      expect(mistaken.has(group)).toBe(false)
+    const careful = DEMO_GROUPS.filter((g) => !mistaken.has(g))
+    expect(careful).toEqual(['A1', 'A3', 'A4', 'B2', 'B3', 'B4'])
+    expect(assignment.results.map((r) => r.key)).toEqual(
+      expect.arrayContaining(['impulse', 'peak_thrust', 'burn_time', 'mean_thrust', 'cf_mean', 'isp']),
+    )
+    for (const group of careful) {
       const r = results.get(group)
       expect(r?.checks.map((c) => [c.key, c.outcome]), group).toEqual(assignment.results.map((s) => [s.key, 'pass']))
       expect(r?.score).toBe(r?.maxScore)
+    }
+  })
+
+  it('a group that reads its peak off the largest logged sample (the ring at valve opening) would fail the peak thrust', () => {
+    for (const run of runs.filter((r) => r.group !== 'B1')) {
+      const parsed = parseLog(run.csv, table, run.mapping)
+      if (!parsed.ok) throw new Error(run.group)
+      const rawPeak = Math.max(...(parsed.columns.thrust as number[]))
+      const r = graded({ ...run, reported: { ...run.reported, peak_thrust: rawPeak } })
+      expect(r.checks.find((c) => c.key === 'peak_thrust')?.outcome, run.group).toBe('fail')
     }
   })
 
@@ -114,17 +156,35 @@ describe('grading the demo runs', () => {
     expect((c?.reported as number) * 9.80665).toBeCloseTo(c?.expected as number, -0.5)
   })
 
-  it('B2, whose chamber pressure is taken as absolute, cannot have its thrust coefficient computed (a zero chamber pressure at rest)', () => {
-    const c = results.get('B2')?.checks.find((x) => x.key === 'cf_mean')
-    expect(c?.outcome).toBe('error')
-    expect(c?.error).toMatch(/select: values\[\d+\] must be a finite number/)
+  it('B2, whose chamber pressure is taken as absolute, gets a thrust coefficient about (p + pa) / p too large, as its own reduction did', () => {
+    const b2 = results.get('B2')?.checks.find((x) => x.key === 'cf_mean')
+    const a4 = results.get('A4')?.checks.find((x) => x.key === 'cf_mean')
+    // Over the run window the chamber averages a few hundred kPa gauge; adding about 84 kPa of
+    // ambient to it lowers C_F by a quarter or so. The stand is the same for every group.
+    const ratio = (b2?.expected as number) / (a4?.expected as number)
+    expect(ratio).toBeGreaterThan(1.15)
+    expect(ratio).toBeLessThan(1.5)
+    expect(b2?.outcome).toBe('pass')
   })
 
   it('B4, with its thrust 1.6 times too large, is about 1.47 times the ideal at its peak', () => {
-    const flag = results.get('B4')?.flags.find((f) => f.code === 'thrust-above-ideal')
-    const ratio = (flag?.detail?.peakThrust as number) / (flag?.detail?.idealThrust as number)
-    // 1.6 × the stand's thrust efficiency of 0.92 = 1.472, give or take the load-cell offset and noise.
-    expect(ratio).toBeGreaterThan(1.45)
-    expect(ratio).toBeLessThan(1.5)
+    const run = runs.find((r) => r.group === 'B4')!
+    const parsed = parseLog(run.csv, table, run.mapping)
+    if (!parsed.ok) throw new Error('B4')
+    const c = parsed.columns as Record<string, number[]>
+    const pa = valueToSI(run.measurements.p_ambient as number, 'kPa')
+    const peak = reduceThrustRun(c.t!, c.thrust!).peakThrust
+    // The chamber column is gauge in Pa here; the peak comes at the highest chamber pressure.
+    const ideal = idealThrust(
+      Math.max(...c.p_chamber!) + pa,
+      pa,
+      areaFromDiameter(valueToSI(run.measurements.d_throat as number, 'mm')),
+      areaFromDiameter(valueToSI(run.measurements.d_exit as number, 'mm')),
+      1.4,
+    )
+    // 1.6 × the stand's thrust efficiency of 0.92 = 1.472, give or take noise and the zero.
+    expect(peak / ideal).toBeGreaterThan(1.44)
+    expect(peak / ideal).toBeLessThan(1.5)
+    expect(results.get('B4')?.flags.map((f) => f.code)).toContain('thrust-above-ideal')
   })
 })

@@ -99,16 +99,19 @@ describe('the demo modules in content/', () => {
 
 // A hand-made cold-flow run whose results can be worked out on paper.
 // Nozzle: 4 mm throat, exit area 1.6875 × throat area, the area ratio of Mach 2 in air.
-// Log: 51 samples, t = 0, 0.2 … 10 s; thrust 0 N at both ends and 10 N in between; chamber at
-// 400 kPa gauge in between (0 at the ends, so those samples are not choked); receiver at 500 kPa.
+// Log: 51 samples, t = 0, 0.2 … 10 s. The load cell reads a zero of 0.5 N at rest (samples 1–5 and
+// 47–51, t = 0–0.8 s and 9.2–10 s) and 0.5 N + the thrust in between (t = 1.0–9.0 s); the chamber
+// transducer reads a zero of 2 kPa gauge at rest and 2 kPa + 400 kPa in between; the receiver reads
+// 500 kPa throughout.
 const D_THROAT_MM = 4
 const D_EXIT_MM = 4 * Math.sqrt(1.6875)
 const T = Array.from({ length: 51 }, (_, i) => i * 0.2)
-const inside = (value: number) => T.map((_, i) => (i === 0 || i === 50 ? 0 : value))
+const running = (i: number) => i >= 5 && i <= 45
+const logged = (zero: number, value: number) => T.map((_, i) => zero + (running(i) ? value : 0))
 
 function coldRun(thrustN: number): SubmissionData {
   return {
-    tables: { run: { t: T, thrust: inside(thrustN), p_receiver: T.map(() => 500), p_chamber: inside(400) } },
+    tables: { run: { t: T, thrust: logged(0.5, thrustN), p_receiver: T.map(() => 500), p_chamber: logged(2, 400) } },
     measurements: {
       p_ambient: 84,
       d_throat: D_THROAT_MM,
@@ -120,6 +123,16 @@ function coldRun(thrustN: number): SubmissionData {
     },
   }
 }
+
+// The reduction of that run by hand, for a tared thrust of F N in the run:
+// - zeros: 0.5 N before and after (medians of the resting samples); tared thrust 0 at rest, F in the run;
+// - peak F; window at 5 % of F: it opens between t = 0.8 s (0) and 1.0 s (F) at 0.8 + 0.2·0.05 = 0.81 s
+//   and closes between 9.0 s (F) and 9.2 s (0) at 9.0 + 0.2·0.95 = 9.19 s: run time 8.38 s;
+// - impulse over the whole log: 40 intervals of 0.2 s at F plus two edge intervals of 0.2·F/2 = 8.2·F N·s;
+// - inside the window: 0.19 s from 0.05F to F twice, 0.19·1.05F/2 each, plus 8·F: 8.1995·F N·s;
+// - chamber: zero 2 kPa taken, so 84 kPa absolute at rest and 484 kPa in the run; inside the window
+//   0.19·(104 + 484)/2 twice (104 kPa = 84 + 0.05·400 at the window's ends) plus 8·484 = 3983.72 kPa·s.
+const hand = (F: number) => ({ impulse: 8.2 * F, peak: F, runTime: 8.38, window: 8.1995 * F, chamberIntegral: 3_983_720 })
 
 describe('the cold-flow module grades a run worked out by hand', () => {
   const assignment = assignmentOf('02-cold-flow-characterisation.md')
@@ -134,26 +147,30 @@ describe('the cold-flow module grades a run worked out by hand', () => {
     return evaluateExpression(r.when, buildExpressionScope(assignment, data, { withResults: true }))
   }
   const run = coldRun(10)
+  const h = hand(10)
 
-  // Trapezoid: 0.2·(0 + 10)/2 at each end plus 48 intervals of 0.2 s at 10 N = 1 + 1 + 96 N·s.
-  const impulse = 98
   // Both receiver readings at 20 °C: m = (600 − 100) kPa · 50 L / (287.05 J/(kg K) · 293.15 K).
   const airMass = (500_000 * 0.05) / (287.05 * 293.15)
-  // Absolute chamber pressure 484 kPa; throat area π·(4 mm)²/4.
+  // Throat area π·(4 mm)²/4.
   const throatArea = (Math.PI * 0.004 ** 2) / 4
 
-  it('total impulse, peak thrust and mass of air', () => {
-    expectClose(expected('impulse', run) as number, impulse, 1e-12)
-    expect(expected('peak_thrust', run)).toBe(10)
+  it('total impulse and peak thrust come from the tared thrust (the 0.5 N zero taken out)', () => {
+    expectClose(expected('impulse', run) as number, h.impulse, 1e-12)
+    expectClose(expected('peak_thrust', run) as number, 10, 1e-12)
     expectClose(expected('air_mass', run) as number, airMass, 1e-12)
   })
 
-  it('the mean thrust coefficient over the choked samples leaves out the two unchoked ends', () => {
-    expectClose(expected('cf_mean', run) as number, 10 / (484_000 * throatArea), 1e-12)
+  it('run time and mean thrust come from the window where the tared thrust is above 5 % of its peak', () => {
+    expectClose(expected('burn_time', run) as number, h.runTime, 1e-12)
+    expectClose(expected('mean_thrust', run) as number, h.window / h.runTime, 1e-12)
   })
 
-  it('specific impulse = I / (m g0)', () => {
-    expectClose(expected('isp', run) as number, impulse / (airMass * 9.80665), 1e-12)
+  it('the thrust coefficient is ∫F dt / (At ∫p0 dt) over the run window, with the chamber zero taken', () => {
+    expectClose(expected('cf_mean', run) as number, h.window / (throatArea * h.chamberIntegral), 1e-12)
+  })
+
+  it('specific impulse = I / (m g0), with the tared impulse', () => {
+    expectClose(expected('isp', run) as number, h.impulse / (airMass * 9.80665), 1e-12)
   })
 
   it('at 484 kPa against 84 kPa the Mach-2 nozzle is over-expanded (code 3) with exit Mach 2', () => {
@@ -163,29 +180,28 @@ describe('the cold-flow module grades a run worked out by hand', () => {
     expect(expected('regime', run)).toBe(3)
   })
 
-  it('flags a thrust above 1.1 × the ideal thrust and passes one below it', () => {
+  const results = { impulse: 82, peak_thrust: 10, burn_time: 8.38, mean_thrust: 9.78, cf_mean: 1.64, air_mass: 0.297, isp: 28.1, exit_mach: 2, regime: 3 }
+
+  it('flags a tared peak thrust above 1.1 × the ideal thrust and passes one below it', () => {
     // Ideal C_F at Mach 2, pe/p0 = 0.1278, pa/p0 = 84/484:
     // √(2γ²/(γ−1) · (2/(γ+1))^((γ+1)/(γ−1)) · (1 − (pe/p0)^((γ−1)/γ))) + (pe/p0 − pa/p0)·ε = 1.1306,
     // so the ideal thrust is 1.1306 · 484 kPa · At = 6.876 N and the flag is raised above 7.564 N.
-    const withResults = (data: SubmissionData) => ({ ...data, results: { impulse: 98, peak_thrust: 10, cf_mean: 1.6, air_mass: 0.3, isp: 34, exit_mach: 2, regime: 3 } })
-    expect(rule('thrust_above_ideal', withResults(coldRun(10)))).toBe(true)
-    expect(rule('thrust_above_ideal', withResults(coldRun(7.5)))).toBe(false)
+    expect(rule('thrust_above_ideal', { ...coldRun(10), results })).toBe(true)
+    expect(rule('thrust_above_ideal', { ...coldRun(7.5), results })).toBe(false)
   })
 
   it('review rules that look at the reported results', () => {
-    const reported = { impulse: 98, peak_thrust: 10, cf_mean: 1.6, air_mass: 0.297, isp: 33.6, exit_mach: 2, regime: 3 }
     // √(2 · 1004.675 J/(kg K) · 293.15 K) / g0 = 78.3 s is the vacuum limit for 20 °C air.
-    expect(rule('isp_above_limit', { ...run, results: reported })).toBe(false)
-    expect(rule('isp_above_limit', { ...run, results: { ...reported, isp: 80 } })).toBe(true)
-    expect(rule('mach_regime_mismatch', { ...run, results: reported })).toBe(false)
-    expect(rule('mach_regime_mismatch', { ...run, results: { ...reported, exit_mach: 0.5 } })).toBe(true)
-    expect(rule('mach_regime_mismatch', { ...run, results: { ...reported, regime: 2 } })).toBe(true)
+    expect(rule('isp_above_limit', { ...run, results })).toBe(false)
+    expect(rule('isp_above_limit', { ...run, results: { ...results, isp: 80 } })).toBe(true)
+    expect(rule('mach_regime_mismatch', { ...run, results })).toBe(false)
+    expect(rule('mach_regime_mismatch', { ...run, results: { ...results, exit_mach: 0.5 } })).toBe(true)
+    expect(rule('mach_regime_mismatch', { ...run, results: { ...results, regime: 2 } })).toBe(true)
   })
 
   it('review rules on the data alone', () => {
-    const results = { impulse: 98, peak_thrust: 10, cf_mean: 1.6, air_mass: 0.297, isp: 33.6, exit_mach: 2, regime: 3 }
     expect(rule('chamber_above_receiver', { ...run, results })).toBe(false)
-    const swapped = { ...run, results, tables: { run: { ...run.tables.run!, p_receiver: inside(400), p_chamber: T.map(() => 500) } } }
+    const swapped = { ...run, results, tables: { run: { ...run.tables.run!, p_receiver: logged(2, 400), p_chamber: T.map(() => 500) } } }
     expect(rule('chamber_above_receiver', swapped)).toBe(true)
     expect(rule('receiver_not_emptied', { ...run, results })).toBe(false)
     expect(rule('receiver_not_emptied', { ...run, results, measurements: { ...run.measurements, p_final: 600 } })).toBe(true)
@@ -195,7 +211,7 @@ describe('the cold-flow module grades a run worked out by hand', () => {
 describe('the hot-fire module grades a run worked out by hand', () => {
   const assignment = assignmentOf('03-hot-fire.md')
   const data: SubmissionData = {
-    tables: { run: { t: T, thrust: inside(15), p_receiver: T.map(() => 500), p_chamber: inside(400) } },
+    tables: { run: { t: T, thrust: logged(0.5, 15), p_receiver: T.map(() => 500), p_chamber: logged(2, 400) } },
     measurements: {
       p_ambient: 84,
       d_throat: D_THROAT_MM,
@@ -211,13 +227,20 @@ describe('the hot-fire module grades a run worked out by hand', () => {
   const scope = buildExpressionScope(assignment, data)
   const expected = (key: string) => evaluateExpression(assignment.results.find((r) => r.key === key)?.expected ?? '', scope)
 
-  // Trapezoid: 1.5 + 1.5 + 48 · 0.2 · 15 = 147 N·s. Fuel 20 g = 0.02 kg.
-  const impulse = 147
+  // The same run as the cold-flow one with 15 N of tared thrust: impulse 8.2 · 15 = 123 N·s. Fuel 20 g.
+  const h = hand(15)
   const airMass = (500_000 * 0.05) / (287.05 * 293.15)
-  const ispHot = impulse / ((airMass + 0.02) * 9.80665)
+  const ispHot = h.impulse / ((airMass + 0.02) * 9.80665)
+
+  it('impulse, peak, run time, mean thrust and thrust coefficient come from the tared run', () => {
+    expectClose(expected('impulse') as number, h.impulse, 1e-12)
+    expectClose(expected('peak_thrust') as number, 15, 1e-12)
+    expectClose(expected('burn_time') as number, h.runTime, 1e-12)
+    expectClose(expected('mean_thrust') as number, h.window / h.runTime, 1e-12)
+    expectClose(expected('cf') as number, h.window / (((Math.PI * 0.004 ** 2) / 4) * h.chamberIntegral), 1e-12)
+  })
 
   it('specific impulse counts air and fuel as propellant', () => {
-    expectClose(expected('impulse') as number, impulse, 1e-12)
     expectClose(expected('mixture_ratio') as number, airMass / 0.02, 1e-12)
     expectClose(expected('isp_hot') as number, ispHot, 1e-12)
   })
@@ -228,7 +251,7 @@ describe('the hot-fire module grades a run worked out by hand', () => {
   })
 
   it('flags a hot run no better than cold flow, and a very rich mixture', () => {
-    const reported = { impulse, peak_thrust: 15, air_mass: airMass, mixture_ratio: 14.9, isp_hot: ispHot, isp_ratio: 1.18, t_effective: 410 }
+    const reported = { impulse: h.impulse, peak_thrust: 15, burn_time: 8.38, mean_thrust: 14.7, cf: 2.5, air_mass: airMass, mixture_ratio: 14.9, isp_hot: ispHot, isp_ratio: 1.18, t_effective: 410 }
     const withResults = (results: Record<string, number>) =>
       buildExpressionScope(assignment, { ...data, results }, { withResults: true })
     const when = (key: string) => assignment.reviewRules.find((r) => r.key === key)?.when ?? ''

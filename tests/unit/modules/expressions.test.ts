@@ -1,3 +1,4 @@
+import { all, create } from 'mathjs'
 import { afterEach, describe, expect, it } from 'vitest'
 import {
   ExpressionError,
@@ -302,5 +303,32 @@ describe('the expression sandbox', () => {
     const fn = (expressionMath as unknown as Record<string, (...args: unknown[]) => unknown>)[name]
     expect(typeof fn).toBe('function')
     expect(() => fn?.('1')).toThrow(`${name} is disabled in module expressions`)
+  })
+})
+
+describe('max and min of a logged column', () => {
+  // A plain mathjs instance, without the expression engine's direct loops, is the reference.
+  const reference = create(all!)
+
+  it('give exactly what mathjs gives, nearly-equal values and all', () => {
+    const columns: number[][] = [
+      Array.from({ length: 5000 }, (_, i) => Math.sin(i / 100) * 1e5 + i * 1e-3),
+      [1, 1 + 1e-14, 0.5, 1 - 1e-14],
+      [-3, -3 - 1e-13, -2.9999999999999, -3.1],
+      [42],
+      [0, -0, 1e-300, -1e-300],
+    ]
+    for (const xs of columns) {
+      expect(evaluateExpression('max(xs)', { xs })).toBe(reference.max(xs))
+      expect(evaluateExpression('min(xs)', { xs })).toBe(reference.min(xs))
+    }
+  })
+
+  it('leave lists with an infinite value, several arguments and empty lists to mathjs', () => {
+    // 2/0 is Infinity, the largest; −2/0 is −Infinity, the smallest.
+    expect(evaluateExpression('max(xs ./ ys) > 1e300', { xs: [1, 2, 3], ys: [1, 0, 1] })).toBe(true)
+    expect(evaluateExpression('min(xs ./ ys) < -1e300', { xs: [1, -2, 3], ys: [1, 0, 1] })).toBe(true)
+    expect(evaluateExpression('max(1, 7, 3)', {})).toBe(7)
+    expect(evaluationError('max(select(xs, xs > 5))', { xs: [1, 2] }).message).toContain('empty')
   })
 })

@@ -25,6 +25,10 @@ describe('the formula library barrel', () => {
       'meanValue',
       'peakValue',
       'areaFromDiameter',
+      'reduceThrustRun',
+      'tareAlongRun',
+      'windowMean',
+      'windowIntegral',
     ]
     const exported = physics as Record<string, unknown>
     for (const name of functions) expect(typeof exported[name], name).toBe('function')
