@@ -5,7 +5,7 @@
  */
 import type { Assignment } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
-import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust } from '../physics'
+import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust, nozzlePressureRatios } from '../physics'
 import type { GradeFlag } from './grade'
 import { roleKeys } from './roles'
 import type { RoleKeys } from './roles'
@@ -70,6 +70,29 @@ export const TIME_GAP_FACTOR = 5
 export const MIN_THRUST_SAMPLES = 20
 /** Thrust above this fraction of the peak counts as "during the run" for {@link MIN_THRUST_SAMPLES}. */
 export const THRUST_ACTIVE_FRACTION = 0.05
+
+/**
+ * A run whose thrust, while the nozzle is choked, is below this fraction of the ideal thrust for
+ * the logged chamber pressure is flagged: 40 %. A real nozzle gives most of the ideal (85–98 %;
+ * even a poor, separated one well over half of it), while a load cell logged in kgf and read as
+ * newtons gives 1/9.80665 ≈ 10 % of the true thrust and one logged in lbf 1/4.448 ≈ 22 % (the
+ * factors are unit definitions, NIST SP 811). 40 % sits between the two with room on both sides.
+ * Common practice, no published source.
+ */
+export const THRUST_BELOW_IDEAL_FRACTION = 0.4
+/**
+ * Samples of the centred moving median that thrust and chamber pressure are read through for the
+ * thrust-below-ideal check, so that one ringing or dropped sample cannot decide it.
+ */
+export const THRUST_BELOW_IDEAL_MEDIAN = 5
+/** Fewest choked samples the thrust-below-ideal check judges a run on; with fewer it says nothing. */
+export const THRUST_BELOW_IDEAL_MIN_SAMPLES = 10
+/**
+ * At most this many choked samples, evenly spread over the choked part of the run, are compared
+ * with the ideal thrust: the ideal needs the area–Mach relation solved for each, and the median of
+ * 200 ratios is as good a verdict as that of 50 000.
+ */
+export const THRUST_BELOW_IDEAL_SAMPLES = 200
 
 // ---------------------------------------------------------------------------------------------
 // Built-in data checks.
@@ -198,6 +221,8 @@ export function dataFlags(assignment: Assignment, data: SubmissionData, scope: R
   if (gap) flags.push(gap)
   const few = tooFewSamples(d)
   if (few) flags.push(few)
+  const below = thrustBelowIdeal(d)
+  if (below) flags.push(below)
   return flags
 }
 
@@ -331,3 +356,68 @@ function tooFewSamples(d: RoleData): GradeFlag | undefined {
   }
 }
 
+
+/** Median of the samples within `half` of index i (fewer at the ends of the log). */
+function windowMedian(xs: readonly number[], i: number, half: number): number {
+  const window = xs.slice(Math.max(0, i - half), Math.min(xs.length, i + half + 1))
+  window.sort((a, b) => a - b)
+  const mid = window.length >> 1
+  return window.length % 2 === 1 ? (window[mid] as number) : ((window[mid - 1] as number) + (window[mid] as number)) / 2
+}
+
+/**
+ * Thrust far below the ideal while the nozzle is choked: the signature of a force unit read wrong
+ * (kgf or lbf taken as newtons). Judged on the median of F / F_ideal over the choked part of the
+ * run (pa/p0 below the nozzle's choke limit), thrust and chamber pressure each read through a short
+ * moving median; the start and end of the run, where the valve moves, do not sway a median.
+ */
+function thrustBelowIdeal(d: RoleData): GradeFlag | undefined {
+  const { thrust, chamber, ambient, throatArea, exitArea } = d
+  if (!thrust || !chamber || ambient === undefined || throatArea === undefined || exitArea === undefined) return undefined
+  if (!(ambient > 0) || !(exitArea >= throatArea)) return undefined
+  let chokeLimit: number
+  try {
+    chokeLimit = nozzlePressureRatios(exitArea / throatArea, CHECK_GAMMA).chokeLimit
+  } catch (error) {
+    if (error instanceof RangeError) return undefined
+    throw error
+  }
+  // Choked while pa/p0 < chokeLimit, that is p0 above this.
+  const chokedAbove = ambient / chokeLimit
+  const candidates: number[] = []
+  for (let i = 0; i < chamber.length; i++) if ((chamber[i] as number) > chokedAbove) candidates.push(i)
+  if (candidates.length < THRUST_BELOW_IDEAL_MIN_SAMPLES) return undefined
+  const half = THRUST_BELOW_IDEAL_MEDIAN >> 1
+  const stride = Math.max(1, candidates.length / THRUST_BELOW_IDEAL_SAMPLES)
+  const ratios: number[] = []
+  const used: number[] = []
+  for (let k = 0; k < candidates.length; k += stride) {
+    const i = candidates[Math.floor(k)] as number
+    const p0 = windowMedian(chamber, i, half)
+    if (!(p0 > chokedAbove)) continue
+    const ideal = idealAt(p0, d)
+    if (ideal === undefined || !(ideal > 0)) continue
+    ratios.push(windowMedian(thrust, i, half) / ideal)
+    used.push(i)
+  }
+  if (ratios.length < THRUST_BELOW_IDEAL_MIN_SAMPLES) return undefined
+  const ratio = median(ratios)
+  if (!(ratio < THRUST_BELOW_IDEAL_FRACTION)) return undefined
+  const first = used[0] as number
+  const last = used[used.length - 1] as number
+  const when = d.time ? ` (t = ${fmt(d.time[first] as number)} to ${fmt(d.time[last] as number)} s)` : ''
+  return {
+    code: 'thrust-below-ideal',
+    message:
+      `While the nozzle was choked${when}, the logged thrust was only about ${fmt(ratio * 100)} % of the ideal thrust for the logged chamber pressure, where a real nozzle gives most of it (85–98 %). ` +
+      'So low a thrust usually means a unit mistake: a load cell logged in kgf but read as newtons gives 1/9.81 (about 10 %) of the true thrust, one logged in lbf 1/4.45 (about 22 %). ' +
+      "Check the unit chosen for the thrust column, then the load cell's calibration.",
+    detail: {
+      ratio,
+      chokedSamples: candidates.length,
+      comparedSamples: ratios.length,
+      ...(d.time ? { from: d.time[first] as number, to: d.time[last] as number } : {}),
+      threshold: THRUST_BELOW_IDEAL_FRACTION,
+    },
+  }
+}

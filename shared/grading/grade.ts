@@ -34,7 +34,9 @@ export const FLAG_CODES = [
   'chamber-above-receiver',
   'time-gap',
   'too-few-samples',
+  'thrust-below-ideal',
   'identical-file',
+  'near-copy',
   'expression-failed',
 ] as const
 export type BuiltInFlagCode = (typeof FLAG_CODES)[number]
