@@ -39,6 +39,7 @@ export const LIBRARY_FUNCTIONS: Readonly<Record<string, Arity>> = {
   meanValue: between(1, 2),
   peakValue: exactly(1),
   areaFromDiameter: exactly(1),
+  idealSpecificImpulse: exactly(5),
 }
 
 /**

@@ -38,3 +38,4 @@ export {
   peakValue,
 } from './reduction'
 export { areaFromDiameter, diameterFromArea } from './geometry'
+export { idealExhaustVelocity, idealSpecificImpulse } from './exhaust'

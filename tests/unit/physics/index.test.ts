@@ -25,6 +25,8 @@ describe('the formula library barrel', () => {
       'meanValue',
       'peakValue',
       'areaFromDiameter',
+      'idealExhaustVelocity',
+      'idealSpecificImpulse',
     ]
     const exported = physics as Record<string, unknown>
     for (const name of functions) expect(typeof exported[name], name).toBe('function')
