@@ -276,6 +276,32 @@ export const PartialCreditSchema = z.strictObject({
   fraction: z.number().min(0, 'a fraction of the points, from 0 to 1').max(1, 'a fraction of the points, from 0 to 1'),
 })
 
+/** Margin of the regime check when a module sets none: 2 % of pa/p0 either side of a boundary. */
+export const DEFAULT_REGIME_MARGIN = 0.02
+
+/**
+ * Declares a result to be a nozzle's expansion regime, reported as a code (1 subsonic, 2 shock in
+ * the nozzle, 3 over-expanded, 4 ideal, 5 under-expanded; `regimeCode(…)` gives it). The hand-in
+ * form then offers the regimes by name, and the check also accepts the neighbouring code when
+ * pa/p0 lies within `margin` of the boundary between the two regimes (the boundaries follow from
+ * the area ratio and γ: nozzlePressureRatios). The two expressions are evaluated over the
+ * submission's data like `expected`.
+ */
+export const RegimeSpecSchema = z.strictObject({
+  /** pa/p0 at the moment the regime is asked about, e.g. `p_ambient / max(p_chamber)`. */
+  pressureRatio: ExpressionTextSchema,
+  /** The nozzle's exit-to-throat area ratio, e.g. `(d_exit / d_throat)^2`. */
+  areaRatio: ExpressionTextSchema,
+  /** Ratio of specific heats the boundaries are worked out with. */
+  gamma: z.number().gt(1, 'gamma must be greater than 1 (air: 1.4)').default(1.4),
+  /** Relative margin around each boundary, 0–0.2 (0.02 = 2 %); 0 asks for the exact code. */
+  margin: z
+    .number()
+    .min(0, 'the regime margin is a fraction from 0 to 0.2 (0.02 = 2 %)')
+    .max(0.2, 'the regime margin is a fraction from 0 to 0.2 (0.02 = 2 %)')
+    .default(DEFAULT_REGIME_MARGIN),
+})
+
 export const ResultSpecSchema = z
   .strictObject({
     key: KeySchema,
@@ -286,8 +312,17 @@ export const ResultSpecSchema = z
     tolerance: ToleranceSchema,
     points: z.number().positive('points must be greater than 0'),
     partial: PartialCreditSchema.optional(),
+    /** This result is an expansion-regime code; see {@link RegimeSpecSchema}. */
+    regime: RegimeSpecSchema.optional(),
   })
-  .superRefine((r, ctx) => checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected'))
+  .superRefine((r, ctx) => {
+    checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected')
+    if (r.regime) {
+      checkExpressionLength(`result "${r.key}" (regime pressure ratio)`, r.regime.pressureRatio, ctx, 'regime')
+      checkExpressionLength(`result "${r.key}" (regime area ratio)`, r.regime.areaRatio, ctx, 'regime')
+      if (r.unit !== DIMENSIONLESS) ctx.addIssue({ code: 'custom', path: ['unit'], message: `a regime code is a pure number: use unit '${DIMENSIONLESS}'` })
+    }
+  })
 
 export const ReviewRuleSchema = z
   .strictObject({
@@ -465,4 +500,5 @@ export type MeasurementSpec = z.output<typeof MeasurementSchema>
 export type ResultSpec = z.output<typeof ResultSpecSchema>
 export type ReviewRule = z.output<typeof ReviewRuleSchema>
 export type Tolerance = z.output<typeof ToleranceSchema>
+export type RegimeSpec = z.output<typeof RegimeSpecSchema>
 export type ResultsVisibility = (typeof RESULTS_VISIBILITY)[number]

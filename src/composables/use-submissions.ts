@@ -8,6 +8,7 @@ import { computed, onScopeDispose, reactive, ref, shallowRef, watch } from 'vue'
 import type { ComputedRef, Ref, ShallowRef } from 'vue'
 import { z } from 'zod'
 import { parseDecimal, parseLog, sniffBinary, suggestMapping } from '@shared/grading/csv'
+import { regimeCodeProblem } from '@shared/grading/regime'
 import type { ColumnMappingEntry, LogIssue, LogParseResult } from '@shared/grading/csv'
 import { DIMENSIONLESS, dataUnitKind, isPressureUnit, valueFromSI } from '@shared/modules/quantities'
 import { MeasurementSchema, ResultSpecSchema, TableSchema } from '@shared/modules/schema'
@@ -86,7 +87,13 @@ export function useSubmissionPage(courseId: Ref<number>, submissionId: Ref<numbe
 // ---------------------------------------------------------------------------------------------
 // The assignment as a student receives it (expected-value expressions and review rules removed).
 
-const StudentResultSchema = ResultSpecSchema.partial({ expected: true })
+// Built from the shape: zod refuses .partial() on a schema with refinements, and a student's copy
+// lacks the grading expressions (the expected value, the regime's ratios) the refinements check.
+const StudentResultSchema = z.object({
+  ...ResultSpecSchema.shape,
+  expected: ResultSpecSchema.shape.expected.optional(),
+  regime: z.object({ margin: z.number().optional() }).optional(),
+})
 
 const StudentAssignmentSchema = z.object({
   tables: z.array(TableSchema).default([]),
@@ -408,6 +415,7 @@ export function useHandInForm(assignment: StudentAssignment) {
 
   function resultProblem(r: StudentResultSpec): string | null {
     const e = results[r.key]
+    if (r.regime) return !e || e.text === '' ? `${r.label}: choose the regime.` : regimeCodeProblem(r.label, Number(e.text))
     if (!e || e.text.trim() === '') return `${r.label}: enter your result.`
     if (Number.isNaN(typedNumber(e.text))) return `${r.label}: “${e.text.trim()}” is not a number; write it with a point for decimals, like 0.672.`
     if (!isCompatibleUnit(e.unit, r.unit)) return `${r.label}: ${unitText(e.unit)} is not a unit of the right kind; choose another unit.`

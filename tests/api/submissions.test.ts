@@ -115,6 +115,18 @@ describe('handing in a cold-flow run', () => {
   })
 })
 
+describe('the module as a student reads it', () => {
+  it('a regime result keeps only its margin: the grading expressions stay with staff', async () => {
+    const asStudent = await student.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}`).expect(200)
+    const regime = asStudent.body.frontMatter.assignment.results.find((r: { key: string }) => r.key === 'regime')
+    expect(regime.regime).toEqual({ margin: 0.02 })
+    expect(regime.expected).toBeUndefined()
+    const asStaff = await inst.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}`).expect(200)
+    const full = asStaff.body.frontMatter.assignment.results.find((r: { key: string }) => r.key === 'regime')
+    expect(full.regime.pressureRatio).toBe('p_ambient / max(p_chamber)')
+  })
+})
+
 describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () => {
   let other: CreatedModule
   let count = 0
@@ -216,6 +228,13 @@ describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () =>
     body.measurements.d_throat = { value: 60, unit: 'mm' }
     const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
     expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'measurements.d_throat', message: expect.stringMatching(/maximum/) }))
+  })
+
+  it('a regime that is not one of the five', async () => {
+    const body = payload(log)
+    body.reported.regime = { value: 7, unit: '1' }
+    const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
+    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'reported.regime', message: expect.stringMatching(/choose one of the regimes/) }))
   })
 
   it('a missing file and a malformed payload', async () => {
