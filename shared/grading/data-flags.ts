@@ -3,9 +3,10 @@
  * wrong (thrust above the ideal for the logged chamber pressure, a pressure logged in the other
  * sense, the chamber above the receiver that feeds it, gaps in the clock, too few samples).
  */
-import type { Assignment } from '../modules/schema'
+import type { Assignment, ColumnSpec } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust, nozzlePressureRatios } from '../physics'
+import { UNITS, isUnitSymbol } from '../units'
 import type { GradeFlag } from './grade'
 import { roleKeys } from './roles'
 import type { RoleKeys } from './roles'
@@ -51,12 +52,18 @@ export const LOOKS_GAUGE_BELOW = 0.25
 export const LOOKS_ABSOLUTE_BAND = 0.2
 
 /**
- * The chamber may read above the receiver that feeds it by at most this fraction of the peak
- * receiver pressure (absolute), and at least {@link CHAMBER_ABOVE_RECEIVER_FLOOR}, before it is
- * flagged: twice the error of two ±1 % transducers.
+ * Error of a pressure transducer as a fraction of its full scale when the module gives none
+ * (`fullScaleError` on the column): ±1 %, a teaching stand's usual grade.
  */
-export const CHAMBER_ABOVE_RECEIVER_MARGIN = 0.02
-/** Smallest margin of the chamber-above-receiver check, Pa: noise at rest must not trip it. */
+export const TRANSDUCER_FULL_SCALE_ERROR = 0.01
+/**
+ * The chamber may read above the receiver that feeds it by at most the two transducers' errors
+ * added together — each `fullScaleError` (default {@link TRANSDUCER_FULL_SCALE_ERROR}) × its
+ * `fullScale` as the module declares them — and at least {@link CHAMBER_ABOVE_RECEIVER_FLOOR},
+ * before it is flagged. A column without a declared full scale counts its largest absolute
+ * reading as one (a transducer's span is at least what it logged), which gives less room than
+ * the real span would.
+ */
 export const CHAMBER_ABOVE_RECEIVER_FLOOR = 5000
 
 /** A step between samples longer than this multiple of the median step is a gap in the log. */
@@ -290,6 +297,19 @@ function pressureSense(data: SubmissionData, d: RoleData, which: 'chamber' | 're
   return undefined
 }
 
+/**
+ * A pressure transducer's error band, Pa: its error fraction × its full scale in Pa (the span, so
+ * gauge or absolute does not matter), or × the largest reading when the module declares no full scale.
+ */
+function transducerError(spec: ColumnSpec | undefined, peakReading: number): number {
+  const fraction = spec?.fullScaleError ?? TRANSDUCER_FULL_SCALE_ERROR
+  if (spec?.fullScale !== undefined && isUnitSymbol(spec.unit)) {
+    const unit = UNITS[spec.unit]
+    return fraction * Math.abs(unit.toSI(spec.fullScale) - unit.toSI(0))
+  }
+  return fraction * Math.max(0, peakReading)
+}
+
 function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
   const { chamber, receiver } = d
   if (!chamber || !receiver || chamber.length === 0) return undefined
@@ -300,12 +320,18 @@ function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
     if ((receiver[i] as number) > peakReceiver) peakReceiver = receiver[i] as number
   }
   const excess = (chamber[worst] as number) - (receiver[worst] as number)
-  const margin = Math.max(CHAMBER_ABOVE_RECEIVER_MARGIN * peakReceiver, CHAMBER_ABOVE_RECEIVER_FLOOR)
+  let peakChamber = -Infinity
+  for (const p of chamber) if (p > peakChamber) peakChamber = p
+  const margin = Math.max(
+    transducerError(d.keys.table?.columns.find((c) => c.key === d.keys.chamberPressure), peakChamber) +
+      transducerError(d.keys.table?.columns.find((c) => c.key === d.keys.receiverPressure), peakReceiver),
+    CHAMBER_ABOVE_RECEIVER_FLOOR,
+  )
   if (!(excess > margin)) return undefined
   const at = d.time ? ` at t = ${fmt(d.time[worst] as number)} s` : ''
   return {
     code: 'chamber-above-receiver',
-    message: `The chamber pressure reads ${kPa(excess)} above the receiver pressure that feeds it${at} (${kPa(chamber[worst] as number)} against ${kPa(receiver[worst] as number)}, absolute). Air flows from the receiver to the chamber, so the chamber cannot be higher: check whether the two pressure columns are swapped or one is gauge and the other absolute.`,
+    message: `The chamber pressure reads ${kPa(excess)} above the receiver pressure that feeds it${at} (${kPa(chamber[worst] as number)} against ${kPa(receiver[worst] as number)}, absolute), more than the ${kPa(margin)} the two transducers' error allows. Air flows from the receiver to the chamber, so the chamber cannot be higher: check whether the two pressure columns are swapped or one is gauge and the other absolute.`,
     detail: {
       sample: worst + 1,
       ...(d.time ? { time: d.time[worst] as number } : {}),

@@ -185,10 +185,25 @@ export const ColumnSchema = z
     role: z
       .enum(COLUMN_ROLES, { message: `a column role is one of ${COLUMN_ROLES.join(', ')}` })
       .optional(),
+    /**
+     * The instrument's full scale (its span), in the column's unit, e.g. 1000 for a 0–1000 kPa
+     * transducer. The chamber-above-receiver check allows each pressure transducer's error,
+     * `fullScaleError` × full scale, instead of guessing it from the largest reading.
+     */
+    fullScale: z.number().positive('the full scale is the span of the instrument, greater than 0, in the column unit').optional(),
+    /** The instrument's error as a fraction of its full scale, 0–0.2; left out, 0.01 (±1 % of full scale). */
+    fullScaleError: z
+      .number()
+      .min(0, 'the full-scale error is a fraction from 0 to 0.2 (0.01 = ±1 % of full scale)')
+      .max(0.2, 'the full-scale error is a fraction from 0 to 0.2 (0.01 = ±1 % of full scale)')
+      .optional(),
   })
   .superRefine((column, ctx) => {
     checkPressureSense(column, ctx)
     checkRoleUnit(column, ctx)
+    if (column.fullScaleError !== undefined && column.fullScale === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['fullScaleError'], message: 'a full-scale error needs the full scale too: add "fullScale"' })
+    }
   })
 
 export const TableSchema = z
