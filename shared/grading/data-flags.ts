@@ -54,16 +54,15 @@ export const LOOKS_ABSOLUTE_BAND = 0.2
 /**
  * Error of a pressure transducer as a fraction of its full scale when the module gives none
  * (`fullScaleError` on the column): ±1 %, a teaching stand's usual grade.
+ *
+ * The chamber may read above the receiver that feeds it by at most the two transducers' errors
+ * added together — each `fullScaleError` × its `fullScale` as the module declares them — and at
+ * least {@link CHAMBER_ABOVE_RECEIVER_FLOOR}, before it is flagged. A column without a declared
+ * full scale counts its largest absolute reading as one (a transducer's span is at least what it
+ * logged), which gives less room than the real span would.
  */
 export const TRANSDUCER_FULL_SCALE_ERROR = 0.01
-/**
- * The chamber may read above the receiver that feeds it by at most the two transducers' errors
- * added together — each `fullScaleError` (default {@link TRANSDUCER_FULL_SCALE_ERROR}) × its
- * `fullScale` as the module declares them — and at least {@link CHAMBER_ABOVE_RECEIVER_FLOOR},
- * before it is flagged. A column without a declared full scale counts its largest absolute
- * reading as one (a transducer's span is at least what it logged), which gives less room than
- * the real span would.
- */
+/** Smallest margin of the chamber-above-receiver check, Pa: noise at rest must not trip it. */
 export const CHAMBER_ABOVE_RECEIVER_FLOOR = 5000
 
 /** A step between samples longer than this multiple of the median step is a gap in the log. */
@@ -381,7 +380,6 @@ function tooFewSamples(d: RoleData): GradeFlag | undefined {
     detail: { samples: active, needed: MIN_THRUST_SAMPLES },
   }
 }
-
 
 /** Median of the samples within `half` of index i (fewer at the ends of the log). */
 function windowMedian(xs: readonly number[], i: number, half: number): number {

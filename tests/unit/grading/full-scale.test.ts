@@ -6,7 +6,7 @@ import type { SubmissionData } from '../../../shared/modules/scope'
 import { cleanLog, rolesAssignment, withColumn } from './fixtures'
 
 /** The roles assignment with full scales (and errors) declared on the two pressure columns. */
-function withFullScale(chamber: Record<string, number>, receiver: Record<string, number>): Assignment {
+function withFullScale(chamber: Record<string, number | string>, receiver: Record<string, number | string>): Assignment {
   const base = rolesAssignment()
   const table = base.tables[0]!
   return AssignmentSchema.parse({
