@@ -96,7 +96,7 @@ function median5At(xs: readonly number[], i: number): number {
 }
 
 /** The value below which a share q of the samples lies (nearest rank). */
-function quantile(sorted: readonly number[], q: number): number {
+function quantile(sorted: Float64Array, q: number): number {
   return sorted[Math.min(sorted.length - 1, Math.max(0, Math.round(q * (sorted.length - 1))))] as number
 }
 
@@ -106,7 +106,8 @@ function quantile(sorted: readonly number[], q: number): number {
  * crossing interpolated between samples. A flat column gives its first sample.
  */
 function runStart(time: readonly number[], values: readonly number[]): { index: number; time: number } {
-  const sorted = [...values].sort((a, b) => a - b)
+  // A typed array sorts numerically, several times faster than an array with a comparator.
+  const sorted = Float64Array.from(values).sort()
   const low = quantile(sorted, 0.05)
   const high = quantile(sorted, 0.95)
   if (!(high > low)) return { index: 0, time: time[0] as number }
@@ -182,18 +183,70 @@ export function logFingerprint(table: TableSpec, columns: Readonly<Record<string
 // ---------------------------------------------------------------------------------------------
 // Comparing two fingerprints.
 
-function detail(xs: readonly number[]): number[] {
-  const out: number[] = []
-  for (let i = 1; i < xs.length - 1; i++) out.push((xs[i] as number) - ((xs[i - 1] as number) + (xs[i + 1] as number)) / 2)
-  return out
+function medianOf(xs: ArrayLike<number>): number {
+  const s = Float64Array.from(xs).sort()
+  const mid = s.length >> 1
+  return s.length % 2 === 1 ? (s[mid] as number) : ((s[mid - 1] as number) + (s[mid] as number)) / 2
 }
 
-function pearson(x: readonly number[], y: readonly number[], keep?: readonly boolean[]): number {
+/** One column of a fingerprint, readied for comparison: its detail and how that detail is spread. */
+interface PreparedColumn {
+  values: readonly number[]
+  resolution: number
+  /** detail[k] belongs to sample k + 1: x[k+1] − (x[k] + x[k+2])/2. */
+  detail: Float64Array
+  /** Median and robust standard deviation (MAD × 1.4826) of the detail. */
+  centre: number
+  spread: number
+  /** Whether the detail is noise (see {@link NOISE_LIKE_AUTOCORRELATION}). */
+  noise: boolean
+}
+
+/** Far-out detail values (an edited digit, the valve opening) lie beyond this many robust standard deviations. */
+const FAR_OUT = 6
+
+function prepare(values: readonly number[], resolution: number): PreparedColumn {
+  const n = Math.max(0, values.length - 2)
+  const detail = new Float64Array(n)
+  for (let k = 0; k < n; k++) detail[k] = (values[k + 1] as number) - ((values[k] as number) + (values[k + 2] as number)) / 2
+  const centre = n ? medianOf(detail) : 0
+  const spread = n ? 1.4826 * medianOf(detail.map((v) => Math.abs(v - centre))) : 0
+  // Lag-1 autocorrelation over the values that are not far out: −2/3 for white noise, near +1 for a smooth curve.
+  const inside = (v: number) => Math.abs(v - centre) <= FAR_OUT * spread
+  const first: number[] = []
+  const second: number[] = []
+  for (let k = 0; k + 1 < n; k++) {
+    if (!inside(detail[k] as number) || !inside(detail[k + 1] as number)) continue
+    first.push(detail[k] as number)
+    second.push(detail[k + 1] as number)
+  }
+  const lag1 = spread > 0 ? pearson(Float64Array.from(first), Float64Array.from(second), new Uint8Array(first.length).fill(1)) : Number.NaN
+  const noise = lag1 <= NOISE_LIKE_AUTOCORRELATION
+  return { values, resolution, detail, centre, spread, noise }
+}
+
+/**
+ * A fingerprint's columns readied for comparison, kept while the fingerprint object lives: the
+ * server compares one new log with every other log of the module, and readies the new one once.
+ */
+const PREPARED = new WeakMap<LogFingerprint, Map<string, PreparedColumn>>()
+
+function prepared(fp: LogFingerprint): Map<string, PreparedColumn> {
+  let columns = PREPARED.get(fp)
+  if (!columns) {
+    columns = new Map(Object.entries(fp.columns).map(([k, v]) => [k, prepare(v, fp.resolution[k] ?? 0)]))
+    PREPARED.set(fp, columns)
+  }
+  return columns
+}
+
+/** Pearson correlation of the pairs (x[i], y[i]) that `keep` allows. */
+function pearson(x: Float64Array, y: Float64Array, keep: Uint8Array): number {
   let n = 0
   let sx = 0
   let sy = 0
   for (let i = 0; i < x.length; i++) {
-    if (keep && !keep[i]) continue
+    if (!keep[i]) continue
     n++
     sx += x[i] as number
     sy += y[i] as number
@@ -205,7 +258,7 @@ function pearson(x: readonly number[], y: readonly number[], keep?: readonly boo
   let syy = 0
   let sxy = 0
   for (let i = 0; i < x.length; i++) {
-    if (keep && !keep[i]) continue
+    if (!keep[i]) continue
     const dx = (x[i] as number) - mx
     const dy = (y[i] as number) - my
     sxx += dx * dx
@@ -215,74 +268,68 @@ function pearson(x: readonly number[], y: readonly number[], keep?: readonly boo
   return sxx > 0 && syy > 0 ? sxy / Math.sqrt(sxx * syy) : Number.NaN
 }
 
-function medianOf(xs: readonly number[]): number {
-  const s = [...xs].sort((a, b) => a - b)
-  const mid = s.length >> 1
-  return s.length % 2 === 1 ? (s[mid] as number) : ((s[mid - 1] as number) + (s[mid] as number)) / 2
-}
-
-/** Leaves out the `count` largest scores (marks them false in `keep`). */
-function dropLargest(scores: readonly number[], keep: boolean[], count: number): void {
-  const order = scores.map((s, i) => [s, i] as const).filter(([, i]) => keep[i]).sort((a, b) => b[0] - a[0])
-  for (const [, i] of order.slice(0, count)) keep[i] = false
-}
-
 /**
- * Correlation with the samples that disagree most left out: first those far out in either series
- * (robust z-scores: a large edit), then those farthest from the straight-line relation between
- * the two standardised series (a smaller edit). Each step drops {@link NEAR_COPY_TRIM} of them.
+ * Correlation of two details with the pairs that disagree most left out, in two steps: pairs with
+ * either value far out (beyond {@link FAR_OUT} robust standard deviations: a large edit, the valve
+ * opening), then pairs far from the straight-line relation between the two standardised series
+ * (a smaller edit). At most {@link NEAR_COPY_TRIM} of the pairs go at each step, so two unrelated
+ * series cannot be trimmed into agreement.
  */
-function trimmedCorrelation(x: readonly number[], y: readonly number[]): number {
-  const n = x.length
-  const count = Math.ceil(NEAR_COPY_TRIM * n)
-  const keep = new Array<boolean>(n).fill(true)
-  const mx = medianOf(x)
-  const my = medianOf(y)
-  const sx = medianOf(x.map((v) => Math.abs(v - mx))) || 1
-  const sy = medianOf(y.map((v) => Math.abs(v - my))) || 1
-  dropLargest(x.map((v, i) => Math.max(Math.abs(v - mx) / sx, Math.abs((y[i] as number) - my) / sy)), keep, count)
+function trimmedCorrelation(a: PreparedColumn, b: PreparedColumn, from: number, to: number, lag: number): number {
+  const n = to - from
+  const x = a.detail.subarray(from, to)
+  const y = b.detail.subarray(from + lag, to + lag)
+  const keep = new Uint8Array(n).fill(1)
+  const allowed = Math.ceil(NEAR_COPY_TRIM * n)
+  let dropped = 0
+  for (let i = 0; i < n && dropped < allowed; i++) {
+    if (Math.abs((x[i] as number) - a.centre) > FAR_OUT * a.spread || Math.abs((y[i] as number) - b.centre) > FAR_OUT * b.spread) {
+      keep[i] = 0
+      dropped++
+    }
+  }
   const r = pearson(x, y, keep)
-  if (Number.isNaN(r)) return r
-  // Standardise on the kept samples and measure each pair's distance from the line v = ±u.
-  const kx: number[] = []
-  const ky: number[] = []
+  // Two honest runs stay near 0 here, a copy whose large edits are gone far above 0.5 (a handful
+  // of smaller edits cannot pull it lower): the second step is only for those, and cheap runs skip it.
+  if (!(Math.abs(r) >= 0.5)) return r
+  // Standardise both on the kept pairs; a pair's distance from the line v = ±u is its residual.
+  let k = 0
+  let mx = 0
+  let my = 0
   for (let i = 0; i < n; i++) {
     if (!keep[i]) continue
-    kx.push(x[i] as number)
-    ky.push(y[i] as number)
+    k++
+    mx += x[i] as number
+    my += y[i] as number
   }
-  const ax = kx.reduce((s, v) => s + v, 0) / kx.length
-  const ay = ky.reduce((s, v) => s + v, 0) / ky.length
-  const dx = Math.sqrt(kx.reduce((s, v) => s + (v - ax) ** 2, 0) / kx.length) || 1
-  const dy = Math.sqrt(ky.reduce((s, v) => s + (v - ay) ** 2, 0) / ky.length) || 1
+  mx /= k
+  my /= k
+  let vx = 0
+  let vy = 0
+  for (let i = 0; i < n; i++) {
+    if (!keep[i]) continue
+    vx += ((x[i] as number) - mx) ** 2
+    vy += ((y[i] as number) - my) ** 2
+  }
+  const dx = Math.sqrt(vx / k)
+  const dy = Math.sqrt(vy / k)
   const sign = r < 0 ? -1 : 1
-  dropLargest(x.map((v, i) => Math.abs(((y[i] as number) - ay) / dy - (sign * (v - ax)) / dx)), keep, count)
+  const residual = new Float64Array(n)
+  for (let i = 0; i < n; i++) residual[i] = Math.abs(((y[i] as number) - my) / dy - (sign * ((x[i] as number) - mx)) / dx)
+  const kept = residual.filter((_, i) => keep[i] === 1)
+  const limit = FAR_OUT * 1.4826 * medianOf(kept)
+  const second = Math.ceil(NEAR_COPY_TRIM * n)
+  let gone = 0
+  for (let i = 0; i < n && gone < second; i++) {
+    if (keep[i] && (residual[i] as number) > limit) {
+      keep[i] = 0
+      gone++
+    }
+  }
   return pearson(x, y, keep)
 }
 
-/**
- * Whether a detail series is noise: its lag-1 autocorrelation, over the samples within 5 robust
- * standard deviations (MAD × 1.4826) of its median, is at most {@link NOISE_LIKE_AUTOCORRELATION}.
- * The few large values where the valve opens or a sample was edited are left out, as they are
- * from the correlation.
- */
-function isNoiseLike(xs: readonly number[]): boolean {
-  const m = medianOf(xs)
-  const scale = 1.4826 * medianOf(xs.map((v) => Math.abs(v - m)))
-  if (!(scale > 0)) return false
-  const inside = xs.map((v) => Math.abs(v - m) <= 5 * scale)
-  const a: number[] = []
-  const b: number[] = []
-  for (let i = 0; i + 1 < xs.length; i++) {
-    if (!inside[i] || !inside[i + 1]) continue
-    a.push(xs[i] as number)
-    b.push(xs[i + 1] as number)
-  }
-  return pearson(a, b) <= NOISE_LIKE_AUTOCORRELATION
-}
-
-function roundedShare(a: readonly number[], b: readonly number[], qa: number, qb: number): { share: number; distinct: number } {
-  const q = Math.max(qa, qb)
+function roundedShare(a: readonly number[], b: readonly number[], q: number): { share: number; distinct: number } {
   let same = 0
   const distinct = new Set<number>()
   for (let i = 0; i < a.length; i++) {
@@ -300,27 +347,20 @@ function roundedShare(a: readonly number[], b: readonly number[], qa: number, qb
   return { share: a.length ? same / a.length : 0, distinct: distinct.size }
 }
 
-/** How one column pair compares, with b's window shifted by `lag` samples against a's. */
-function compareColumn(key: string, a: LogFingerprint, b: LogFingerprint, lag: number): ColumnMatch | null {
-  const xa = a.columns[key]
-  const xb = b.columns[key]
-  if (!xa || !xb) return null
+/** How one column pair compares, with b's samples shifted by `lag` against a's. */
+function compareColumn(key: string, a: PreparedColumn, b: PreparedColumn, lag: number): ColumnMatch | null {
   const from = Math.max(0, -lag)
-  const to = Math.min(xa.length, xb.length - lag)
+  const to = Math.min(a.values.length, b.values.length - lag)
   if (to - from < NEAR_COPY_MIN_OVERLAP) return null
-  const pa = xa.slice(from, to)
-  const pb = xb.slice(from + lag, to + lag)
-  const rounded = roundedShare(pa, pb, a.resolution[key] ?? 0, b.resolution[key] ?? 0)
-  const da = detail(pa)
-  const db = detail(pb)
-  const noise = isNoiseLike(da) && isNoiseLike(db)
-  const correlation = noise ? trimmedCorrelation(da, db) : null
-  const c = correlation === null || Number.isNaN(correlation) ? null : correlation
+  const rounded = roundedShare(a.values.slice(from, to), b.values.slice(from + lag, to + lag), Math.max(a.resolution, b.resolution))
   if (rounded.distinct >= MIN_DISTINCT_VALUES && rounded.share >= NEAR_COPY_ROUNDED_SHARE) {
-    return { key, roundedShare: rounded.share, correlation: c, how: 'rounded' }
+    return { key, roundedShare: rounded.share, correlation: null, how: 'rounded' }
   }
-  if (c !== null && Math.abs(c) > NEAR_COPY_CORRELATION) return { key, roundedShare: rounded.share, correlation: c, how: 'correlated' }
-  return null
+  if (!a.noise || !b.noise) return null
+  // Details exist for samples 1 … n−2 of each window.
+  const c = trimmedCorrelation(a, b, Math.max(0, -lag), Math.min(a.detail.length, b.detail.length - lag), lag)
+  if (Number.isNaN(c) || !(Math.abs(c) > NEAR_COPY_CORRELATION)) return null
+  return { key, roundedShare: rounded.share, correlation: c, how: 'correlated' }
 }
 
 /** The lag (in samples) that puts b's window on a's common time base: the same relative times. */
@@ -356,6 +396,9 @@ export function nearCopy(a: LogFingerprint, b: LogFingerprint): NearCopy | null 
   if (a.version !== 1 || b.version !== 1) return null
   const base = baseLag(a, b)
   if (base === null) return null
+  const keys = Object.keys(a.columns).filter((k) => b.columns[k])
+  const pa = prepared(a)
+  const pb = prepared(b)
   // The median step of a's window: a lag is on the common time base when the paired samples'
   // relative times differ by less than a couple of steps (by nothing at all for a copy).
   const steps = a.times.slice(1).map((t, i) => t - (a.times[i] as number))
@@ -366,12 +409,13 @@ export function nearCopy(a: LogFingerprint, b: LogFingerprint): NearCopy | null 
     const paired = b.times[mid + lag]
     if (paired === undefined || !(Math.abs(paired - (a.times[mid] as number)) <= 2.5 * step)) continue
     const matches: ColumnMatch[] = []
-    for (const key of Object.keys(a.columns)) {
-      const m = compareColumn(key, a, b, lag)
+    for (const key of keys) {
+      const m = compareColumn(key, pa.get(key) as PreparedColumn, pb.get(key) as PreparedColumn, lag)
       if (m) matches.push(m)
     }
     if (matches.length > (best?.columns.length ?? 0)) {
       best = { columns: matches, samples: Math.min(a.times.length, b.times.length - lag) - Math.max(0, -lag) }
+      if (matches.length === keys.length) break
     }
   }
   return best
