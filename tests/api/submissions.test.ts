@@ -278,7 +278,16 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
     return signedInAs(ctx, email)
   }
 
+  /**
+   * The hand-in's flags once its grading job has finished: the copy check runs after the grade is
+   * saved, and the receipt e-mail is queued after it, so the receipt marks the end.
+   */
   async function flagsOf(submissionId: number) {
+    await expect
+      .poll(async () => (await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${submissionId}`))).length, {
+        timeout: 30_000,
+      })
+      .toBeGreaterThan(0)
     return ctx.handle.db.select().from(submissionFlags).where(eq(submissionFlags.submissionId, submissionId))
   }
 
