@@ -12,6 +12,7 @@
  */
 import {
   BAR,
+  GRAM_FORCE,
   INCH,
   KILOGRAM_FORCE,
   POUND_FORCE,
@@ -47,7 +48,7 @@ function linear(kind: UnitKind, name: string, siPerUnit: number): UnitDefinition
 /**
  * The unit table, keyed by the symbol a person types. Factors (SI per unit):
  * Pa 1, kPa 1e3, MPa 1e6, bar 1e5, psi 4.4482216152605/0.00064516 (= 6894.757293168…),
- * atm 101325; N 1, kN 1e3, kgf 9.80665, lbf 4.4482216152605; m 1, mm 1e-3, cm 1e-2, in 0.0254;
+ * atm 101325; N 1, kN 1e3, kgf 9.80665, gf 0.00980665, lbf 4.4482216152605; m 1, mm 1e-3, cm 1e-2, in 0.0254;
  * m2 1, mm2 1e-6, cm2 1e-4, in2 0.00064516; m3 1, L 1e-3, gal (US) 0.003785411784;
  * K: K, degC: K = °C + 273.15, degF: K = (°F + 459.67)·5/9; kg 1, g 1e-3, lb 0.45359237;
  * s 1, ms 1e-3.
@@ -62,6 +63,7 @@ export const UNITS = {
   N: linear('force', 'newton', 1),
   kN: linear('force', 'kilonewton', 1e3),
   kgf: linear('force', 'kilogram-force', KILOGRAM_FORCE),
+  gf: linear('force', 'gram-force', GRAM_FORCE),
   lbf: linear('force', 'pound-force', POUND_FORCE),
   m: linear('length', 'metre', 1),
   mm: linear('length', 'millimetre', 1e-3),
@@ -151,7 +153,7 @@ export function unitKind(symbol: UnitSymbol): UnitKind {
  * @param kind - a unit kind
  * @returns the symbols of that kind
  * @example
- * unitsOfKind('force') // ['N', 'kN', 'kgf', 'lbf']
+ * unitsOfKind('force') // ['N', 'kN', 'kgf', 'gf', 'lbf']
  */
 export function unitsOfKind(kind: UnitKind): UnitSymbol[] {
   return SYMBOLS.filter((s) => UNITS[s].kind === kind)

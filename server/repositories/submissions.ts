@@ -1,3 +1,4 @@
+import type { LogFingerprint } from '../../shared/grading/fingerprint'
 import type { SubmissionStatus } from '../../shared/schemas/submissions'
 import { and, asc, count, desc, eq, ne, or, sql } from 'drizzle-orm'
 import type { Executor } from '../db/client'
@@ -124,6 +125,8 @@ export async function insertFile(
     mapping: Record<string, ColumnMappingRow>
     parsed: Record<string, number[]>
     rowCount: number
+    /** See shared/grading/fingerprint.ts; null (or left out) for a log that has none. */
+    fingerprint?: LogFingerprint | null
   },
 ): Promise<number> {
   const [row] = await tx.insert(submissionFiles).values(f).$returningId()
@@ -238,6 +241,51 @@ export async function findIdenticalFiles(
     .limit(5)
 }
 
+/** Most fingerprints one near-copy check reads: the newest hand-ins of the module first. */
+export const MAX_NEAR_COPY_CANDIDATES = 500
+
+/**
+ * The fingerprints of the module's other logs of one table that belong to someone else (another
+ * person and group), newest first. A null fingerprint is a file stored before fingerprints existed.
+ */
+export async function findFingerprintsInModule(
+  db: Executor,
+  moduleId: number,
+  tableKey: string,
+  owner: { userId: number; labGroupId: number | null },
+): Promise<{ fileId: number; submissionId: number; submittedBy: string; labGroupName: string | null; sha256: string; fingerprint: LogFingerprint | null }[]> {
+  const notMine =
+    owner.labGroupId !== null
+      ? and(ne(submissions.userId, owner.userId), or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`))
+      : ne(submissions.userId, owner.userId)
+  return db
+    .select({
+      fileId: submissionFiles.id,
+      submissionId: submissions.id,
+      submittedBy: users.displayName,
+      labGroupName: labGroups.name,
+      sha256: submissionFiles.sha256,
+      fingerprint: submissionFiles.fingerprint,
+    })
+    .from(submissionFiles)
+    .innerJoin(submissions, eq(submissions.id, submissionFiles.submissionId))
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .leftJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+    .where(and(eq(submissions.moduleId, moduleId), eq(submissionFiles.tableKey, tableKey), notMine))
+    .orderBy(desc(submissions.id))
+    .limit(MAX_NEAR_COPY_CANDIDATES)
+}
+
+/** The parsed columns of one stored file (to fingerprint a file stored before fingerprints existed). */
+export async function findParsedColumns(db: Executor, fileId: number): Promise<Record<string, number[]> | null> {
+  const rows = await db.select({ parsed: submissionFiles.parsed }).from(submissionFiles).where(eq(submissionFiles.id, fileId)).limit(1)
+  return rows[0]?.parsed ?? null
+}
+
+export async function setFingerprint(db: Executor, fileId: number, fingerprint: LogFingerprint): Promise<void> {
+  await db.update(submissionFiles).set({ fingerprint }).where(eq(submissionFiles.id, fileId))
+}
+
 export async function listOwnerSubmissions(db: Executor, moduleId: number, owner: Owner): Promise<(SubmissionRow & { flagCount: number })[]> {
   const rows = await db
     .select({ ...cols, flagCount: sql<number>`(SELECT COUNT(*) FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id})`.mapWith(Number) })
@@ -283,6 +331,7 @@ export async function listFiles(db: Executor, submissionId: number) {
       sha256: submissionFiles.sha256,
       mapping: submissionFiles.mapping,
       parsed: submissionFiles.parsed,
+      fingerprint: submissionFiles.fingerprint,
     })
     .from(submissionFiles)
     .where(eq(submissionFiles.submissionId, submissionId))

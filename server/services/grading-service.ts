@@ -1,5 +1,7 @@
+import { logFingerprint, nearCopy, nearCopyMessage } from '../../shared/grading/fingerprint'
+import type { LogFingerprint, NearCopy } from '../../shared/grading/fingerprint'
 import type { GradeInput, GradeResult } from '../../shared/grading/grade'
-import type { ModuleFrontMatter } from '../../shared/modules/schema'
+import type { ModuleFrontMatter, TableSpec } from '../../shared/modules/schema'
 import { valueToSI } from '../../shared/modules/quantities'
 import { GRADING_FAILED_MESSAGE } from '../../shared/schemas/submissions'
 import { toSpecUnit } from '../../shared/typed-values'
@@ -13,7 +15,15 @@ import { claimGradingJobs, releaseStaleGradingClaims, requeueGradingJob } from '
 import type { GradingClaim } from '../repositories/grading-jobs'
 import { findVersion } from '../repositories/modules'
 import type { CheckWrite, FlagWrite } from '../repositories/submissions'
-import { findIdenticalFiles, findSubmissionById, listFiles, saveGrade } from '../repositories/submissions'
+import {
+  findFingerprintsInModule,
+  findIdenticalFiles,
+  findParsedColumns,
+  findSubmissionById,
+  listFiles,
+  saveGrade,
+  setFingerprint,
+} from '../repositories/submissions'
 import { enqueueMail } from '../repositories/outbox'
 import type { NewMail } from '../repositories/outbox'
 import { readingSense } from './hand-in-validation'
@@ -155,26 +165,69 @@ export async function runGradingJob(db: Database, ctx: GradingContext, claim: Gr
   }
   const flags: FlagWrite[] = [
     ...result.flags.map((f) => ({ code: f.code, message: f.message, detail: f.detail ?? null })),
-    ...(await identicalFileFlags(db, s)),
+    ...(await copyFlags(db, s, fm)),
   ]
   const grade = { status: 'graded' as const, gradingError: null, rawScore: result.rawScore, score: result.score, maxScore: result.maxScore }
   return (await saveOutcome(db, ctx, claim, grade, checkWrites(result), flags)) ? 'graded' : 'superseded'
 }
 
-/** A file byte-identical to another person's or group's in this course is for staff to look at. */
-async function identicalFileFlags(db: Database, s: { id: number; courseId: number; userId: number; labGroupId: number | null }): Promise<FlagWrite[]> {
+/**
+ * A file byte-identical to another person's or group's in this course is for staff to look at;
+ * so is a near-copy of another's log of the same module (an edited digit, shifted time, other
+ * units: see shared/grading/fingerprint.ts), found by comparing the logs' stored fingerprints.
+ * Read before the grade is written, and written with it.
+ */
+async function copyFlags(
+  db: Database,
+  s: { id: number; courseId: number; moduleId: number; userId: number; labGroupId: number | null },
+  fm: ModuleFrontMatter | null,
+): Promise<FlagWrite[]> {
   const flags: FlagWrite[] = []
+  const owner = { userId: s.userId, labGroupId: s.labGroupId }
   for (const f of await listFiles(db, s.id)) {
-    const same = await findIdenticalFiles(db, s.courseId, f.sha256, { userId: s.userId, labGroupId: s.labGroupId })
-    if (!same.length) continue
-    const who = same.map((x) => x.labGroupName ?? x.submittedBy).join(', ')
+    const same = await findIdenticalFiles(db, s.courseId, f.sha256, owner)
+    if (same.length) {
+      const who = same.map((x) => x.labGroupName ?? x.submittedBy).join(', ')
+      flags.push({
+        code: 'identical-file',
+        message: `The uploaded file ${f.filename} is byte-for-byte identical to a file handed in by ${who}.`,
+        detail: { otherSubmissionId: same[0]!.submissionId },
+      })
+      continue
+    }
+    const table = fm?.assignment?.tables.find((t) => t.key === f.tableKey)
+    if (!table) continue
+    const mine = f.fingerprint ?? logFingerprint(table, f.parsed)
+    if (!mine) continue
+    const others = await findFingerprintsInModule(db, s.moduleId, f.tableKey, owner)
+    const copied: { who: string; submissionId: number; match: NearCopy }[] = []
+    for (const o of others) {
+      if (o.sha256 === f.sha256) continue
+      const theirs = o.fingerprint ?? (await backfillFingerprint(db, o.fileId, table))
+      const match = theirs && nearCopy(mine, theirs)
+      if (match) copied.push({ who: o.labGroupName ?? o.submittedBy, submissionId: o.submissionId, match })
+    }
+    const first = copied[0]
+    if (!first) continue
+    const who = [...new Set(copied.map((c) => c.who))].join(', ')
     flags.push({
-      code: 'identical-file',
-      message: `The uploaded file ${f.filename} is byte-for-byte identical to a file handed in by ${who}.`,
-      detail: { otherSubmissionId: same[0]!.submissionId },
+      code: 'near-copy',
+      message: nearCopyMessage(f.filename, who, first.match),
+      detail: {
+        otherSubmissionId: first.submissionId,
+        columns: first.match.columns.map((c) => `${c.key} (${c.how})`).join(', '),
+      },
     })
   }
   return flags
+}
+
+/** The fingerprint of a file stored before fingerprints existed, computed once and kept. */
+async function backfillFingerprint(db: Database, fileId: number, table: TableSpec): Promise<LogFingerprint | null> {
+  const parsed = await findParsedColumns(db, fileId)
+  const fp = parsed ? logFingerprint(table, parsed) : null
+  if (fp) await setFingerprint(db, fileId, fp)
+  return fp
 }
 
 /** Errors that come from the database (or the way to it), as opposed to the data being graded. */

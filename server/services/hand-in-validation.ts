@@ -1,6 +1,7 @@
 import type { ModuleFrontMatter, TableSpec } from '../../shared/modules/schema'
 import { parseLog, sniffBinary } from '../../shared/grading/csv'
 import { clip, count } from '../../shared/grading/csv-limits'
+import { regimeCodeProblem } from '../../shared/grading/regime'
 import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, valueFromSI } from '../../shared/modules/quantities'
 import type { SubmissionFieldIssue, SubmissionPayload } from '../../shared/schemas/submissions'
 import { isCompatibleUnit, toSpecSense, toSpecUnit } from '../../shared/typed-values'
@@ -169,6 +170,11 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
     const value = toSpecUnit(typed.value, typed.unit, r.unit)
     if (!Number.isFinite(value)) {
       issues.push({ field, message: tooLargeIn(r.label, typed.value, typed.unit, r.unit) })
+      continue
+    }
+    const notARegime = r.regime ? regimeCodeProblem(r.label, value) : null
+    if (notARegime) {
+      issues.push({ field, message: notARegime })
       continue
     }
     reported[r.key] = value

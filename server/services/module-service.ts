@@ -91,13 +91,18 @@ export async function listModules(db: Database, e: CourseEnrollment): Promise<Mo
   }))
 }
 
-/** Strips what students must not see from the front matter: the grading expressions and review rules. */
+/**
+ * Strips what students must not see from the front matter: the grading expressions (a regime
+ * result keeps only its margin, so the form still knows to offer the regimes) and review rules.
+ */
 function studentFrontMatter(fm: Record<string, unknown> | null): Record<string, unknown> | null {
   if (!fm) return null
   const assignment = fm.assignment as Record<string, unknown> | undefined
   if (!assignment) return fm
   const results = Array.isArray(assignment.results)
-    ? (assignment.results as Record<string, unknown>[]).map(({ expected: _e, ...rest }) => rest)
+    ? (assignment.results as Record<string, unknown>[]).map(({ expected: _e, regime, ...rest }) =>
+        regime && typeof regime === 'object' ? { ...rest, regime: { margin: (regime as { margin?: unknown }).margin } } : rest,
+      )
     : assignment.results
   const { reviewRules: _r, ...restAssignment } = assignment
   return { ...fm, assignment: { ...restAssignment, results } }

@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto'
+import { logFingerprint } from '../../shared/grading/fingerprint'
 import { chartSeries } from '../../shared/grading/grade'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { GRADING_FAILED_MESSAGE } from '../../shared/schemas/submissions'
@@ -186,6 +187,7 @@ export async function submitHandIn(
         mapping: f.mapping,
         parsed: f.columns,
         rowCount: f.rowCount,
+        fingerprint: logFingerprint(f.table, f.columns),
       })
     }
     return { id, attempt: used + 1 }

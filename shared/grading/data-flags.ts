@@ -3,9 +3,10 @@
  * wrong (thrust above the ideal for the logged chamber pressure, a pressure logged in the other
  * sense, the chamber above the receiver that feeds it, gaps in the clock, too few samples).
  */
-import type { Assignment } from '../modules/schema'
+import type { Assignment, ColumnSpec } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
-import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust, nozzleFlow } from '../physics'
+import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust, nozzleFlow, nozzlePressureRatios } from '../physics'
+import { UNITS, isUnitSymbol } from '../units'
 import type { GradeFlag } from './grade'
 import { roleKeys } from './roles'
 import type { RoleKeys } from './roles'
@@ -60,11 +61,16 @@ export const LOOKS_GAUGE_BELOW = 0.25
 export const LOOKS_ABSOLUTE_BAND = 0.2
 
 /**
- * The chamber may read above the receiver that feeds it by at most this fraction of the peak
- * receiver pressure (absolute), and at least {@link CHAMBER_ABOVE_RECEIVER_FLOOR}, before it is
- * flagged: twice the error of two ±1 % transducers.
+ * Error of a pressure transducer as a fraction of its full scale when the module gives none
+ * (`fullScaleError` on the column): ±1 %, a teaching stand's usual grade.
+ *
+ * The chamber may read above the receiver that feeds it by at most the two transducers' errors
+ * added together — each `fullScaleError` × its `fullScale` as the module declares them — and at
+ * least {@link CHAMBER_ABOVE_RECEIVER_FLOOR}, before it is flagged. A column without a declared
+ * full scale counts its largest absolute reading as one (a transducer's span is at least what it
+ * logged), which gives less room than the real span would.
  */
-export const CHAMBER_ABOVE_RECEIVER_MARGIN = 0.02
+export const TRANSDUCER_FULL_SCALE_ERROR = 0.01
 /** Smallest margin of the chamber-above-receiver check, Pa: noise at rest must not trip it. */
 export const CHAMBER_ABOVE_RECEIVER_FLOOR = 5000
 
@@ -79,6 +85,29 @@ export const TIME_GAP_FACTOR = 5
 export const MIN_THRUST_SAMPLES = 20
 /** Thrust above this fraction of the peak counts as "during the run" for {@link MIN_THRUST_SAMPLES}. */
 export const THRUST_ACTIVE_FRACTION = 0.05
+
+/**
+ * A run whose thrust, while the nozzle is choked, is below this fraction of the ideal thrust for
+ * the logged chamber pressure is flagged: 40 %. A real nozzle gives most of the ideal (85–98 %;
+ * even a poor, separated one well over half of it), while a load cell logged in kgf and read as
+ * newtons gives 1/9.80665 ≈ 10 % of the true thrust and one logged in lbf 1/4.448 ≈ 22 % (the
+ * factors are unit definitions, NIST SP 811). 40 % sits between the two with room on both sides.
+ * Common practice, no published source.
+ */
+export const THRUST_BELOW_IDEAL_FRACTION = 0.4
+/**
+ * Samples of the centred moving median that thrust and chamber pressure are read through for the
+ * thrust-below-ideal check, so that one ringing or dropped sample cannot decide it.
+ */
+export const THRUST_BELOW_IDEAL_MEDIAN = 5
+/** Fewest choked samples the thrust-below-ideal check judges a run on; with fewer it says nothing. */
+export const THRUST_BELOW_IDEAL_MIN_SAMPLES = 10
+/**
+ * At most this many choked samples, evenly spread over the choked part of the run, are compared
+ * with the ideal thrust: the ideal needs the area–Mach relation solved for each, and the median of
+ * 200 ratios is as good a verdict as that of 50 000.
+ */
+export const THRUST_BELOW_IDEAL_SAMPLES = 200
 
 // ---------------------------------------------------------------------------------------------
 // Built-in data checks.
@@ -207,6 +236,8 @@ export function dataFlags(assignment: Assignment, data: SubmissionData, scope: R
   if (gap) flags.push(gap)
   const few = tooFewSamples(d)
   if (few) flags.push(few)
+  const below = thrustBelowIdeal(d)
+  if (below) flags.push(below)
   return flags
 }
 
@@ -342,6 +373,19 @@ function pressureSense(data: SubmissionData, d: RoleData, which: 'chamber' | 're
   return undefined
 }
 
+/**
+ * A pressure transducer's error band, Pa: its error fraction × its full scale in Pa (the span, so
+ * gauge or absolute does not matter), or × the largest reading when the module declares no full scale.
+ */
+function transducerError(spec: ColumnSpec | undefined, peakReading: number): number {
+  const fraction = spec?.fullScaleError ?? TRANSDUCER_FULL_SCALE_ERROR
+  if (spec?.fullScale !== undefined && isUnitSymbol(spec.unit)) {
+    const unit = UNITS[spec.unit]
+    return fraction * Math.abs(unit.toSI(spec.fullScale) - unit.toSI(0))
+  }
+  return fraction * Math.max(0, peakReading)
+}
+
 function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
   const { chamber, receiver } = d
   if (!chamber || !receiver || chamber.length === 0) return undefined
@@ -352,12 +396,18 @@ function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
     if ((receiver[i] as number) > peakReceiver) peakReceiver = receiver[i] as number
   }
   const excess = (chamber[worst] as number) - (receiver[worst] as number)
-  const margin = Math.max(CHAMBER_ABOVE_RECEIVER_MARGIN * peakReceiver, CHAMBER_ABOVE_RECEIVER_FLOOR)
+  let peakChamber = -Infinity
+  for (const p of chamber) if (p > peakChamber) peakChamber = p
+  const margin = Math.max(
+    transducerError(d.keys.table?.columns.find((c) => c.key === d.keys.chamberPressure), peakChamber) +
+      transducerError(d.keys.table?.columns.find((c) => c.key === d.keys.receiverPressure), peakReceiver),
+    CHAMBER_ABOVE_RECEIVER_FLOOR,
+  )
   if (!(excess > margin)) return undefined
   const at = d.time ? ` at t = ${fmt(d.time[worst] as number)} s` : ''
   return {
     code: 'chamber-above-receiver',
-    message: `The chamber pressure reads ${kPa(excess)} above the receiver pressure that feeds it${at} (${kPa(chamber[worst] as number)} against ${kPa(receiver[worst] as number)}, absolute). Air flows from the receiver to the chamber, so the chamber cannot be higher: check whether the two pressure columns are swapped or one is gauge and the other absolute.`,
+    message: `The chamber pressure reads ${kPa(excess)} above the receiver pressure that feeds it${at} (${kPa(chamber[worst] as number)} against ${kPa(receiver[worst] as number)}, absolute), more than the ${kPa(margin)} the two transducers' error allows. Air flows from the receiver to the chamber, so the chamber cannot be higher: check whether the two pressure columns are swapped or one is gauge and the other absolute.`,
     detail: {
       sample: worst + 1,
       ...(d.time ? { time: d.time[worst] as number } : {}),
@@ -408,3 +458,67 @@ function tooFewSamples(d: RoleData): GradeFlag | undefined {
   }
 }
 
+/** Median of the samples within `half` of index i (fewer at the ends of the log). */
+function medianWithin(xs: readonly number[], i: number, half: number): number {
+  const window = xs.slice(Math.max(0, i - half), Math.min(xs.length, i + half + 1))
+  window.sort((a, b) => a - b)
+  const mid = window.length >> 1
+  return window.length % 2 === 1 ? (window[mid] as number) : ((window[mid - 1] as number) + (window[mid] as number)) / 2
+}
+
+/**
+ * Thrust far below the ideal while the nozzle is choked: the signature of a force unit read wrong
+ * (kgf or lbf taken as newtons). Judged on the median of F / F_ideal over the choked part of the
+ * run (pa/p0 below the nozzle's choke limit), thrust and chamber pressure each read through a short
+ * moving median; the start and end of the run, where the valve moves, do not sway a median.
+ */
+function thrustBelowIdeal(d: RoleData): GradeFlag | undefined {
+  const { thrust, chamber, ambient, throatArea, exitArea } = d
+  if (!thrust || !chamber || ambient === undefined || throatArea === undefined || exitArea === undefined) return undefined
+  if (!(ambient > 0) || !(exitArea >= throatArea)) return undefined
+  let chokeLimit: number
+  try {
+    chokeLimit = nozzlePressureRatios(exitArea / throatArea, CHECK_GAMMA).chokeLimit
+  } catch (error) {
+    if (error instanceof RangeError) return undefined
+    throw error
+  }
+  // Choked while pa/p0 < chokeLimit, that is p0 above this.
+  const chokedAbove = ambient / chokeLimit
+  const candidates: number[] = []
+  for (let i = 0; i < chamber.length; i++) if ((chamber[i] as number) > chokedAbove) candidates.push(i)
+  if (candidates.length < THRUST_BELOW_IDEAL_MIN_SAMPLES) return undefined
+  const half = THRUST_BELOW_IDEAL_MEDIAN >> 1
+  const stride = Math.max(1, candidates.length / THRUST_BELOW_IDEAL_SAMPLES)
+  const ratios: number[] = []
+  const used: number[] = []
+  for (let k = 0; k < candidates.length; k += stride) {
+    const i = candidates[Math.floor(k)] as number
+    const p0 = medianWithin(chamber, i, half)
+    if (!(p0 > chokedAbove)) continue
+    const ideal = idealAt(p0, d)
+    if (ideal === undefined || !(ideal > 0)) continue
+    ratios.push(medianWithin(thrust, i, half) / ideal)
+    used.push(i)
+  }
+  if (ratios.length < THRUST_BELOW_IDEAL_MIN_SAMPLES) return undefined
+  const ratio = median(ratios)
+  if (!(ratio < THRUST_BELOW_IDEAL_FRACTION)) return undefined
+  const first = used[0] as number
+  const last = used[used.length - 1] as number
+  const when = d.time ? ` (t = ${fmt(d.time[first] as number)} to ${fmt(d.time[last] as number)} s)` : ''
+  return {
+    code: 'thrust-below-ideal',
+    message:
+      `While the nozzle was choked${when}, the logged thrust was only about ${fmt(ratio * 100)} % of the ideal thrust for the logged chamber pressure, where a real nozzle gives most of it (85–98 %). ` +
+      'So low a thrust usually means a unit mistake: a load cell logged in kgf but read as newtons gives 1/9.81 (about 10 %) of the true thrust, one logged in lbf 1/4.45 (about 22 %). ' +
+      "Check the unit chosen for the thrust column, then the load cell's calibration.",
+    detail: {
+      ratio,
+      chokedSamples: candidates.length,
+      comparedSamples: ratios.length,
+      ...(d.time ? { from: d.time[first] as number, to: d.time[last] as number } : {}),
+      threshold: THRUST_BELOW_IDEAL_FRACTION,
+    },
+  }
+}

@@ -16,6 +16,7 @@ import type { Assignment, ResultSpec } from '../modules/schema'
 import { buildExpressionScope, taredScope } from '../modules/scope'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { dataFlags } from './data-flags'
+import { regimeNeighbourAccepted } from './regime'
 
 /**
  * Slack added to every tolerance so that a value exactly on the boundary passes even after a unit
@@ -34,7 +35,9 @@ export const FLAG_CODES = [
   'chamber-above-receiver',
   'time-gap',
   'too-few-samples',
+  'thrust-below-ideal',
   'identical-file',
+  'near-copy',
   'expression-failed',
 ] as const
 export type BuiltInFlagCode = (typeof FLAG_CODES)[number]
@@ -162,7 +165,7 @@ function checkResult(spec: ResultSpec, scope: Record<string, ExpressionValue>, r
   const slack = BOUNDARY_SLACK * tolerance + 1e-12 * Math.abs(expected)
   let outcome: CheckOutcome = 'fail'
   let pointsAwarded = 0
-  if (absError <= tolerance + slack) {
+  if (absError <= tolerance + slack || (spec.regime && regimeNeighbourAccepted(spec.regime, (e) => evaluateExpression(e, scope), reported, expected))) {
     outcome = 'pass'
     pointsAwarded = spec.points
   } else if (spec.partial && absError <= spec.partial.within * tolerance + slack) {

@@ -51,6 +51,10 @@ const ALIASES: Readonly<Record<string, UnitSymbol>> = {
   fahrenheit: 'degF',
   kelvin: 'K',
   lbs: 'lb',
+  gram: 'g',
+  grams: 'g',
+  kilogram: 'kg',
+  kilograms: 'kg',
 }
 
 const LOWER_SYMBOLS = new Map<string, UnitSymbol>()
@@ -65,12 +69,14 @@ for (const symbol of Object.keys(UNITS) as UnitSymbol[]) {
  * psia, barg, bar(g), kPa(a), kPa gauge).
  *
  * @param text - e.g. "kPa", "psig", "bar (g)", "[N]"
- * @param kind - the kind the column holds, when known: "lb" or "lbs" then means pound-force for a
- *   force column and pound (mass) otherwise
+ * @param kind - the kind the column holds, when known: in a force column a mass unit means the
+ *   force of that mass under standard gravity, as load cells are labelled ("kg" → kgf, "g" → gf,
+ *   "lb"/"lbs" → lbf); elsewhere they stay masses
  * @returns the unit and sense, or undefined when the text is not a unit
  * @example
  * readUnit('psig')       // { unit: 'psi', pressure: 'gauge' }
  * readUnit('lbs', 'force') // { unit: 'lbf' }
+ * readUnit('g', 'force')   // { unit: 'gf' }
  */
 export function readUnit(text: string, kind?: UnitKind | 'dimensionless'): UnitReading | undefined {
   let t = text.trim()
@@ -104,9 +110,15 @@ function lookup(text: string, kind?: UnitKind | 'dimensionless'): UnitSymbol | u
   return found === undefined ? undefined : adjustForKind(found, kind)
 }
 
+/**
+ * A load cell labelled in a mass unit reads the weight of that mass under standard gravity: a
+ * thrust logged in "kg", "g" or "lb" is kilogram-, gram- or pound-force. Suggesting newtons for
+ * such a column would hide a factor of 9.81 (or 4.45), so the force unit is proposed instead.
+ */
+const FORCE_OF_MASS: Readonly<Partial<Record<UnitSymbol, UnitSymbol>>> = { kg: 'kgf', g: 'gf', lb: 'lbf' }
+
 function adjustForKind(unit: UnitSymbol, kind?: UnitKind | 'dimensionless'): UnitSymbol {
-  // A thrust logged in "lb" is pound-force; the unit table's lb is a mass.
-  if (unit === 'lb' && kind === 'force') return 'lbf'
+  if (kind === 'force') return FORCE_OF_MASS[unit] ?? unit
   return unit
 }
 

@@ -42,6 +42,7 @@ export const LIBRARY_FUNCTIONS: Readonly<Record<string, Arity>> = {
   reduceThrustRun: between(2, 3),
   windowMean: exactly(4),
   windowIntegral: exactly(4),
+  idealSpecificImpulse: exactly(5),
 }
 
 /**

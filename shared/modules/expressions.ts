@@ -49,6 +49,7 @@ import {
   characteristicVelocity,
   chokedMassFlow,
   criticalPressureRatio,
+  idealSpecificImpulse,
   idealThrust,
   isentropic,
   machDiskDistance,
@@ -221,6 +222,7 @@ const scopeFunctions = {
   reduceThrustRun,
   windowMean,
   windowIntegral,
+  idealSpecificImpulse,
   at,
   argmax,
   argmin,
@@ -852,6 +854,11 @@ export function validateAssignmentExpressions(assignment: Assignment): LocatedEx
     for (const issue of check(expr, pick)) issues.push({ ...issue, path })
   }
   assignment.results.forEach((r, i) => validate(`result "${r.key}"`, r.expected, ['assignment', 'results', i, 'expected'], (c) => c.expected))
+  assignment.results.forEach((r, i) => {
+    if (!r.regime) return
+    validate(`result "${r.key}" (regime pressure ratio)`, r.regime.pressureRatio, ['assignment', 'results', i, 'regime', 'pressureRatio'], (c) => c.expected)
+    validate(`result "${r.key}" (regime area ratio)`, r.regime.areaRatio, ['assignment', 'results', i, 'regime', 'areaRatio'], (c) => c.expected)
+  })
   assignment.reviewRules.forEach((rule, i) => validate(`review rule "${rule.key}"`, rule.when, ['assignment', 'reviewRules', i, 'when'], (c) => c.review))
   return issues
 }

@@ -195,6 +195,18 @@ export const ColumnSchema = z
      * more at rest is another mistake, left for the review rules and data checks to see.
      */
     tare: z.boolean().optional(),
+    /**
+     * The instrument's full scale (its span), in the column's unit, e.g. 1000 for a 0–1000 kPa
+     * transducer. The chamber-above-receiver check allows each pressure transducer's error,
+     * `fullScaleError` × full scale, instead of guessing it from the largest reading.
+     */
+    fullScale: z.number().positive('the full scale is the span of the instrument, greater than 0, in the column unit').optional(),
+    /** The instrument's error as a fraction of its full scale, 0–0.2; left out, 0.01 (±1 % of full scale). */
+    fullScaleError: z
+      .number()
+      .min(0, 'the full-scale error is a fraction from 0 to 0.2 (0.01 = ±1 % of full scale)')
+      .max(0.2, 'the full-scale error is a fraction from 0 to 0.2 (0.01 = ±1 % of full scale)')
+      .optional(),
   })
   .superRefine((column, ctx) => {
     checkPressureSense(column, ctx)
@@ -205,6 +217,9 @@ export const ColumnSchema = z
         path: ['tare'],
         message: 'tare: true takes the zero of a gauge pressure transducer, so it needs a pressure column with "pressure: gauge"',
       })
+    }
+    if (column.fullScaleError !== undefined && column.fullScale === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['fullScaleError'], message: 'a full-scale error needs the full scale too: add "fullScale"' })
     }
   })
 
@@ -304,22 +319,63 @@ export const PartialCreditSchema = z.strictObject({
   fraction: z.number().min(0, 'a fraction of the points, from 0 to 1').max(1, 'a fraction of the points, from 0 to 1'),
 })
 
-/** A result's fields before the expression budget is checked (zod cannot make a refined schema partial). */
-const ResultSpecFields = z.strictObject({
-  key: KeySchema,
-  label: LabelSchema,
-  unit: ResultUnitSchema,
-  /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
-  expected: ExpressionTextSchema,
-  tolerance: ToleranceSchema,
-  points: z.number().positive('points must be greater than 0'),
-  partial: PartialCreditSchema.optional(),
+/** Margin of the regime check when a module sets none: 2 % of pa/p0 either side of a boundary. */
+export const DEFAULT_REGIME_MARGIN = 0.02
+
+/**
+ * Declares a result to be a nozzle's expansion regime, reported as a code (1 subsonic, 2 shock in
+ * the nozzle, 3 over-expanded, 4 ideal, 5 under-expanded; `regimeCode(…)` gives it). The hand-in
+ * form then offers the regimes by name, and the check also accepts the neighbouring code when
+ * pa/p0 lies within `margin` of the boundary between the two regimes (the boundaries follow from
+ * the area ratio and γ: nozzlePressureRatios). The two expressions are evaluated over the
+ * submission's data like `expected`.
+ */
+export const RegimeSpecSchema = z.strictObject({
+  /** pa/p0 at the moment the regime is asked about, e.g. `p_ambient / max(p_chamber)`. */
+  pressureRatio: ExpressionTextSchema,
+  /** The nozzle's exit-to-throat area ratio, e.g. `(d_exit / d_throat)^2`. */
+  areaRatio: ExpressionTextSchema,
+  /** Ratio of specific heats the boundaries are worked out with. */
+  gamma: z.number().gt(1, 'gamma must be greater than 1 (air: 1.4)').default(1.4),
+  /** Relative margin around each boundary, 0–0.2 (0.02 = 2 %); 0 asks for the exact code. */
+  margin: z
+    .number()
+    .min(0, 'the regime margin is a fraction from 0 to 0.2 (0.02 = 2 %)')
+    .max(0.2, 'the regime margin is a fraction from 0 to 0.2 (0.02 = 2 %)')
+    .default(DEFAULT_REGIME_MARGIN),
 })
 
-export const ResultSpecSchema = ResultSpecFields.superRefine((r, ctx) => checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected'))
+/** A result's fields before its expressions are checked (zod cannot make a refined schema partial). */
+const ResultSpecFields = z.strictObject({
+    key: KeySchema,
+    label: LabelSchema,
+    unit: ResultUnitSchema,
+    /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
+    expected: ExpressionTextSchema,
+    tolerance: ToleranceSchema,
+    points: z.number().positive('points must be greater than 0'),
+    partial: PartialCreditSchema.optional(),
+    /** This result is an expansion-regime code; see {@link RegimeSpecSchema}. */
+    regime: RegimeSpecSchema.optional(),
+  })
 
-/** A result as a student's browser receives it: the expected-value expression is removed. */
-export const StudentResultSpecSchema = ResultSpecFields.partial({ expected: true })
+export const ResultSpecSchema = ResultSpecFields.superRefine((r, ctx) => {
+    checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected')
+    if (r.regime) {
+      checkExpressionLength(`result "${r.key}" (regime pressure ratio)`, r.regime.pressureRatio, ctx, 'regime')
+      checkExpressionLength(`result "${r.key}" (regime area ratio)`, r.regime.areaRatio, ctx, 'regime')
+      if (r.unit !== DIMENSIONLESS) ctx.addIssue({ code: 'custom', path: ['unit'], message: `a regime code is a pure number: use unit '${DIMENSIONLESS}'` })
+    }
+  })
+
+/**
+ * A result as a student's browser receives it: without the grading expressions (the expected
+ * value, the regime's ratios); the regime keeps only its margin.
+ */
+export const StudentResultSpecSchema = ResultSpecFields.extend({
+  expected: ExpressionTextSchema.optional(),
+  regime: z.object({ margin: z.number().optional() }).optional(),
+})
 
 export const ReviewRuleSchema = z
   .strictObject({
@@ -497,4 +553,5 @@ export type MeasurementSpec = z.output<typeof MeasurementSchema>
 export type ResultSpec = z.output<typeof ResultSpecSchema>
 export type ReviewRule = z.output<typeof ReviewRuleSchema>
 export type Tolerance = z.output<typeof ToleranceSchema>
+export type RegimeSpec = z.output<typeof RegimeSpecSchema>
 export type ResultsVisibility = (typeof RESULTS_VISIBILITY)[number]

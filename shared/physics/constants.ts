@@ -29,8 +29,15 @@ export const POUND_MASS = 0.45359237
 /** One pound-force, N. Exact: 0.45359237 kg × 9.80665 m/s² = 4.4482216152605 N. */
 export const POUND_FORCE = 4.4482216152605
 
-/** One kilogram-force, N. Exact: 1 kg × 9.80665 m/s². */
+/** One kilogram-force, N. Exact: 1 kg × 9.80665 m/s² (NIST SP 811, 2008 edition, appendix B). */
 export const KILOGRAM_FORCE = 9.80665
+
+/**
+ * One gram-force, N. Exact: 1 g × 9.80665 m/s² = 0.00980665 N, from the standard acceleration of
+ * gravity as the kilogram-force is (NIST SP 811 gives the kilogram-force; 1 gf = 10⁻³ kgf).
+ * Written as the decimal rather than 9.80665 / 1000, so no division rounding enters.
+ */
+export const GRAM_FORCE = 0.00980665
 
 /**
  * One pound-force per square inch, Pa: 4.4482216152605 N / 0.00064516 m² = 6894.757293168361… Pa

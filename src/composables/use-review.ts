@@ -20,6 +20,8 @@ const FLAG_WORDS: Record<string, string> = {
   'pressure-looks-gauge': 'pressure looks gauge',
   'expression-failed': 'a check could not be worked out',
   'identical-file': 'identical file',
+  'near-copy': 'near-copy of another log',
+  'thrust-below-ideal': 'thrust far below ideal',
   'regrade-requested': 'regrade requested',
 }
 export const flagWords = (code: string) => FLAG_WORDS[code] ?? code

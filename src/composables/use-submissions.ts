@@ -8,6 +8,7 @@ import { computed, onScopeDispose, reactive, ref, shallowRef, watch } from 'vue'
 import type { ComputedRef, Ref, ShallowRef } from 'vue'
 import { z } from 'zod'
 import { parseDecimal, parseLog, sniffBinary, suggestMapping } from '@shared/grading/csv'
+import { regimeCodeProblem } from '@shared/grading/regime'
 import type { ColumnMappingEntry, LogIssue, LogParseResult } from '@shared/grading/csv'
 import { DIMENSIONLESS, dataUnitKind, isPressureUnit, valueFromSI } from '@shared/modules/quantities'
 import { MeasurementSchema, StudentResultSpecSchema, TableSchema } from '@shared/modules/schema'
@@ -408,6 +409,7 @@ export function useHandInForm(assignment: StudentAssignment) {
 
   function resultProblem(r: StudentResultSpec): string | null {
     const e = results[r.key]
+    if (r.regime) return !e || e.text === '' ? `${r.label}: choose the regime.` : regimeCodeProblem(r.label, Number(e.text))
     if (!e || e.text.trim() === '') return `${r.label}: enter your result.`
     if (Number.isNaN(typedNumber(e.text))) return `${r.label}: “${e.text.trim()}” is not a number; write it with a point for decimals, like 0.672.`
     if (!isCompatibleUnit(e.unit, r.unit)) return `${r.label}: ${unitText(e.unit)} is not a unit of the right kind; choose another unit.`

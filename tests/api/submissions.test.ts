@@ -2,9 +2,10 @@ import { readFileSync } from 'node:fs'
 import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { mailOutbox, submissionFiles, submissions } from '../../server/db/schema'
+import { hashPassword } from '../../server/auth/password'
+import { enrollments, labGroups, mailOutbox, submissionFiles, submissionFlags, submissions, users } from '../../server/db/schema'
 import type { Client, Fixture, TestContext } from '../helpers/app'
-import { seedFixture, signedInAs, startTestApp } from '../helpers/app'
+import { PASSWORD, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { createModuleAs, publishAs } from '../helpers/modules'
 import type { CreatedModule } from '../helpers/modules'
@@ -114,6 +115,18 @@ describe('handing in a cold-flow run', () => {
   })
 })
 
+describe('the module as a student reads it', () => {
+  it('a regime result keeps only its margin: the grading expressions stay with staff', async () => {
+    const asStudent = await student.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}`).expect(200)
+    const regime = asStudent.body.frontMatter.assignment.results.find((r: { key: string }) => r.key === 'regime')
+    expect(regime.regime).toEqual({ margin: 0.02 })
+    expect(regime.expected).toBeUndefined()
+    const asStaff = await inst.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}`).expect(200)
+    const full = asStaff.body.frontMatter.assignment.results.find((r: { key: string }) => r.key === 'regime')
+    expect(full.regime.pressureRatio).toBe('p_ambient / max(p_chamber)')
+  })
+})
+
 describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () => {
   let other: CreatedModule
   let count = 0
@@ -217,6 +230,13 @@ describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () =>
     expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'measurements.d_throat', message: expect.stringMatching(/maximum/) }))
   })
 
+  it('a regime that is not one of the five', async () => {
+    const body = payload(log)
+    body.reported.regime = { value: 7, unit: '1' }
+    const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
+    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'reported.regime', message: expect.stringMatching(/choose one of the regimes/) }))
+  })
+
   it('a missing file and a malformed payload', async () => {
     const e = await refused([], payload(log))
     expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'table:run' }))
@@ -241,3 +261,85 @@ describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () =>
     expect(count).toBeGreaterThan(10)
   })
 })
+
+describe('near-copies of another group’s log (fingerprints stored with each file)', () => {
+  let copyMod: CreatedModule
+  const group: Record<string, Client> = {}
+  const original = coldFlowCsv({ noise: 101 })
+  let firstId = 0
+
+  /** A student of our own in a lab group of our own. */
+  async function groupStudent(name: string): Promise<Client> {
+    const db = ctx.handle.db
+    const [g] = await db.insert(labGroups).values({ courseId: fx.courseId, sectionId: fx.sectionA, name }).$returningId()
+    const email = `${name.toLowerCase()}.${uniq()}@test.example`
+    const [u] = await db.insert(users).values({ email, displayName: `${name} student`, passwordHash: await hashPassword(PASSWORD) }).$returningId()
+    await db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA, labGroupId: g!.id })
+    return signedInAs(ctx, email)
+  }
+
+  /**
+   * The hand-in's flags once its grading job has finished: the copy check runs after the grade is
+   * saved, and the receipt e-mail is queued after it, so the receipt marks the end.
+   */
+  async function flagsOf(submissionId: number) {
+    await expect
+      .poll(async () => (await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${submissionId}`))).length, {
+        timeout: 30_000,
+      })
+      .toBeGreaterThan(0)
+    return ctx.handle.db.select().from(submissionFlags).where(eq(submissionFlags.submissionId, submissionId))
+  }
+
+  beforeAll(async () => {
+    copyMod = await createModuleAs(inst, fx.courseId, COLD.replace('title: Cold-flow', 'title: Near-copy cold-flow'))
+    await publishAs(inst, fx.courseId, copyMod)
+    for (const name of ['N1', 'N2', 'N3', 'N4']) group[name] = await groupStudent(name)
+  })
+
+  it('stores a fingerprint with the file; an edited copy (one digit changed) is flagged near-copy, naming the other group', async () => {
+    const first = await handIn(group.N1!, [{ field: 'table:run', name: 'n1.csv', body: original.csv }], payload(original), copyMod.id)
+    expect(first.status).toBe(201)
+    firstId = first.body.id
+    const [file] = await ctx.handle.db.select().from(submissionFiles).where(eq(submissionFiles.submissionId, first.body.id))
+    expect(file!.fingerprint?.columns.thrust?.length).toBeGreaterThan(60)
+
+    const lines = original.csv.split('\n')
+    const cells = lines[100]!.split(',')
+    cells[1] = `${cells[1]![0] === '9' ? '1' : '9'}${cells[1]!.slice(1)}`
+    lines[100] = cells.join(',')
+    const edited = lines.join('\n')
+    expect(edited).not.toBe(original.csv)
+    const copy = await handIn(group.N2!, [{ field: 'table:run', name: 'n2.csv', body: edited }], payload(original), copyMod.id)
+    expect(copy.status).toBe(201)
+    const flag = (await flagsOf(copy.body.id)).find((f) => f.code === 'near-copy')
+    expect(flag?.message).toContain('N1')
+    expect(flag?.detail).toMatchObject({ otherSubmissionId: first.body.id })
+    expect((await flagsOf(copy.body.id)).some((f) => f.code === 'identical-file')).toBe(false)
+    const [row] = await ctx.handle.db.select().from(submissions).where(eq(submissions.id, copy.body.id))
+    expect(row!.reviewStatus).toBe('open')
+  })
+
+  it('an honest run of the same nozzle (its own noise) is not flagged', async () => {
+    const honest = coldFlowCsv({ noise: 202 })
+    const res = await handIn(group.N3!, [{ field: 'table:run', name: 'n3.csv', body: honest.csv }], payload(honest), copyMod.id)
+    expect(res.status).toBe(201)
+    expect((await flagsOf(res.body.id)).map((f) => f.code)).not.toContain('near-copy')
+  })
+
+  it('a file stored before fingerprints existed is fingerprinted when first compared, and its copy is found', async () => {
+    expect(firstId).toBeGreaterThan(0)
+    await ctx.handle.db.update(submissionFiles).set({ fingerprint: null }).where(eq(submissionFiles.submissionId, firstId))
+    const lines = original.csv.split('\n')
+    const shifted = [lines[0], ...lines.slice(1).filter((l) => l !== '').map((l) => {
+      const [t, ...rest] = l.split(',')
+      return [(Number(t) + 7.25).toFixed(3), ...rest].join(',')
+    })].join('\n')
+    const res = await handIn(group.N4!, [{ field: 'table:run', name: 'n4.csv', body: shifted }], payload(original), copyMod.id)
+    expect(res.status).toBe(201)
+    expect((await flagsOf(res.body.id)).map((f) => f.code)).toContain('near-copy')
+    const [file] = await ctx.handle.db.select().from(submissionFiles).where(eq(submissionFiles.submissionId, firstId))
+    expect(file!.fingerprint).not.toBeNull()
+  })
+})
+

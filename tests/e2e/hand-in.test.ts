@@ -9,6 +9,7 @@ import { DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_STUDENTS
 import { parseLog } from '../../shared/grading/csv'
 import type { ColumnMapping } from '../../shared/grading/csv'
 import { gradeSubmission } from '../../shared/grading/grade'
+import { REGIME_CHOICES } from '../../shared/grading/regime'
 import { valueToSI } from '../../shared/modules/quantities'
 import { PSI } from '../../shared/physics/constants'
 import { choose, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
@@ -164,7 +165,17 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     expect(offered).not.toContain('mm')
 
     for (const r of assignment.results) {
-      await page.getByRole('textbox', { name: r.label, exact: true }).fill(String(reported[r.key]))
+      if (!r.regime) {
+        await page.getByRole('textbox', { name: r.label, exact: true }).fill(String(reported[r.key]))
+        continue
+      }
+      // The regime is offered in words, not as a number to type; the page sends its code.
+      expect(await page.getByRole('textbox', { name: r.label }).count()).toBe(0)
+      const group = page.getByRole('group', { name: r.label })
+      const offeredRegimes = await group.getByRole('radio').evaluateAll((els) => els.map((e) => e.closest('label')?.querySelector('.name')?.textContent?.trim()))
+      expect(offeredRegimes).toEqual(REGIME_CHOICES.map((c) => c.label))
+      const choice = REGIME_CHOICES.find((c) => c.code === reported[r.key])!
+      await group.getByRole('radio', { name: new RegExp(`^${choice.label}`) }).check()
     }
 
     // Record every state the progress area goes through, since the upload is quick on loopback.

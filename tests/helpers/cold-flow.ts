@@ -1,7 +1,7 @@
 import { areaFromDiameter, nozzleFlow, tankBlowdown } from '../../shared/physics'
 
 /**
- * A cold-flow log for API tests, from the formula library's blow-down through a nozzle (no noise):
+ * A cold-flow log for API tests, from the formula library's blow-down through a nozzle (noise-free unless asked):
  * 40 L receiver at 700 kPa gauge, throat 6 mm, exit 9 mm, barometer 84 kPa, chamber at 97 % of the
  * receiver pressure. Logged as a stand logs a run: half a second at rest before the valve opens
  * (thrust and chamber at 0), the valve opening over 5 samples, the blow-down, and half a second at
@@ -20,7 +20,25 @@ export const COLD_FLOW = {
 const REST_ROWS = 25
 const OPENING_ROWS = 5
 
-export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; step?: number } = {}): { csv: string; t: number[]; thrust: number[]; finalKPaGauge: number } {
+/** mulberry32 and Box–Muller: seeded Gaussian noise, the same on every machine. */
+function seededGaussian(seed: number): () => number {
+  let a = seed >>> 0
+  const uniform = () => {
+    a = (a + 0x6d2b79f5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+  }
+  return () => Math.sqrt(-2 * Math.log(1 - uniform())) * Math.cos(2 * Math.PI * uniform())
+}
+
+/**
+ * @param opts.noise - a seed: when given, the logger adds Gaussian noise (0.05 N on the thrust,
+ *   0.3 kPa on the pressures), so two seeds are two runs and no two logs are alike by chance
+ */
+export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; step?: number; noise?: number } = {}): { csv: string; t: number[]; thrust: number[]; finalKPaGauge: number } {
+  const noise = opts.noise === undefined ? () => 0 : seededGaussian(opts.noise)
   const pa = COLD_FLOW.ambientKPa * 1000
   const step = opts.step ?? 0.02
   const run = tankBlowdown({
@@ -70,10 +88,10 @@ export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; ste
   for (const [ts, f, pr, pc] of [...before, ...samples, ...after]) {
     // Rounded as a logger would write them; the values in the file are the truth for grading.
     const ti = Number(ts.toFixed(3))
-    const fi = Number(f.toFixed(3))
+    const fi = Number((f + 0.05 * noise()).toFixed(3))
     t.push(ti)
     thrust.push(fi)
-    rows.push(`${ti},${fi},${pr.toFixed(3)},${pc.toFixed(3)}`)
+    rows.push(`${ti},${fi},${(pr + 0.3 * noise()).toFixed(3)},${(pc + 0.3 * noise()).toFixed(3)}`)
   }
   return { csv: rows.join('\n') + '\n', t, thrust, finalKPaGauge: Number(last[2].toFixed(1)) }
 }

@@ -17,7 +17,7 @@ import { expectRangeError } from '../helpers/expect-range-error'
 // Exact definitions (NIST SP 811, appendix B; the 1959 international yard and pound agreement;
 // CGPM definitions of the standard atmosphere and standard gravity):
 // 1 in = 0.0254 m; 1 lb = 0.45359237 kg; 1 lbf = 4.4482216152605 N; 1 psi = 1 lbf/in²
-// = 6894.757293168… Pa; 1 atm = 101325 Pa; 1 bar = 1e5 Pa; 1 kgf = 9.80665 N;
+// = 6894.757293168… Pa; 1 atm = 101325 Pa; 1 bar = 1e5 Pa; 1 kgf = 9.80665 N; 1 gf = 10⁻³ kgf;
 // 1 US gal = 231 in³ = 3.785411784 L; T(K) = T(°C) + 273.15; T(°F) = T(°C)·9/5 + 32.
 const EXACT: ReadonlyArray<readonly [UnitSymbol, number]> = [
   ['Pa', 1],
@@ -28,6 +28,7 @@ const EXACT: ReadonlyArray<readonly [UnitSymbol, number]> = [
   ['N', 1],
   ['kN', 1000],
   ['kgf', 9.80665],
+  ['gf', 0.00980665],
   ['lbf', 4.4482216152605],
   ['m', 1],
   ['mm', 0.001],
@@ -80,6 +81,8 @@ describe('unit table: linear units against their exact definitions', () => {
     expectClose(convert(1, 'atm', 'psi'), 101325 / 6894.757293168361, 1e-14)
     expectClose(convert(1, 'bar', 'atm'), 1e5 / 101325, 1e-15)
     expectClose(convert(1, 'lbf', 'kgf'), 0.45359237, 1e-15) // lbf/kgf = lb/kg exactly
+    expectClose(convert(1000, 'gf', 'kgf'), 1, 1e-15) // both from g0 = 9.80665 m/s²
+    expectClose(convert(1, 'lbf', 'gf'), 453.59237, 1e-15) // lbf/gf = lb/g exactly
     expectClose(convert(1, 'in2', 'mm2'), 645.16, 1e-14)
     expectClose(convert(1, 'gal', 'L'), 3.785411784, 1e-15)
     expectClose(convert(1000, 'ms', 's'), 1, 1e-15)
@@ -132,7 +135,7 @@ describe('unit kinds and errors', () => {
     expect(unitKind('lbf')).toBe('force')
     expect(unitKind('in2')).toBe('area')
     expect(unitKind('degF')).toBe('temperature')
-    expect(unitsOfKind('force')).toEqual(['N', 'kN', 'kgf', 'lbf'])
+    expect(unitsOfKind('force')).toEqual(['N', 'kN', 'kgf', 'gf', 'lbf'])
     expect(unitsOfKind('pressure')).toEqual(['Pa', 'kPa', 'MPa', 'bar', 'psi', 'atm'])
     for (const [kind, symbol] of Object.entries(SI_UNITS)) expect(unitKind(symbol)).toBe(kind)
   })

@@ -1,4 +1,5 @@
 import { customType, index, int, json, mysqlTable, char, varchar } from 'drizzle-orm/mysql-core'
+import type { LogFingerprint } from '../../../shared/grading/fingerprint'
 import { id, ref, timestamps } from './columns'
 import { courses } from './courses'
 import { submissions } from './submissions'
@@ -34,6 +35,13 @@ export const submissionFiles = mysqlTable(
     /** Parsed columns in SI (pressures as declared gauge/absolute), keyed by column key. */
     parsed: json('parsed').$type<Record<string, number[]>>().notNull(),
     rowCount: int('row_count').notNull(),
+    /**
+     * A few hundred samples of each column from the start of the run (shared/grading/fingerprint.ts),
+     * so near-copies of another group's log are found without reading every parsed log of the
+     * module. Null for a log with no time column, and for files stored before fingerprints existed
+     * (the near-copy check computes those from `parsed` the first time it needs them).
+     */
+    fingerprint: json('fingerprint').$type<LogFingerprint>(),
     ...timestamps,
   },
   (t) => [index('submission_files_course_sha_idx').on(t.courseId, t.sha256), index('submission_files_submission_idx').on(t.submissionId)],

@@ -109,7 +109,7 @@ describe('parseLog: units of the file', () => {
   it('refuses a unit of the wrong kind, naming the column', () => {
     const issue = only(parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, thrust: { header: 'thrust', unit: 'psi' } }))
     expect(issue.column).toBe('thrust')
-    expect(issue.message).toBe('Column "thrust" (Thrust): psi measures a pressure, but this column holds a force; choose one of N, kN, kgf, lbf.')
+    expect(issue.message).toBe('Column "thrust" (Thrust): psi measures a pressure, but this column holds a force; choose one of N, kN, kgf, gf, lbf.')
   })
 
   it('refuses a unit it does not know', () => {
@@ -318,6 +318,34 @@ describe('suggestMapping', () => {
       t: { header: 't', unit: 's' },
       thrust: { header: 'thrust [kPa]', unit: 'N' },
     })
+  })
+
+  it.each([
+    ['thrust (kg)', 'kgf'],
+    ['load [g]', 'gf'],
+    ['thrust [kgf]', 'kgf'],
+    ['Force (gf)', 'gf'],
+    ['thrust_lbf', 'lbf'],
+    ['thrust (lb)', 'lbf'],
+    ['load cell [N]', 'N'],
+    ['Thrust (KG)', 'kgf'],
+    ['thrust (grams)', 'gf'],
+  ])('a force column headed %s is suggested in %s, never newtons for a mass label', (header, unit) => {
+    expect(suggestMapping(['t', header], table).thrust).toEqual({ header, unit })
+  })
+
+  it('a load cell logged in grams, mapped as suggested, gives newtons by 1 gf = 0.00980665 N (exact, from g0)', () => {
+    const r = parseLog(csv('t,load [g],pc', '0,0,0', '0.1,1000,1', '0.2,2500,2'), { ...table, minRows: 2 }, {
+      ...suggestMapping(['t', 'load [g]', 'pc'], table),
+      p_chamber: { header: 'pc', unit: 'kPa', pressure: 'gauge' },
+    })
+    expect(r.ok).toBe(true)
+    if (!r.ok) return
+    // 1000 g-force = 1 kgf = 9.80665 N; 2500 gf = 24.516625 N (NIST SP 811: 1 kgf = 9.80665 N).
+    const [zero, one, two] = r.columns.thrust as [number, number, number]
+    expect(zero).toBe(0)
+    expectClose(one, 9.80665, 1e-15)
+    expectClose(two, 24.516625, 1e-15)
   })
 
   it('uses each header once, preferring the key over a usual name', () => {

@@ -119,7 +119,7 @@ describe('chamber-above-receiver', () => {
     expect(flag?.detail?.receiverPressure).toBe(STANDARD_ATMOSPHERE)
   })
 
-  it('allows 2 % of the peak receiver pressure: with a 1.1 MPa peak, 21 kPa above passes and 23 kPa above is flagged', () => {
+  it('without a declared full scale, allows 1 % of each transducer’s peak reading: 1.1 MPa and about 1.07 MPa give about 21.7 kPa, so 21 kPa above passes and 23 kPa is flagged', () => {
     const clean = cleanLog()
     const receiver = column(clean, 'p_receiver')
     const above = (excess: number) => column(clean, 'p_chamber').map((p, i) => (i >= 10 && i < 90 ? (receiver[i] as number) + excess : p))

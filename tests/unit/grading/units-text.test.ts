@@ -28,6 +28,17 @@ describe('readUnit', () => {
     expect(readUnit('lb')).toEqual({ unit: 'lb' })
   })
 
+  it('reads kg and g as kilogram- and gram-force in a force column, and as masses elsewhere', () => {
+    expect(readUnit('kg', 'force')).toEqual({ unit: 'kgf' })
+    expect(readUnit('g', 'force')).toEqual({ unit: 'gf' })
+    expect(readUnit('grams', 'force')).toEqual({ unit: 'gf' })
+    expect(readUnit('kgf', 'force')).toEqual({ unit: 'kgf' })
+    expect(readUnit('gf', 'force')).toEqual({ unit: 'gf' })
+    expect(readUnit('N', 'force')).toEqual({ unit: 'N' })
+    expect(readUnit('kg')).toEqual({ unit: 'kg' })
+    expect(readUnit('g', 'mass')).toEqual({ unit: 'g' })
+  })
+
   it('is not fooled by words that are not units, or by gauge marks on other quantities', () => {
     expect(readUnit('chamber')).toBeUndefined()
     expect(readUnit('')).toBeUndefined()

@@ -29,6 +29,8 @@ describe('the formula library barrel', () => {
       'tareAlongRun',
       'windowMean',
       'windowIntegral',
+      'idealExhaustVelocity',
+      'idealSpecificImpulse',
     ]
     const exported = physics as Record<string, unknown>
     for (const name of functions) expect(typeof exported[name], name).toBe('function')
