@@ -16,6 +16,8 @@ import type { Assignment, ResultSpec } from '../modules/schema'
 import { buildExpressionScope } from '../modules/scope'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { dataFlags } from './data-flags'
+import { effectiveTolerance, propagateUncertainties } from './uncertainty'
+import type { CheckUncertainty } from './uncertainty'
 
 /**
  * Slack added to every tolerance so that a value exactly on the boundary passes even after a unit
@@ -73,6 +75,11 @@ export interface CheckResult {
   outcome: CheckOutcome
   /** Why the expected value could not be computed (outcome 'error'). */
   error?: string
+  /**
+   * Present when the module declares uncertainties: the expected value's combined standard
+   * uncertainty and its largest contributions (./uncertainty.ts), or null when none reaches it.
+   */
+  uncertainty?: CheckUncertainty | null
 }
 
 export interface GradeResult {
@@ -131,9 +138,14 @@ function errorText(error: unknown): string {
   return error instanceof Error ? error.message : String(error)
 }
 
-function checkResult(spec: ResultSpec, scope: Record<string, ExpressionValue>, reportedValue: number | undefined): CheckResult {
+function checkResult(
+  spec: ResultSpec,
+  scope: Record<string, ExpressionValue>,
+  reportedValue: number | undefined,
+  uncertainty?: CheckUncertainty | null,
+): CheckResult {
   const reported = typeof reportedValue === 'number' && Number.isFinite(reportedValue) ? reportedValue : null
-  const base = { key: spec.key, label: spec.label, unit: spec.unit, reported, pointsPossible: spec.points }
+  const base = { key: spec.key, label: spec.label, unit: spec.unit, reported, pointsPossible: spec.points, ...(uncertainty === undefined ? {} : { uncertainty }) }
   let expected: number
   try {
     const si = evaluateExpression(spec.expected, scope)
@@ -153,7 +165,7 @@ function checkResult(spec: ResultSpec, scope: Record<string, ExpressionValue>, r
       error: errorText(error),
     }
   }
-  const tolerance = Math.max(spec.tolerance.absolute ?? 0, (spec.tolerance.relative ?? 0) * Math.abs(expected))
+  const tolerance = effectiveTolerance(spec.tolerance, expected, uncertainty)
   if (reported === null) {
     return { ...base, expected, absError: null, relError: null, tolerance, pointsAwarded: 0, pass: false, outcome: 'fail' }
   }
@@ -199,10 +211,11 @@ export function gradeSubmission(input: GradeInput): GradeResult {
   const { assignment, reported } = input
   const data: SubmissionData = { tables: input.data.tables, measurements: input.data.measurements, ...(input.data.pressures ? { pressures: input.data.pressures } : {}) }
   const scope = buildExpressionScope(assignment, data, { units: 'si' })
+  const uncertainties = propagateUncertainties(assignment, data, scope)
 
   const flags: GradeFlag[] = []
   const checks = assignment.results.map((spec) => {
-    const check = checkResult(spec, scope, reported[spec.key])
+    const check = checkResult(spec, scope, reported[spec.key], uncertainties?.get(spec.key))
     if (check.outcome === 'error') {
       flags.push({
         code: 'expression-failed',
@@ -262,3 +275,4 @@ function ruleFlags(assignment: Assignment, dataScope: Record<string, ExpressionV
 
 export * from './data-flags'
 export * from './chart'
+export type { CheckUncertainty, UncertaintyContribution } from './uncertainty'
