@@ -312,7 +312,10 @@ export const ToleranceSchema = z
       .optional(),
   })
   .refine((t) => t.relative !== undefined || t.absolute !== undefined, {
-    message: 'give a relative tolerance, an absolute tolerance, or both (a coverage tolerance needs one of them as its floor)',
+    error: (issue) =>
+      (issue.input as { coverage?: unknown } | undefined)?.coverage === undefined
+        ? 'give a relative tolerance, an absolute tolerance, or both'
+        : 'a coverage tolerance needs a relative or absolute tolerance as its floor, for example { relative: 0.01, coverage: 2 }',
   })
 
 export const PartialCreditSchema = z.strictObject({
