@@ -86,7 +86,9 @@ export function useSubmissionPage(courseId: Ref<number>, submissionId: Ref<numbe
 // ---------------------------------------------------------------------------------------------
 // The assignment as a student receives it (expected-value expressions and review rules removed).
 
-const StudentResultSchema = ResultSpecSchema.partial({ expected: true })
+// Built from the shape: zod 4 refuses .partial() on an object with refinements (the result's
+// expression-length check), and a student's copy has no expression to check.
+const StudentResultSchema = z.strictObject({ ...ResultSpecSchema.shape, expected: ResultSpecSchema.shape.expected.optional() })
 
 const StudentAssignmentSchema = z.object({
   tables: z.array(TableSchema).default([]),
