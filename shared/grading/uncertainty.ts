@@ -109,8 +109,12 @@ interface Component {
   moved: ReadonlySet<string>
   /** Standard uncertainty over step: turns a difference over the step into a contribution. */
   ratio: number
-  /** The scope with the input moved by `sign` steps. */
-  scope: (sign: 1 | -1) => Record<string, ExpressionValue>
+  /**
+   * The scope with the input moved by `sign` steps. Only the entries in `read` need moving (the
+   * others are read by none of the results evaluated): the barometer moves every gauge column, but
+   * a result may read only one of them.
+   */
+  scope: (sign: 1 | -1, read: ReadonlySet<string>) => Record<string, ExpressionValue>
 }
 
 /** The SI size of one unit (a temperature difference for °C and °F, not a temperature). */
@@ -128,13 +132,21 @@ function maxAbs(xs: readonly number[]): number {
   return m
 }
 
-/**
- * A column with every sample changed. A plain loop into a preallocated array: Array.prototype.map
- * took about seven times as long on a 50 000-sample log, and this runs twice per column component.
- */
-function eachSample(samples: readonly number[], f: (x: number, i: number) => number): number[] {
+// The moved columns: plain loops into a preallocated array, with no callback. Array.prototype.map
+// with a closure took about seven times as long on a 50 000-sample log, and these run twice per
+// column component.
+
+/** Every sample plus `delta`. */
+function plus(samples: readonly number[], delta: number): number[] {
   const out = new Array<number>(samples.length)
-  for (let i = 0; i < samples.length; i++) out[i] = f(samples[i] as number, i)
+  for (let i = 0; i < samples.length; i++) out[i] = (samples[i] as number) + delta
+  return out
+}
+
+/** Every sample plus `factor` × the same sample as read. */
+function plusScaled(samples: readonly number[], read: readonly number[], factor: number): number[] {
+  const out = new Array<number>(samples.length)
+  for (let i = 0; i < samples.length; i++) out[i] = (samples[i] as number) + factor * (read[i] as number)
   return out
 }
 
@@ -146,16 +158,14 @@ function withEntries(scope: Readonly<Record<string, ExpressionValue>>, entries: 
 }
 
 /** Every entry named moved by `delta` (numbers and every sample of a column). */
-function shifted(scope: Readonly<Record<string, ExpressionValue>>, names: readonly string[], delta: number): Record<string, ExpressionValue> {
-  return withEntries(
-    scope,
-    names.flatMap((k): [string, ExpressionValue][] => {
-      const v = scope[k]
-      if (typeof v === 'number') return [[k, v + delta]]
-      if (Array.isArray(v)) return [[k, eachSample(v as readonly number[], (x) => x + delta)]]
-      return []
-    }),
-  )
+function shifted(scope: Readonly<Record<string, ExpressionValue>>, names: Iterable<string>, delta: number): Record<string, ExpressionValue> {
+  const entries: [string, ExpressionValue][] = []
+  for (const k of names) {
+    const v = scope[k]
+    if (typeof v === 'number') entries.push([k, v + delta])
+    else if (Array.isArray(v)) entries.push([k, plus(v as readonly number[], delta)])
+  }
+  return withEntries(scope, entries)
 }
 
 /**
@@ -178,7 +188,14 @@ function components(assignment: Assignment, data: SubmissionData, scope: Readonl
     if (!(u > 0)) continue
     const step = x === 0 ? u : Math.min(Math.max(u, MIN_STEP * Math.abs(x)), MAX_STEP * Math.abs(x))
     const moved = m === ambient ? [m.key, ...gauge] : [m.key]
-    out.push({ key: m.key, part: 'value', label: m.label, moved: new Set(moved), ratio: u / step, scope: (sign) => shifted(scope, moved, sign * step) })
+    out.push({
+      key: m.key,
+      part: 'value',
+      label: m.label,
+      moved: new Set(moved),
+      ratio: u / step,
+      scope: (sign, read) => shifted(scope, moved.filter((k) => read.has(k)), sign * step),
+    })
   }
   for (const t of assignment.tables) {
     for (const c of t.columns) {
@@ -190,7 +207,7 @@ function components(assignment: Assignment, data: SubmissionData, scope: Readonl
       const offset = (c.uncertainty.absolute ?? 0) * unitScale(c.unit)
       if (offset > 0) {
         const step = Math.max(offset, MIN_STEP * maxAbs(samples))
-        out.push({ key: c.key, part: 'offset', label: c.label, moved, ratio: offset / step, scope: (sign) => shifted(scope, [c.key], sign * step) })
+        out.push({ key: c.key, part: 'offset', label: c.label, moved, ratio: offset / step, scope: (sign) => withEntries(scope, [[c.key, plus(samples, sign * step)]]) })
       }
       const gain = c.uncertainty.relative ?? 0
       if (gain > 0) {
@@ -202,7 +219,7 @@ function components(assignment: Assignment, data: SubmissionData, scope: Readonl
           moved,
           ratio: gain / step,
           // The gain multiplies the reading as read (raw), which the scope holds plus the barometer when gauge.
-          scope: (sign) => withEntries(scope, [[c.key, eachSample(samples, (v, i) => v + sign * step * (raw[i] as number))]]),
+          scope: (sign) => withEntries(scope, [[c.key, plusScaled(samples, raw, sign * step)]]),
         })
       }
     }
@@ -254,9 +271,10 @@ export function propagateUncertainties(
   for (const c of components(assignment, data, scope)) {
     const users = results.filter((r) => r.base !== null && [...c.moved].some((n) => r.reads.has(n)))
     if (users.length === 0) continue
-    evaluator.perturb({ scope: c.scope(1), moved: c.moved })
+    const read = new Set([...c.moved].filter((n) => users.some((r) => r.reads.has(n))))
+    evaluator.perturb({ scope: c.scope(1, read), moved: read })
     const up = users.map((r) => valueOf(evaluator, r.spec))
-    evaluator.perturb({ scope: c.scope(-1), moved: c.moved })
+    evaluator.perturb({ scope: c.scope(-1, read), moved: read })
     const down = users.map((r) => valueOf(evaluator, r.spec))
     users.forEach((r, i) => {
       const plus = up[i] ?? null
