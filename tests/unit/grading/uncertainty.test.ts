@@ -233,6 +233,7 @@ describe('expression parts: reuse never changes a value', () => {
       'totalImpulse(t, thrust) / max(pc)',
       'meanValue(select(thrust ./ pc, pc > 300000))',
       'max(pc) > 500000 ? at(thrust, 4) : at(thrust, 99)',
+      '(max(pc) > 500000 and pa > 0) or at(thrust, 99) > 0 ? 1 : 2',
       'nozzleFlow({chamberPressure: max(pc), chamberTemperature: 293.15, ambientPressure: pa, throatArea: 1e-5, exitArea: 2e-5, gamma: 1.4, gasConstant: 287.05}).exitMach',
     ]
     const evaluator = new PartEvaluator(scope)
