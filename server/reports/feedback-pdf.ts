@@ -10,7 +10,8 @@
  * https://pdfkit.org/docs/text.html, https://pdfkit.org/docs/vector.html
  */
 import PDFDocument from 'pdfkit'
-import type { ChartData, CheckOutcome } from '../../shared/schemas/submissions'
+import { dominantInputsText, expectedWithUncertaintyText } from '../../shared/grading/uncertainty-text'
+import type { ChartData, CheckOutcome, CheckUncertaintyView } from '../../shared/schemas/submissions'
 import { formatInZone } from '../../shared/time'
 import { allFaces, defaultFont, fontRuns, fontStacks } from './fonts'
 import type { FontRole } from './fonts'
@@ -29,6 +30,8 @@ export interface ReportCheck {
   outcome: CheckOutcome
   /** Staff changed this check's points. */
   adjusted: boolean
+  /** The expected value's uncertainty (figures null when expected values are not shown), if any. */
+  uncertainty?: CheckUncertaintyView | null
 }
 
 export interface ReportFlag {
@@ -243,11 +246,22 @@ interface Column {
 
 function checksTable(doc: Doc, d: FeedbackReportData): void {
   const showExpected = d.checks.some((c) => c.expected !== null)
+  // "109.09 ± 2.4 N·s (k = 2)" needs a wider column than the value alone.
+  const withU = d.checks.some((c) => c.expected !== null && (c.uncertainty?.expanded ?? 0) > 0)
   const w = contentWidth(doc)
   const fixed: Column[] = [
     { title: 'Your value', width: 74, role: 'mono', size: 8, align: 'right', cell: (c) => valueText(c.reported, c.unit) },
     ...(showExpected
-      ? [{ title: 'Expected', width: 74, role: 'mono' as const, size: 8, align: 'right' as const, cell: (c: ReportCheck) => valueText(c.expected, c.unit) }]
+      ? [
+          {
+            title: 'Expected',
+            width: withU ? 104 : 74,
+            role: 'mono' as const,
+            size: 8,
+            align: 'right' as const,
+            cell: (c: ReportCheck) => expectedWithUncertaintyText(c.expected, c.uncertainty?.expanded ?? null, c.uncertainty?.coverage ?? null, c.unit),
+          },
+        ]
       : []),
     { title: 'Error', width: 42, role: 'mono', size: 8, align: 'right', cell: (c) => percentText(c.relError) },
     { title: 'Tolerance', width: 80, role: 'mono', size: 8, align: 'right', cell: (c) => (c.tolerance === null ? '—' : `± ${valueText(c.tolerance, c.unit)}`) },
@@ -307,6 +321,31 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
   if (!showExpected) {
     paragraph(doc, 'sans', 8.5, 'This module does not show the expected values; the error and the tolerance tell how close each result came.', MUTED)
   }
+  uncertaintySources(doc, d, withU)
+}
+
+/** Which inputs dominate each expected value's uncertainty, in words (as on the result page). */
+function uncertaintySources(doc: Doc, d: FeedbackReportData, withU: boolean): void {
+  const items = d.checks.flatMap((c) => {
+    const text = c.uncertainty ? dominantInputsText(c.uncertainty.contributions) : null
+    return text ? [`${c.label}: ${text}.`] : []
+  })
+  if (items.length === 0) return
+  doc.y += 6
+  ensure(doc, 50)
+  paragraph(doc, 'sans-semibold', 9.5, 'Where the uncertainty comes from')
+  doc.y += 1
+  paragraph(
+    doc,
+    'serif',
+    8.5,
+    `The instruments' uncertainties, as the module declares them, carry through to each expected value.${
+      withU ? ' An expected value is shown as ± U, where U is k times its combined standard uncertainty (k = 2 covers about 95 %).' : ''
+    } The inputs that contribute most, with their share of the variance:`,
+    MUTED,
+  )
+  doc.y += 2
+  for (const item of items) paragraph(doc, 'serif', 9, `• ${item}`, TEXT, 8)
 }
 
 function flagsSection(doc: Doc, d: FeedbackReportData): void {

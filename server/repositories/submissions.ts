@@ -1,5 +1,6 @@
 import type { LogFingerprint } from '../../shared/grading/fingerprint'
 import type { SubmissionStatus } from '../../shared/schemas/submissions'
+import type { UncertaintyContribution } from '../../shared/grading/uncertainty'
 import { and, asc, count, desc, eq, ne, or, sql } from 'drizzle-orm'
 import type { Executor } from '../db/client'
 import {
@@ -142,6 +143,9 @@ export interface CheckWrite {
   absError: number | null
   relError: number | null
   tolerance: number | null
+  standardUncertainty: number | null
+  coverageFactor: number | null
+  uncertaintyContributions: UncertaintyContribution[] | null
   pointsPossible: number
   pointsAwarded: number
   pass: boolean
@@ -192,6 +196,9 @@ export async function saveGrade(
           absError: sql`VALUES(${c.absError})`,
           relError: sql`VALUES(${c.relError})`,
           tolerance: sql`VALUES(${c.tolerance})`,
+          standardUncertainty: sql`VALUES(${c.standardUncertainty})`,
+          coverageFactor: sql`VALUES(${c.coverageFactor})`,
+          uncertaintyContributions: sql`VALUES(${c.uncertaintyContributions})`,
           pointsPossible: sql`VALUES(${c.pointsPossible})`,
           pointsAwarded: sql`VALUES(${c.pointsAwarded})`,
           pass: sql`VALUES(${c.pass})`,

@@ -102,6 +102,8 @@ export async function feedbackReport(db: Database, e: CourseEnrollment, submissi
       pointsPossible: c.pointsPossible,
       outcome: c.outcome,
       adjusted: adjusted.has(c.id),
+      // The student's view: the figures only where the module shows expected values.
+      uncertainty: c.uncertainty && !showExpected ? { ...c.uncertainty, standard: null, expanded: null } : c.uncertainty,
     })),
     flags: flagRows.map((f) => ({ message: f.message, status: f.status, resolvedAt: f.resolvedAt })),
     comments: commentRows.map((c) => ({ author: c.author, at: c.at, paragraphs: markdownToParagraphs(c.body) })),

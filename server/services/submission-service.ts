@@ -4,6 +4,7 @@ import { chartSeries } from '../../shared/grading/grade'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { GRADING_FAILED_MESSAGE } from '../../shared/schemas/submissions'
 import type {
+  CheckUncertaintyView,
   CheckView,
   MySubmissions,
   SubmissionDetail,
@@ -268,6 +269,23 @@ async function canSee(db: Database, e: CourseEnrollment, s: SubmissionRow): Prom
   return (version?.frontMatter as unknown as ModuleFrontMatter | null)?.groupSubmission === true
 }
 
+/**
+ * A check's stored uncertainty as the reader may see it: the figures only where the expected value
+ * is shown (U = k·u_c would give it away), the contributing inputs and their shares always.
+ */
+function uncertaintyView(
+  c: { standardUncertainty: number | null; coverageFactor: number | null; uncertaintyContributions: CheckUncertaintyView['contributions'] | null },
+  showExpected: boolean,
+): CheckUncertaintyView | null {
+  if (c.standardUncertainty === null || c.coverageFactor === null) return null
+  return {
+    standard: showExpected ? c.standardUncertainty : null,
+    expanded: showExpected ? c.coverageFactor * c.standardUncertainty : null,
+    coverage: c.coverageFactor,
+    contributions: c.uncertaintyContributions ?? [],
+  }
+}
+
 export async function submissionDetail(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<SubmissionDetail> {
   const s = await findSubmission(db, e.courseId, submissionId)
   // Someone else's submission does not exist for a student.
@@ -307,6 +325,7 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
         pointsAwarded: c.pointsAwarded,
         pass: c.pass,
         outcome: c.outcome,
+        uncertainty: uncertaintyView(c, showExpected),
       }))
     : []
   let chart = null

@@ -17,6 +17,8 @@ import { buildExpressionScope, taredScope } from '../modules/scope'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { dataFlags } from './data-flags'
 import { regimeNeighbourAccepted } from './regime'
+import { effectiveTolerance, propagateUncertainties } from './uncertainty'
+import type { CheckUncertainty } from './uncertainty'
 
 /**
  * Slack added to every tolerance so that a value exactly on the boundary passes even after a unit
@@ -76,6 +78,11 @@ export interface CheckResult {
   outcome: CheckOutcome
   /** Why the expected value could not be computed (outcome 'error'). */
   error?: string
+  /**
+   * Present when the module declares uncertainties: the expected value's combined standard
+   * uncertainty and its largest contributions (./uncertainty.ts), or null when none reaches it.
+   */
+  uncertainty?: CheckUncertainty | null
 }
 
 export interface GradeResult {
@@ -134,9 +141,14 @@ function errorText(error: unknown): string {
   return error instanceof Error ? error.message : String(error)
 }
 
-function checkResult(spec: ResultSpec, scope: Record<string, ExpressionValue>, reportedValue: number | undefined): CheckResult {
+function checkResult(
+  spec: ResultSpec,
+  scope: Record<string, ExpressionValue>,
+  reportedValue: number | undefined,
+  uncertainty?: CheckUncertainty | null,
+): CheckResult {
   const reported = typeof reportedValue === 'number' && Number.isFinite(reportedValue) ? reportedValue : null
-  const base = { key: spec.key, label: spec.label, unit: spec.unit, reported, pointsPossible: spec.points }
+  const base = { key: spec.key, label: spec.label, unit: spec.unit, reported, pointsPossible: spec.points, ...(uncertainty === undefined ? {} : { uncertainty }) }
   let expected: number
   try {
     const si = evaluateExpression(spec.expected, scope)
@@ -156,7 +168,7 @@ function checkResult(spec: ResultSpec, scope: Record<string, ExpressionValue>, r
       error: errorText(error),
     }
   }
-  const tolerance = Math.max(spec.tolerance.absolute ?? 0, (spec.tolerance.relative ?? 0) * Math.abs(expected))
+  const tolerance = effectiveTolerance(spec.tolerance, expected, uncertainty)
   if (reported === null) {
     return { ...base, expected, absError: null, relError: null, tolerance, pointsAwarded: 0, pass: false, outcome: 'fail' }
   }
@@ -204,10 +216,12 @@ export function gradeSubmission(input: GradeInput): GradeResult {
   // Expressions see pressures with their transducer zero taken (tare: true); the data checks see them as logged.
   const logged = buildExpressionScope(assignment, data, { units: 'si', tare: false })
   const scope = taredScope(assignment, data, logged)
+  // Instrument uncertainties propagate through the same (tared) scope the expected values use.
+  const uncertainties = propagateUncertainties(assignment, data, scope)
 
   const flags: GradeFlag[] = []
   const checks = assignment.results.map((spec) => {
-    const check = checkResult(spec, scope, reported[spec.key])
+    const check = checkResult(spec, scope, reported[spec.key], uncertainties?.get(spec.key))
     if (check.outcome === 'error') {
       flags.push({
         code: 'expression-failed',
@@ -267,3 +281,4 @@ function ruleFlags(assignment: Assignment, dataScope: Record<string, ExpressionV
 
 export * from './data-flags'
 export * from './chart'
+export type { CheckUncertainty, UncertaintyContribution } from './uncertainty'

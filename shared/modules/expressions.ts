@@ -616,6 +616,8 @@ function parseOrThrow(expr: string): MathNode {
 interface Compiled {
   run: (scope: Map<string, unknown>) => unknown
   freeNames: readonly string[]
+  /** The checked tree, for callers that evaluate its parts one by one (checkedExpressionTree). */
+  node: MathNode
 }
 
 const CACHE_LIMIT = 500
@@ -637,7 +639,7 @@ function compiled(expr: string): Compiled {
     checker.check(node)
     if (checker.refusals.length > 0) throw new ExpressionError(checker.refusals.map((r) => r.message).join('; '))
     const code = node.compile()
-    entry = { run: (scope) => code.evaluate(scope), freeNames: [...checker.freeNames] }
+    entry = { run: (scope) => code.evaluate(scope), freeNames: [...checker.freeNames], node }
   } catch (error) {
     entry = error instanceof ExpressionError ? error : new ExpressionError((error as Error).message)
   }
@@ -645,6 +647,18 @@ function compiled(expr: string): Compiled {
   if (cache.size > CACHE_LIMIT) cache.delete(cache.keys().next().value as string)
   if (entry instanceof ExpressionError) throw entry
   return entry
+}
+
+/**
+ * The parsed tree of an expression that passed the checks {@link evaluateExpression} applies, for
+ * code that evaluates its parts separately with the same instance ({@link expressionMath}): the
+ * uncertainty propagation reuses the parts a perturbed input does not reach. The tree is shared:
+ * transform copies of it (`map`), never change it.
+ *
+ * @throws ExpressionError when the expression cannot be parsed or is refused
+ */
+export function checkedExpressionTree(expr: string): MathNode {
+  return compiled(expr).node
 }
 
 function describeResult(value: unknown): string {

@@ -140,6 +140,36 @@ function checkPressureSense(value: { unit: string; pressure?: 'gauge' | 'absolut
 }
 
 /**
+ * The standard uncertainty of a measurement or a column (one standard deviation, JCGM 100:2008, the
+ * GUM, §2.3.1): `absolute` in the field's own unit, `relative` a fraction of the reading as read (a
+ * gauge pressure's gauge value). A column takes each as one component shared by all its samples
+ * (an offset added to every sample, a gain multiplying every sample); a measurement with both
+ * takes them in quadrature. See shared/grading/uncertainty.ts.
+ */
+export const UncertaintySchema = z
+  .strictObject({
+    absolute: z.number().min(0, 'an absolute uncertainty cannot be negative').optional(),
+    relative: z
+      .number()
+      .min(0, 'a relative uncertainty is a fraction from 0 to 1 (0.01 = 1 %)')
+      .max(1, 'a relative uncertainty is a fraction from 0 to 1 (0.01 = 1 %); write 0.01 for 1 %')
+      .optional(),
+  })
+  .refine((u) => u.absolute !== undefined || u.relative !== undefined, {
+    message: 'give a relative uncertainty, an absolute one, or both (for example uncertainty: { absolute: 0.05 })',
+  })
+
+/** A relative uncertainty of a Celsius or Fahrenheit reading would depend on where the scale's zero is. */
+function checkUncertainty(value: { unit: string; uncertainty?: { relative?: number | undefined } | undefined }, ctx: z.RefinementCtx): void {
+  if (value.uncertainty?.relative === undefined || dataUnitKind(value.unit) !== 'temperature' || value.unit === 'K') return
+  ctx.addIssue({
+    code: 'custom',
+    path: ['uncertainty', 'relative'],
+    message: `a relative uncertainty of a temperature in ${value.unit} depends on the zero of the scale; give an absolute one in ${value.unit}`,
+  })
+}
+
+/**
  * What a column is to the grading engine's built-in data checks (thrust above the ideal, gauge or
  * absolute confusion, chamber above receiver, sample gaps). Expressions never see roles: they name
  * columns by key. `time` is the sample time of its table; the others are at most one per assignment.
@@ -180,6 +210,8 @@ export const ColumnSchema = z
     key: KeySchema,
     label: LabelSchema,
     unit: DataUnitSchema,
+    /** Standard uncertainty of the logged values; see {@link UncertaintySchema}. */
+    uncertainty: UncertaintySchema.optional(),
     pressure: PressureSenseSchema.optional(),
     /** What the column is to the built-in data checks; see {@link COLUMN_ROLES}. */
     role: z
@@ -209,6 +241,7 @@ export const ColumnSchema = z
       .optional(),
   })
   .superRefine((column, ctx) => {
+    checkUncertainty(column, ctx)
     checkPressureSense(column, ctx)
     checkRoleUnit(column, ctx)
     if (column.tare === true && column.pressure !== 'gauge') {
@@ -255,6 +288,8 @@ export const MeasurementSchema = z
     key: KeySchema,
     label: LabelSchema,
     unit: DataUnitSchema,
+    /** Standard uncertainty of the value; see {@link UncertaintySchema}. */
+    uncertainty: UncertaintySchema.optional(),
     /** Smallest plausible value, in `unit`; a submission outside [min, max] is refused at the form. */
     min: z.number().optional(),
     /** Largest plausible value, in `unit`. */
@@ -270,6 +305,7 @@ export const MeasurementSchema = z
       .optional(),
   })
   .superRefine((m, ctx) => {
+    checkUncertainty(m, ctx)
     checkPressureSense(m, ctx)
     if (m.role !== 'ambient-pressure') checkRoleUnit(m, ctx)
     if (m.min !== undefined && m.max !== undefined && m.min > m.max) {
@@ -307,9 +343,22 @@ export const ToleranceSchema = z
       .optional(),
     /** In the result's unit. */
     absolute: z.number().min(0, 'an absolute tolerance cannot be negative').optional(),
+    /**
+     * Coverage factor k: the tolerance is also k × the combined standard uncertainty of the
+     * expected value, propagated from the declared uncertainties; the relative and absolute
+     * tolerances stay as its floor: pass when |reported − expected| ≤ max(floor, k·u_c).
+     */
+    coverage: z
+      .number()
+      .min(1, 'a coverage factor is from 1 to 5 (2 covers about 95 %)')
+      .max(5, 'a coverage factor is from 1 to 5 (2 covers about 95 %)')
+      .optional(),
   })
   .refine((t) => t.relative !== undefined || t.absolute !== undefined, {
-    message: 'give a relative tolerance, an absolute tolerance, or both',
+    error: (issue) =>
+      (issue.input as { coverage?: unknown } | undefined)?.coverage === undefined
+        ? 'give a relative tolerance, an absolute tolerance, or both'
+        : 'a coverage tolerance needs a relative or absolute tolerance as its floor, for example { relative: 0.01, coverage: 2 }',
   })
 
 export const PartialCreditSchema = z.strictObject({
@@ -492,6 +541,16 @@ export const AssignmentSchema = z
       })
     }
 
+    const declared = a.measurements.some((m) => m.uncertainty) || a.tables.some((t) => t.columns.some((c) => c.uncertainty))
+    a.results.forEach((r, i) => {
+      if (r.tolerance.coverage === undefined || declared) return
+      ctx.addIssue({
+        code: 'custom',
+        path: ['results', i, 'tolerance', 'coverage'],
+        message: `result "${r.key}" has a coverage tolerance, but no measurement or column declares an uncertainty; add "uncertainty:" to the ones it uses`,
+      })
+    })
+
     const ambient = a.measurements.flatMap((m, i) => (m.role === 'ambient-pressure' ? [i] : []))
     const gauge =
       a.tables.some((t) => t.columns.some((c) => c.pressure === 'gauge')) || a.measurements.some((m) => m.pressure === 'gauge')
@@ -554,4 +613,5 @@ export type ResultSpec = z.output<typeof ResultSpecSchema>
 export type ReviewRule = z.output<typeof ReviewRuleSchema>
 export type Tolerance = z.output<typeof ToleranceSchema>
 export type RegimeSpec = z.output<typeof RegimeSpecSchema>
+export type Uncertainty = z.output<typeof UncertaintySchema>
 export type ResultsVisibility = (typeof RESULTS_VISIBILITY)[number]

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import type { UncertaintyContribution } from '../grading/uncertainty'
 
 const finite = (what: string) =>
   z.number({ error: `${what}: enter a number.` }).refine(Number.isFinite, `${what}: enter a finite number.`)
@@ -68,6 +69,20 @@ export interface CheckView {
   pointsAwarded: number
   pass: boolean
   outcome: CheckOutcome
+  /** The expected value's uncertainty; null when the module declares none or none reaches this result. */
+  uncertainty: CheckUncertaintyView | null
+}
+
+/** The uncertainty of a check's expected value, propagated from the module's instrument uncertainties. */
+export interface CheckUncertaintyView {
+  /** Combined standard uncertainty u_c, in the result's unit; null where expected values are hidden. */
+  standard: number | null
+  /** Expanded uncertainty U = k·u_c; null where expected values are hidden. */
+  expanded: number | null
+  /** Coverage factor k. */
+  coverage: number
+  /** The inputs that contribute most, largest first, with their share of the variance (shown always). */
+  contributions: UncertaintyContribution[]
 }
 
 export interface FlagView {

@@ -277,3 +277,39 @@ describe('all reports of a module (zip)', () => {
     expect((await download(inst, `${C()}/modules/999999999/reports.zip`)).status).toBe(404)
   })
 })
+
+// Last in the file: its hand-in wakes the background grader, which would grade the hand-in the
+// tests above keep waiting ('received') on purpose.
+describe('feedback report: the uncertainty of the expected values', () => {
+  /** The demo module with its expected values shown to students. */
+  const COLD_SHOWN = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, expected values shown').replace(/^showExpected: false$/m, 'showExpected: true')
+  let shownSub = 0
+  beforeAll(async () => {
+    expect(COLD_SHOWN).toContain('showExpected: true')
+    const shown = await createModuleAs(inst, fx.courseId, COLD_SHOWN)
+    await publishAs(inst, fx.courseId, shown)
+    shownSub = await handIn(g2Student, shown.id, 1.0)
+  })
+
+  it('prints each expected value as "expected ± U unit (k = 2)" and which inputs dominate its uncertainty', async () => {
+    const detail = (await g2Student.agent.get(`${C()}/submissions/${shownSub}`).expect(200)).body as SubmissionDetail
+    const pdf = await readPdf((await download(g2Student, `${C()}/submissions/${shownSub}/report.pdf`)).body)
+    expect(pdf.text).toContain('± ')
+    expect(pdf.text).toContain('k = 2')
+    expect(pdf.text).toContain('Where the uncertainty comes from')
+    // The expanded uncertainty the API gives, written as the page writes it (two significant figures).
+    const peak = detail.checks.find((c) => c.key === 'peak_thrust')!
+    expect(peak.uncertainty!.expanded).toBeGreaterThan(0)
+    const U = Number(peak.uncertainty!.expanded!.toPrecision(2))
+    expect(pdf.text).toContain(`± ${U} N (k = 2)`)
+    // The words for the peak thrust: only the load cell reaches it.
+    expect(pdf.text).toMatch(/Peak thrust: (mostly|all from) the thrust column's (gain|offset)/)
+  })
+
+  it('where the module hides expected values, names the dominant inputs without the figures', async () => {
+    const pdf = await readPdf((await download(g2Student, `${C()}/submissions/${subG2}/report.pdf`)).body)
+    expect(pdf.text).toContain('Where the uncertainty comes from')
+    expect(pdf.text).toMatch(/Peak thrust: (mostly|all from) the thrust column's (gain|offset)/)
+    expect(pdf.text).not.toContain('k = 2')
+  })
+})

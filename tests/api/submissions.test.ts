@@ -3,10 +3,10 @@ import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { hashPassword } from '../../server/auth/password'
-import { enrollments, labGroups, mailOutbox, submissionFiles, submissionFlags, submissions, users } from '../../server/db/schema'
+import { enrollments, labGroups, mailOutbox, submissionChecks, submissionFiles, submissionFlags, submissions, users } from '../../server/db/schema'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
-import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
+import { coldFlowCsv, coldFlowPayload, trapezoid } from '../helpers/cold-flow'
 import { createModuleAs, publishAs } from '../helpers/modules'
 import type { CreatedModule } from '../helpers/modules'
 
@@ -343,3 +343,134 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
   })
 })
 
+describe('measurement uncertainty of the expected values', () => {
+  /**
+   * A module of our own: the load cell with a 0.05 N zero and a 0.5 % gain, the throat measured to
+   * 0.01 mm, expected values shown; the impulse twice, each with a coverage tolerance (k = 2) over
+   * a floor of 0.01 %, so one report can land inside and the other outside 2·u_c.
+   */
+  const SOURCE = `---
+title: Impulse with its uncertainty
+groupSubmission: true
+showExpected: true
+assignment:
+  tables:
+    - key: run
+      label: Run log
+      columns:
+        - { key: t, label: Time, unit: s, role: time }
+        - { key: thrust, label: Thrust, unit: N, role: thrust, uncertainty: { absolute: 0.05, relative: 0.005 } }
+        - { key: p_receiver, label: Receiver pressure, unit: kPa, pressure: gauge }
+        - { key: p_chamber, label: Chamber pressure, unit: kPa, pressure: gauge }
+  measurements:
+    - { key: p_ambient, label: Barometric pressure, unit: kPa, pressure: absolute, role: ambient-pressure }
+    - { key: d_throat, label: Throat diameter, unit: mm, uncertainty: { absolute: 0.01 } }
+  results:
+    - key: impulse_in
+      label: Total impulse (inside 2 u)
+      unit: N*s
+      expected: totalImpulse(t, thrust)
+      tolerance: { relative: 0.0001, coverage: 2 }
+      points: 1
+    - key: impulse_out
+      label: Total impulse (outside 2 u)
+      unit: N*s
+      expected: totalImpulse(t, thrust)
+      tolerance: { relative: 0.0001, coverage: 2 }
+      points: 1
+    - key: throat_area
+      label: Throat area
+      unit: mm2
+      expected: areaFromDiameter(d_throat)
+      tolerance: { relative: 0.01 }
+      points: 1
+---
+
+Invented test module.
+`
+  const log = coldFlowCsv()
+  // Closed forms, independent of the engine: the gain scales the impulse (u = 0.5 % of I), the
+  // zero offset integrates over the log's duration (u = 0.05 N × T); the throat area has
+  // u(A)/A = 2·u(d)/d with d = 6 mm.
+  const impulse = trapezoid(log.t, log.thrust)
+  const duration = log.t[log.t.length - 1]! - log.t[0]!
+  const uGain = 0.005 * impulse
+  const uOffset = 0.05 * duration
+  const uImpulse = Math.hypot(uGain, uOffset)
+  const area = (Math.PI * 36) / 4
+  const uArea = area * 2 * (0.01 / 6)
+  let shown: CreatedModule
+  let id = 0
+
+  beforeAll(async () => {
+    shown = await createModuleAs(inst, fx.courseId, SOURCE)
+    await publishAs(inst, fx.courseId, shown)
+    const full = payload(log)
+    const body = {
+      mappings: full.mappings,
+      measurements: { p_ambient: full.measurements.p_ambient, d_throat: full.measurements.d_throat },
+      reported: {
+        impulse_in: { value: impulse + 1.9 * uImpulse, unit: 'N*s' },
+        impulse_out: { value: impulse - 2.1 * uImpulse, unit: 'N*s' },
+        throat_area: { value: area, unit: 'mm2' },
+      },
+    }
+    const res = await handIn(student, [{ field: 'table:run', name: 'u.csv', body: log.csv }], body, shown.id)
+    expect(res.status).toBe(201)
+    id = res.body.id
+  })
+
+  type Check = { key: string; expected: number; tolerance: number; outcome: string; uncertainty: { standard: number | null; expanded: number | null; coverage: number; contributions: { key: string; part: string; label: string; share: number }[] } | null }
+  const byKey = (checks: Check[]) => Object.fromEntries(checks.map((c) => [c.key, c]))
+
+  it('returns each check’s standard and expanded uncertainty, coverage factor and largest contributions', async () => {
+    const d = (await student.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(200)).body
+    const c = byKey(d.checks)
+    const u = c.impulse_in!.uncertainty!
+    expect(u.standard! / uImpulse).toBeCloseTo(1, 9)
+    expect(u.expanded! / (2 * uImpulse)).toBeCloseTo(1, 9)
+    expect(u.coverage).toBe(2)
+    expect(u.contributions.map((x) => [x.key, x.part, x.label])).toEqual([
+      ['thrust', uGain > uOffset ? 'gain' : 'offset', 'Thrust'],
+      ['thrust', uGain > uOffset ? 'offset' : 'gain', 'Thrust'],
+    ])
+    expect(u.contributions[0]!.share / (Math.max(uGain, uOffset) ** 2 / uImpulse ** 2)).toBeCloseTo(1, 9)
+    expect(c.throat_area!.uncertainty!.standard! / uArea).toBeCloseTo(1, 9)
+    expect(c.throat_area!.uncertainty!.contributions).toEqual([{ key: 'd_throat', part: 'value', label: 'Throat diameter', share: 1 }])
+  })
+
+  it('grades a coverage tolerance: 1.9 u_c from the expected value passes, 2.1 u_c fails', async () => {
+    const d = (await student.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(200)).body
+    const c = byKey(d.checks)
+    expect(c.impulse_in!.tolerance / (2 * uImpulse)).toBeCloseTo(1, 9)
+    expect(c.impulse_in!.outcome).toBe('pass')
+    expect(c.impulse_out!.outcome).toBe('fail')
+    expect(d.score).toBe(2)
+  })
+
+  it('stores the uncertainty with each check', async () => {
+    const rows = await ctx.handle.db.select().from(submissionChecks).where(eq(submissionChecks.submissionId, id))
+    const row = rows.find((r) => r.resultKey === 'impulse_in')!
+    expect(row.standardUncertainty! / uImpulse).toBeCloseTo(1, 9)
+    expect(row.coverageFactor).toBe(2)
+    expect(row.uncertaintyContributions!.map((x) => x.part).sort()).toEqual(['gain', 'offset'])
+  })
+
+  it('where expected values are hidden the student gets the contributing inputs but no figures; staff get the figures', async () => {
+    // The demo module (content/02) hides expected values and declares its instruments' uncertainties.
+    const mine = await student.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}/submissions/mine`).expect(200)
+    const sid = mine.body.submissions[0].id
+    const asStudent = byKey((await student.agent.get(`/api/courses/${fx.courseId}/submissions/${sid}`).expect(200)).body.checks)
+    const asTa = byKey((await ta.agent.get(`/api/courses/${fx.courseId}/submissions/${sid}`).expect(200)).body.checks)
+    const s = asStudent.peak_thrust!.uncertainty!
+    expect(asStudent.peak_thrust!.expected).toBeNull()
+    expect(s.standard).toBeNull()
+    expect(s.expanded).toBeNull()
+    expect(s.contributions.length).toBeGreaterThan(0)
+    expect(s.contributions.every((x) => x.key === 'thrust')).toBe(true)
+    const t = asTa.peak_thrust!.uncertainty!
+    expect(t.standard).toBeGreaterThan(0)
+    expect(t.expanded).toBe(2 * t.standard!)
+    expect(t.contributions).toEqual(s.contributions)
+  })
+})

@@ -1,4 +1,5 @@
-import { boolean, double, index, mysqlEnum, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import { boolean, double, index, json, mysqlEnum, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import type { UncertaintyContribution } from '../../../shared/grading/uncertainty'
 import { id, ref, timestamps } from './columns'
 import { submissions } from './submissions'
 
@@ -22,6 +23,15 @@ export const submissionChecks = mysqlTable(
     relError: double('rel_error'),
     /** Effective absolute tolerance in the result's unit. */
     tolerance: double('tolerance'),
+    /**
+     * Combined standard uncertainty of `expected` in the result's unit, propagated from the
+     * module's declared instrument uncertainties; null when it declares none or none reaches this result.
+     */
+    standardUncertainty: double('standard_uncertainty'),
+    /** Coverage factor k used with it (the tolerance's, else 2 for display); null with no uncertainty. */
+    coverageFactor: double('coverage_factor'),
+    /** Its largest contributions, largest first (input, part and share of the variance). */
+    uncertaintyContributions: json('uncertainty_contributions').$type<UncertaintyContribution[] | null>(),
     pointsPossible: double('points_possible').notNull(),
     pointsAwarded: double('points_awarded').notNull(),
     /** Set when staff overrode the points (the audit is in grade_changes). */
