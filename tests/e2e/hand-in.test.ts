@@ -224,6 +224,11 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
       const row = checks.locator(`tr[data-check="${c.key}"]`)
       expect(await row.getAttribute('data-outcome'), c.key).toBe(c.outcome)
     }
+    // The regime the student chose is shown by its name on the result page too, not as a bare code.
+    for (const r of assignment.results.filter((x) => x.regime)) {
+      const choice = REGIME_CHOICES.find((c) => c.code === reported[r.key])!
+      expect(await checks.locator(`tr[data-check="${r.key}"] td[data-label="Your value"]`).innerText()).toBe(`${choice.label} (${choice.code})`)
+    }
     const wrongRow = checks.locator(`tr[data-check="${WRONG}"]`)
     expect(await wrongRow.getAttribute('data-outcome')).toBe('fail')
     expect(await wrongRow.innerText()).toContain('Failed')
