@@ -119,6 +119,8 @@ beforeAll(async () => {
   await db.update(submissions).set({ status: 'grading', gradeClaimedAt: new Date() }).where(eq(submissions.id, subG1Later))
 }, 120_000)
 afterAll(async () => {
+  // The hand-in held in 'grading' above goes back to graded, so no later file's grader takes it up.
+  await ctx.handle.db.update(submissions).set({ status: 'graded', gradeClaimedAt: null }).where(eq(submissions.id, subG1Later))
   await ctx.close()
 })
 

@@ -42,15 +42,17 @@ describe('flag digest for teaching assistants', () => {
     const flags = (await Promise.all(ids.map((id) => ctx.handle.db.select().from(submissionFlags).where(eq(submissionFlags.submissionId, id))))).flat()
     expect(flags.length).toBeGreaterThanOrEqual(2)
 
+    // At least this course's section A (one TA); hand-ins other files left waiting may have been
+    // graded since by the background grader and flagged in their own courses.
     const queued = await queueFlagDigests(ctx.handle.db, 'http://127.0.0.1:3000')
-    expect(queued).toBe(1) // the fixture's section A has one TA
+    expect(queued).toBeGreaterThanOrEqual(1)
     const mail = await ctx.handle.db.select().from(mailOutbox).where(like(mailOutbox.dedupeKey, `flag-digest:${fx.courseId}:%`))
     expect(mail).toHaveLength(1)
     expect(mail[0]!.toAddress).toBe(fx.ta.email)
     expect(mail[0]!.subject).toContain(`${flags.length} new flags`)
     for (const id of ids) expect(mail[0]!.textBody).toContain(`/review/${id}`)
 
-    expect(await queueFlagDigests(ctx.handle.db, 'http://127.0.0.1:3000')).toBe(0)
+    await queueFlagDigests(ctx.handle.db, 'http://127.0.0.1:3000')
     const after = await ctx.handle.db.select().from(mailOutbox).where(like(mailOutbox.dedupeKey, `flag-digest:${fx.courseId}:%`))
     expect(after).toHaveLength(1)
   })

@@ -73,6 +73,9 @@ beforeAll(async () => {
   grading = gradingContext(ctx.handle.db, { grader, logger: silentLogger(), appUrl: ctx.config.APP_URL })
 })
 afterAll(async () => {
+  // Leave nothing waiting in the shared queue for a later file's background grader.
+  await ctx.handle.db.update(submissions).set({ gradeAfter: null }).where(eq(submissions.courseId, fx.courseId))
+  await gradeWaiting(ctx.handle.db, grading, 100, 60_000)
   await grader?.close()
   await ctx.close()
 })
