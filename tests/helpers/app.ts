@@ -29,13 +29,16 @@ export function startTestApp(overrides: Partial<Record<string, string>> = {}): T
   const config = testConfig(overrides)
   const handle = createDb(appDbOptions(config))
   const logger = createLogger(config.LOG_LEVEL)
-  // The grading threads and the background grader, as `npm start` runs them: a hand-in that
-  // arrives while the threads are busy is graded by the background grader a moment later.
+  // The grading threads, as `npm start` runs them. The background grader only where a file asks
+  // for it (GRADING_POLL_MS): files run one after another on one database, and a grader started
+  // here would take up hand-ins an earlier file left waiting, in the middle of this file's checks.
   const grader = createGrader(gradingBudget(config))
-  // GRADING_POLL_MS=0 leaves it out, for tests that drive the grading cycle themselves.
   const worker =
-    config.GRADING_POLL_MS > 0
-      ? startGradingWorker(handle.db, gradingContext(handle.db, { grader, logger, appUrl: config.APP_URL }), { ...DEFAULT_GRADING_WORKER_OPTIONS, pollMs: 300 })
+    overrides.GRADING_POLL_MS !== undefined && config.GRADING_POLL_MS > 0
+      ? startGradingWorker(handle.db, gradingContext(handle.db, { grader, logger, appUrl: config.APP_URL }), {
+          ...DEFAULT_GRADING_WORKER_OPTIONS,
+          pollMs: config.GRADING_POLL_MS,
+        })
       : null
   const created = createApp({ config, db: handle.db, logger, grader, onHandInStored: () => worker?.kick() })
   return {
