@@ -7,6 +7,7 @@ import type { Assignment, ColumnSpec } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { STANDARD_ATMOSPHERE, areaFromDiameter, idealThrust, nozzleFlow, nozzlePressureRatios } from '../physics'
 import { UNITS, isUnitSymbol } from '../units'
+import { medianInPlace } from '../physics/statistics'
 import type { GradeFlag } from './grade'
 import { roleKeys } from './roles'
 import type { RoleKeys } from './roles'
@@ -172,41 +173,9 @@ function argmax(xs: readonly number[]): number {
   return best
 }
 
-/**
- * Median by selection (Hoare's quickselect, expected O(n)) on a copy: the time-gap check takes the
- * median of 50 000 steps, where a full sort would cost several times more.
- */
+/** Median of a copy (the log's own array is left as it is). */
 function median(xs: ArrayLike<number>): number {
-  const a = Float64Array.from(xs)
-  const n = a.length
-  const mid = n >> 1
-  let lo = 0
-  let hi = n - 1
-  while (lo < hi) {
-    const pivot = a[(lo + hi) >> 1] as number
-    let i = lo
-    let j = hi
-    while (i <= j) {
-      while ((a[i] as number) < pivot) i++
-      while ((a[j] as number) > pivot) j--
-      if (i <= j) {
-        const t = a[i] as number
-        a[i] = a[j] as number
-        a[j] = t
-        i++
-        j--
-      }
-    }
-    if (mid <= j) hi = j
-    else if (mid >= i) lo = i
-    else break
-  }
-  const upper = a[mid] as number
-  if (n % 2 === 1) return upper
-  // Everything left of mid is ≤ a[mid]; the other middle value is the largest of them.
-  let lower = -Infinity
-  for (let k = 0; k < mid; k++) if ((a[k] as number) > lower) lower = a[k] as number
-  return (lower + upper) / 2
+  return medianInPlace(Float64Array.from(xs))
 }
 
 /** The ideal thrust, 0 when the chamber is not above ambient (no flow), undefined when the library refuses the inputs. */

@@ -9,6 +9,7 @@
  * window threshold and the quiet-stretch rules below are common practice on teaching stands, no
  * published source; each constant says so.
  */
+import { medianInPlace } from './statistics'
 import { requireInterval, requireObject, requireSameLength, requireSamples } from './validate'
 import { requireStrictlyIncreasing, windowIntegralUnchecked } from './window'
 
@@ -151,38 +152,6 @@ function medianOf(x: ArrayLike<number>, from: number, to: number): number {
   const a = new Float64Array(to - from)
   for (let i = from; i < to; i++) a[i - from] = x[i] as number
   return medianInPlace(a)
-}
-
-function medianInPlace(a: Float64Array): number {
-  const n = a.length
-  const mid = n >> 1
-  let lo = 0
-  let hi = n - 1
-  while (lo < hi) {
-    const pivot = a[(lo + hi) >> 1] as number
-    let i = lo
-    let j = hi
-    while (i <= j) {
-      while ((a[i] as number) < pivot) i++
-      while ((a[j] as number) > pivot) j--
-      if (i <= j) {
-        const t = a[i] as number
-        a[i] = a[j] as number
-        a[j] = t
-        i++
-        j--
-      }
-    }
-    if (mid <= j) hi = j
-    else if (mid >= i) lo = i
-    else break
-  }
-  const upper = a[mid] as number
-  if (n % 2 === 1) return upper
-  // Everything left of mid is ≤ a[mid]; the other middle value is the largest of them.
-  let lower = -Infinity
-  for (let k = 0; k < mid; k++) if ((a[k] as number) > lower) lower = a[k] as number
-  return (lower + upper) / 2
 }
 
 function requireRunSamples(time: readonly number[], thrust: readonly number[]): void {
