@@ -5,19 +5,42 @@
 // or on the server named by DATABASE_URL / DB_*.
 import { spawn } from 'node:child_process'
 import { createHash } from 'node:crypto'
-import { chmodSync, createWriteStream, existsSync, mkdirSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs'
+import {
+  chmodSync,
+  createWriteStream,
+  existsSync,
+  mkdirSync,
+  renameSync,
+  rmSync,
+  statSync,
+  writeFileSync,
+} from 'node:fs'
 import path from 'node:path'
 import { Transform } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
 import { createGzip } from 'node:zlib'
 import { ROOT } from './lib/bootstrap.mjs'
-import { ToolError, clientArgs, formatBytes, listTables, main, onCleanup, openDatabase, query, shown } from './lib/db-tools.mjs'
+import {
+  ToolError,
+  clientArgs,
+  formatBytes,
+  listTables,
+  main,
+  onCleanup,
+  openDatabase,
+  query,
+  shown,
+} from './lib/db-tools.mjs'
 
-const USAGE = 'usage: npm run backup   (writes .backups/isentrope-<database>-<UTC time>.sql.gz; BACKUP_DIR=folder to write elsewhere)'
+const USAGE =
+  'usage: npm run backup   (writes .backups/isentrope-<database>-<UTC time>.sql.gz; BACKUP_DIR=folder to write elsewhere)'
 
 /** 2026-12-02T15:30:12.345Z → 20261202T153012Z: sorts by time and is safe in any file system. */
 function stamp(date) {
-  return date.toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')
+  return date
+    .toISOString()
+    .replace(/[-:]/g, '')
+    .replace(/\.\d+Z$/, 'Z')
 }
 
 /** Where the new dump goes; a second backup within the same second gets a suffix, never overwrites. */
@@ -42,7 +65,8 @@ await main('backup', async () => {
   const args = clientArgs(db)
 
   const tables = await listTables(db, args)
-  if (tables.length === 0) process.stderr.write(`[isentrope] warning: ${db.label} has no tables; the backup will be empty\n`)
+  if (tables.length === 0)
+    process.stderr.write(`[isentrope] warning: ${db.label} has no tables; the backup will be empty\n`)
   // --single-transaction gives one consistent snapshot of transactional (InnoDB) tables only.
   const other = await query(
     db,
@@ -105,7 +129,9 @@ await main('backup', async () => {
   const written = pipeline(dump.stdout, createGzip({ level: 6 }), hashing, createWriteStream(partial, { mode: 0o600 }))
   const [status] = await Promise.all([exited, written])
   if (status !== 0) {
-    throw new ToolError(`mariadb-dump stopped (${status}) before the dump was complete; nothing was kept.${dumpErr ? `\n${dumpErr.trim()}` : ''}`)
+    throw new ToolError(
+      `mariadb-dump stopped (${status}) before the dump was complete; nothing was kept.${dumpErr ? `\n${dumpErr.trim()}` : ''}`,
+    )
   }
 
   renameSync(partial, file)

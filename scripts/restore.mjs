@@ -51,7 +51,9 @@ async function sqlTail(file, gzip) {
       },
     }),
   ).catch((err) => {
-    throw new ToolError(`${shown(file)} cannot be read to the end (${err.message}): it is damaged or cut short; nothing was restored`)
+    throw new ToolError(
+      `${shown(file)} cannot be read to the end (${err.message}): it is damaged or cut short; nothing was restored`,
+    )
   })
   return tail.toString('utf8')
 }
@@ -67,7 +69,10 @@ await main('restore', async () => {
   const unknown = argv.find((a) => a.startsWith('-') && a !== '--force')
   if (unknown) throw new ToolError(`unknown option ${unknown}\n${USAGE}`)
   const files = argv.filter((a) => !a.startsWith('-'))
-  if (files.length !== 1) throw new ToolError(`${files.length === 0 ? 'name the backup file to restore' : 'name one backup file only'}\n${USAGE}`)
+  if (files.length !== 1)
+    throw new ToolError(
+      `${files.length === 0 ? 'name the backup file to restore' : 'name one backup file only'}\n${USAGE}`,
+    )
   const file = files[0]
   if (!existsSync(file)) throw new ToolError(`no such file: ${file}`)
   if (!statSync(file).isFile()) throw new ToolError(`${file} is not a file`)
@@ -89,14 +94,20 @@ await main('restore', async () => {
   }
   const gzip = isGzip(file)
   if (!(await sqlTail(file, gzip)).includes(COMPLETED)) {
-    throw new ToolError(`${shown(file)} does not end with mariadb-dump's "${COMPLETED}" line: it is cut short or not a dump; nothing was restored`)
+    throw new ToolError(
+      `${shown(file)} does not end with mariadb-dump's "${COMPLETED}" line: it is cut short or not a dump; nothing was restored`,
+    )
   }
 
   const db = await openDatabase({ createIfMissing: true })
   const args = clientArgs(db)
   const before = await listTables(db, args)
   if (before.length > 0 && !force) {
-    const names = before.slice(0, 5).map((t) => t.name).join(', ') + (before.length > 5 ? ', …' : '')
+    const names =
+      before
+        .slice(0, 5)
+        .map((t) => t.name)
+        .join(', ') + (before.length > 5 ? ', …' : '')
     throw new ToolError(
       `${db.label} already has ${before.length} table${before.length === 1 ? '' : 's'} (${names}); restore wants an empty database.\n` +
         '  Nothing was changed. To replace them with the dump, run again with --force: it drops these tables first\n' +
@@ -117,7 +128,13 @@ await main('restore', async () => {
     await query(
       db,
       args,
-      ['SET FOREIGN_KEY_CHECKS = 0', views && `DROP VIEW IF EXISTS ${views}`, tables && `DROP TABLE IF EXISTS ${tables}`].filter(Boolean).join('; '),
+      [
+        'SET FOREIGN_KEY_CHECKS = 0',
+        views && `DROP VIEW IF EXISTS ${views}`,
+        tables && `DROP TABLE IF EXISTS ${tables}`,
+      ]
+        .filter(Boolean)
+        .join('; '),
     )
   }
   process.stdout.write(`[isentrope] restoring ${shown(file)} (${formatBytes(statSync(file).size)}) into ${db.label}\n`)
@@ -140,7 +157,10 @@ await main('restore', async () => {
   })
   const status = await exited
   if (status !== 0 || streamError) {
-    const why = status !== 0 ? `mariadb stopped (${status})${clientErr ? `: ${clientErr.trim()}` : ''}` : `reading the file failed: ${streamError.message}`
+    const why =
+      status !== 0
+        ? `mariadb stopped (${status})${clientErr ? `: ${clientErr.trim()}` : ''}`
+        : `reading the file failed: ${streamError.message}`
     throw new ToolError(
       `the restore did not finish: ${why}\n` +
         `  ${db.label} may now hold part of the dump: drop and re-create it empty before trying again.`,
@@ -156,6 +176,8 @@ await main('restore', async () => {
     counts.push(`${n} ${n === '1' ? one : many}`)
   }
   process.stdout.write(
-    `[isentrope] restored ${shown(file)} into ${db.label}: ${after.length} table${after.length === 1 ? '' : 's'}` + (counts.length > 0 ? ` (${counts.join(', ')})` : '') + '\n',
+    `[isentrope] restored ${shown(file)} into ${db.label}: ${after.length} table${after.length === 1 ? '' : 's'}` +
+      (counts.length > 0 ? ` (${counts.join(', ')})` : '') +
+      '\n',
   )
 })

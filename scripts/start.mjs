@@ -98,7 +98,9 @@ try {
       '',
       '  Isentrope is running.',
       `  App:           ${appUrl}`,
-      process.env.SMTP_HOST ? '' : `  Mail catcher:  http://127.0.0.1:${mailWebPort}  (every e-mail the app sends lands here)`,
+      process.env.SMTP_HOST
+        ? ''
+        : `  Mail catcher:  http://127.0.0.1:${mailWebPort}  (every e-mail the app sends lands here)`,
       db ? `  MariaDB:       127.0.0.1:${db.port}  (data in .data/mariadb)` : '',
       '',
       `  Demo sign-ins (password for all: ${pw})`,

@@ -24,7 +24,7 @@ const ARTIFACTS = path.join(ROOT, '.artifacts')
 const extraArgs = process.argv.slice(2)
 let db = null
 let maildev = null
-let exitCode = 1
+let exitCode
 
 async function cleanup() {
   if (maildev && maildev.child.exitCode === null) {
@@ -81,14 +81,44 @@ try {
   rmSync(path.join(DATA, mailDir), { recursive: true, force: true })
   maildev = startMaildev({ smtpPort, webPort, dir: mailDir })
   await waitForHttp(`http://127.0.0.1:${webPort}/api/email`)
-  Object.assign(env, { SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtpPort), MAILDEV_API: `http://127.0.0.1:${webPort}` })
+  Object.assign(env, {
+    SMTP_HOST: '127.0.0.1',
+    SMTP_PORT: String(smtpPort),
+    MAILDEV_API: `http://127.0.0.1:${webPort}`,
+  })
 
   const tsx = nodeBin('tsx/dist/cli.mjs')
   const migrated = step('applying migrations to the test database', tsx[0], [tsx[1], 'scripts/migrate.ts'], env)
   const vueTsc = nodeBin('vue-tsc/bin/vue-tsc.js')
-  const typed = step('type-checking client, server and shared (vue-tsc --build)', vueTsc[0], [vueTsc[1], '--build'], env)
+  const typed = step(
+    'type-checking client, server and shared (vue-tsc --build)',
+    vueTsc[0],
+    [vueTsc[1], '--build'],
+    env,
+  )
+  const eslint = nodeBin('eslint/bin/eslint.js')
+  const prettier = nodeBin('prettier/bin/prettier.cjs')
+  const linted =
+    step('linting (eslint)', eslint[0], [eslint[1], '.'], env) &&
+    step(
+      'checking the layout (prettier --check)',
+      prettier[0],
+      [prettier[1], '--check', '--log-level', 'warn', '.'],
+      env,
+    )
+  const migrationsMatch = step(
+    'checking that the migrations match the Drizzle schema',
+    process.execPath,
+    ['scripts/check-migrations.mjs'],
+    env,
+  )
   const vite = nodeBin('vite/bin/vite.js')
-  const built = step('building the client for the browser tests', vite[0], [vite[1], 'build', '--logLevel', 'warn'], env)
+  const built = step(
+    'building the client for the browser tests',
+    vite[0],
+    [vite[1], 'build', '--logLevel', 'warn'],
+    env,
+  )
 
   const report = path.join(ARTIFACTS, 'vitest-report.json')
   rmSync(report, { force: true })
@@ -118,9 +148,11 @@ try {
   if (!migrated) log('FAILED: migrations did not apply')
   if (!typed) log('FAILED: type-check')
   if (!built) log('FAILED: client build')
+  if (!linted) log('FAILED: lint (run `npm run format`, then fix what eslint still reports)')
+  if (!migrationsMatch) log('FAILED: the Drizzle schema and the committed migrations differ')
   if (!ran) log('FAILED: no tests ran')
   process.stdout.write(`tests: ${passed} passed, ${failed} failed\n`)
-  exitCode = migrated && typed && built && ran && failed === 0 ? 0 : 1
+  exitCode = migrated && typed && linted && migrationsMatch && built && ran && failed === 0 ? 0 : 1
 } catch (err) {
   process.stderr.write(`[isentrope] test run failed: ${err instanceof Error ? err.stack : String(err)}\n`)
   process.stdout.write('tests: 0 passed, 1 failed\n')

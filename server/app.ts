@@ -51,10 +51,16 @@ export interface CreatedApp {
 }
 
 /** Builds the Express app without listening, so tests drive it through supertest. */
-export function createApp({ config, db, logger, onMailQueued, grader: givenGrader, onHandInStored }: AppDeps): CreatedApp {
+export function createApp({
+  config,
+  db,
+  logger,
+  onMailQueued,
+  grader: givenGrader,
+  onHandInStored,
+}: AppDeps): CreatedApp {
   const app = express()
-  const grader =
-    givenGrader ?? createGrader(gradingBudget(config))
+  const grader = givenGrader ?? createGrader(gradingBudget(config))
   const grading = gradingContext(db, { grader, logger, appUrl: config.APP_URL, onMailQueued })
   const secureCookies = config.APP_URL.startsWith('https://')
   if (config.TRUST_PROXY > 0) app.set('trust proxy', config.TRUST_PROXY)
@@ -65,7 +71,8 @@ export function createApp({ config, db, logger, onMailQueued, grader: givenGrade
       logger,
       // Health probes would drown the log.
       autoLogging: { ignore: (req) => req.url === '/api/health' },
-      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
+      customLogLevel: (_req, res, err) =>
+        err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info',
     }),
   )
 
@@ -158,16 +165,29 @@ export function createApp({ config, db, logger, onMailQueued, grader: givenGrade
   api.use(csrf.protect)
   api.use('/auth', authRoutes(passport, csrf))
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
-  api.use('/courses/:courseId', handInRoutes(db, { uploadLimitMb: config.UPLOAD_LIMIT_MB, grading, onHandInStored: () => onHandInStored?.() }))
+  api.use(
+    '/courses/:courseId',
+    handInRoutes(db, { uploadLimitMb: config.UPLOAD_LIMIT_MB, grading, onHandInStored: () => onHandInStored?.() }),
+  )
   api.use('/courses/:courseId', reviewRoutes(db))
   api.use('/courses/:courseId', gradeRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   // Feedback reports; before the module router, so /modules/:moduleId/reports.zip is answered here.
   api.use('/courses/:courseId', reportRoutes(db))
-  api.use('/courses/:courseId/modules', moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }))
+  api.use(
+    '/courses/:courseId/modules',
+    moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }),
+  )
   api.use('/courses/:courseId', courseAdminRoutes(db))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
-  api.use('/courses/:courseId/roster/import', rosterImportRoutes(db, { appUrl: config.APP_URL, invitationTtlHours: config.INVITATION_TTL_HOURS, onMailQueued: () => onMailQueued?.() }))
+  api.use(
+    '/courses/:courseId/roster/import',
+    rosterImportRoutes(db, {
+      appUrl: config.APP_URL,
+      invitationTtlHours: config.INVITATION_TTL_HOURS,
+      onMailQueued: () => onMailQueued?.(),
+    }),
+  )
   api.use(apiNotFound)
   app.use('/api', api)
 

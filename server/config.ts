@@ -13,7 +13,14 @@ const DbEnvShape = {
   DB_PASSWORD: z.string().optional(),
 }
 
-type DbEnv = { DATABASE_URL?: string | undefined; DB_HOST?: string | undefined; DB_PORT: number; DB_NAME?: string | undefined; DB_USER?: string | undefined; DB_PASSWORD?: string | undefined }
+type DbEnv = {
+  DATABASE_URL?: string | undefined
+  DB_HOST?: string | undefined
+  DB_PORT: number
+  DB_NAME?: string | undefined
+  DB_USER?: string | undefined
+  DB_PASSWORD?: string | undefined
+}
 
 function requireDb(c: DbEnv, ctx: z.RefinementCtx): void {
   if (!c.DATABASE_URL && !(c.DB_HOST && c.DB_NAME && c.DB_USER)) {
@@ -72,9 +79,12 @@ const ConfigSchema = z
     /** A counter starts over after this many minutes without a new failure. */
     SIGNIN_WINDOW_MINUTES: z.coerce.number().positive().default(60),
     /** Replaced: failures no longer lock an account; refuse it so an old setting is not silently ignored. */
-    SIGNIN_MAX_FAILURES: z.undefined({
-      error: 'replaced by SIGNIN_FREE_FAILURES (failures allowed before sign-ins slow down; nothing is locked any more): remove it',
-    }).optional(),
+    SIGNIN_MAX_FAILURES: z
+      .undefined({
+        error:
+          'replaced by SIGNIN_FREE_FAILURES (failures allowed before sign-ins slow down; nothing is locked any more): remove it',
+      })
+      .optional(),
     UPLOAD_LIMIT_MB: z.coerce.number().positive().default(20),
     /** Grading budget per hand-in: wall-clock time and the grading thread's heap. */
     GRADING_TIMEOUT_MS: z.coerce.number().int().min(100).default(20_000),
@@ -92,11 +102,19 @@ const ConfigSchema = z
   })
   .superRefine((c, ctx) => {
     if (c.SIGNIN_MAX_DELAY_SECONDS < c.SIGNIN_FIRST_DELAY_SECONDS) {
-      ctx.addIssue({ code: 'custom', path: ['SIGNIN_MAX_DELAY_SECONDS'], message: 'must be at least SIGNIN_FIRST_DELAY_SECONDS' })
+      ctx.addIssue({
+        code: 'custom',
+        path: ['SIGNIN_MAX_DELAY_SECONDS'],
+        message: 'must be at least SIGNIN_FIRST_DELAY_SECONDS',
+      })
     }
     // A wait longer than the window would never be served: the counter would start over first.
     if (c.SIGNIN_MAX_DELAY_SECONDS >= c.SIGNIN_WINDOW_MINUTES * 60) {
-      ctx.addIssue({ code: 'custom', path: ['SIGNIN_MAX_DELAY_SECONDS'], message: 'must be shorter than SIGNIN_WINDOW_MINUTES' })
+      ctx.addIssue({
+        code: 'custom',
+        path: ['SIGNIN_MAX_DELAY_SECONDS'],
+        message: 'must be shorter than SIGNIN_WINDOW_MINUTES',
+      })
     }
   })
 
@@ -159,7 +177,9 @@ export function dbConnectionOptions(c: DbEnv): DbConnectionOptions {
 }
 
 /** The app's pool: connection options, its size, and the fail-fast timeouts. */
-export function appDbOptions(c: Config): DbConnectionOptions & { poolSize: number; timeouts: { acquireMs: number; queryMs: number } } {
+export function appDbOptions(
+  c: Config,
+): DbConnectionOptions & { poolSize: number; timeouts: { acquireMs: number; queryMs: number } } {
   return {
     ...dbConnectionOptions(c),
     poolSize: c.DB_POOL_SIZE,
@@ -168,4 +188,8 @@ export function appDbOptions(c: Config): DbConnectionOptions & { poolSize: numbe
 }
 
 /** The grading budget and threads from the configuration. */
-export const gradingBudget = (c: Config) => ({ timeoutMs: c.GRADING_TIMEOUT_MS, memoryMb: c.GRADING_MEMORY_MB, threads: c.GRADING_THREADS })
+export const gradingBudget = (c: Config) => ({
+  timeoutMs: c.GRADING_TIMEOUT_MS,
+  memoryMb: c.GRADING_MEMORY_MB,
+  threads: c.GRADING_THREADS,
+})

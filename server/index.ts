@@ -25,7 +25,10 @@ const logger = createLogger(config.LOG_LEVEL)
 const dbHandle = createDb(appDbOptions(config))
 const worker =
   config.MAIL_POLL_MS > 0
-    ? startOutboxWorker(dbHandle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: config.MAIL_POLL_MS })
+    ? startOutboxWorker(dbHandle.db, createSmtpSender(config), logger, {
+        ...DEFAULT_OUTBOX_OPTIONS,
+        pollMs: config.MAIL_POLL_MS,
+      })
     : null
 // The flag digest runs on a timer in every process; SKIP LOCKED keeps replicas from doubling it.
 const digestTimer =
@@ -49,7 +52,11 @@ const gradingWorker =
     ? startGradingWorker(
         dbHandle.db,
         gradingContext(dbHandle.db, { grader, logger, appUrl: config.APP_URL, onMailQueued: () => worker?.kick() }),
-        { pollMs: config.GRADING_POLL_MS, batchSize: 4 * config.GRADING_THREADS, staleMs: config.GRADING_STALE_SECONDS * 1000 },
+        {
+          pollMs: config.GRADING_POLL_MS,
+          batchSize: 4 * config.GRADING_THREADS,
+          staleMs: config.GRADING_STALE_SECONDS * 1000,
+        },
       )
     : null
 const { app, close } = createApp({

@@ -16,9 +16,15 @@ const RESULT_FAMILIES: readonly (readonly string[])[] = [
 export function compatibleUnits(specUnit: string): string[] {
   if (specUnit === DIMENSIONLESS) return [DIMENSIONLESS]
   const kind = dataUnitKind(specUnit)
-  const family = kind && kind !== 'dimensionless' ? (unitsOfKind(kind) as string[]) : RESULT_FAMILIES.find((f) => f.includes(specUnit))
+  const family =
+    kind && kind !== 'dimensionless'
+      ? (unitsOfKind(kind) as string[])
+      : RESULT_FAMILIES.find((f) => f.includes(specUnit))
   if (!family) return [specUnit]
-  return [specUnit, ...family.filter((u) => u !== specUnit && !(u.includes('·') && family.includes(u.replace('·', '*'))))]
+  return [
+    specUnit,
+    ...family.filter((u) => u !== specUnit && !(u.includes('·') && family.includes(u.replace('·', '*')))),
+  ]
 }
 
 export function isCompatibleUnit(typed: string, specUnit: string): boolean {

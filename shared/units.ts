@@ -129,7 +129,9 @@ export function isUnitSymbol(symbol: string): symbol is UnitSymbol {
 
 function requireUnit(name: string, symbol: unknown): UnitDefinition {
   if (typeof symbol !== 'string' || !isUnitSymbol(symbol)) {
-    throw new RangeError(`${name} must be one of ${SYMBOLS.map((s) => `'${s}'`).join(', ')} (got ${describeValue(symbol)})`)
+    throw new RangeError(
+      `${name} must be one of ${SYMBOLS.map((s) => `'${s}'`).join(', ')} (got ${describeValue(symbol)})`,
+    )
   }
   return UNITS[symbol]
 }
@@ -220,7 +222,9 @@ export function convert(value: number, from: UnitSymbol, to: UnitSymbol): number
   const source = requireUnit('from', from)
   const target = requireUnit('to', to)
   if (source.kind !== target.kind) {
-    throw new RangeError(`cannot convert ${from} (${source.kind}) to ${to} (${target.kind}): the units measure different quantities`)
+    throw new RangeError(
+      `cannot convert ${from} (${source.kind}) to ${to} (${target.kind}): the units measure different quantities`,
+    )
   }
   return fromSI(toSI(value, from), to)
 }

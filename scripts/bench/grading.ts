@@ -53,7 +53,9 @@ if (lines.length - 2 < ROWS) throw new Error(`the demo log has only ${lines.leng
 const text = `${lines.slice(0, ROWS + 1).join('\n')}\n`
 const headers = (lines[0] ?? '').split(',')
 const mapping = suggestMapping(headers, table)
-const measurements = Object.fromEntries(assignment.measurements.map((m) => [m.key, valueToSI(log.measurements[m.key] as number, m.unit)]))
+const measurements = Object.fromEntries(
+  assignment.measurements.map((m) => [m.key, valueToSI(log.measurements[m.key] as number, m.unit)]),
+)
 
 let sink = 0
 
@@ -69,7 +71,11 @@ function parseOnly(): SubmissionData {
   const parsed = parseLog(text, table as NonNullable<typeof table>, mapping)
   if (!parsed.ok) throw new Error(`the benchmark log does not parse: ${JSON.stringify(parsed.errors)}`)
   sink += parsed.rowCount
-  return { tables: { [(table as NonNullable<typeof table>).key]: parsed.columns }, measurements, pressures: parsed.pressures }
+  return {
+    tables: { [(table as NonNullable<typeof table>).key]: parsed.columns },
+    measurements,
+    pressures: parsed.pressures,
+  }
 }
 
 // Reported results for the benchmark: the expected values themselves (from one grading beforehand).
@@ -83,7 +89,10 @@ const preParsed = parseOnly()
 const copies: SubmissionData[] = []
 function freshCopy(): SubmissionData {
   const tables = Object.fromEntries(
-    Object.entries(preParsed.tables).map(([key, columns]) => [key, Object.fromEntries(Object.entries(columns).map(([c, xs]) => [c, xs.slice()]))]),
+    Object.entries(preParsed.tables).map(([key, columns]) => [
+      key,
+      Object.fromEntries(Object.entries(columns).map(([c, xs]) => [c, xs.slice()])),
+    ]),
   )
   return { ...preParsed, tables }
 }
@@ -128,9 +137,15 @@ const kernels: [string, () => void][] = [
   ['papaparse alone, default options (arrays)', bareParse],
   ["papaparse alone, header: true, skipEmptyLines: 'greedy'", headerParse],
   ['  parseLog (parse, map, validate, SI)', () => void parseOnly()],
-  [`  gradeSubmission (${assignment.results.length} results, ${assignment.reviewRules.length} rules, data checks)`, gradeOnly],
+  [
+    `  gradeSubmission (${assignment.results.length} results, ${assignment.reviewRules.length} rules, data checks)`,
+    gradeOnly,
+  ],
   ['    of which the thrust-run reduction (reduceThrustRun, once)', runOnly],
-  [`    of which the module's ${assignment.results.length + assignment.reviewRules.length} expressions, the run already reduced (mathjs)`, expressionsOnly],
+  [
+    `    of which the module's ${assignment.results.length + assignment.reviewRules.length} expressions, the run already reduced (mathjs)`,
+    expressionsOnly,
+  ],
   ['  chartSeries (spans, ideal thrust, ≤ 2000 points)', chartOnly],
   ['whole grading step (parseLog + gradeSubmission + chartSeries)', wholeGrading],
 ]
@@ -160,20 +175,28 @@ const median = (xs: number[]) => {
 const medians = new Map([...times].map(([name, xs]) => [name, median(xs)]))
 const cpuMedians = new Map([...cpuTimes].map(([name, xs]) => [name, median(xs)]))
 
-console.log(`Grading benchmark: ${ROWS} rows × ${headers.length} columns (${(text.length / 1e6).toFixed(2)} MB), median of ${ROUNDS} rounds after ${WARM_UP} warm-up rounds, full GC before each`)
 console.log(
-  `Node ${process.version}; load average ${loadavg().map((l) => l.toFixed(1)).join(' ')}; flags raised on this log: ${reference.flags.map((f) => f.code).join(', ') || 'none'}`,
+  `Grading benchmark: ${ROWS} rows × ${headers.length} columns (${(text.length / 1e6).toFixed(2)} MB), median of ${ROUNDS} rounds after ${WARM_UP} warm-up rounds, full GC before each`,
+)
+console.log(
+  `Node ${process.version}; load average ${loadavg()
+    .map((l) => l.toFixed(1))
+    .join(' ')}; flags raised on this log: ${reference.flags.map((f) => f.code).join(', ') || 'none'}`,
 )
 console.log('')
 console.log(`${''.padEnd(64)} ${'wall'.padStart(8)}    ${'CPU'.padStart(8)}`)
 for (const [name] of kernels) {
-  console.log(`${name.padEnd(64)} ${(medians.get(name) as number).toFixed(1).padStart(8)} ms ${(cpuMedians.get(name) as number).toFixed(1).padStart(8)} ms`)
+  console.log(
+    `${name.padEnd(64)} ${(medians.get(name) as number).toFixed(1).padStart(8)} ms ${(cpuMedians.get(name) as number).toFixed(1).padStart(8)} ms`,
+  )
 }
 const bare = medians.get(kernels[0]![0]) as number
 const header = medians.get(kernels[1]![0]) as number
 const whole = medians.get(kernels[7]![0]) as number
 console.log('')
-console.log(`whole grading step / papaparse default parse: ${(whole / bare).toFixed(2)}×  (goal ≤ 2×: ${whole / bare <= 2 ? 'met' : 'not met'})`)
+console.log(
+  `whole grading step / papaparse default parse: ${(whole / bare).toFixed(2)}×  (goal ≤ 2×: ${whole / bare <= 2 ? 'met' : 'not met'})`,
+)
 console.log(`whole grading step / papaparse header+greedy parse: ${(whole / header).toFixed(2)}×`)
 const expressions = medians.get(kernels[5]![0]) as number
 console.log(
@@ -181,5 +204,7 @@ console.log(
 )
 const cpuBare = cpuMedians.get(kernels[0]![0]) as number
 const cpuWhole = cpuMedians.get(kernels[7]![0]) as number
-console.log(`in CPU time: whole grading step / papaparse default parse: ${(cpuWhole / cpuBare).toFixed(2)}×  (goal ≤ 2×: ${cpuWhole / cpuBare <= 2 ? 'met' : 'not met'})`)
+console.log(
+  `in CPU time: whole grading step / papaparse default parse: ${(cpuWhole / cpuBare).toFixed(2)}×  (goal ≤ 2×: ${cpuWhole / cpuBare <= 2 ? 'met' : 'not met'})`,
+)
 console.log(`(sink ${sink.toFixed(0)})`)

@@ -76,7 +76,12 @@ function nozzles_(): void {
 
 const kernels = { forward, solveSubsonic, solveSupersonic, nozzles: nozzles_ } as const
 type Kernel = keyof typeof kernels
-const calls: Record<Kernel, number> = { forward: COUNT, solveSubsonic: COUNT, solveSupersonic: COUNT, nozzles: NOZZLE_COUNT }
+const calls: Record<Kernel, number> = {
+  forward: COUNT,
+  solveSubsonic: COUNT,
+  solveSupersonic: COUNT,
+  nozzles: NOZZLE_COUNT,
+}
 
 // Warm-up: two full passes of each kernel so every one is optimised before it is timed.
 for (let pass = 0; pass < 2; pass++) for (const run of Object.values(kernels)) run()
@@ -117,9 +122,29 @@ console.log(
   `Formula library benchmark — Node ${process.version}, ${process.arch}; γ = ${GAMMA}; median of ${ROUNDS} alternating rounds after warm-up`,
 )
 console.log(row(`isentropic(M, γ), ${COUNT.toLocaleString('en')} Mach numbers`, ns.forward))
-console.log(row(`machFromAreaRatio, subsonic, ${COUNT.toLocaleString('en')} A/A* in [1, 1e4]`, ns.solveSubsonic, `  ${(ns.solveSubsonic / ns.forward).toFixed(2)}× forward`))
-console.log(row(`machFromAreaRatio, supersonic, same A/A*`, ns.solveSupersonic, `  ${(ns.solveSupersonic / ns.forward).toFixed(2)}× forward`))
-console.log(row('machFromAreaRatio, both branches (mean)', bothBranches, `  ${ratio.toFixed(2)}× forward (goal ≤ 8×: ${ratio <= 8 ? 'met' : 'NOT met'})`))
+console.log(
+  row(
+    `machFromAreaRatio, subsonic, ${COUNT.toLocaleString('en')} A/A* in [1, 1e4]`,
+    ns.solveSubsonic,
+    `  ${(ns.solveSubsonic / ns.forward).toFixed(2)}× forward`,
+  ),
+)
+console.log(
+  row(
+    `machFromAreaRatio, supersonic, same A/A*`,
+    ns.solveSupersonic,
+    `  ${(ns.solveSupersonic / ns.forward).toFixed(2)}× forward`,
+  ),
+)
+console.log(
+  row(
+    'machFromAreaRatio, both branches (mean)',
+    bothBranches,
+    `  ${ratio.toFixed(2)}× forward (goal ≤ 8×: ${ratio <= 8 ? 'met' : 'NOT met'})`,
+  ),
+)
 console.log(row(`nozzleFlow, ${NOZZLE_COUNT.toLocaleString('en')} random nozzles/back pressures`, ns.nozzles))
-console.log(`  mean Halley steps per solve: subsonic ${(iterationsSub / COUNT).toFixed(2)}, supersonic ${(iterationsSup / COUNT).toFixed(2)}`)
+console.log(
+  `  mean Halley steps per solve: subsonic ${(iterationsSub / COUNT).toFixed(2)}, supersonic ${(iterationsSup / COUNT).toFixed(2)}`,
+)
 console.log(`  (sink ${sink.toExponential(6)})`)

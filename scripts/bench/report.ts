@@ -18,7 +18,13 @@ const n = CHART_MAX_POINTS
 const time = Array.from({ length: n }, (_, i) => (i * 22) / n)
 const decay = (t: number) => (t < 2 ? 0 : Math.exp(-(t - 2) / 4))
 const data: FeedbackReportData = {
-  course: { code: 'PRL 341', title: 'Bench lab', term: 'Winter 2027', institution: 'Bench University (fictional)', timeZone: 'America/Denver' },
+  course: {
+    code: 'PRL 341',
+    title: 'Bench lab',
+    term: 'Winter 2027',
+    institution: 'Bench University (fictional)',
+    timeZone: 'America/Denver',
+  },
   module: { title: 'Cold-flow characterisation of a converging–diverging nozzle', version: 2 },
   owner: { kind: 'group', name: 'Group A4', members: ['Jorunn Juniper', 'Kasimir Kestrelton', 'Liesel Larkspur'] },
   attempt: 1,
@@ -39,10 +45,24 @@ const data: FeedbackReportData = {
     outcome: 'pass' as const,
     adjusted: false,
   })),
-  flags: [{ message: 'The logged thrust is above the ideal nozzle thrust for the logged chamber pressure.', status: 'resolved', resolvedAt: new Date('2027-02-10T09:00:00Z') }],
+  flags: [
+    {
+      message: 'The logged thrust is above the ideal nozzle thrust for the logged chamber pressure.',
+      status: 'resolved',
+      resolvedAt: new Date('2027-02-10T09:00:00Z'),
+    },
+  ],
   comments: [
-    { author: 'Teaching assistant', at: new Date('2027-02-10T09:00:00Z'), paragraphs: ['Good run. Check the load-cell zero before the next one.'] },
-    { author: 'Instructor', at: new Date('2027-02-10T10:00:00Z'), paragraphs: ['Agreed; see the calibration notes in the module.', 'Repeat with the larger nozzle.'] },
+    {
+      author: 'Teaching assistant',
+      at: new Date('2027-02-10T09:00:00Z'),
+      paragraphs: ['Good run. Check the load-cell zero before the next one.'],
+    },
+    {
+      author: 'Instructor',
+      at: new Date('2027-02-10T10:00:00Z'),
+      paragraphs: ['Agreed; see the calibration notes in the module.', 'Repeat with the larger nozzle.'],
+    },
   ],
   chart: {
     time,
@@ -65,4 +85,6 @@ for (let i = 0; i < ROUNDS; i++) {
 }
 times.sort((a, b) => a - b)
 const median = times[Math.floor(times.length / 2)]!
-console.log(`feedback report PDF (${n}-sample chart, 7 checks): median ${median.toFixed(0)} ms over ${ROUNDS} renders (min ${times[0]!.toFixed(0)}, max ${times.at(-1)!.toFixed(0)}); ${(bytes / 1024).toFixed(0)} KB`)
+console.log(
+  `feedback report PDF (${n}-sample chart, 7 checks): median ${median.toFixed(0)} ms over ${ROUNDS} renders (min ${times[0]!.toFixed(0)}, max ${times.at(-1)!.toFixed(0)}); ${(bytes / 1024).toFixed(0)} KB`,
+)

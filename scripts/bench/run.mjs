@@ -18,7 +18,8 @@ import {
 
 ensureNodeModules()
 const tsx = nodeBin('tsx/dist/cli.mjs')
-const runTs = (file, env = process.env) => spawnSync(tsx[0], [tsx[1], file], { cwd: ROOT, stdio: 'inherit', env }).status === 0
+const runTs = (file, env = process.env) =>
+  spawnSync(tsx[0], [tsx[1], file], { cwd: ROOT, stdio: 'inherit', env }).status === 0
 
 let ok = runTs('scripts/bench/physics.ts')
 if (existsSync(path.join(ROOT, 'scripts/bench/grading.ts'))) ok = runTs('scripts/bench/grading.ts') && ok
@@ -30,7 +31,14 @@ try {
   const env = { ...process.env, SESSION_SECRET: process.env.SESSION_SECRET ?? secrets.sessionSecret, MAIL_POLL_MS: '0' }
   if (!externalDatabase()) {
     ensureDebianPackages([{ bin: 'mariadbd', pkg: 'mariadb-server' }])
-    db = await startMariaDb({ name: 'mariadb-bench', port: Number(process.env.ISENTROPE_BENCH_DB_PORT ?? 33063), database: 'isentrope_bench', user: 'isentrope_bench', password: secrets.dbPassword, fresh: true })
+    db = await startMariaDb({
+      name: 'mariadb-bench',
+      port: Number(process.env.ISENTROPE_BENCH_DB_PORT ?? 33063),
+      database: 'isentrope_bench',
+      user: 'isentrope_bench',
+      password: secrets.dbPassword,
+      fresh: true,
+    })
     Object.assign(env, dbEnv(db))
   }
   ok = runTs('scripts/migrate.ts', env) && ok

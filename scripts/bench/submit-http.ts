@@ -48,24 +48,37 @@ const [course] = await db
   .values({ code: `B${tag}`, title: 'Bench course', term: 'Bench', institution: 'Bench (fictional)', timeZone: 'UTC' })
   .$returningId()
 const courseId = course!.id
-const [inst] = await db.insert(users).values({ email: `inst.${tag}@bench.example`, displayName: 'Bench instructor', passwordHash: hash }).$returningId()
+const [inst] = await db
+  .insert(users)
+  .values({ email: `inst.${tag}@bench.example`, displayName: 'Bench instructor', passwordHash: hash })
+  .$returningId()
 await db.insert(enrollments).values({ userId: inst!.id, courseId, role: 'instructor' })
 const emails: string[] = []
 for (let i = 0; i < STUDENTS; i++) {
   const email = `s${i}.${tag}@bench.example`
-  const [u] = await db.insert(users).values({ email, displayName: `Student ${i}`, passwordHash: hash }).$returningId()
-  const [g] = await db.insert(labGroups).values({ courseId, name: `G${i}` }).$returningId()
+  const [u] = await db
+    .insert(users)
+    .values({ email, displayName: `Student ${i}`, passwordHash: hash })
+    .$returningId()
+  const [g] = await db
+    .insert(labGroups)
+    .values({ courseId, name: `G${i}` })
+    .$returningId()
   await db.insert(enrollments).values({ userId: u!.id, courseId, role: 'student', labGroupId: g!.id })
   emails.push(email)
 }
-const source = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')).replace('attempts: 3', 'attempts: 100')
+const source = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+).replace('attempts: 3', 'attempts: 100')
 const ie = { courseId, userId: inst!.id, role: 'instructor' as const, sectionId: null, labGroupId: null }
 const mod = await createModule(db, ie, source)
 await publishModule(db, ie, mod.id, mod.current.id, base)
 
 const log = coldFlowCsv({ step: 6 / 5000, duration: 6 })
 const body = JSON.stringify(coldFlowPayload(log))
-console.log(`Hand-in throughput — ${STUDENTS} concurrent students × ${ROUNDS} hand-ins, ${log.t.length}-row log (${(log.csv.length / 1024).toFixed(0)} KB), loopback`)
+console.log(
+  `Hand-in throughput — ${STUDENTS} concurrent students × ${ROUNDS} hand-ins, ${log.t.length}-row log (${(log.csv.length / 1024).toFixed(0)} KB), loopback`,
+)
 
 async function session(email: string): Promise<{ cookie: string; csrf: string }> {
   const s = await fetch(`${base}/api/auth/session`)
@@ -113,7 +126,9 @@ const answered = (performance.now() - started) / 1000
 
 // Wait (up to two minutes) for the background grader to finish what the requests left.
 const counts = async () => {
-  const rows = ids.length ? await db.select({ s: submissions.status }).from(submissions).where(inArray(submissions.id, ids)) : []
+  const rows = ids.length
+    ? await db.select({ s: submissions.status }).from(submissions).where(inArray(submissions.id, ids))
+    : []
   const c = { graded: 0, failed: 0, stuck: 0 }
   for (const r of rows) {
     if (r.s === 'graded') c.graded++
@@ -131,9 +146,15 @@ latencies.sort((a, b) => a - b)
 const q = (p: number) => latencies[Math.min(latencies.length - 1, Math.floor(p * latencies.length))]!
 const total = STUDENTS * ROUNDS
 console.log(`  requests ${latencies.length}   statuses ${JSON.stringify(Object.fromEntries(statuses))}`)
-console.log(`  graded ${c.graded} of ${total}   could not be graded ${c.failed}   stuck (still waiting) ${c.stuck}   refused ${total - ids.length}`)
-console.log(`  answered in ${answered.toFixed(1)} s, all graded after ${elapsed.toFixed(1)} s: ${(c.graded / elapsed).toFixed(1)} graded hand-ins/s`)
-console.log(`  answer latency p50 ${q(0.5).toFixed(0)} ms   p95 ${q(0.95).toFixed(0)} ms   max ${latencies.at(-1)!.toFixed(0)} ms`)
+console.log(
+  `  graded ${c.graded} of ${total}   could not be graded ${c.failed}   stuck (still waiting) ${c.stuck}   refused ${total - ids.length}`,
+)
+console.log(
+  `  answered in ${answered.toFixed(1)} s, all graded after ${elapsed.toFixed(1)} s: ${(c.graded / elapsed).toFixed(1)} graded hand-ins/s`,
+)
+console.log(
+  `  answer latency p50 ${q(0.5).toFixed(0)} ms   p95 ${q(0.95).toFixed(0)} ms   max ${latencies.at(-1)!.toFixed(0)} ms`,
+)
 errors += total - c.graded
 
 // Health while hostile inputs are refused: the event loop must stay free (goal: health < 1 s).
@@ -152,8 +173,9 @@ errors += total - c.graded
   const post = async (parts: [string, Blob | string, string?][]) => {
     const form = new FormData()
     form.append('payload', body)
-    for (const [name, value, filename] of parts) if (typeof value === 'string') form.append(name, value)
-    else form.append(name, value, filename)
+    for (const [name, value, filename] of parts)
+      if (typeof value === 'string') form.append(name, value)
+      else form.append(name, value, filename)
     const res = await fetch(`${base}/api/courses/${courseId}/modules/${mod.id}/submissions`, {
       method: 'POST',
       headers: { cookie: s.cookie, 'x-csrf-token': s.csrf },
@@ -170,13 +192,23 @@ errors += total - c.graded
     let sent = 0
     const stream = new ReadableStream<Uint8Array>({
       pull(controller) {
-        if (sent === 0) controller.enqueue(new TextEncoder().encode(`--${boundary}\r\nContent-Disposition: form-data; name="payload"\r\n\r\n${body}\r\n`))
+        if (sent === 0)
+          controller.enqueue(
+            new TextEncoder().encode(
+              `--${boundary}\r\nContent-Disposition: form-data; name="payload"\r\n\r\n${body}\r\n`,
+            ),
+          )
         if (sent >= 95) {
           controller.enqueue(new TextEncoder().encode(`\r\n--${boundary}--\r\n`))
           controller.close()
           return
         }
-        if (sent === 0) controller.enqueue(new TextEncoder().encode(`\r\n--${boundary}\r\nContent-Disposition: form-data; name="table:run"; filename="big.csv"\r\n\r\n`))
+        if (sent === 0)
+          controller.enqueue(
+            new TextEncoder().encode(
+              `\r\n--${boundary}\r\nContent-Disposition: form-data; name="table:run"; filename="big.csv"\r\n\r\n`,
+            ),
+          )
         controller.enqueue(chunk)
         sent++
       },
@@ -184,7 +216,11 @@ errors += total - c.graded
     try {
       const res = await fetch(`${base}/api/courses/${courseId}/modules/${mod.id}/submissions`, {
         method: 'POST',
-        headers: { cookie: s.cookie, 'x-csrf-token': s.csrf, 'content-type': `multipart/form-data; boundary=${boundary}` },
+        headers: {
+          cookie: s.cookie,
+          'x-csrf-token': s.csrf,
+          'content-type': `multipart/form-data; boundary=${boundary}`,
+        },
         body: stream,
         duplex: 'half',
       } as RequestInit)
@@ -205,9 +241,13 @@ errors += total - c.graded
   polling = false
   await poll
   healthMs.sort((a, b) => a - b)
-  console.log(`Health while hostile uploads are refused (19 MB of commas, 19 MB of blank lines, a 95 MB chunked upload)`)
+  console.log(
+    `Health while hostile uploads are refused (19 MB of commas, 19 MB of blank lines, a 95 MB chunked upload)`,
+  )
   console.log(`  answers ${JSON.stringify(statuses)} in ${refusedIn.toFixed(0)} ms`)
-  console.log(`  health: ${healthMs.length} probes, median ${healthMs[Math.floor(healthMs.length / 2)]!.toFixed(0)} ms, max ${healthMs.at(-1)!.toFixed(0)} ms (goal < 1000 ms)`)
+  console.log(
+    `  health: ${healthMs.length} probes, median ${healthMs[Math.floor(healthMs.length / 2)]!.toFixed(0)} ms, max ${healthMs.at(-1)!.toFixed(0)} ms (goal < 1000 ms)`,
+  )
 }
 
 server.closeAllConnections()

@@ -288,13 +288,17 @@ function simulate(c: Conditions, noise: () => number, sampleRate: number = DEMO_
     // cell feels, starting at full opening.
     const sinceSlam = sinceOpen - s.valveOpening
     const ring =
-      sinceSlam >= 0 ? c.ringAmplitude * Math.exp(-sinceSlam / s.ringDecay) * Math.cos(2 * Math.PI * s.ringFrequency * sinceSlam) : 0
+      sinceSlam >= 0
+        ? c.ringAmplitude * Math.exp(-sinceSlam / s.ringDecay) * Math.cos(2 * Math.PI * s.ringFrequency * sinceSlam)
+        : 0
     const zero = c.zeroOffset + c.zeroDrift * t
     const loggedThrust = c.thrustScale * (thrust + ring) + zero + s.thrustNoise * noise()
     const loggedReceiver = (receiver - c.ambient + s.pressureNoise * noise()) / 1000
     const loggedChamber = (chamber - c.ambient + c.chamberZero + s.pressureNoise * noise()) / 1000
     // The logger's resolution: one sample period, 1 mN, 0.1 kPa.
-    lines.push(`${t.toFixed(timeDecimals)},${loggedThrust.toFixed(3)},${loggedReceiver.toFixed(1)},${loggedChamber.toFixed(1)}`)
+    lines.push(
+      `${t.toFixed(timeDecimals)},${loggedThrust.toFixed(3)},${loggedReceiver.toFixed(1)},${loggedChamber.toFixed(1)}`,
+    )
     truth.time.push(Number(t.toFixed(timeDecimals)))
     truth.thrust.push(c.thrustScale * thrust)
     truth.chamberGauge.push(chamber - c.ambient)
@@ -370,8 +374,12 @@ function crossingsOf(t: readonly number[], x: readonly number[], level: number):
   let last = x.length - 1
   while ((x[last] as number) < level) last--
   const between = (i: number, j: number) =>
-    (t[i] as number) + (((t[j] as number) - (t[i] as number)) * (level - (x[i] as number))) / ((x[j] as number) - (x[i] as number))
-  return { start: first === 0 ? (t[0] as number) : between(first - 1, first), end: last === x.length - 1 ? (t[last] as number) : between(last, last + 1) }
+    (t[i] as number) +
+    (((t[j] as number) - (t[i] as number)) * (level - (x[i] as number))) / ((x[j] as number) - (x[i] as number))
+  return {
+    start: first === 0 ? (t[0] as number) : between(first - 1, first),
+    end: last === x.length - 1 ? (t[last] as number) : between(last, last + 1),
+  }
 }
 
 /**
@@ -381,7 +389,11 @@ function crossingsOf(t: readonly number[], x: readonly number[], level: number):
  * chamber pressure is made absolute as the group declared it: a gauge reading plus the barometer
  * (its transducer zero taken), or, declared absolute, the logged numbers as they are.
  */
-function carefulResults(truth: TrueRun, m: Record<string, number>, chamberRead: 'gauge' | 'absolute'): Record<string, number> {
+function carefulResults(
+  truth: TrueRun,
+  m: Record<string, number>,
+  chamberRead: 'gauge' | 'absolute',
+): Record<string, number> {
   const s = DEMO_STAND
   const { time, thrust } = truth
   const ambient = 1000 * (m.p_ambient as number)
@@ -393,7 +405,9 @@ function carefulResults(truth: TrueRun, m: Record<string, number>, chamberRead: 
   const { start, end } = crossingsOf(time, thrust, 0.05 * peak)
   const impulse = integralBetween(time, thrust, time[0] as number, time[time.length - 1] as number)
   const windowImpulse = integralBetween(time, thrust, start, end)
-  const airMass = (1000 * ((m.p_initial as number) - (m.p_final as number)) * ((m.v_receiver as number) / 1000)) / (s.gasConstant * roomTemperature)
+  const airMass =
+    (1000 * ((m.p_initial as number) - (m.p_final as number)) * ((m.v_receiver as number) / 1000)) /
+    (s.gasConstant * roomTemperature)
   const flow = nozzleFlow({
     chamberPressure: Math.max(...chamber),
     chamberTemperature: roomTemperature,
@@ -433,7 +447,7 @@ export function demoRuns(assignment: Assignment = coldFlowAssignment()): DemoRun
   for (const group of DEMO_GROUPS) {
     const wrong = DEMO_WRONG_RUNS.find((w) => w.group === group)
     const conditions: Conditions = {
-      ambient: 1000 * Math.round(10 * uniform(83.4, 84.8)) / 10,
+      ambient: (1000 * Math.round(10 * uniform(83.4, 84.8))) / 10,
       roomTemperature: 273.15 + uniform(16, 22),
       chargeGauge: 1000 * Math.round(uniform(780, 820)),
       thrustScale: group === 'B4' ? 1.6 : 1,
@@ -472,7 +486,11 @@ export function demoRuns(assignment: Assignment = coldFlowAssignment()): DemoRun
     const mapping: Record<string, ColumnMappingEntry> = { ...asLogged }
     if (group === 'B2' && mapping.p_chamber) mapping.p_chamber = { ...mapping.p_chamber, pressure: 'absolute' }
 
-    const careful = carefulResults(truth, measurements, mapping.p_chamber?.pressure === 'absolute' ? 'absolute' : 'gauge')
+    const careful = carefulResults(
+      truth,
+      measurements,
+      mapping.p_chamber?.pressure === 'absolute' ? 'absolute' : 'gauge',
+    )
     const reported: Record<string, number> = {}
     for (const r of assignment.results) {
       const value = careful[r.key]

@@ -15,16 +15,71 @@ export const DEMO_ADMIN = { email: `admin@${DEMO_DOMAIN}`, displayName: 'Site Ad
 export const DEMO_INSTRUCTOR = { email: `instructor@${DEMO_DOMAIN}`, displayName: 'Dr. Tomasz Reyvant' }
 
 export const DEMO_SECTIONS = [
-  { name: 'Section A', meets: 'Tue 13:00–16:00, Test Bay 2', ta: { email: `ta.a@${DEMO_DOMAIN}`, displayName: 'Ines Vallory' } },
-  { name: 'Section B', meets: 'Thu 09:00–12:00, Test Bay 2', ta: { email: `ta.b@${DEMO_DOMAIN}`, displayName: 'Kofi Brannagh' } },
+  {
+    name: 'Section A',
+    meets: 'Tue 13:00–16:00, Test Bay 2',
+    ta: { email: `ta.a@${DEMO_DOMAIN}`, displayName: 'Ines Vallory' },
+  },
+  {
+    name: 'Section B',
+    meets: 'Thu 09:00–12:00, Test Bay 2',
+    ta: { email: `ta.b@${DEMO_DOMAIN}`, displayName: 'Kofi Brannagh' },
+  },
 ] as const
 
 /** 24 invented students: 12 per section, in lab groups of three. */
-const FIRST = ['Aletta', 'Bram', 'Corin', 'Dalia', 'Emeric', 'Fenna', 'Galen', 'Hesper', 'Ivo', 'Jorunn', 'Kasimir', 'Liesel',
-  'Marek', 'Noor', 'Osric', 'Pella', 'Quillon', 'Rosalind', 'Sefton', 'Talitha', 'Ulric', 'Vesna', 'Wystan', 'Yselle']
-const LAST = ['Ashgrove', 'Brightwater', 'Coldharbour', 'Dunmere', 'Elderfield', 'Farrowby', 'Glenholt', 'Hartsmoor',
-  'Ivybridge', 'Juniper', 'Kestrelton', 'Larkspur', 'Millbeck', 'Northwold', 'Oakenshaw', 'Pennick', 'Quarrendon',
-  'Rookhaven', 'Stonecrop', 'Thistlewood', 'Underhill', 'Vantry', 'Whinmoor', 'Yarrowdale']
+const FIRST = [
+  'Aletta',
+  'Bram',
+  'Corin',
+  'Dalia',
+  'Emeric',
+  'Fenna',
+  'Galen',
+  'Hesper',
+  'Ivo',
+  'Jorunn',
+  'Kasimir',
+  'Liesel',
+  'Marek',
+  'Noor',
+  'Osric',
+  'Pella',
+  'Quillon',
+  'Rosalind',
+  'Sefton',
+  'Talitha',
+  'Ulric',
+  'Vesna',
+  'Wystan',
+  'Yselle',
+]
+const LAST = [
+  'Ashgrove',
+  'Brightwater',
+  'Coldharbour',
+  'Dunmere',
+  'Elderfield',
+  'Farrowby',
+  'Glenholt',
+  'Hartsmoor',
+  'Ivybridge',
+  'Juniper',
+  'Kestrelton',
+  'Larkspur',
+  'Millbeck',
+  'Northwold',
+  'Oakenshaw',
+  'Pennick',
+  'Quarrendon',
+  'Rookhaven',
+  'Stonecrop',
+  'Thistlewood',
+  'Underhill',
+  'Vantry',
+  'Whinmoor',
+  'Yarrowdale',
+]
 
 export interface DemoStudent {
   email: string

@@ -36,10 +36,7 @@ export async function seedDemo(
     const courseId = existing[0].id
     const any = await db.select({ id: modules.id }).from(modules).where(eq(modules.courseId, courseId)).limit(1)
     if (any.length > 0) return { created: false, users: 0, courseId }
-    const [inst] = await db
-      .select({ id: users.id })
-      .from(users)
-      .where(eq(users.email, DEMO_INSTRUCTOR.email))
+    const [inst] = await db.select({ id: users.id }).from(users).where(eq(users.email, DEMO_INSTRUCTOR.email))
     if (!inst) return { created: false, users: 0, courseId }
     await db.transaction((tx) => seedModules(tx, courseId, inst.id))
     await seedHandIns(db, courseId)
@@ -60,7 +57,12 @@ export async function seedDemo(
       }
       const [row] = await tx
         .insert(users)
-        .values({ email: p.email, displayName: p.displayName, passwordHash: hashes[i] ?? null, isSiteAdmin: p === DEMO_ADMIN })
+        .values({
+          email: p.email,
+          displayName: p.displayName,
+          passwordHash: hashes[i] ?? null,
+          isSiteAdmin: p === DEMO_ADMIN,
+        })
         .$returningId()
       userIds.set(p.email, row!.id)
     }
@@ -73,7 +75,8 @@ export async function seedDemo(
     await tx.insert(enrollments).values({ userId: uid(DEMO_INSTRUCTOR.email), courseId: id, role: 'instructor' })
     const sectionIds = new Map<string, number>()
     for (const s of DEMO_SECTIONS) {
-      const sid = (await tx.insert(sections).values({ courseId: id, name: s.name, meets: s.meets }).$returningId())[0]!.id
+      const sid = (await tx.insert(sections).values({ courseId: id, name: s.name, meets: s.meets }).$returningId())[0]!
+        .id
       sectionIds.set(s.name, sid)
       await tx.insert(enrollments).values({ userId: uid(s.ta.email), courseId: id, role: 'ta', sectionId: sid })
     }
@@ -82,10 +85,17 @@ export async function seedDemo(
       const sectionId = sectionIds.get(st.section) ?? null
       let gid = groupIds.get(st.labGroup)
       if (gid === undefined) {
-        gid = (await tx.insert(labGroups).values({ courseId: id, sectionId, name: `Group ${st.labGroup}` }).$returningId())[0]!.id
+        gid = (
+          await tx
+            .insert(labGroups)
+            .values({ courseId: id, sectionId, name: `Group ${st.labGroup}` })
+            .$returningId()
+        )[0]!.id
         groupIds.set(st.labGroup, gid)
       }
-      await tx.insert(enrollments).values({ userId: uid(st.email), courseId: id, role: 'student', sectionId, labGroupId: gid })
+      await tx
+        .insert(enrollments)
+        .values({ userId: uid(st.email), courseId: id, role: 'student', sectionId, labGroupId: gid })
     }
     await seedModules(tx, id, uid(DEMO_INSTRUCTOR.email))
     return id
@@ -103,16 +113,27 @@ const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
  * The demo course's modules from content/*.md, in file-name order. The first two are published
  * (without e-mail: nobody is waiting for them at seed time); the others stay drafts.
  */
-async function seedModules(tx: Parameters<Parameters<Database['transaction']>[0]>[0], courseId: number, instructorId: number) {
+async function seedModules(
+  tx: Parameters<Parameters<Database['transaction']>[0]>[0],
+  courseId: number,
+  instructorId: number,
+) {
   const files = readdirSync(CONTENT)
     .filter((f) => f.endsWith('.md'))
     .sort()
   for (const [i, file] of files.entries()) {
     const source = currentDueDates(readFileSync(path.join(CONTENT, file), 'utf8'))
     const v = toVersion(source, file, DEMO_COURSE.timeZone)
-    if (!v.valid) throw new Error(`seed: content/${file} has problems: ${v.issues.map((x) => `${x.path}: ${x.message}`).join('; ')}`)
+    if (!v.valid)
+      throw new Error(
+        `seed: content/${file} has problems: ${v.issues.map((x) => `${x.path}: ${x.message}`).join('; ')}`,
+      )
     const slug = file.replace(/^\d+-/, '').replace(/\.md$/, '')
-    const { moduleId, versionId } = await insertModuleWithVersion(tx, { courseId, slug, position: i + 1, createdBy: instructorId }, v)
+    const { moduleId, versionId } = await insertModuleWithVersion(
+      tx,
+      { courseId, slug, position: i + 1, createdBy: instructorId },
+      v,
+    )
     if (i < PUBLISHED_MODULES) await markPublished(tx, moduleId, versionId, null, instructorId)
   }
 }
@@ -128,7 +149,10 @@ async function seedHandIns(db: Database, courseId: number) {
     .from(modules)
     .where(and(eq(modules.courseId, courseId), eq(modules.slug, 'cold-flow-characterisation')))
   if (!mod?.versionId) return
-  const [version] = await db.select({ fm: moduleVersions.frontMatter }).from(moduleVersions).where(eq(moduleVersions.id, mod.versionId))
+  const [version] = await db
+    .select({ fm: moduleVersions.frontMatter })
+    .from(moduleVersions)
+    .where(eq(moduleVersions.id, mod.versionId))
   const fm = version?.fm as unknown as ModuleFrontMatter | undefined
   if (!fm?.assignment) return
   const a = fm.assignment
@@ -173,11 +197,21 @@ async function seedGroupRuns(
       {
         mappings: { [table.key]: { ...run.mapping } },
         measurements: Object.fromEntries(
-          a.measurements.map((m) => [m.key, { value: run.measurements[m.key]!, unit: m.unit, ...(m.pressure ? { pressure: m.pressure } : {}) }]),
+          a.measurements.map((m) => [
+            m.key,
+            { value: run.measurements[m.key]!, unit: m.unit, ...(m.pressure ? { pressure: m.pressure } : {}) },
+          ]),
         ),
         reported: Object.fromEntries(a.results.map((r) => [r.key, { value: run.reported[r.key]!, unit: r.unit }])),
       },
-      [{ field: `table:${table.key}`, filename: `run-${run.group.toLowerCase()}.csv`, contentType: 'text/csv', bytes: Buffer.from(run.csv, 'utf8') }],
+      [
+        {
+          field: `table:${table.key}`,
+          filename: `run-${run.group.toLowerCase()}.csv`,
+          contentType: 'text/csv',
+          bytes: Buffer.from(run.csv, 'utf8'),
+        },
+      ],
       { grading },
     )
   }

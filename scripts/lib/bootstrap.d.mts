@@ -41,6 +41,10 @@ export function dbEnv(db: { host: string; port: number; database: string; user: 
 }
 
 export function externalDatabase(): boolean
-export function startMaildev(o: { smtpPort: number; webPort: number; dir: string }): { child: ChildProcess; smtpPort: number; webPort: number }
+export function startMaildev(o: { smtpPort: number; webPort: number; dir: string }): {
+  child: ChildProcess
+  smtpPort: number
+  webPort: number
+}
 export function waitForHttp(url: string, timeoutMs?: number): Promise<void>
 export function nodeBin(pkgPath: string): [string, string]

@@ -135,7 +135,11 @@ export async function startMariaDb(o) {
   // still shutting down). Reuse it only if it listens on the port asked for; otherwise stop it.
   let reuse = false
   if (ping(socket)) {
-    const port = spawnSync('mariadb', ['--no-defaults', `--socket=${socket}`, '-uroot', '-N', '-B', '-e', 'SELECT @@port'], { encoding: 'utf8' })
+    const port = spawnSync(
+      'mariadb',
+      ['--no-defaults', `--socket=${socket}`, '-uroot', '-N', '-B', '-e', 'SELECT @@port'],
+      { encoding: 'utf8' },
+    )
     reuse = port.status === 0 && Number(port.stdout.trim()) === o.port
     if (reuse) log(`reusing the MariaDB already running on ${socket}`)
     else {
@@ -146,18 +150,22 @@ export async function startMariaDb(o) {
   if (!reuse) {
     // Wait out a shutdown in progress before starting a new server on the same files.
     const pidFile = path.join(rundir, 'mariadb.pid')
-    for (const until = Date.now() + 60_000; pidAlive(pidFile) && Date.now() < until; ) await sleep(200)
+    for (const until = Date.now() + 60_000; pidAlive(pidFile) && Date.now() < until;) await sleep(200)
     if (!existsSync(path.join(datadir, 'mysql'))) {
       log(`initialising a MariaDB data directory in ${path.relative(ROOT, datadir)}`)
       mkdirSync(datadir, { recursive: true })
-      run('mariadb-install-db', [
-        '--no-defaults',
-        `--datadir=${datadir}`,
-        '--user=root',
-        '--auth-root-authentication-method=normal',
-        '--skip-test-db',
-        '--skip-name-resolve',
-      ], { stdio: 'ignore' })
+      run(
+        'mariadb-install-db',
+        [
+          '--no-defaults',
+          `--datadir=${datadir}`,
+          '--user=root',
+          '--auth-root-authentication-method=normal',
+          '--skip-test-db',
+          '--skip-name-resolve',
+        ],
+        { stdio: 'ignore' },
+      )
     }
     const args = [
       // --no-defaults must come first, or /etc/mysql/my.cnf is read.
@@ -184,7 +192,8 @@ export async function startMariaDb(o) {
     const started = Date.now()
     while (!ping(socket)) {
       if (exited) fail(`MariaDB exited during start-up; see ${path.join(rundir, 'mariadb.err')}`)
-      if (Date.now() - started > 30_000) fail(`MariaDB did not answer within 30 s; see ${path.join(rundir, 'mariadb.err')}`)
+      if (Date.now() - started > 30_000)
+        fail(`MariaDB did not answer within 30 s; see ${path.join(rundir, 'mariadb.err')}`)
       await sleep(100)
     }
     log(`MariaDB listening on 127.0.0.1:${o.port} (data in ${path.relative(ROOT, datadir)})`)
@@ -246,11 +255,16 @@ export function startMaildev({ smtpPort, webPort, dir }) {
     process.execPath,
     [
       path.join(ROOT, 'node_modules', 'maildev', 'dist', 'bin', 'maildev.js'),
-      '--ip', '127.0.0.1',
-      '--web-ip', '127.0.0.1',
-      '--smtp', String(smtpPort),
-      '--web', String(webPort),
-      '--mail-directory', mailDir,
+      '--ip',
+      '127.0.0.1',
+      '--web-ip',
+      '127.0.0.1',
+      '--smtp',
+      String(smtpPort),
+      '--web',
+      String(webPort),
+      '--mail-directory',
+      mailDir,
       '--silent',
     ],
     { stdio: ['ignore', 'ignore', 'inherit'] },

@@ -43,8 +43,10 @@ function wrapConnection(conn: PoolConnection, ms: number): PoolConnection {
   }
   return new Proxy(conn, {
     get(target, prop, receiver) {
-      if (prop === 'query') return (q: QueryArg, values?: unknown) => guard(target.query(timed(q, ms) as never, values as never))
-      if (prop === 'execute') return (q: QueryArg, values?: unknown) => guard(target.execute(timed(q, ms) as never, values as never))
+      if (prop === 'query')
+        return (q: QueryArg, values?: unknown) => guard(target.query(timed(q, ms) as never, values as never))
+      if (prop === 'execute')
+        return (q: QueryArg, values?: unknown) => guard(target.execute(timed(q, ms) as never, values as never))
       if (prop === 'release') return () => (destroyed ? undefined : target.release())
       const v: unknown = Reflect.get(target, prop, receiver)
       return typeof v === 'function' ? (v as (...a: unknown[]) => unknown).bind(target) : v
@@ -77,13 +79,19 @@ export function withTimeouts(pool: Pool, t: DbTimeouts): Pool {
     } finally {
       clearTimeout(timer)
       // A connection that arrives after we gave up goes straight back.
-      if (timedOut) pending.then((c) => c.release(), () => undefined)
+      if (timedOut)
+        pending.then(
+          (c) => c.release(),
+          () => undefined,
+        )
     }
   }
   const run = async (method: 'query' | 'execute', q: QueryArg, values?: unknown) => {
     const conn = await acquire()
     try {
-      return method === 'query' ? await conn.query(q as never, values as never) : await conn.execute(q as never, values as never)
+      return method === 'query'
+        ? await conn.query(q as never, values as never)
+        : await conn.execute(q as never, values as never)
     } finally {
       conn.release()
     }

@@ -59,7 +59,10 @@ export function createGrader(budget: GradingBudget = DEFAULT_GRADING_BUDGET): Gr
       maxThreads: budget.threads,
       // Keep threads loaded between hand-ins; loading the libraries takes a second or more.
       idleTimeout: 10 * 60_000,
-      resourceLimits: { maxOldGenerationSizeMb: budget.memoryMb, maxYoungGenerationSizeMb: Math.min(64, budget.memoryMb / 4) },
+      resourceLimits: {
+        maxOldGenerationSizeMb: budget.memoryMb,
+        maxYoungGenerationSizeMb: Math.min(64, budget.memoryMb / 4),
+      },
     }))
   return {
     async grade(input) {
@@ -77,7 +80,10 @@ export function createGrader(budget: GradingBudget = DEFAULT_GRADING_BUDGET): Gr
           throw new GradingBudgetError('time', `grading ran past its ${budget.timeoutMs} ms budget and was stopped`)
         }
         if (e.code === 'ERR_WORKER_OUT_OF_MEMORY' || /out of memory|heap limit/i.test(e.message ?? '')) {
-          throw new GradingBudgetError('memory', `grading ran past its ${budget.memoryMb} MB memory budget and was stopped`)
+          throw new GradingBudgetError(
+            'memory',
+            `grading ran past its ${budget.memoryMb} MB memory budget and was stopped`,
+          )
         }
         throw err
       } finally {

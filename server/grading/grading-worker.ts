@@ -18,7 +18,11 @@ export const DEFAULT_GRADING_WORKER_OPTIONS: GradingWorkerOptions = { pollMs: 20
  * (a database hiccup, a restart, a burst), so no acknowledged hand-in is left ungraded. Several
  * processes may run it at once: claims use SKIP LOCKED and a token.
  */
-export function startGradingWorker(db: Database, ctx: GradingContext, o: GradingWorkerOptions = DEFAULT_GRADING_WORKER_OPTIONS) {
+export function startGradingWorker(
+  db: Database,
+  ctx: GradingContext,
+  o: GradingWorkerOptions = DEFAULT_GRADING_WORKER_OPTIONS,
+) {
   let timer: NodeJS.Timeout | null = null
   let running: Promise<void> | null = null
   let again = false

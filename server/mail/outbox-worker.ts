@@ -25,7 +25,12 @@ export function backoffMs(attempts: number, o: Pick<OutboxWorkerOptions, 'baseBa
 }
 
 /** Sends one batch of due mail; returns how many were sent. Usable from a script or a test. */
-export async function drainOnce(db: Database, sender: MailSender, logger: Logger, o: OutboxWorkerOptions): Promise<number> {
+export async function drainOnce(
+  db: Database,
+  sender: MailSender,
+  logger: Logger,
+  o: OutboxWorkerOptions,
+): Promise<number> {
   const batch = await claimDueMail(db, o.batchSize)
   let sent = 0
   for (const m of batch) {
@@ -47,7 +52,12 @@ export async function drainOnce(db: Database, sender: MailSender, logger: Logger
  * The background worker inside each server process. Several processes may run it at once: the
  * claim step's row locks keep them from sending the same message.
  */
-export function startOutboxWorker(db: Database, sender: MailSender, logger: Logger, o: OutboxWorkerOptions = DEFAULT_OUTBOX_OPTIONS) {
+export function startOutboxWorker(
+  db: Database,
+  sender: MailSender,
+  logger: Logger,
+  o: OutboxWorkerOptions = DEFAULT_OUTBOX_OPTIONS,
+) {
   let timer: NodeJS.Timeout | null = null
   let running: Promise<void> | null = null
   let stopped = false

@@ -16,7 +16,9 @@ export interface MailSender {
 }
 
 /** SMTP through nodemailer; configuration from the environment. https://nodemailer.com/smtp/ */
-export function createSmtpSender(config: Pick<Config, 'SMTP_HOST' | 'SMTP_PORT' | 'SMTP_USER' | 'SMTP_PASSWORD' | 'MAIL_FROM'>): MailSender {
+export function createSmtpSender(
+  config: Pick<Config, 'SMTP_HOST' | 'SMTP_PORT' | 'SMTP_USER' | 'SMTP_PASSWORD' | 'MAIL_FROM'>,
+): MailSender {
   const transporter: Transporter = nodemailer.createTransport({
     host: config.SMTP_HOST,
     port: config.SMTP_PORT,

@@ -47,7 +47,9 @@ export const errorHandler: ErrorRequestHandler = (err: unknown, req, res, next) 
   if (e.code === 'EBADCSRFTOKEN') {
     res
       .status(403)
-      .json(body('csrf_failed', 'Your session’s security token is missing or out of date. Reload the page and try again.'))
+      .json(
+        body('csrf_failed', 'Your session’s security token is missing or out of date. Reload the page and try again.'),
+      )
     return
   }
   if (isDatabaseUnavailable(err)) {

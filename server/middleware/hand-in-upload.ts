@@ -36,7 +36,9 @@ export function handInUpload(opts: HandInUploadOptions): RequestHandler {
   const fileLimit = Math.round(opts.limitMb * 1024 * 1024)
   const requestLimit = fileLimit + FORM_ALLOWANCE_BYTES
   const tooLarge = () =>
-    new AppError('upload_too_large', `The upload is larger than the ${opts.limitMb} MB limit per hand-in.`, 413, { limitMb: opts.limitMb })
+    new AppError('upload_too_large', `The upload is larger than the ${opts.limitMb} MB limit per hand-in.`, 413, {
+      limitMb: opts.limitMb,
+    })
 
   return async (req: Request, res: Response, next: NextFunction) => {
     try {
@@ -102,7 +104,8 @@ function readForm(req: Request, res: Response, limits: FormLimits): Promise<void
       // multer reports its limits only once the whole body has been drained; these listeners
       // answer at the moment busboy notices, and the byte count stops a body that never ends.
       streamHandler: (request, busboy) => {
-        const refuse = (code: multer.ErrorCode, field?: string) => fail(uploadError(new multer.MulterError(code, field), limits.limitMb))
+        const refuse = (code: multer.ErrorCode, field?: string) =>
+          fail(uploadError(new multer.MulterError(code, field), limits.limitMb))
         busboy.on('fieldsLimit', () => refuse('LIMIT_FIELD_COUNT'))
         busboy.on('partsLimit', () => refuse('LIMIT_PART_COUNT'))
         busboy.on('filesLimit', () => refuse('LIMIT_FILE_COUNT'))
@@ -136,10 +139,13 @@ function readForm(req: Request, res: Response, limits: FormLimits): Promise<void
 
 function unexpectedFile(field: string, declared: ReadonlySet<string>, taken: ReadonlySet<string>): AppError | null {
   if (taken.has(field)) {
-    return new AppError('bad_upload', `${field}: only one file can be sent for it; this hand-in sends two.`, 400, { field })
+    return new AppError('bad_upload', `${field}: only one file can be sent for it; this hand-in sends two.`, 400, {
+      field,
+    })
   }
   if (declared.has(field)) return null
-  const asked = declared.size === 0 ? 'this module asks for no files' : `this module asks for ${[...declared].join(', ')}`
+  const asked =
+    declared.size === 0 ? 'this module asks for no files' : `this module asks for ${[...declared].join(', ')}`
   return new AppError('bad_upload', `${field}: this module does not ask for that file (${asked}).`, 400, { field })
 }
 
@@ -150,13 +156,24 @@ function uploadError(err: unknown, limitMb: number): unknown {
     const field = err.field
     switch (err.code) {
       case 'LIMIT_FILE_SIZE':
-        return new AppError('upload_too_large', `${field ?? 'The file'} is larger than the ${limitMb} MB limit.`, 413, { field })
+        return new AppError('upload_too_large', `${field ?? 'The file'} is larger than the ${limitMb} MB limit.`, 413, {
+          field,
+        })
       case 'LIMIT_FIELD_VALUE':
-        return new AppError('bad_upload', `${field ?? 'A form field'} is larger than ${FIELD_SIZE_BYTES / 1048576} MB.`, 400, { field })
+        return new AppError(
+          'bad_upload',
+          `${field ?? 'A form field'} is larger than ${FIELD_SIZE_BYTES / 1048576} MB.`,
+          400,
+          { field },
+        )
       case 'LIMIT_FILE_COUNT':
       case 'LIMIT_FIELD_COUNT':
       case 'LIMIT_PART_COUNT':
-        return new AppError('bad_upload', 'The upload has more parts than a hand-in form sends (the payload and one file per table).', 400)
+        return new AppError(
+          'bad_upload',
+          'The upload has more parts than a hand-in form sends (the payload and one file per table).',
+          400,
+        )
       default:
         return new AppError('bad_upload', `The upload was refused: ${err.message}.`, 400, { field })
     }

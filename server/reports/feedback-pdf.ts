@@ -94,7 +94,15 @@ type TextOptions = PDFKit.Mixins.TextOptions
 type Doc = PDFKit.PDFDocument
 
 /** Writes text in a role's fonts, switching subset fonts mid-string where a character needs it. */
-function put(doc: Doc, role: FontRole, size: number, text: string, x?: number, y?: number, opts: TextOptions = {}): void {
+function put(
+  doc: Doc,
+  role: FontRole,
+  size: number,
+  text: string,
+  x?: number,
+  y?: number,
+  opts: TextOptions = {},
+): void {
   const runs = fontRuns(text, role)
   if (runs.length === 0) return
   runs.forEach((r, i) => {
@@ -117,7 +125,10 @@ function heightOf(doc: Doc, role: FontRole, size: number, text: string, width: n
   const plain = fontRuns(text, role)
     .map((r) => r.text)
     .join('')
-  return doc.font(fontStacks()[role][0]!.name).fontSize(size).heightOfString(plain, { ...opts, width })
+  return doc
+    .font(fontStacks()[role][0]!.name)
+    .fontSize(size)
+    .heightOfString(plain, { ...opts, width })
 }
 
 const bottomOf = (doc: Doc) => doc.page.height - doc.page.margins.bottom
@@ -134,7 +145,12 @@ function heading(doc: Doc, text: string, keepWith = 60): void {
   const x = doc.page.margins.left
   put(doc, 'sans-bold', 12.5, text, x, doc.y, { lineBreak: false })
   doc.y += 17
-  doc.moveTo(x, doc.y).lineTo(x + contentWidth(doc), doc.y).lineWidth(0.6).strokeColor(RULE).stroke()
+  doc
+    .moveTo(x, doc.y)
+    .lineTo(x + contentWidth(doc), doc.y)
+    .lineWidth(0.6)
+    .strokeColor(RULE)
+    .stroke()
   doc.y += 7
   doc.x = x
 }
@@ -159,7 +175,12 @@ function titleBlock(doc: Doc, d: FeedbackReportData): void {
   doc.fillColor(TEXT)
   put(doc, 'sans', 10.5, `${d.course.code} · ${d.course.title} · ${d.course.term}`, x, doc.y + 2, { width: w })
   doc.y += 6
-  doc.moveTo(x, doc.y).lineTo(x + w, doc.y).lineWidth(1.5).strokeColor(INK).stroke()
+  doc
+    .moveTo(x, doc.y)
+    .lineTo(x + w, doc.y)
+    .lineWidth(1.5)
+    .strokeColor(INK)
+    .stroke()
   doc.y += 10
 
   const rows: [string, string, FontRole][] = [['Module', `${d.module.title}, version ${d.module.version}`, 'serif']]
@@ -204,7 +225,9 @@ function scoreBox(doc: Doc, d: FeedbackReportData): void {
     )
   }
   if (s.computedBeforeOverride !== null) {
-    notes.push(`The course staff adjusted this score. The automatic check gave ${formatScore(s.computedBeforeOverride)} of ${formatScore(s.maxScore)}.`)
+    notes.push(
+      `The course staff adjusted this score. The automatic check gave ${formatScore(s.computedBeforeOverride)} of ${formatScore(s.maxScore)}.`,
+    )
   }
   if (d.checks.some((c) => c.adjusted)) notes.push('The course staff changed the points of the checks marked * below.')
   const noteH = notes.reduce((h, n) => h + heightOf(doc, 'sans', 9.5, n, w - 28) + 2, 0)
@@ -250,7 +273,14 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
   const withU = d.checks.some((c) => c.expected !== null && (c.uncertainty?.expanded ?? 0) > 0)
   const w = contentWidth(doc)
   const fixed: Column[] = [
-    { title: 'Your value', width: 74, role: 'mono', size: 8, align: 'right', cell: (c) => valueText(c.reported, c.unit) },
+    {
+      title: 'Your value',
+      width: 74,
+      role: 'mono',
+      size: 8,
+      align: 'right',
+      cell: (c) => valueText(c.reported, c.unit),
+    },
     ...(showExpected
       ? [
           {
@@ -259,12 +289,25 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
             role: 'mono' as const,
             size: 8,
             align: 'right' as const,
-            cell: (c: ReportCheck) => expectedWithUncertaintyText(c.expected, c.uncertainty?.expanded ?? null, c.uncertainty?.coverage ?? null, c.unit),
+            cell: (c: ReportCheck) =>
+              expectedWithUncertaintyText(
+                c.expected,
+                c.uncertainty?.expanded ?? null,
+                c.uncertainty?.coverage ?? null,
+                c.unit,
+              ),
           },
         ]
       : []),
     { title: 'Error', width: 42, role: 'mono', size: 8, align: 'right', cell: (c) => percentText(c.relError) },
-    { title: 'Tolerance', width: 80, role: 'mono', size: 8, align: 'right', cell: (c) => (c.tolerance === null ? '—' : `± ${valueText(c.tolerance, c.unit)}`) },
+    {
+      title: 'Tolerance',
+      width: 80,
+      role: 'mono',
+      size: 8,
+      align: 'right',
+      cell: (c) => (c.tolerance === null ? '—' : `± ${valueText(c.tolerance, c.unit)}`),
+    },
     {
       title: 'Points',
       width: 50,
@@ -273,10 +316,21 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
       align: 'right',
       cell: (c) => `${formatScore(c.pointsAwarded)} / ${formatScore(c.pointsPossible)}${c.adjusted ? ' *' : ''}`,
     },
-    { title: 'Outcome', width: 62, role: 'sans-semibold', size: 9, align: 'left', cell: (c) => OUTCOME[c.outcome].word, colour: (c) => OUTCOME[c.outcome].colour },
+    {
+      title: 'Outcome',
+      width: 62,
+      role: 'sans-semibold',
+      size: 9,
+      align: 'left',
+      cell: (c) => OUTCOME[c.outcome].word,
+      colour: (c) => OUTCOME[c.outcome].colour,
+    },
   ]
   const used = fixed.reduce((s, c) => s + c.width, 0)
-  const cols: Column[] = [{ title: 'Result', width: w - used, role: 'sans-semibold', size: 9, align: 'left', cell: (c) => c.label }, ...fixed]
+  const cols: Column[] = [
+    { title: 'Result', width: w - used, role: 'sans-semibold', size: 9, align: 'left', cell: (c) => c.label },
+    ...fixed,
+  ]
   const padX = 4
   const padY = 4
   const x0 = doc.page.margins.left
@@ -288,7 +342,11 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
     let x = x0
     doc.fillColor('#ffffff')
     for (const c of cols) {
-      put(doc, 'sans-semibold', 8.5, c.title, x + padX, y + 5, { width: c.width - 2 * padX, align: c.align, lineBreak: false })
+      put(doc, 'sans-semibold', 8.5, c.title, x + padX, y + 5, {
+        width: c.width - 2 * padX,
+        align: c.align,
+        lineBreak: false,
+      })
       x += c.width
     }
     doc.fillColor(TEXT)
@@ -306,11 +364,19 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
     }
     const y = doc.y
     if (i % 2 === 1) doc.rect(x0, y, w, h).fillColor(PAPER_DEEP).fill()
-    doc.moveTo(x0, y + h).lineTo(x0 + w, y + h).lineWidth(0.4).strokeColor(RULE).stroke()
+    doc
+      .moveTo(x0, y + h)
+      .lineTo(x0 + w, y + h)
+      .lineWidth(0.4)
+      .strokeColor(RULE)
+      .stroke()
     let x = x0
     cols.forEach((c, k) => {
       doc.fillColor(c.colour ? c.colour(check) : TEXT)
-      put(doc, c.role, c.size, texts[k]!, x + padX, y + padY + (c.role.startsWith('mono') ? 1 : 0), { width: c.width - 2 * padX, align: c.align })
+      put(doc, c.role, c.size, texts[k]!, x + padX, y + padY + (c.role.startsWith('mono') ? 1 : 0), {
+        width: c.width - 2 * padX,
+        align: c.align,
+      })
       x += c.width
     })
     doc.fillColor(TEXT)
@@ -319,7 +385,13 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
   doc.x = x0
   doc.y += 4
   if (!showExpected) {
-    paragraph(doc, 'sans', 8.5, 'This module does not show the expected values; the error and the tolerance tell how close each result came.', MUTED)
+    paragraph(
+      doc,
+      'sans',
+      8.5,
+      'This module does not show the expected values; the error and the tolerance tell how close each result came.',
+      MUTED,
+    )
   }
   uncertaintySources(doc, d, withU)
 }
@@ -340,7 +412,9 @@ function uncertaintySources(doc: Doc, d: FeedbackReportData, withU: boolean): vo
     'serif',
     8.5,
     `The instruments' uncertainties, as the module declares them, carry through to each expected value.${
-      withU ? ' An expected value is shown as ± U, where U is k times its combined standard uncertainty (k = 2 covers about 95 %).' : ''
+      withU
+        ? ' An expected value is shown as ± U, where U is k times its combined standard uncertainty (k = 2 covers about 95 %).'
+        : ''
     } The inputs that contribute most, with their share of the variance:`,
     MUTED,
   )
@@ -356,12 +430,19 @@ function flagsSection(doc: Doc, d: FeedbackReportData): void {
       f.status === 'resolved'
         ? `Resolved: looked at and closed by the course staff${f.resolvedAt ? ` on ${formatInZone(f.resolvedAt, d.course.timeZone)}` : ''}.`
         : 'Open: waiting for a teaching assistant to look at it.'
-    const h = heightOf(doc, 'serif', 9.5, f.message, w - 18, { lineGap: 1.5 }) + heightOf(doc, 'sans', 8.5, state, w - 18) + 12
+    const h =
+      heightOf(doc, 'serif', 9.5, f.message, w - 18, { lineGap: 1.5 }) + heightOf(doc, 'sans', 8.5, state, w - 18) + 12
     ensure(doc, Math.min(h, bottomOf(doc) - doc.page.margins.top))
     const top = doc.y
     const resolved = f.status === 'resolved'
-    doc.rect(x, top, w, h).fillColor(resolved ? '#e6f1e9' : '#f8eedb').fill()
-    doc.rect(x, top, 4, h).fillColor(resolved ? OUTCOME.pass.colour : OUTCOME.partial.colour).fill()
+    doc
+      .rect(x, top, w, h)
+      .fillColor(resolved ? '#e6f1e9' : '#f8eedb')
+      .fill()
+    doc
+      .rect(x, top, 4, h)
+      .fillColor(resolved ? OUTCOME.pass.colour : OUTCOME.partial.colour)
+      .fill()
     doc.fillColor(TEXT)
     put(doc, 'serif', 9.5, f.message, x + 12, top + 5, { width: w - 18, lineGap: 1.5 })
     doc.fillColor(MUTED)
@@ -379,7 +460,9 @@ function commentsSection(doc: Doc, d: FeedbackReportData): void {
     const top = doc.y
     doc.rect(x, top, 3, 12).fillColor(INK_700).fill()
     doc.fillColor(MUTED)
-    put(doc, 'sans-semibold', 9, `${c.author} · ${formatInZone(c.at, d.course.timeZone)}`, x + 10, top + 1, { width: contentWidth(doc) - 10 })
+    put(doc, 'sans-semibold', 9, `${c.author} · ${formatInZone(c.at, d.course.timeZone)}`, x + 10, top + 1, {
+      width: contentWidth(doc) - 10,
+    })
     doc.y += 3
     for (const p of c.paragraphs) {
       paragraph(doc, 'serif', 10, p, TEXT, 10)
@@ -401,7 +484,8 @@ export function niceTicks(lo: number, hi: number, count: number): { ticks: numbe
   const start = Math.floor(lo / step + 1e-9) * step
   const end = Math.ceil(hi / step - 1e-9) * step
   const ticks: number[] = []
-  for (let v = start; v <= end + step / 2; v += step) ticks.push(Math.abs(v) < step * 1e-9 ? 0 : Number(v.toPrecision(12)))
+  for (let v = start; v <= end + step / 2; v += step)
+    ticks.push(Math.abs(v) < step * 1e-9 ? 0 : Number(v.toPrecision(12)))
   return { ticks, lo: start, hi: end }
 }
 
@@ -428,10 +512,46 @@ interface Series {
 function chart(doc: Doc, c: ChartData, x: number, y: number, w: number, h: number): number {
   const t = c.time
   const series: Series[] = []
-  if (c.thrust) series.push({ label: 'Thrust, logged (N)', values: c.thrust, scale: 1, axis: 'force', colour: INK_700, width: 1.3, dash: null })
-  if (c.idealThrust) series.push({ label: 'Ideal thrust for the logged chamber pressure (N)', values: c.idealThrust, scale: 1, axis: 'force', colour: INK_700, width: 0.9, dash: [4, 2.5] })
-  if (c.chamberPressure) series.push({ label: 'Chamber pressure (kPa absolute)', values: c.chamberPressure, scale: 1e-3, axis: 'pressure', colour: COPPER, width: 1.2, dash: null })
-  if (c.receiverPressure) series.push({ label: 'Receiver pressure (kPa absolute)', values: c.receiverPressure, scale: 1e-3, axis: 'pressure', colour: MUTED, width: 0.9, dash: [1.5, 2] })
+  if (c.thrust)
+    series.push({
+      label: 'Thrust, logged (N)',
+      values: c.thrust,
+      scale: 1,
+      axis: 'force',
+      colour: INK_700,
+      width: 1.3,
+      dash: null,
+    })
+  if (c.idealThrust)
+    series.push({
+      label: 'Ideal thrust for the logged chamber pressure (N)',
+      values: c.idealThrust,
+      scale: 1,
+      axis: 'force',
+      colour: INK_700,
+      width: 0.9,
+      dash: [4, 2.5],
+    })
+  if (c.chamberPressure)
+    series.push({
+      label: 'Chamber pressure (kPa absolute)',
+      values: c.chamberPressure,
+      scale: 1e-3,
+      axis: 'pressure',
+      colour: COPPER,
+      width: 1.2,
+      dash: null,
+    })
+  if (c.receiverPressure)
+    series.push({
+      label: 'Receiver pressure (kPa absolute)',
+      values: c.receiverPressure,
+      scale: 1e-3,
+      axis: 'pressure',
+      colour: MUTED,
+      width: 0.9,
+      dash: [1.5, 2],
+    })
   const hasForce = series.some((s) => s.axis === 'force')
   const hasPressure = series.some((s) => s.axis === 'pressure')
 
@@ -455,7 +575,12 @@ function chart(doc: Doc, c: ChartData, x: number, y: number, w: number, h: numbe
   for (const [from, to] of c.supersonicSpans) {
     const a = Math.max(left, X(from))
     const b = Math.min(right, X(to))
-    if (b > a) doc.rect(a, top, b - a, bottom - top).fillOpacity(0.12).fillColor(SPAN).fill()
+    if (b > a)
+      doc
+        .rect(a, top, b - a, bottom - top)
+        .fillOpacity(0.12)
+        .fillColor(SPAN)
+        .fill()
   }
   doc.restore()
 
@@ -476,22 +601,38 @@ function chart(doc: Doc, c: ChartData, x: number, y: number, w: number, h: numbe
     for (const v of fy.ticks) {
       const label = formatCompact(v, 4)
       put(doc, 'mono', 7, label, left - 4 - widthOf(doc, 'mono', 7, label), Y(v, 'force') - 3.5, { lineBreak: false })
-      doc.moveTo(left - 3, Y(v, 'force')).lineTo(left, Y(v, 'force')).lineWidth(0.6).strokeColor(TEXT).stroke()
+      doc
+        .moveTo(left - 3, Y(v, 'force'))
+        .lineTo(left, Y(v, 'force'))
+        .lineWidth(0.6)
+        .strokeColor(TEXT)
+        .stroke()
     }
   }
   if (hasPressure) {
     for (const v of py.ticks) {
       const label = formatCompact(v, 4)
       put(doc, 'mono', 7, label, right + 4, Y(v, 'pressure') - 3.5, { lineBreak: false })
-      doc.moveTo(right, Y(v, 'pressure')).lineTo(right + 3, Y(v, 'pressure')).lineWidth(0.6).strokeColor(TEXT).stroke()
+      doc
+        .moveTo(right, Y(v, 'pressure'))
+        .lineTo(right + 3, Y(v, 'pressure'))
+        .lineWidth(0.6)
+        .strokeColor(TEXT)
+        .stroke()
     }
   }
-  doc.rect(left, top, right - left, bottom - top).lineWidth(0.8).strokeColor(TEXT).stroke()
+  doc
+    .rect(left, top, right - left, bottom - top)
+    .lineWidth(0.8)
+    .strokeColor(TEXT)
+    .stroke()
 
   // Axis titles.
   doc.fillColor(TEXT)
   const xTitle = 'Time (s)'
-  put(doc, 'sans', 8.5, xTitle, (left + right) / 2 - widthOf(doc, 'sans', 8.5, xTitle) / 2, bottom + 15, { lineBreak: false })
+  put(doc, 'sans', 8.5, xTitle, (left + right) / 2 - widthOf(doc, 'sans', 8.5, xTitle) / 2, bottom + 15, {
+    lineBreak: false,
+  })
   const vertical = (text: string, cx: number) => {
     const tw = widthOf(doc, 'sans', 8.5, text)
     const cy = (top + bottom) / 2
@@ -533,7 +674,11 @@ function chart(doc: Doc, c: ChartData, x: number, y: number, w: number, h: numbe
   const items: { label: string; draw: (ax: number, ay: number) => void }[] = series.map((s) => ({
     label: s.label,
     draw: (ax, ay) => {
-      doc.moveTo(ax, ay).lineTo(ax + 18, ay).lineWidth(s.width + 0.4).strokeColor(s.colour)
+      doc
+        .moveTo(ax, ay)
+        .lineTo(ax + 18, ay)
+        .lineWidth(s.width + 0.4)
+        .strokeColor(s.colour)
       if (s.dash) doc.dash(s.dash[0], { space: s.dash[1] })
       doc.stroke()
       doc.undash()
@@ -544,7 +689,11 @@ function chart(doc: Doc, c: ChartData, x: number, y: number, w: number, h: numbe
       label: 'Nozzle exit supersonic',
       draw: (ax, ay) => {
         doc.save()
-        doc.rect(ax, ay - 4, 18, 8).fillOpacity(0.12).fillColor(SPAN).fill()
+        doc
+          .rect(ax, ay - 4, 18, 8)
+          .fillOpacity(0.12)
+          .fillColor(SPAN)
+          .fill()
         doc.restore()
       },
     })
@@ -592,7 +741,12 @@ function footers(doc: Doc, d: FeedbackReportData): void {
     const x = doc.page.margins.left
     const right = doc.page.width - doc.page.margins.right
     const y = doc.page.height - 40
-    doc.moveTo(x, y - 6).lineTo(right, y - 6).lineWidth(0.5).strokeColor(RULE).stroke()
+    doc
+      .moveTo(x, y - 6)
+      .lineTo(right, y - 6)
+      .lineWidth(0.5)
+      .strokeColor(RULE)
+      .stroke()
     doc.fillColor(MUTED)
     put(doc, 'sans', 8, generated, x, y, { lineBreak: false })
     const pageText = `Page ${i - range.start + 1} of ${range.count}`

@@ -93,7 +93,11 @@ export function woffCoverage(woff: Buffer): (codePoint: number) => boolean {
   const records: { platform: number; encoding: number; offset: number }[] = []
   for (let i = 0; i < cmap.readUInt16BE(2); i++) {
     const r = 4 + i * 8
-    records.push({ platform: cmap.readUInt16BE(r), encoding: cmap.readUInt16BE(r + 2), offset: cmap.readUInt32BE(r + 4) })
+    records.push({
+      platform: cmap.readUInt16BE(r),
+      encoding: cmap.readUInt16BE(r + 2),
+      offset: cmap.readUInt32BE(r + 4),
+    })
   }
   const ranges: [number, number][] = []
   const pick = (platform: number, encoding: number, format: number) =>
@@ -168,7 +172,8 @@ export function woffToSfnt(woff: Buffer): Buffer {
     const origLength = woff.readUInt32BE(e + 12)
     const raw = woff.subarray(offset, offset + compLength)
     const data = compLength < origLength ? inflateSync(raw) : raw
-    if (data.length !== origLength) throw new Error(`table ${woff.toString('latin1', e, e + 4)}: ${data.length} bytes, expected ${origLength}`)
+    if (data.length !== origLength)
+      throw new Error(`table ${woff.toString('latin1', e, e + 4)}: ${data.length} bytes, expected ${origLength}`)
     tables.push({ tag: woff.toString('latin1', e, e + 4), checksum: woff.readUInt32BE(e + 16), data })
   }
   let searchRange = 1
@@ -218,7 +223,10 @@ export function fontStacks(): Record<FontRole, Face[]> {
   if (stacks) return stacks
   const out = {} as Record<FontRole, Face[]>
   for (const [role, { family, weight }] of Object.entries(ROLES) as [FontRole, { family: Family; weight: number }][]) {
-    out[role] = [...OWN_SUBSETS.map((s) => face(family, s, weight)), face('noto-serif', 'math', weight >= 600 ? 700 : 400)]
+    out[role] = [
+      ...OWN_SUBSETS.map((s) => face(family, s, weight)),
+      face('noto-serif', 'math', weight >= 600 ? 700 : 400),
+    ]
   }
   stacks = out
   return out

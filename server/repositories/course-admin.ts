@@ -29,21 +29,49 @@ export interface MemberRow {
 }
 
 const sectionCols = { id: sections.id, courseId: sections.courseId, name: sections.name, meets: sections.meets }
-const groupCols = { id: labGroups.id, courseId: labGroups.courseId, sectionId: labGroups.sectionId, name: labGroups.name }
+const groupCols = {
+  id: labGroups.id,
+  courseId: labGroups.courseId,
+  sectionId: labGroups.sectionId,
+  name: labGroups.name,
+}
 
-export async function findSection(db: Executor, courseId: number, sectionId: number, forUpdate = false): Promise<SectionRow | null> {
-  const q = db.select(sectionCols).from(sections).where(and(eq(sections.id, sectionId), eq(sections.courseId, courseId))).limit(1)
+export async function findSection(
+  db: Executor,
+  courseId: number,
+  sectionId: number,
+  forUpdate = false,
+): Promise<SectionRow | null> {
+  const q = db
+    .select(sectionCols)
+    .from(sections)
+    .where(and(eq(sections.id, sectionId), eq(sections.courseId, courseId)))
+    .limit(1)
   const rows = forUpdate ? await q.for('update') : await q
   return rows[0] ?? null
 }
 
-export async function findLabGroup(db: Executor, courseId: number, labGroupId: number, forUpdate = false): Promise<LabGroupRow | null> {
-  const q = db.select(groupCols).from(labGroups).where(and(eq(labGroups.id, labGroupId), eq(labGroups.courseId, courseId))).limit(1)
+export async function findLabGroup(
+  db: Executor,
+  courseId: number,
+  labGroupId: number,
+  forUpdate = false,
+): Promise<LabGroupRow | null> {
+  const q = db
+    .select(groupCols)
+    .from(labGroups)
+    .where(and(eq(labGroups.id, labGroupId), eq(labGroups.courseId, courseId)))
+    .limit(1)
   const rows = forUpdate ? await q.for('update') : await q
   return rows[0] ?? null
 }
 
-export async function findMember(db: Executor, courseId: number, userId: number, forUpdate = false): Promise<MemberRow | null> {
+export async function findMember(
+  db: Executor,
+  courseId: number,
+  userId: number,
+  forUpdate = false,
+): Promise<MemberRow | null> {
   const q = db
     .select({
       userId: enrollments.userId,
@@ -60,13 +88,24 @@ export async function findMember(db: Executor, courseId: number, userId: number,
   return rows[0] ?? null
 }
 
-export async function insertSection(db: Executor, courseId: number, v: { name: string; meets: string }): Promise<number> {
-  const [row] = await db.insert(sections).values({ courseId, ...v }).$returningId()
+export async function insertSection(
+  db: Executor,
+  courseId: number,
+  v: { name: string; meets: string },
+): Promise<number> {
+  const [row] = await db
+    .insert(sections)
+    .values({ courseId, ...v })
+    .$returningId()
   if (!row) throw new Error('insert into sections returned no id')
   return row.id
 }
 
-export async function updateSection(db: Executor, sectionId: number, v: { name?: string | undefined; meets?: string | undefined }): Promise<void> {
+export async function updateSection(
+  db: Executor,
+  sectionId: number,
+  v: { name?: string | undefined; meets?: string | undefined },
+): Promise<void> {
   await db
     .update(sections)
     .set({ ...(v.name !== undefined ? { name: v.name } : {}), ...(v.meets !== undefined ? { meets: v.meets } : {}) })
@@ -79,22 +118,40 @@ export async function deleteSection(db: Executor, sectionId: number): Promise<vo
 
 /** How many people of each role are placed in a section. */
 export async function sectionHeadcount(db: Executor, sectionId: number): Promise<Record<CourseRole, number>> {
-  const rows = await db.select({ role: enrollments.role, n: count() }).from(enrollments).where(eq(enrollments.sectionId, sectionId)).groupBy(enrollments.role)
+  const rows = await db
+    .select({ role: enrollments.role, n: count() })
+    .from(enrollments)
+    .where(eq(enrollments.sectionId, sectionId))
+    .groupBy(enrollments.role)
   const out: Record<CourseRole, number> = { instructor: 0, ta: 0, student: 0 }
   for (const r of rows) out[r.role] = r.n
   return out
 }
 
-export async function insertLabGroup(db: Executor, courseId: number, v: { name: string; sectionId: number | null }): Promise<number> {
-  const [row] = await db.insert(labGroups).values({ courseId, ...v }).$returningId()
+export async function insertLabGroup(
+  db: Executor,
+  courseId: number,
+  v: { name: string; sectionId: number | null },
+): Promise<number> {
+  const [row] = await db
+    .insert(labGroups)
+    .values({ courseId, ...v })
+    .$returningId()
   if (!row) throw new Error('insert into lab_groups returned no id')
   return row.id
 }
 
-export async function updateLabGroup(db: Executor, labGroupId: number, v: { name?: string | undefined; sectionId?: number | null | undefined }): Promise<void> {
+export async function updateLabGroup(
+  db: Executor,
+  labGroupId: number,
+  v: { name?: string | undefined; sectionId?: number | null | undefined },
+): Promise<void> {
   await db
     .update(labGroups)
-    .set({ ...(v.name !== undefined ? { name: v.name } : {}), ...(v.sectionId !== undefined ? { sectionId: v.sectionId } : {}) })
+    .set({
+      ...(v.name !== undefined ? { name: v.name } : {}),
+      ...(v.sectionId !== undefined ? { sectionId: v.sectionId } : {}),
+    })
     .where(eq(labGroups.id, labGroupId))
 }
 
@@ -122,8 +179,16 @@ export async function groupHandInCount(db: Executor, labGroupId: number): Promis
   return row?.n ?? 0
 }
 
-export async function setPlacement(db: Executor, courseId: number, userId: number, v: { sectionId: number | null; labGroupId: number | null }): Promise<void> {
-  await db.update(enrollments).set(v).where(and(eq(enrollments.courseId, courseId), eq(enrollments.userId, userId)))
+export async function setPlacement(
+  db: Executor,
+  courseId: number,
+  userId: number,
+  v: { sectionId: number | null; labGroupId: number | null },
+): Promise<void> {
+  await db
+    .update(enrollments)
+    .set(v)
+    .where(and(eq(enrollments.courseId, courseId), eq(enrollments.userId, userId)))
 }
 
 /** Instructors of the course, locked so two removals cannot both pass the "not the last one" check. */
@@ -147,7 +212,10 @@ export async function listSectionsAdmin(db: Executor, courseId: number): Promise
       ...sectionCols,
       // Table names written out: in a one-table query Drizzle leaves a column like sections.id unqualified,
       // which inside the subquery would mean the subquery's own id.
-      studentCount: sql<number>`(SELECT COUNT(*) FROM enrollments e WHERE e.section_id = sections.id AND e.role = 'student')`.mapWith(Number),
+      studentCount:
+        sql<number>`(SELECT COUNT(*) FROM enrollments e WHERE e.section_id = sections.id AND e.role = 'student')`.mapWith(
+          Number,
+        ),
       labGroupCount: sql<number>`(SELECT COUNT(*) FROM lab_groups g WHERE g.section_id = sections.id)`.mapWith(Number),
     })
     .from(sections)
@@ -174,7 +242,9 @@ export async function listLabGroupsAdmin(db: Executor, courseId: number): Promis
     .select({
       ...groupCols,
       sectionName: sections.name,
-      handInCount: sql<number>`(SELECT COUNT(*) FROM submissions s WHERE s.lab_group_id = lab_groups.id)`.mapWith(Number),
+      handInCount: sql<number>`(SELECT COUNT(*) FROM submissions s WHERE s.lab_group_id = lab_groups.id)`.mapWith(
+        Number,
+      ),
     })
     .from(labGroups)
     .leftJoin(sections, eq(sections.id, labGroups.sectionId))
@@ -195,7 +265,9 @@ export async function listLabGroupsAdmin(db: Executor, courseId: number): Promis
     sectionId: g.sectionId,
     sectionName: g.sectionName,
     handInCount: g.handInCount,
-    members: members.filter((m) => m.labGroupId === g.id).map((m): PersonRef => ({ userId: m.userId, displayName: m.displayName })),
+    members: members
+      .filter((m) => m.labGroupId === g.id)
+      .map((m): PersonRef => ({ userId: m.userId, displayName: m.displayName })),
   }))
 }
 

@@ -27,7 +27,11 @@ export async function listModulesWithDue(db: Executor, courseId: number): Promis
   return rows.flatMap((r) => (r.dueAt ? [{ id: r.id, title: r.title, dueAt: r.dueAt }] : []))
 }
 
-export async function findModuleDue(db: Executor, courseId: number, moduleId: number): Promise<{ id: number; title: string; dueAt: Date | null } | null> {
+export async function findModuleDue(
+  db: Executor,
+  courseId: number,
+  moduleId: number,
+): Promise<{ id: number; title: string; dueAt: Date | null } | null> {
   const rows = await db
     .select({ id: modules.id, title: moduleVersions.title, dueAt: moduleVersions.dueAt })
     .from(modules)
@@ -47,7 +51,10 @@ export async function findExtensionDue(db: Executor, moduleId: number, userId: n
   return rows[0]?.dueAt ?? null
 }
 
-export async function upsertExtension(db: Executor, v: { moduleId: number; userId: number; dueAt: Date; note: string; grantedBy: number }): Promise<void> {
+export async function upsertExtension(
+  db: Executor,
+  v: { moduleId: number; userId: number; dueAt: Date; note: string; grantedBy: number },
+): Promise<void> {
   await db
     .insert(dueExtensions)
     .values(v)
@@ -55,7 +62,9 @@ export async function upsertExtension(db: Executor, v: { moduleId: number; userI
 }
 
 export async function deleteExtension(db: Executor, moduleId: number, userId: number): Promise<number> {
-  const [res] = await db.delete(dueExtensions).where(and(eq(dueExtensions.moduleId, moduleId), eq(dueExtensions.userId, userId)))
+  const [res] = await db
+    .delete(dueExtensions)
+    .where(and(eq(dueExtensions.moduleId, moduleId), eq(dueExtensions.userId, userId)))
   return res.affectedRows
 }
 
@@ -82,7 +91,10 @@ export async function listExtensions(db: Executor, courseId: number): Promise<Ex
     })
     .from(dueExtensions)
     .innerJoin(modules, eq(modules.id, dueExtensions.moduleId))
-    .innerJoin(enrollments, and(eq(enrollments.userId, dueExtensions.userId), eq(enrollments.courseId, modules.courseId)))
+    .innerJoin(
+      enrollments,
+      and(eq(enrollments.userId, dueExtensions.userId), eq(enrollments.courseId, modules.courseId)),
+    )
     .innerJoin(users, eq(users.id, dueExtensions.userId))
     .leftJoin(granter, eq(granter.id, dueExtensions.grantedBy))
     .where(eq(modules.courseId, courseId))

@@ -81,7 +81,10 @@ export async function listSections(db: Executor, courseId: number): Promise<Sect
       id: sections.id,
       name: sections.name,
       meets: sections.meets,
-      studentCount: sql<number>`(SELECT COUNT(*) FROM ${enrollments} e WHERE e.section_id = ${sections.id} AND e.role = 'student')`.mapWith(Number),
+      studentCount:
+        sql<number>`(SELECT COUNT(*) FROM ${enrollments} e WHERE e.section_id = ${sections.id} AND e.role = 'student')`.mapWith(
+          Number,
+        ),
       ta: taUsers.displayName,
     })
     .from(sections)
@@ -124,7 +127,11 @@ export async function listRoster(db: Executor, courseId: number, sectionId?: num
     .innerJoin(users, eq(users.id, enrollments.userId))
     .leftJoin(sections, eq(sections.id, enrollments.sectionId))
     .leftJoin(labGroups, eq(labGroups.id, enrollments.labGroupId))
-    .where(sectionId === undefined ? eq(enrollments.courseId, courseId) : and(eq(enrollments.courseId, courseId), eq(enrollments.sectionId, sectionId)))
+    .where(
+      sectionId === undefined
+        ? eq(enrollments.courseId, courseId)
+        : and(eq(enrollments.courseId, courseId), eq(enrollments.sectionId, sectionId)),
+    )
     .orderBy(asc(enrollments.role), asc(users.displayName))
 }
 

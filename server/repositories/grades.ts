@@ -2,7 +2,17 @@ import type { SubmissionStatus } from '../../shared/schemas/submissions'
 import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import type { Executor } from '../db/client'
-import { enrollments, labGroups, mailOutbox, modules, regradeRequests, sections, submissionChecks, submissions, users } from '../db/schema'
+import {
+  enrollments,
+  labGroups,
+  mailOutbox,
+  modules,
+  regradeRequests,
+  sections,
+  submissionChecks,
+  submissions,
+  users,
+} from '../db/schema'
 
 export interface StudentRow {
   userId: number
@@ -15,7 +25,11 @@ export interface StudentRow {
 }
 
 /** The students of a course, by name; `sectionId` / `labGroupId` narrow the list. */
-export async function listStudents(db: Executor, courseId: number, f: { sectionId?: number | undefined; labGroupId?: number | undefined } = {}): Promise<StudentRow[]> {
+export async function listStudents(
+  db: Executor,
+  courseId: number,
+  f: { sectionId?: number | undefined; labGroupId?: number | undefined } = {},
+): Promise<StudentRow[]> {
   const where: SQL[] = [eq(enrollments.courseId, courseId), eq(enrollments.role, 'student')]
   if (f.sectionId !== undefined) where.push(eq(enrollments.sectionId, f.sectionId))
   if (f.labGroupId !== undefined) where.push(eq(enrollments.labGroupId, f.labGroupId))
@@ -38,7 +52,11 @@ export async function listStudents(db: Executor, courseId: number, f: { sectionI
 }
 
 export async function listSectionOptions(db: Executor, courseId: number) {
-  return db.select({ id: sections.id, name: sections.name }).from(sections).where(eq(sections.courseId, courseId)).orderBy(asc(sections.name))
+  return db
+    .select({ id: sections.id, name: sections.name })
+    .from(sections)
+    .where(eq(sections.courseId, courseId))
+    .orderBy(asc(sections.name))
 }
 
 export async function listLabGroupOptions(db: Executor, courseId: number) {
@@ -80,10 +98,19 @@ export async function listGraded(db: Executor, courseId: number, moduleIds: numb
       isLate: submissions.isLate,
       daysLate: submissions.daysLate,
       reviewStatus: submissions.reviewStatus,
-      regradeOpen: sql<number>`EXISTS (SELECT 1 FROM ${regradeRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`.mapWith(Number),
+      regradeOpen:
+        sql<number>`EXISTS (SELECT 1 FROM ${regradeRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`.mapWith(
+          Number,
+        ),
     })
     .from(submissions)
-    .where(and(eq(submissions.courseId, courseId), inArray(submissions.moduleId, moduleIds), eq(submissions.status, 'graded')))
+    .where(
+      and(
+        eq(submissions.courseId, courseId),
+        inArray(submissions.moduleId, moduleIds),
+        eq(submissions.status, 'graded'),
+      ),
+    )
     .orderBy(desc(submissions.attempt), desc(submissions.id))
   return rows.map((r) => ({ ...r, regradeOpen: r.regradeOpen === 1 }))
 }
@@ -98,7 +125,12 @@ export interface AnyAttemptRow {
 }
 
 /** Every hand-in (graded or not) of one student or lab group for these modules, newest first. */
-export async function listAttemptsOf(db: Executor, courseId: number, userId: number, labGroupId: number | null): Promise<AnyAttemptRow[]> {
+export async function listAttemptsOf(
+  db: Executor,
+  courseId: number,
+  userId: number,
+  labGroupId: number | null,
+): Promise<AnyAttemptRow[]> {
   return db
     .select({
       id: submissions.id,
@@ -112,7 +144,9 @@ export async function listAttemptsOf(db: Executor, courseId: number, userId: num
     .where(
       and(
         eq(submissions.courseId, courseId),
-        labGroupId === null ? eq(submissions.userId, userId) : sql`(${submissions.userId} = ${userId} OR ${submissions.labGroupId} = ${labGroupId})`,
+        labGroupId === null
+          ? eq(submissions.userId, userId)
+          : sql`(${submissions.userId} = ${userId} OR ${submissions.labGroupId} = ${labGroupId})`,
       ),
     )
     .orderBy(desc(submissions.attempt), desc(submissions.id))
@@ -122,7 +156,12 @@ export async function listAttemptsOf(db: Executor, courseId: number, userId: num
 export async function listCheckOutcomes(db: Executor, submissionIds: number[]) {
   if (submissionIds.length === 0) return []
   return db
-    .select({ submissionId: submissionChecks.submissionId, key: submissionChecks.resultKey, label: submissionChecks.label, pass: submissionChecks.pass })
+    .select({
+      submissionId: submissionChecks.submissionId,
+      key: submissionChecks.resultKey,
+      label: submissionChecks.label,
+      pass: submissionChecks.pass,
+    })
     .from(submissionChecks)
     .where(inArray(submissionChecks.submissionId, submissionIds))
 }
@@ -132,7 +171,10 @@ export async function setModuleWeight(db: Executor, moduleId: number, weight: nu
 }
 
 export async function moduleWeights(db: Executor, courseId: number): Promise<Map<number, number>> {
-  const rows = await db.select({ id: modules.id, weight: modules.weight }).from(modules).where(eq(modules.courseId, courseId))
+  const rows = await db
+    .select({ id: modules.id, weight: modules.weight })
+    .from(modules)
+    .where(eq(modules.courseId, courseId))
   return new Map(rows.map((r) => [r.id, r.weight]))
 }
 
@@ -177,9 +219,16 @@ export async function listRegrades(db: Executor, submissionIds: number[]): Promi
     .orderBy(asc(regradeRequests.id))
   const answerIds = [...new Set(rows.map((r) => r.answeredById).filter((x): x is number => x !== null))]
   const names = answerIds.length
-    ? new Map((await db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, answerIds))).map((r) => [r.id, r.name]))
+    ? new Map(
+        (
+          await db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, answerIds))
+        ).map((r) => [r.id, r.name]),
+      )
     : new Map<number, string>()
-  return rows.map(({ answeredById, ...r }) => ({ ...r, answeredBy: answeredById === null ? null : (names.get(answeredById) ?? null) }))
+  return rows.map(({ answeredById, ...r }) => ({
+    ...r,
+    answeredBy: answeredById === null ? null : (names.get(answeredById) ?? null),
+  }))
 }
 
 /** Locks the hand-in's row so two requests for it cannot both find "none open". */
@@ -196,7 +245,10 @@ export async function hasOpenRegrade(tx: Executor, submissionId: number): Promis
   return rows.length > 0
 }
 
-export async function insertRegrade(tx: Executor, r: { courseId: number; submissionId: number; requestedBy: number; message: string }): Promise<number> {
+export async function insertRegrade(
+  tx: Executor,
+  r: { courseId: number; submissionId: number; requestedBy: number; message: string },
+): Promise<number> {
   const [row] = await tx.insert(regradeRequests).values(r).$returningId()
   return row!.id
 }
@@ -204,15 +256,28 @@ export async function insertRegrade(tx: Executor, r: { courseId: number; submiss
 /** The request, locked for the answer. */
 export async function findRegradeForUpdate(tx: Executor, submissionId: number, requestId: number) {
   const [row] = await tx
-    .select({ id: regradeRequests.id, status: regradeRequests.status, requestedBy: regradeRequests.requestedBy, message: regradeRequests.message })
+    .select({
+      id: regradeRequests.id,
+      status: regradeRequests.status,
+      requestedBy: regradeRequests.requestedBy,
+      message: regradeRequests.message,
+    })
     .from(regradeRequests)
     .where(and(eq(regradeRequests.id, requestId), eq(regradeRequests.submissionId, submissionId)))
     .for('update')
   return row ?? null
 }
 
-export async function saveRegradeAnswer(tx: Executor, requestId: number, answer: string, answeredBy: number): Promise<void> {
-  await tx.update(regradeRequests).set({ status: 'answered', answer, answeredBy, answeredAt: new Date() }).where(eq(regradeRequests.id, requestId))
+export async function saveRegradeAnswer(
+  tx: Executor,
+  requestId: number,
+  answer: string,
+  answeredBy: number,
+): Promise<void> {
+  await tx
+    .update(regradeRequests)
+    .set({ status: 'answered', answer, answeredBy, answeredAt: new Date() })
+    .where(eq(regradeRequests.id, requestId))
 }
 
 /** Puts a hand-in (back) in the review queue and moves its revision on, so open editors reload. */
@@ -222,7 +287,6 @@ export async function reopenForReview(tx: Executor, submissionId: number): Promi
     .set({ reviewStatus: 'open', revision: sql`${submissions.revision} + 1` })
     .where(eq(submissions.id, submissionId))
 }
-
 
 /** Addresses that already have mail with this dedupe key (queued or sent). */
 export async function queuedAddresses(tx: Executor, dedupeKey: string): Promise<Set<string>> {

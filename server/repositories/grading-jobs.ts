@@ -27,8 +27,17 @@ export async function claimGradingJobs(db: Database, limit: number, onlyId?: num
     if (rows.length === 0) return []
     await tx
       .update(submissions)
-      .set({ status: 'grading', gradeAttempts: sql`${submissions.gradeAttempts} + 1`, gradeClaimedAt: sql`CURRENT_TIMESTAMP(3)` })
-      .where(inArray(submissions.id, rows.map((r) => r.id)))
+      .set({
+        status: 'grading',
+        gradeAttempts: sql`${submissions.gradeAttempts} + 1`,
+        gradeClaimedAt: sql`CURRENT_TIMESTAMP(3)`,
+      })
+      .where(
+        inArray(
+          submissions.id,
+          rows.map((r) => r.id),
+        ),
+      )
     return rows.map((r) => ({ submissionId: r.id, token: r.attempts + 1 }))
   })
 }
@@ -38,7 +47,13 @@ export async function requeueGradingJob(db: Executor, claim: GradingClaim, retry
   await db
     .update(submissions)
     .set({ status: 'received', gradeAfter: retryAt, gradeClaimedAt: null })
-    .where(and(eq(submissions.id, claim.submissionId), eq(submissions.status, 'grading'), eq(submissions.gradeAttempts, claim.token)))
+    .where(
+      and(
+        eq(submissions.id, claim.submissionId),
+        eq(submissions.status, 'grading'),
+        eq(submissions.gradeAttempts, claim.token),
+      ),
+    )
 }
 
 /**

@@ -17,7 +17,12 @@ export async function insertInvitations(db: Executor, rows: InvitationWrite[]): 
   const ids = await db
     .select({ id: invitations.id, tokenHash: invitations.tokenHash })
     .from(invitations)
-    .where(inArray(invitations.tokenHash, rows.map((r) => r.tokenHash)))
+    .where(
+      inArray(
+        invitations.tokenHash,
+        rows.map((r) => r.tokenHash),
+      ),
+    )
   return new Map(ids.map((r) => [r.tokenHash, r.id]))
 }
 

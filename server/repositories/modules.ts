@@ -56,8 +56,17 @@ const versionCols = {
   publishedAt: moduleVersions.publishedAt,
 }
 
-export async function findModule(db: Executor, courseId: number, moduleId: number, forUpdate = false): Promise<ModuleRow | null> {
-  const q = db.select(moduleCols).from(modules).where(and(eq(modules.id, moduleId), eq(modules.courseId, courseId))).limit(1)
+export async function findModule(
+  db: Executor,
+  courseId: number,
+  moduleId: number,
+  forUpdate = false,
+): Promise<ModuleRow | null> {
+  const q = db
+    .select(moduleCols)
+    .from(modules)
+    .where(and(eq(modules.id, moduleId), eq(modules.courseId, courseId)))
+    .limit(1)
   const rows = forUpdate ? await q.for('update') : await q
   return rows[0] ?? null
 }
@@ -66,7 +75,11 @@ export async function listModuleRows(db: Executor, courseId: number, statuses?: 
   return db
     .select(moduleCols)
     .from(modules)
-    .where(statuses ? and(eq(modules.courseId, courseId), inArray(modules.status, statuses)) : eq(modules.courseId, courseId))
+    .where(
+      statuses
+        ? and(eq(modules.courseId, courseId), inArray(modules.status, statuses))
+        : eq(modules.courseId, courseId),
+    )
     .orderBy(asc(modules.position), asc(modules.id))
 }
 
@@ -82,12 +95,19 @@ export async function findVersions(db: Executor, ids: number[]): Promise<Map<num
 }
 
 export async function slugExists(db: Executor, courseId: number, slug: string): Promise<boolean> {
-  const rows = await db.select({ id: modules.id }).from(modules).where(and(eq(modules.courseId, courseId), eq(modules.slug, slug))).limit(1)
+  const rows = await db
+    .select({ id: modules.id })
+    .from(modules)
+    .where(and(eq(modules.courseId, courseId), eq(modules.slug, slug)))
+    .limit(1)
   return rows.length > 0
 }
 
 export async function nextPosition(db: Executor, courseId: number): Promise<number> {
-  const [row] = await db.select({ max: sql<number | null>`MAX(${modules.position})` }).from(modules).where(eq(modules.courseId, courseId))
+  const [row] = await db
+    .select({ max: sql<number | null>`MAX(${modules.position})` })
+    .from(modules)
+    .where(eq(modules.courseId, courseId))
   return (row?.max ?? 0) + 1
 }
 
@@ -106,7 +126,10 @@ export async function insertModuleWithVersion(
   m: { courseId: number; slug: string; position: number; createdBy: number },
   v: VersionWrite,
 ): Promise<{ moduleId: number; versionId: number }> {
-  const [mod] = await db.insert(modules).values({ ...m, status: 'draft' }).$returningId()
+  const [mod] = await db
+    .insert(modules)
+    .values({ ...m, status: 'draft' })
+    .$returningId()
   const moduleId = mod!.id
   const [ver] = await db
     .insert(moduleVersions)
@@ -117,11 +140,25 @@ export async function insertModuleWithVersion(
   return { moduleId, versionId }
 }
 
-export async function updateDraftVersion(db: Executor, versionId: number, v: VersionWrite, userId: number): Promise<void> {
-  await db.update(moduleVersions).set({ ...v, updatedBy: userId }).where(eq(moduleVersions.id, versionId))
+export async function updateDraftVersion(
+  db: Executor,
+  versionId: number,
+  v: VersionWrite,
+  userId: number,
+): Promise<void> {
+  await db
+    .update(moduleVersions)
+    .set({ ...v, updatedBy: userId })
+    .where(eq(moduleVersions.id, versionId))
 }
 
-export async function insertNextVersion(db: Executor, moduleId: number, number: number, v: VersionWrite, userId: number): Promise<number> {
+export async function insertNextVersion(
+  db: Executor,
+  moduleId: number,
+  number: number,
+  v: VersionWrite,
+  userId: number,
+): Promise<number> {
   const [ver] = await db
     .insert(moduleVersions)
     .values({ ...v, moduleId, number, status: 'draft', createdBy: userId, updatedBy: userId })
@@ -130,7 +167,13 @@ export async function insertNextVersion(db: Executor, moduleId: number, number: 
   return ver!.id
 }
 
-export async function markPublished(db: Executor, moduleId: number, versionId: number, previousPublishedId: number | null, userId: number) {
+export async function markPublished(
+  db: Executor,
+  moduleId: number,
+  versionId: number,
+  previousPublishedId: number | null,
+  userId: number,
+) {
   if (previousPublishedId !== null && previousPublishedId !== versionId) {
     await db.update(moduleVersions).set({ status: 'superseded' }).where(eq(moduleVersions.id, previousPublishedId))
   }
@@ -177,7 +220,10 @@ export async function listVersionSummaries(db: Executor, moduleId: number): Prom
   }))
 }
 
-export async function courseTimeZone(db: Executor, courseId: number): Promise<{ timeZone: string; code: string; title: string }> {
+export async function courseTimeZone(
+  db: Executor,
+  courseId: number,
+): Promise<{ timeZone: string; code: string; title: string }> {
   const [row] = await db
     .select({ timeZone: courses.timeZone, code: courses.code, title: courses.title })
     .from(courses)

@@ -52,13 +52,21 @@ export async function claimDueMail(db: Database, limit: number): Promise<Claimed
     await tx
       .update(mailOutbox)
       .set({ status: 'sending', attempts: sql`${mailOutbox.attempts} + 1`, claimedAt: sql`CURRENT_TIMESTAMP(3)` })
-      .where(inArray(mailOutbox.id, rows.map((r) => r.id)))
+      .where(
+        inArray(
+          mailOutbox.id,
+          rows.map((r) => r.id),
+        ),
+      )
     return rows.map((r) => ({ ...r, attempts: r.attempts + 1 }))
   })
 }
 
 export async function markSent(db: Executor, id: number): Promise<void> {
-  await db.update(mailOutbox).set({ status: 'sent', sentAt: sql`CURRENT_TIMESTAMP(3)`, lastError: null }).where(eq(mailOutbox.id, id))
+  await db
+    .update(mailOutbox)
+    .set({ status: 'sent', sentAt: sql`CURRENT_TIMESTAMP(3)`, lastError: null })
+    .where(eq(mailOutbox.id, id))
 }
 
 export async function markFailed(db: Executor, id: number, error: string, retryAt: Date | null): Promise<void> {

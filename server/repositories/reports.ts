@@ -8,7 +8,13 @@ export async function courseHeader(
   courseId: number,
 ): Promise<{ code: string; title: string; term: string; institution: string; timeZone: string } | null> {
   const [row] = await db
-    .select({ code: courses.code, title: courses.title, term: courses.term, institution: courses.institution, timeZone: courses.timeZone })
+    .select({
+      code: courses.code,
+      title: courses.title,
+      term: courses.term,
+      institution: courses.institution,
+      timeZone: courses.timeZone,
+    })
     .from(courses)
     .where(eq(courses.id, courseId))
   return row ?? null
@@ -36,6 +42,8 @@ export async function gradedSubmissionsOfModule(db: Executor, courseId: number, 
       moduleVersionId: submissions.moduleVersionId,
     })
     .from(submissions)
-    .where(and(eq(submissions.courseId, courseId), eq(submissions.moduleId, moduleId), eq(submissions.status, 'graded')))
+    .where(
+      and(eq(submissions.courseId, courseId), eq(submissions.moduleId, moduleId), eq(submissions.status, 'graded')),
+    )
     .orderBy(desc(submissions.attempt), desc(submissions.id))
 }

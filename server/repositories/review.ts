@@ -29,7 +29,11 @@ export async function listFlagReasons(db: Executor, courseId: number): Promise<{
 }
 
 /** The review queue of a course; `sectionId` limits it to one section (a TA's own). */
-export async function listQueue(db: Executor, courseId: number, q: ReviewQuery): Promise<{ rows: ReviewRow[]; total: number }> {
+export async function listQueue(
+  db: Executor,
+  courseId: number,
+  q: ReviewQuery,
+): Promise<{ rows: ReviewRow[]; total: number }> {
   const where: SQL[] = [eq(submissions.courseId, courseId)]
   if (q.status === 'all') where.push(ne(submissions.reviewStatus, 'none'))
   else where.push(eq(submissions.reviewStatus, q.status))
@@ -38,9 +42,17 @@ export async function listQueue(db: Executor, courseId: number, q: ReviewQuery):
   // An open regrade request is a reason of its own, listed with the flag codes.
   const regradeOpen = sql`EXISTS (SELECT 1 FROM ${regradeRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`
   if (q.reason === REGRADE_REASON) where.push(regradeOpen)
-  else if (q.reason) where.push(sql`EXISTS (SELECT 1 FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id} AND f.code = ${q.reason})`)
+  else if (q.reason)
+    where.push(
+      sql`EXISTS (SELECT 1 FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id} AND f.code = ${q.reason})`,
+    )
   const filter = and(...where)
-  const sortCol = { submittedAt: submissions.submittedAt, score: submissions.score, module: moduleVersions.title, student: users.displayName }[q.sort]
+  const sortCol = {
+    submittedAt: submissions.submittedAt,
+    score: submissions.score,
+    module: moduleVersions.title,
+    student: users.displayName,
+  }[q.sort]
   const base = db
     .select({
       submissionId: submissions.id,
@@ -54,12 +66,17 @@ export async function listQueue(db: Executor, courseId: number, q: ReviewQuery):
       score: sql<number | null>`COALESCE(${submissions.scoreOverride}, ${submissions.score})`,
       maxScore: submissions.maxScore,
       reviewStatus: submissions.reviewStatus,
-      flagCodes: sql<string | null>`CONCAT_WS(',', (SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id}), IF(${regradeOpen}, ${REGRADE_REASON}, NULL))`,
+      flagCodes: sql<
+        string | null
+      >`CONCAT_WS(',', (SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id}), IF(${regradeOpen}, ${REGRADE_REASON}, NULL))`,
     })
     .from(submissions)
     .innerJoin(users, eq(users.id, submissions.userId))
     .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
-    .leftJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+    .leftJoin(
+      enrollments,
+      and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)),
+    )
     .leftJoin(sections, eq(sections.id, enrollments.sectionId))
     .leftJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
     .where(filter)
@@ -72,7 +89,10 @@ export async function listQueue(db: Executor, courseId: number, q: ReviewQuery):
     .from(submissions)
     .innerJoin(users, eq(users.id, submissions.userId))
     .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
-    .leftJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+    .leftJoin(
+      enrollments,
+      and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)),
+    )
     .where(filter)
   return {
     rows: rows.map((r) => ({
@@ -90,7 +110,10 @@ export async function submitterSection(db: Executor, submissionId: number): Prom
   const [row] = await db
     .select({ sectionId: enrollments.sectionId })
     .from(submissions)
-    .innerJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+    .innerJoin(
+      enrollments,
+      and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)),
+    )
     .where(eq(submissions.id, submissionId))
   return row?.sectionId ?? null
 }
@@ -100,11 +123,24 @@ export async function submitterSection(db: Executor, submissionId: number): Prom
  * @returns the current revision, or null when another edit came first
  */
 export async function lockRevision(tx: Executor, submissionId: number, seen: number): Promise<boolean> {
-  const [row] = await tx.select({ revision: submissions.revision }).from(submissions).where(eq(submissions.id, submissionId)).for('update')
+  const [row] = await tx
+    .select({ revision: submissions.revision })
+    .from(submissions)
+    .where(eq(submissions.id, submissionId))
+    .for('update')
   return row !== undefined && row.revision === seen
 }
 
-export async function bumpRevision(tx: Executor, submissionId: number, set: Partial<{ reviewStatus: 'open' | 'in-review' | 'resolved'; scoreOverride: number | null; rawScore: number; score: number }> = {}) {
+export async function bumpRevision(
+  tx: Executor,
+  submissionId: number,
+  set: Partial<{
+    reviewStatus: 'open' | 'in-review' | 'resolved'
+    scoreOverride: number | null
+    rawScore: number
+    score: number
+  }> = {},
+) {
   await tx
     .update(submissions)
     .set({ ...set, revision: sql`${submissions.revision} + 1` })
@@ -120,7 +156,10 @@ export async function findCheck(tx: Executor, submissionId: number, checkId: num
 }
 
 export async function setCheckPoints(tx: Executor, checkId: number, points: number) {
-  await tx.update(submissionChecks).set({ pointsAwarded: points, overridden: true }).where(eq(submissionChecks.id, checkId))
+  await tx
+    .update(submissionChecks)
+    .set({ pointsAwarded: points, overridden: true })
+    .where(eq(submissionChecks.id, checkId))
 }
 
 export async function sumAwarded(tx: Executor, submissionId: number): Promise<number> {
@@ -133,7 +172,15 @@ export async function sumAwarded(tx: Executor, submissionId: number): Promise<nu
 
 export async function insertGradeChange(
   tx: Executor,
-  c: { submissionId: number; checkId: number | null; target: string; changedBy: number; oldPoints: number | null; newPoints: number; reason: string },
+  c: {
+    submissionId: number
+    checkId: number | null
+    target: string
+    changedBy: number
+    oldPoints: number | null
+    newPoints: number
+    reason: string
+  },
 ) {
   await tx.insert(gradeChanges).values(c)
 }
@@ -161,17 +208,32 @@ export async function insertComment(tx: Executor, submissionId: number, authorId
 
 export async function listComments(db: Executor, submissionId: number) {
   return db
-    .select({ id: submissionComments.id, author: users.displayName, at: submissionComments.createdAt, body: submissionComments.body })
+    .select({
+      id: submissionComments.id,
+      author: users.displayName,
+      at: submissionComments.createdAt,
+      body: submissionComments.body,
+    })
     .from(submissionComments)
     .innerJoin(users, eq(users.id, submissionComments.authorId))
     .where(eq(submissionComments.submissionId, submissionId))
     .orderBy(asc(submissionComments.id))
 }
 
-export async function setFlagStatus(tx: Executor, submissionId: number, flagId: number, status: 'open' | 'resolved', userId: number): Promise<boolean> {
+export async function setFlagStatus(
+  tx: Executor,
+  submissionId: number,
+  flagId: number,
+  status: 'open' | 'resolved',
+  userId: number,
+): Promise<boolean> {
   const [res] = await tx
     .update(submissionFlags)
-    .set(status === 'resolved' ? { status, resolvedBy: userId, resolvedAt: new Date() } : { status, resolvedBy: null, resolvedAt: null })
+    .set(
+      status === 'resolved'
+        ? { status, resolvedBy: userId, resolvedAt: new Date() }
+        : { status, resolvedBy: null, resolvedAt: null },
+    )
     .where(and(eq(submissionFlags.id, flagId), eq(submissionFlags.submissionId, submissionId)))
   return ((res as { affectedRows?: number }).affectedRows ?? 0) > 0
 }

@@ -34,14 +34,25 @@ export async function listCourseGroups(db: Executor, courseId: number): Promise<
     .where(eq(labGroups.courseId, courseId))
 }
 
-export async function findCourseTitle(db: Executor, courseId: number): Promise<{ code: string; title: string; timeZone: string } | null> {
+export async function findCourseTitle(
+  db: Executor,
+  courseId: number,
+): Promise<{ code: string; title: string; timeZone: string } | null> {
   const rows = await db
-    .select({ code: courses.code, title: courses.title, timeZone: courses.timeZone }).from(courses).where(eq(courses.id, courseId)).limit(1)
+    .select({ code: courses.code, title: courses.title, timeZone: courses.timeZone })
+    .from(courses)
+    .where(eq(courses.id, courseId))
+    .limit(1)
   return rows[0] ?? null
 }
 
 /** The accounts among `emails` (lower-cased), with their enrolment in the course, if any. */
-export async function findPeopleByEmail(db: Executor, courseId: number, emails: string[], now: Date): Promise<KnownPerson[]> {
+export async function findPeopleByEmail(
+  db: Executor,
+  courseId: number,
+  emails: string[],
+  now: Date,
+): Promise<KnownPerson[]> {
   if (emails.length === 0) return []
   const rows = await db
     .select({
@@ -82,19 +93,31 @@ export async function insertSections(db: Executor, courseId: number, names: stri
   await db.insert(sections).values(names.map((name) => ({ courseId, name })))
 }
 
-export async function insertGroups(db: Executor, courseId: number, groups: { name: string; sectionId: number | null }[]): Promise<void> {
+export async function insertGroups(
+  db: Executor,
+  courseId: number,
+  groups: { name: string; sectionId: number | null }[],
+): Promise<void> {
   if (groups.length === 0) return
   await db.insert(labGroups).values(groups.map((g) => ({ courseId, name: g.name, sectionId: g.sectionId })))
 }
 
 /** Creates accounts without a password; returns e-mail → id. */
-export async function insertPasswordlessUsers(db: Executor, people: { email: string; displayName: string }[]): Promise<Map<string, number>> {
+export async function insertPasswordlessUsers(
+  db: Executor,
+  people: { email: string; displayName: string }[],
+): Promise<Map<string, number>> {
   if (people.length === 0) return new Map()
   await db.insert(users).values(people.map((p) => ({ email: p.email, displayName: p.displayName, passwordHash: null })))
   const rows = await db
     .select({ id: users.id, email: users.email })
     .from(users)
-    .where(inArray(users.email, people.map((p) => p.email)))
+    .where(
+      inArray(
+        users.email,
+        people.map((p) => p.email),
+      ),
+    )
   return new Map(rows.map((r) => [r.email, r.id]))
 }
 

@@ -29,7 +29,10 @@ const byKey = (k: CounterKey) =>
  * Rows are locked in the order given; every caller passes the scopes in the same order, so two
  * sign-ins that share rows always take them in the same order and cannot deadlock on them.
  */
-export async function lockCounters(tx: Transaction, keys: CounterKey[]): Promise<{ now: string; counters: LockedCounter[] }> {
+export async function lockCounters(
+  tx: Transaction,
+  keys: CounterKey[],
+): Promise<{ now: string; counters: LockedCounter[] }> {
   // The no-op update makes the duplicate-key path take the row's exclusive lock at once
   // (INSERT IGNORE would take a shared lock, and two shared locks upgrading deadlock).
   await tx
@@ -42,7 +45,9 @@ export async function lockCounters(tx: Transaction, keys: CounterKey[]): Promise
       email: signInThrottles.email,
       address: signInThrottles.address,
       failures: signInThrottles.failures,
-      sinceLastMs: sql<number>`TIMESTAMPDIFF(MICROSECOND, ${signInThrottles.lastFailedAt}, NOW(3)) DIV 1000`.mapWith(Number),
+      sinceLastMs: sql<number>`TIMESTAMPDIFF(MICROSECOND, ${signInThrottles.lastFailedAt}, NOW(3)) DIV 1000`.mapWith(
+        Number,
+      ),
       lastFailedAt: sql<string>`${signInThrottles.lastFailedAt}`,
       now: sql<string>`NOW(3)`,
     })
@@ -52,7 +57,14 @@ export async function lockCounters(tx: Transaction, keys: CounterKey[]): Promise
   const counters = keys.map((k) => {
     const row = rows.find((r) => r.scope === k.scope && r.email === k.email && r.address === k.address)
     if (!row) throw new Error(`sign-in counter ${k.scope} was not created`)
-    return { scope: row.scope, email: row.email, address: row.address, failures: row.failures, sinceLastMs: row.sinceLastMs, lastFailedAt: row.lastFailedAt }
+    return {
+      scope: row.scope,
+      email: row.email,
+      address: row.address,
+      failures: row.failures,
+      sinceLastMs: row.sinceLastMs,
+      lastFailedAt: row.lastFailedAt,
+    }
   })
   const now = rows[0]?.now
   if (!now) throw new Error('sign-in counters: no rows read')
@@ -71,7 +83,12 @@ export async function setCounter(tx: Transaction, key: CounterKey, failures: num
  * Takes back one counted attempt (it turned out to be the right password). The time of the last
  * failure goes back to what it was, unless another attempt has been counted since ours.
  */
-export async function takeBackAttempt(db: Executor, key: CounterKey, countedAt: string, previousAt: string): Promise<void> {
+export async function takeBackAttempt(
+  db: Executor,
+  key: CounterKey,
+  countedAt: string,
+  previousAt: string,
+): Promise<void> {
   await db
     .update(signInThrottles)
     .set({

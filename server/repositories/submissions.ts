@@ -108,7 +108,10 @@ export async function insertSubmission(
     latePenalty: number
   },
 ): Promise<number> {
-  const [row] = await tx.insert(submissions).values({ ...s, status: 'received' }).$returningId()
+  const [row] = await tx
+    .insert(submissions)
+    .values({ ...s, status: 'received' })
+    .$returningId()
   return row!.id
 }
 
@@ -171,7 +174,13 @@ export interface FlagWrite {
 export async function saveGrade(
   tx: Executor,
   claim: { submissionId: number; token: number },
-  g: { status: 'graded' | 'grading-failed'; gradingError: string | null; rawScore: number | null; score: number | null; maxScore: number | null },
+  g: {
+    status: 'graded' | 'grading-failed'
+    gradingError: string | null
+    rawScore: number | null
+    score: number | null
+    maxScore: number | null
+  },
   checks: CheckWrite[],
   flags: FlagWrite[],
 ): Promise<boolean> {
@@ -235,7 +244,10 @@ export async function findIdenticalFiles(
 ): Promise<{ submissionId: number; submittedBy: string; labGroupName: string | null }[]> {
   const notMine =
     owner.labGroupId !== null
-      ? and(ne(submissions.userId, owner.userId), or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`))
+      ? and(
+          ne(submissions.userId, owner.userId),
+          or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`),
+        )
       : ne(submissions.userId, owner.userId)
   return db
     .select({ submissionId: submissions.id, submittedBy: users.displayName, labGroupName: labGroups.name })
@@ -260,10 +272,22 @@ export async function findFingerprintsInModule(
   moduleId: number,
   tableKey: string,
   owner: { userId: number; labGroupId: number | null },
-): Promise<{ fileId: number; submissionId: number; submittedBy: string; labGroupName: string | null; sha256: string; fingerprint: LogFingerprint | null }[]> {
+): Promise<
+  {
+    fileId: number
+    submissionId: number
+    submittedBy: string
+    labGroupName: string | null
+    sha256: string
+    fingerprint: LogFingerprint | null
+  }[]
+> {
   const notMine =
     owner.labGroupId !== null
-      ? and(ne(submissions.userId, owner.userId), or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`))
+      ? and(
+          ne(submissions.userId, owner.userId),
+          or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`),
+        )
       : ne(submissions.userId, owner.userId)
   return db
     .select({
@@ -285,7 +309,11 @@ export async function findFingerprintsInModule(
 
 /** The parsed columns of one stored file (to fingerprint a file stored before fingerprints existed). */
 export async function findParsedColumns(db: Executor, fileId: number): Promise<Record<string, number[]> | null> {
-  const rows = await db.select({ parsed: submissionFiles.parsed }).from(submissionFiles).where(eq(submissionFiles.id, fileId)).limit(1)
+  const rows = await db
+    .select({ parsed: submissionFiles.parsed })
+    .from(submissionFiles)
+    .where(eq(submissionFiles.id, fileId))
+    .limit(1)
   return rows[0]?.parsed ?? null
 }
 
@@ -293,9 +321,19 @@ export async function setFingerprint(db: Executor, fileId: number, fingerprint: 
   await db.update(submissionFiles).set({ fingerprint }).where(eq(submissionFiles.id, fileId))
 }
 
-export async function listOwnerSubmissions(db: Executor, moduleId: number, owner: Owner): Promise<(SubmissionRow & { flagCount: number })[]> {
+export async function listOwnerSubmissions(
+  db: Executor,
+  moduleId: number,
+  owner: Owner,
+): Promise<(SubmissionRow & { flagCount: number })[]> {
   const rows = await db
-    .select({ ...cols, flagCount: sql<number>`(SELECT COUNT(*) FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id})`.mapWith(Number) })
+    .select({
+      ...cols,
+      flagCount:
+        sql<number>`(SELECT COUNT(*) FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id})`.mapWith(
+          Number,
+        ),
+    })
     .from(submissions)
     .innerJoin(users, eq(users.id, submissions.userId))
     .where(ownerWhere(moduleId, owner))
@@ -315,16 +353,29 @@ export async function findSubmission(db: Executor, courseId: number, id: number)
 
 /** A submission by id alone (the grading worker's view, not a person's). */
 export async function findSubmissionById(db: Executor, id: number): Promise<SubmissionRow | null> {
-  const rows = await db.select(cols).from(submissions).innerJoin(users, eq(users.id, submissions.userId)).where(eq(submissions.id, id)).limit(1)
+  const rows = await db
+    .select(cols)
+    .from(submissions)
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .where(eq(submissions.id, id))
+    .limit(1)
   return rows[0] ?? null
 }
 
 export async function listChecks(db: Executor, submissionId: number) {
-  return db.select().from(submissionChecks).where(eq(submissionChecks.submissionId, submissionId)).orderBy(asc(submissionChecks.id))
+  return db
+    .select()
+    .from(submissionChecks)
+    .where(eq(submissionChecks.submissionId, submissionId))
+    .orderBy(asc(submissionChecks.id))
 }
 
 export async function listFlags(db: Executor, submissionId: number) {
-  return db.select().from(submissionFlags).where(eq(submissionFlags.submissionId, submissionId)).orderBy(asc(submissionFlags.id))
+  return db
+    .select()
+    .from(submissionFlags)
+    .where(eq(submissionFlags.submissionId, submissionId))
+    .orderBy(asc(submissionFlags.id))
 }
 
 export async function listFiles(db: Executor, submissionId: number) {
@@ -347,7 +398,11 @@ export async function listFiles(db: Executor, submissionId: number) {
 
 export async function findFileBytes(db: Executor, submissionId: number, fileId: number) {
   const rows = await db
-    .select({ filename: submissionFiles.filename, contentType: submissionFiles.contentType, bytes: submissionFiles.bytes })
+    .select({
+      filename: submissionFiles.filename,
+      contentType: submissionFiles.contentType,
+      bytes: submissionFiles.bytes,
+    })
     .from(submissionFiles)
     .where(and(eq(submissionFiles.id, fileId), eq(submissionFiles.submissionId, submissionId)))
     .limit(1)
@@ -360,11 +415,13 @@ export async function labGroupName(db: Executor, id: number | null): Promise<str
   return row?.name ?? null
 }
 
-export async function groupMemberEmails(db: Executor, labGroupId: number): Promise<{ email: string; displayName: string }[]> {
+export async function groupMemberEmails(
+  db: Executor,
+  labGroupId: number,
+): Promise<{ email: string; displayName: string }[]> {
   return db
     .select({ email: users.email, displayName: users.displayName })
     .from(enrollments)
     .innerJoin(users, eq(users.id, enrollments.userId))
     .where(and(eq(enrollments.labGroupId, labGroupId), eq(enrollments.role, 'student')))
 }
-

@@ -34,7 +34,12 @@ export async function insertUser(
 ): Promise<number> {
   const [row] = await db
     .insert(users)
-    .values({ email: u.email.toLowerCase(), displayName: u.displayName, passwordHash: u.passwordHash, isSiteAdmin: u.isSiteAdmin ?? false })
+    .values({
+      email: u.email.toLowerCase(),
+      displayName: u.displayName,
+      passwordHash: u.passwordHash,
+      isSiteAdmin: u.isSiteAdmin ?? false,
+    })
     .$returningId()
   if (!row) throw new Error('insert into users returned no id')
   return row.id

@@ -59,10 +59,16 @@ export function courseAdminRoutes(db: Database): Router {
     res.status(201).json(await createSection(db, enrollmentOf(res), valid(res, 'body', SectionCreateSchema)))
   })
 
-  r.patch('/sections/:sectionId', instructor, validate('params', SectionParamsSchema), validate('body', SectionUpdateSchema), async (_req, res) => {
-    const { sectionId } = valid(res, 'params', SectionParamsSchema)
-    res.json(await changeSection(db, enrollmentOf(res), sectionId, valid(res, 'body', SectionUpdateSchema)))
-  })
+  r.patch(
+    '/sections/:sectionId',
+    instructor,
+    validate('params', SectionParamsSchema),
+    validate('body', SectionUpdateSchema),
+    async (_req, res) => {
+      const { sectionId } = valid(res, 'params', SectionParamsSchema)
+      res.json(await changeSection(db, enrollmentOf(res), sectionId, valid(res, 'body', SectionUpdateSchema)))
+    },
+  )
 
   r.delete('/sections/:sectionId', instructor, validate('params', SectionParamsSchema), async (_req, res) => {
     res.json(await removeSection(db, enrollmentOf(res), valid(res, 'params', SectionParamsSchema).sectionId))
@@ -72,19 +78,36 @@ export function courseAdminRoutes(db: Database): Router {
     res.status(201).json(await createLabGroup(db, enrollmentOf(res), valid(res, 'body', LabGroupCreateSchema)))
   })
 
-  r.patch('/lab-groups/:labGroupId', instructor, validate('params', LabGroupParamsSchema), validate('body', LabGroupUpdateSchema), async (_req, res) => {
-    const { labGroupId } = valid(res, 'params', LabGroupParamsSchema)
-    res.json(await changeLabGroup(db, enrollmentOf(res), labGroupId, valid(res, 'body', LabGroupUpdateSchema)))
-  })
+  r.patch(
+    '/lab-groups/:labGroupId',
+    instructor,
+    validate('params', LabGroupParamsSchema),
+    validate('body', LabGroupUpdateSchema),
+    async (_req, res) => {
+      const { labGroupId } = valid(res, 'params', LabGroupParamsSchema)
+      res.json(await changeLabGroup(db, enrollmentOf(res), labGroupId, valid(res, 'body', LabGroupUpdateSchema)))
+    },
+  )
 
   r.delete('/lab-groups/:labGroupId', instructor, validate('params', LabGroupParamsSchema), async (_req, res) => {
     res.json(await removeLabGroup(db, enrollmentOf(res), valid(res, 'params', LabGroupParamsSchema).labGroupId))
   })
 
-  r.patch('/roster/:userId', instructor, validate('params', MemberParamsSchema), validate('body', PlacementSchema), async (_req, res) => {
-    await placeMember(db, enrollmentOf(res), valid(res, 'params', MemberParamsSchema).userId, valid(res, 'body', PlacementSchema))
-    res.status(204).end()
-  })
+  r.patch(
+    '/roster/:userId',
+    instructor,
+    validate('params', MemberParamsSchema),
+    validate('body', PlacementSchema),
+    async (_req, res) => {
+      await placeMember(
+        db,
+        enrollmentOf(res),
+        valid(res, 'params', MemberParamsSchema).userId,
+        valid(res, 'body', PlacementSchema),
+      )
+      res.status(204).end()
+    },
+  )
 
   r.delete('/roster/:userId', instructor, validate('params', MemberParamsSchema), async (_req, res) => {
     await removeMember(db, enrollmentOf(res), valid(res, 'params', MemberParamsSchema).userId)
@@ -95,15 +118,26 @@ export function courseAdminRoutes(db: Database): Router {
     res.json(await extensionOverview(db, enrollmentOf(res)))
   })
 
-  r.put('/extensions/:moduleId/:userId', instructor, validate('params', ExtensionParamsSchema), validate('body', ExtensionInputSchema), async (_req, res) => {
-    const { moduleId, userId } = valid(res, 'params', ExtensionParamsSchema)
-    res.json(await grantExtension(db, enrollmentOf(res), moduleId, userId, valid(res, 'body', ExtensionInputSchema)))
-  })
+  r.put(
+    '/extensions/:moduleId/:userId',
+    instructor,
+    validate('params', ExtensionParamsSchema),
+    validate('body', ExtensionInputSchema),
+    async (_req, res) => {
+      const { moduleId, userId } = valid(res, 'params', ExtensionParamsSchema)
+      res.json(await grantExtension(db, enrollmentOf(res), moduleId, userId, valid(res, 'body', ExtensionInputSchema)))
+    },
+  )
 
-  r.delete('/extensions/:moduleId/:userId', instructor, validate('params', ExtensionParamsSchema), async (_req, res) => {
-    const { moduleId, userId } = valid(res, 'params', ExtensionParamsSchema)
-    res.json(await revokeExtension(db, enrollmentOf(res), moduleId, userId))
-  })
+  r.delete(
+    '/extensions/:moduleId/:userId',
+    instructor,
+    validate('params', ExtensionParamsSchema),
+    async (_req, res) => {
+      const { moduleId, userId } = valid(res, 'params', ExtensionParamsSchema)
+      res.json(await revokeExtension(db, enrollmentOf(res), moduleId, userId))
+    },
+  )
 
   return r
 }

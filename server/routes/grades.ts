@@ -1,7 +1,13 @@
 import { Router, json } from 'express'
 import type { CourseRole } from '../../shared/schemas/auth'
 import { CourseIdParamsSchema } from '../../shared/schemas/courses'
-import { GradebookQuerySchema, RegradeAnswerSchema, RegradeParamsSchema, RegradeRequestSchema, WeightSchema } from '../../shared/schemas/grades'
+import {
+  GradebookQuerySchema,
+  RegradeAnswerSchema,
+  RegradeParamsSchema,
+  RegradeRequestSchema,
+  WeightSchema,
+} from '../../shared/schemas/grades'
 import { ModuleParamsSchema } from '../../shared/schemas/modules'
 import { SubmissionParamsSchema } from '../../shared/schemas/submissions'
 import type { Database } from '../db/client'
@@ -39,21 +45,39 @@ export function gradeRoutes(db: Database, opts: Opts): Router {
   const courseParams = validate('params', CourseIdParamsSchema)
   const moduleParams = validate('params', ModuleParamsSchema)
 
-  r.get('/gradebook', courseMember(db, STAFF), courseParams, validate('query', GradebookQuerySchema), async (_req, res) => {
-    res.json(await gradebook(db, enrollmentOf(res), valid(res, 'query', GradebookQuerySchema)))
-  })
+  r.get(
+    '/gradebook',
+    courseMember(db, STAFF),
+    courseParams,
+    validate('query', GradebookQuerySchema),
+    async (_req, res) => {
+      res.json(await gradebook(db, enrollmentOf(res), valid(res, 'query', GradebookQuerySchema)))
+    },
+  )
 
-  r.get('/gradebook.csv', courseMember(db, STAFF), courseParams, validate('query', GradebookQuerySchema), async (_req, res) => {
-    const { filename, csv } = await gradebookCsv(db, enrollmentOf(res), valid(res, 'query', GradebookQuerySchema))
-    res.attachment(filename).type('text/csv; charset=utf-8').set('X-Content-Type-Options', 'nosniff').send(csv)
-  })
+  r.get(
+    '/gradebook.csv',
+    courseMember(db, STAFF),
+    courseParams,
+    validate('query', GradebookQuerySchema),
+    async (_req, res) => {
+      const { filename, csv } = await gradebookCsv(db, enrollmentOf(res), valid(res, 'query', GradebookQuerySchema))
+      res.attachment(filename).type('text/csv; charset=utf-8').set('X-Content-Type-Options', 'nosniff').send(csv)
+    },
+  )
 
-  r.put('/gradebook/modules/:moduleId/weight', courseMember(db, INSTRUCTOR), moduleParams, validate('body', WeightSchema), async (_req, res) => {
-    const { moduleId } = valid(res, 'params', ModuleParamsSchema)
-    const { weight } = valid(res, 'body', WeightSchema)
-    await changeWeight(db, enrollmentOf(res), moduleId, weight)
-    res.json({ moduleId, weight })
-  })
+  r.put(
+    '/gradebook/modules/:moduleId/weight',
+    courseMember(db, INSTRUCTOR),
+    moduleParams,
+    validate('body', WeightSchema),
+    async (_req, res) => {
+      const { moduleId } = valid(res, 'params', ModuleParamsSchema)
+      const { weight } = valid(res, 'body', WeightSchema)
+      await changeWeight(db, enrollmentOf(res), moduleId, weight)
+      res.json({ moduleId, weight })
+    },
+  )
 
   r.post('/gradebook/modules/:moduleId/release', courseMember(db, INSTRUCTOR), moduleParams, async (_req, res) => {
     const { moduleId } = valid(res, 'params', ModuleParamsSchema)
@@ -71,9 +95,14 @@ export function gradeRoutes(db: Database, opts: Opts): Router {
     res.json(await myGrades(db, enrollmentOf(res)))
   })
 
-  r.get('/submissions/:submissionId/regrade', courseMember(db, ANY_MEMBER), validate('params', SubmissionParamsSchema), async (_req, res) => {
-    res.json(await regradeStatus(db, enrollmentOf(res), valid(res, 'params', SubmissionParamsSchema).submissionId))
-  })
+  r.get(
+    '/submissions/:submissionId/regrade',
+    courseMember(db, ANY_MEMBER),
+    validate('params', SubmissionParamsSchema),
+    async (_req, res) => {
+      res.json(await regradeStatus(db, enrollmentOf(res), valid(res, 'params', SubmissionParamsSchema).submissionId))
+    },
+  )
 
   r.post(
     '/submissions/:submissionId/regrade',
@@ -83,7 +112,11 @@ export function gradeRoutes(db: Database, opts: Opts): Router {
     validate('body', RegradeRequestSchema),
     async (_req, res) => {
       const { submissionId } = valid(res, 'params', SubmissionParamsSchema)
-      res.status(201).json(await requestRegrade(db, enrollmentOf(res), submissionId, valid(res, 'body', RegradeRequestSchema).message))
+      res
+        .status(201)
+        .json(
+          await requestRegrade(db, enrollmentOf(res), submissionId, valid(res, 'body', RegradeRequestSchema).message),
+        )
     },
   )
 
@@ -95,7 +128,14 @@ export function gradeRoutes(db: Database, opts: Opts): Router {
     validate('body', RegradeAnswerSchema),
     async (_req, res) => {
       const { submissionId, requestId } = valid(res, 'params', RegradeParamsSchema)
-      const result = await answerRegrade(db, enrollmentOf(res), submissionId, requestId, valid(res, 'body', RegradeAnswerSchema).answer, opts.appUrl)
+      const result = await answerRegrade(
+        db,
+        enrollmentOf(res),
+        submissionId,
+        requestId,
+        valid(res, 'body', RegradeAnswerSchema).answer,
+        opts.appUrl,
+      )
       opts.onMailQueued()
       res.json(result)
     },

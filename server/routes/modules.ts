@@ -68,13 +68,19 @@ export function moduleRoutes(db: Database, opts: { appUrl: string; onPublished: 
     res.json(await saveModule(db, enrollmentOf(res), moduleId, valid(res, 'body', SaveModuleSchema)))
   })
 
-  r.post('/:moduleId/publish', courseMember(db, INSTRUCTOR), params, validate('body', PublishModuleSchema), async (_req, res) => {
-    const { moduleId } = valid(res, 'params', ModuleParamsSchema)
-    const { versionId } = valid(res, 'body', PublishModuleSchema)
-    const result = await publishModule(db, enrollmentOf(res), moduleId, versionId, opts.appUrl)
-    opts.onPublished()
-    res.json(result)
-  })
+  r.post(
+    '/:moduleId/publish',
+    courseMember(db, INSTRUCTOR),
+    params,
+    validate('body', PublishModuleSchema),
+    async (_req, res) => {
+      const { moduleId } = valid(res, 'params', ModuleParamsSchema)
+      const { versionId } = valid(res, 'body', PublishModuleSchema)
+      const result = await publishModule(db, enrollmentOf(res), moduleId, versionId, opts.appUrl)
+      opts.onPublished()
+      res.json(result)
+    },
+  )
 
   r.post('/:moduleId/unpublish', courseMember(db, INSTRUCTOR), params, async (_req, res) => {
     const { moduleId } = valid(res, 'params', ModuleParamsSchema)
@@ -86,10 +92,15 @@ export function moduleRoutes(db: Database, opts: { appUrl: string; onPublished: 
     res.json(await moduleVersions(db, enrollmentOf(res), moduleId))
   })
 
-  r.get('/:moduleId/versions/:versionId', courseMember(db, STAFF), validate('params', VersionParamsSchema), async (_req, res) => {
-    const { moduleId, versionId } = valid(res, 'params', VersionParamsSchema)
-    res.json(await moduleVersionSource(db, enrollmentOf(res), moduleId, versionId))
-  })
+  r.get(
+    '/:moduleId/versions/:versionId',
+    courseMember(db, STAFF),
+    validate('params', VersionParamsSchema),
+    async (_req, res) => {
+      const { moduleId, versionId } = valid(res, 'params', VersionParamsSchema)
+      res.json(await moduleVersionSource(db, enrollmentOf(res), moduleId, versionId))
+    },
+  )
 
   r.get('/:moduleId/diff', courseMember(db, STAFF), params, validate('query', DiffQuerySchema), async (_req, res) => {
     const { moduleId } = valid(res, 'params', ModuleParamsSchema)

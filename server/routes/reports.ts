@@ -18,25 +18,35 @@ import { feedbackReportPdf, moduleReportsZip } from '../services/report-service'
 export function reportRoutes(db: Database): Router {
   const r = Router({ mergeParams: true })
 
-  r.get('/submissions/:submissionId/report.pdf', courseMember(db, ANY_MEMBER), validate('params', SubmissionParamsSchema), async (_req, res) => {
-    const { submissionId } = valid(res, 'params', SubmissionParamsSchema)
-    const { filename, pdf } = await feedbackReportPdf(db, enrollmentOf(res), submissionId)
-    // Results and comments are personal: no shared caches.
-    res.attachment(filename).type('application/pdf').set('Cache-Control', 'private, no-store').send(pdf)
-  })
+  r.get(
+    '/submissions/:submissionId/report.pdf',
+    courseMember(db, ANY_MEMBER),
+    validate('params', SubmissionParamsSchema),
+    async (_req, res) => {
+      const { submissionId } = valid(res, 'params', SubmissionParamsSchema)
+      const { filename, pdf } = await feedbackReportPdf(db, enrollmentOf(res), submissionId)
+      // Results and comments are personal: no shared caches.
+      res.attachment(filename).type('application/pdf').set('Cache-Control', 'private, no-store').send(pdf)
+    },
+  )
 
-  r.get('/modules/:moduleId/reports.zip', courseMember(db, INSTRUCTOR), validate('params', ModuleParamsSchema), async (req, res) => {
-    const { moduleId } = valid(res, 'params', ModuleParamsSchema)
-    const { filename, count, stream } = await moduleReportsZip(db, enrollmentOf(res), moduleId)
-    res.attachment(filename).type('application/zip').set('Cache-Control', 'private, no-store')
-    try {
-      await pipeline(stream, res)
-      req.log.info({ moduleId, reports: count }, 'report archive sent')
-    } catch (err) {
-      // Headers are gone: the download is cut off, which the browser shows as a failed download.
-      req.log.warn({ err, moduleId }, 'report archive stopped')
-    }
-  })
+  r.get(
+    '/modules/:moduleId/reports.zip',
+    courseMember(db, INSTRUCTOR),
+    validate('params', ModuleParamsSchema),
+    async (req, res) => {
+      const { moduleId } = valid(res, 'params', ModuleParamsSchema)
+      const { filename, count, stream } = await moduleReportsZip(db, enrollmentOf(res), moduleId)
+      res.attachment(filename).type('application/zip').set('Cache-Control', 'private, no-store')
+      try {
+        await pipeline(stream, res)
+        req.log.info({ moduleId, reports: count }, 'report archive sent')
+      } catch (err) {
+        // Headers are gone: the download is cut off, which the browser shows as a failed download.
+        req.log.warn({ err, moduleId }, 'report archive stopped')
+      }
+    },
+  )
 
   return r
 }

@@ -1,6 +1,11 @@
 import { Router } from 'express'
 import { ModuleParamsSchema } from '../../shared/schemas/modules'
-import { SubmissionFileParamsSchema, SubmissionParamsSchema, SubmissionPayloadSchema, isAwaitingGrade } from '../../shared/schemas/submissions'
+import {
+  SubmissionFileParamsSchema,
+  SubmissionParamsSchema,
+  SubmissionPayloadSchema,
+  isAwaitingGrade,
+} from '../../shared/schemas/submissions'
 import type { Database } from '../db/client'
 import { AppError } from '../errors'
 import { ANY_MEMBER, courseMember, enrollmentOf } from '../middleware/authorize'
@@ -46,7 +51,9 @@ export function handInRoutes(db: Database, opts: Opts): Router {
       try {
         raw = JSON.parse(typeof body.payload === 'string' ? body.payload : '')
       } catch {
-        throw new AppError('validation_failed', 'payload: the form data is missing or not valid JSON.', 400, { issues: [{ field: 'payload', message: 'not valid JSON' }] })
+        throw new AppError('validation_failed', 'payload: the form data is missing or not valid JSON.', 400, {
+          issues: [{ field: 'payload', message: 'not valid JSON' }],
+        })
       }
       const payload = SubmissionPayloadSchema.parse(raw)
       const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({
@@ -62,22 +69,37 @@ export function handInRoutes(db: Database, opts: Opts): Router {
     },
   )
 
-  r.get('/modules/:moduleId/submissions/mine', courseMember(db, ANY_MEMBER), validate('params', ModuleParamsSchema), async (_req, res) => {
-    const { moduleId } = valid(res, 'params', ModuleParamsSchema)
-    res.json(await mySubmissions(db, enrollmentOf(res), moduleId))
-  })
+  r.get(
+    '/modules/:moduleId/submissions/mine',
+    courseMember(db, ANY_MEMBER),
+    validate('params', ModuleParamsSchema),
+    async (_req, res) => {
+      const { moduleId } = valid(res, 'params', ModuleParamsSchema)
+      res.json(await mySubmissions(db, enrollmentOf(res), moduleId))
+    },
+  )
 
-  r.get('/submissions/:submissionId', courseMember(db, ANY_MEMBER), validate('params', SubmissionParamsSchema), async (_req, res) => {
-    const { submissionId } = valid(res, 'params', SubmissionParamsSchema)
-    res.json(await submissionDetail(db, enrollmentOf(res), submissionId))
-  })
+  r.get(
+    '/submissions/:submissionId',
+    courseMember(db, ANY_MEMBER),
+    validate('params', SubmissionParamsSchema),
+    async (_req, res) => {
+      const { submissionId } = valid(res, 'params', SubmissionParamsSchema)
+      res.json(await submissionDetail(db, enrollmentOf(res), submissionId))
+    },
+  )
 
-  r.get('/submissions/:submissionId/files/:fileId', courseMember(db, ANY_MEMBER), validate('params', SubmissionFileParamsSchema), async (_req, res) => {
-    const { submissionId, fileId } = valid(res, 'params', SubmissionFileParamsSchema)
-    const f = await submissionFile(db, enrollmentOf(res), submissionId, fileId)
-    // Served as an attachment with a fixed type: the browser never renders student content.
-    res.attachment(f.filename).type('text/csv; charset=utf-8').set('X-Content-Type-Options', 'nosniff').send(f.bytes)
-  })
+  r.get(
+    '/submissions/:submissionId/files/:fileId',
+    courseMember(db, ANY_MEMBER),
+    validate('params', SubmissionFileParamsSchema),
+    async (_req, res) => {
+      const { submissionId, fileId } = valid(res, 'params', SubmissionFileParamsSchema)
+      const f = await submissionFile(db, enrollmentOf(res), submissionId, fileId)
+      // Served as an attachment with a fixed type: the browser never renders student content.
+      res.attachment(f.filename).type('text/csv; charset=utf-8').set('X-Content-Type-Options', 'nosniff').send(f.bytes)
+    },
+  )
 
   return r
 }

@@ -33,7 +33,13 @@ import {
   updateLabGroup,
   updateSection,
 } from '../repositories/course-admin'
-import { deleteExtension, findModuleDue, listExtensions, listModulesWithDue, upsertExtension } from '../repositories/due-extensions'
+import {
+  deleteExtension,
+  findModuleDue,
+  listExtensions,
+  listModulesWithDue,
+  upsertExtension,
+} from '../repositories/due-extensions'
 import { courseTimeZone } from '../repositories/modules'
 
 /**
@@ -59,9 +65,14 @@ function isDuplicate(err: unknown): boolean {
 }
 
 const duplicateName = (what: 'section' | 'lab group', name: string) =>
-  new AppError(`${what === 'section' ? 'section' : 'lab_group'}_exists`, `There is already a ${what} named “${name}” in this course; choose another name.`, 409, {
-    field: 'name',
-  })
+  new AppError(
+    `${what === 'section' ? 'section' : 'lab_group'}_exists`,
+    `There is already a ${what} named “${name}” in this course; choose another name.`,
+    409,
+    {
+      field: 'name',
+    },
+  )
 
 export async function courseStructure(db: Database, e: CourseEnrollment): Promise<CourseStructure> {
   const [sections, labGroups, tas] = await Promise.all([
@@ -82,7 +93,12 @@ export async function createSection(db: Database, e: CourseEnrollment, input: Se
   return courseStructure(db, e)
 }
 
-export async function changeSection(db: Database, e: CourseEnrollment, sectionId: number, input: SectionUpdate): Promise<CourseStructure> {
+export async function changeSection(
+  db: Database,
+  e: CourseEnrollment,
+  sectionId: number,
+  input: SectionUpdate,
+): Promise<CourseStructure> {
   try {
     await db.transaction(async (tx) => {
       if (!(await findSection(tx, e.courseId, sectionId, true))) throw notFound('That section')
@@ -101,11 +117,21 @@ export async function removeSection(db: Database, e: CourseEnrollment, sectionId
     if (!s) throw notFound('That section')
     const n = await sectionHeadcount(tx, sectionId)
     if (n.student > 0 || n.ta > 0) {
-      const who = [n.student ? `${n.student} student${n.student === 1 ? '' : 's'}` : '', n.ta ? `${n.ta} TA${n.ta === 1 ? '' : 's'}` : ''].filter(Boolean).join(' and ')
-      throw new AppError('section_not_empty', `Section “${s.name}” still has ${who}. Move them to another section (or to none) first.`, 409, {
-        students: n.student,
-        tas: n.ta,
-      })
+      const who = [
+        n.student ? `${n.student} student${n.student === 1 ? '' : 's'}` : '',
+        n.ta ? `${n.ta} TA${n.ta === 1 ? '' : 's'}` : '',
+      ]
+        .filter(Boolean)
+        .join(' and ')
+      throw new AppError(
+        'section_not_empty',
+        `Section “${s.name}” still has ${who}. Move them to another section (or to none) first.`,
+        409,
+        {
+          students: n.student,
+          tas: n.ta,
+        },
+      )
     }
     // Lab groups tied to it stay, untied (the foreign key sets their section to null).
     await deleteSection(tx, sectionId)
@@ -118,7 +144,11 @@ async function sectionInCourse(tx: Executor, courseId: number, sectionId: number
   if (!(await findSection(tx, courseId, sectionId))) throw notFound('That section')
 }
 
-export async function createLabGroup(db: Database, e: CourseEnrollment, input: LabGroupCreate): Promise<CourseStructure> {
+export async function createLabGroup(
+  db: Database,
+  e: CourseEnrollment,
+  input: LabGroupCreate,
+): Promise<CourseStructure> {
   try {
     await db.transaction(async (tx) => {
       await sectionInCourse(tx, e.courseId, input.sectionId)
@@ -131,7 +161,12 @@ export async function createLabGroup(db: Database, e: CourseEnrollment, input: L
   return courseStructure(db, e)
 }
 
-export async function changeLabGroup(db: Database, e: CourseEnrollment, labGroupId: number, input: LabGroupUpdate): Promise<CourseStructure> {
+export async function changeLabGroup(
+  db: Database,
+  e: CourseEnrollment,
+  labGroupId: number,
+  input: LabGroupUpdate,
+): Promise<CourseStructure> {
   try {
     await db.transaction(async (tx) => {
       const g = await findLabGroup(tx, e.courseId, labGroupId, true)
@@ -163,7 +198,11 @@ export async function removeLabGroup(db: Database, e: CourseEnrollment, labGroup
     if (!g) throw notFound('That lab group')
     const members = await groupMembers(tx, labGroupId)
     if (members.length) {
-      throw new AppError('lab_group_not_empty', `Lab group “${g.name}” still has ${members.length} member${members.length === 1 ? '' : 's'}. Move them out first.`, 409)
+      throw new AppError(
+        'lab_group_not_empty',
+        `Lab group “${g.name}” still has ${members.length} member${members.length === 1 ? '' : 's'}. Move them out first.`,
+        409,
+      )
     }
     const handIns = await groupHandInCount(tx, labGroupId)
     if (handIns) {
@@ -188,14 +227,26 @@ export async function placeMember(db: Database, e: CourseEnrollment, userId: num
     const m = await findMember(tx, e.courseId, userId, true)
     if (!m) throw notFound('That person')
     if (m.role === 'instructor') {
-      throw new AppError('not_placeable', `${m.displayName} is an instructor; instructors have no section or lab group.`, 409)
+      throw new AppError(
+        'not_placeable',
+        `${m.displayName} is an instructor; instructors have no section or lab group.`,
+        409,
+      )
     }
     await sectionInCourse(tx, e.courseId, input.sectionId)
     if (m.role === 'ta') {
       if (input.labGroupId !== undefined && input.labGroupId !== null) {
-        throw new AppError('not_placeable', `${m.displayName} is a teaching assistant; TAs look after a section and are not in lab groups.`, 409, { field: 'labGroupId' })
+        throw new AppError(
+          'not_placeable',
+          `${m.displayName} is a teaching assistant; TAs look after a section and are not in lab groups.`,
+          409,
+          { field: 'labGroupId' },
+        )
       }
-      await setPlacement(tx, e.courseId, userId, { sectionId: input.sectionId === undefined ? m.sectionId : input.sectionId, labGroupId: null })
+      await setPlacement(tx, e.courseId, userId, {
+        sectionId: input.sectionId === undefined ? m.sectionId : input.sectionId,
+        labGroupId: null,
+      })
       return
     }
     const labGroupId = input.labGroupId === undefined ? m.labGroupId : input.labGroupId
@@ -231,17 +282,29 @@ export async function removeMember(db: Database, e: CourseEnrollment, userId: nu
     if (!m) throw notFound('That person')
     const instructors = m.role === 'instructor' ? await lockInstructors(tx, e.courseId) : []
     if (m.role === 'instructor' && instructors.length <= 1) {
-      throw new AppError('last_instructor', `${m.displayName} is the only instructor of this course and cannot be removed.`, 409)
+      throw new AppError(
+        'last_instructor',
+        `${m.displayName} is the only instructor of this course and cannot be removed.`,
+        409,
+      )
     }
     if (userId === e.userId) {
-      throw new AppError('cannot_remove_self', 'You cannot remove yourself from the course; ask another instructor to do it.', 409)
+      throw new AppError(
+        'cannot_remove_self',
+        'You cannot remove yourself from the course; ask another instructor to do it.',
+        409,
+      )
     }
     await deleteEnrollment(tx, e.courseId, userId)
   })
 }
 
 export async function extensionOverview(db: Database, e: CourseEnrollment): Promise<ExtensionOverview> {
-  const [course, modules, rows] = await Promise.all([courseTimeZone(db, e.courseId), listModulesWithDue(db, e.courseId), listExtensions(db, e.courseId)])
+  const [course, modules, rows] = await Promise.all([
+    courseTimeZone(db, e.courseId),
+    listModulesWithDue(db, e.courseId),
+    listExtensions(db, e.courseId),
+  ])
   const byId = new Map(modules.map((m) => [m.id, m]))
   const extensions: ExtensionEntry[] = rows.flatMap((r) => {
     const m = byId.get(r.moduleId)
@@ -257,27 +320,51 @@ export async function extensionOverview(db: Database, e: CourseEnrollment): Prom
 }
 
 /** Grants or changes one student's extension; the new due date must be after the module's. */
-export async function grantExtension(db: Database, e: CourseEnrollment, moduleId: number, userId: number, input: ExtensionInput): Promise<ExtensionOverview> {
+export async function grantExtension(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  userId: number,
+  input: ExtensionInput,
+): Promise<ExtensionOverview> {
   await db.transaction(async (tx) => {
     const mod = await findModuleDue(tx, e.courseId, moduleId)
     if (!mod) throw notFound('That module')
     const m = await findMember(tx, e.courseId, userId)
     if (!m) throw notFound('That person')
-    if (m.role !== 'student') throw new AppError('not_a_student', `${m.displayName} is not a student of this course; only students hand in work.`, 409)
-    if (!mod.dueAt) throw new AppError('no_due_date', `“${mod.title}” has no due date, so there is nothing to extend.`, 409, { field: 'moduleId' })
+    if (m.role !== 'student')
+      throw new AppError(
+        'not_a_student',
+        `${m.displayName} is not a student of this course; only students hand in work.`,
+        409,
+      )
+    if (!mod.dueAt)
+      throw new AppError('no_due_date', `“${mod.title}” has no due date, so there is nothing to extend.`, 409, {
+        field: 'moduleId',
+      })
     const dueAt = new Date(input.dueAt)
     if (dueAt.getTime() <= mod.dueAt.getTime()) {
       const { timeZone } = await courseTimeZone(tx, e.courseId)
-      throw new AppError('extension_not_later', `dueAt: the extended due date must be after the module’s own, ${formatInZone(mod.dueAt, timeZone)}.`, 400, {
-        field: 'dueAt',
-      })
+      throw new AppError(
+        'extension_not_later',
+        `dueAt: the extended due date must be after the module’s own, ${formatInZone(mod.dueAt, timeZone)}.`,
+        400,
+        {
+          field: 'dueAt',
+        },
+      )
     }
     await upsertExtension(tx, { moduleId, userId, dueAt, note: input.note, grantedBy: e.userId })
   })
   return extensionOverview(db, e)
 }
 
-export async function revokeExtension(db: Database, e: CourseEnrollment, moduleId: number, userId: number): Promise<ExtensionOverview> {
+export async function revokeExtension(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  userId: number,
+): Promise<ExtensionOverview> {
   await db.transaction(async (tx) => {
     if (!(await findModuleDue(tx, e.courseId, moduleId))) throw notFound('That module')
     if ((await deleteExtension(tx, moduleId, userId)) === 0) throw notFound('That extension')

@@ -27,7 +27,10 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
       .innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId))
       .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
       .innerJoin(users, eq(users.id, submissions.userId))
-      .leftJoin(enrollments, and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)))
+      .leftJoin(
+        enrollments,
+        and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)),
+      )
       .where(isNull(submissionFlags.digestedAt))
       .orderBy(asc(submissionFlags.id))
       .limit(batch)
@@ -52,13 +55,24 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
       .leftJoin(sections, eq(sections.id, enrollments.sectionId))
       .where(and(inArray(enrollments.courseId, courseIds), inArray(enrollments.role, ['ta', 'instructor'])))
 
-    const perReader = new Map<string, { email: string; name: string; code: string; courseId: number; items: typeof flags }>()
+    const perReader = new Map<
+      string,
+      { email: string; name: string; code: string; courseId: number; items: typeof flags }
+    >()
     for (const f of flags) {
-      const tas = staff.filter((s) => s.courseId === f.courseId && s.role === 'ta' && s.sectionId !== null && s.sectionId === f.sectionId)
+      const tas = staff.filter(
+        (s) => s.courseId === f.courseId && s.role === 'ta' && s.sectionId !== null && s.sectionId === f.sectionId,
+      )
       const readers = tas.length ? tas : staff.filter((s) => s.courseId === f.courseId && s.role === 'instructor')
       for (const r of readers) {
         const key = `${r.courseId}:${r.email}`
-        const entry = perReader.get(key) ?? { email: r.email, name: r.name, code: r.code, courseId: r.courseId, items: [] }
+        const entry = perReader.get(key) ?? {
+          email: r.email,
+          name: r.name,
+          code: r.code,
+          courseId: r.courseId,
+          items: [],
+        }
         entry.items.push(f)
         perReader.set(key, entry)
       }
@@ -68,26 +82,46 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
     await enqueueMail(
       tx,
       [...perReader.values()].map((r) => {
-        const lines = r.items.map((f) => `- ${f.student}, ${f.moduleTitle}: ${f.message}\n  ${base}/courses/${f.courseId}/review/${f.submissionId}`)
+        const lines = r.items.map(
+          (f) =>
+            `- ${f.student}, ${f.moduleTitle}: ${f.message}\n  ${base}/courses/${f.courseId}/review/${f.submissionId}`,
+        )
         return {
           dedupeKey: `flag-digest:${r.courseId}:${stamp}:${r.items[0]!.id}`,
           toAddress: r.email,
           toName: r.name,
           subject: `${r.code}: ${r.items.length} new flag${r.items.length === 1 ? '' : 's'} to review`,
-          textBody: [`Hello ${r.name},`, '', `New flags in ${r.code} since the last summary:`, '', ...lines, '', `Review queue: ${base}/courses/${r.courseId}/review`, '', '— Isentrope'].join('\n'),
+          textBody: [
+            `Hello ${r.name},`,
+            '',
+            `New flags in ${r.code} since the last summary:`,
+            '',
+            ...lines,
+            '',
+            `Review queue: ${base}/courses/${r.courseId}/review`,
+            '',
+            '— Isentrope',
+          ].join('\n'),
           htmlBody: `<p>Hello ${escapeHtml(r.name)},</p><p>New flags in <strong>${escapeHtml(r.code)}</strong> since the last summary:</p><ul>${r.items
             .map(
               (f) =>
                 `<li><a href="${escapeHtml(`${base}/courses/${f.courseId}/review/${f.submissionId}`)}">${escapeHtml(f.student)}, ${escapeHtml(f.moduleTitle)}</a>: ${escapeHtml(f.message)}</li>`,
             )
-            .join('')}</ul><p><a href="${escapeHtml(`${base}/courses/${r.courseId}/review`)}">Open the review queue</a></p><p style="color:#5d574c">— Isentrope</p>`,
+            .join(
+              '',
+            )}</ul><p><a href="${escapeHtml(`${base}/courses/${r.courseId}/review`)}">Open the review queue</a></p><p style="color:#5d574c">— Isentrope</p>`,
         }
       }),
     )
     await tx
       .update(submissionFlags)
       .set({ digestedAt: sql`CURRENT_TIMESTAMP(3)` })
-      .where(inArray(submissionFlags.id, flags.map((f) => f.id)))
+      .where(
+        inArray(
+          submissionFlags.id,
+          flags.map((f) => f.id),
+        ),
+      )
     return perReader.size
   })
 }

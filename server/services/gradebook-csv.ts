@@ -21,9 +21,20 @@ const round = (x: number, digits: number) => Number(x.toFixed(digits))
  * name, section, lab group, each module's counted points (empty when none) and the total in
  * percent. Text cells are neutralised; the numbers are our own and stay numbers.
  */
-export async function gradebookCsv(db: Database, e: CourseEnrollment, q: GradebookQuery): Promise<{ filename: string; csv: string }> {
+export async function gradebookCsv(
+  db: Database,
+  e: CourseEnrollment,
+  q: GradebookQuery,
+): Promise<{ filename: string; csv: string }> {
   const [book, course] = await Promise.all([gradebook(db, e, q), courseTimeZone(db, e.courseId)])
-  const header = ['email', 'name', 'section', 'group', ...book.modules.map((m) => `${m.title} (points)`), 'total %'].map(neutraliseCell)
+  const header = [
+    'email',
+    'name',
+    'section',
+    'group',
+    ...book.modules.map((m) => `${m.title} (points)`),
+    'total %',
+  ].map(neutraliseCell)
   const rows = book.students.map((s) => [
     neutraliseCell(s.email),
     neutraliseCell(s.name),

@@ -101,7 +101,11 @@ function isPastDue(m: GradedModule, now: Date, userId: number, ext: Extensions):
  * The counting rule: the latest graded attempt of the student's own hand-ins, or of their lab
  * group's when the module is handed in by group. `graded` is newest attempt first.
  */
-function countedFor(student: { userId: number; labGroupId: number | null }, m: Pick<GradedModule, 'id' | 'fm'>, graded: readonly GradedRow[]): GradedRow | null {
+function countedFor(
+  student: { userId: number; labGroupId: number | null },
+  m: Pick<GradedModule, 'id' | 'fm'>,
+  graded: readonly GradedRow[],
+): GradedRow | null {
   const byGroup = m.fm.groupSubmission && student.labGroupId !== null
   for (const s of graded) {
     if (s.moduleId !== m.id) continue
@@ -141,7 +145,12 @@ function scopeOf(e: CourseEnrollment, q: GradebookQuery): GradebookQuery | null 
  * The staff gradebook: one row per student in scope, one column per module with something to
  * hand in, each student's weighted total, and per-module statistics over the students shown.
  */
-export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQuery, now = new Date()): Promise<Gradebook> {
+export async function gradebook(
+  db: Database,
+  e: CourseEnrollment,
+  q: GradebookQuery,
+  now = new Date(),
+): Promise<Gradebook> {
   const scope = scopeOf(e, q)
   // The rows in scope are the whole class when nothing narrows them; read the class once then.
   const wholeClass = scope !== null && scope.sectionId === undefined && scope.labGroupId === undefined
@@ -165,8 +174,16 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
       const s = countedFor(st, m, graded)
       if (s) cells[String(m.id)] = cellOf(s)
     }
-    const totalPercent = weightedTotal(mods.map((m) => ({ weight: m.weight, percent: cells[String(m.id)]?.percent ?? null, pastDue: isPastDue(m, now, st.userId, ext) })))
-    const extendedOpen = mods.filter((m) => isPastDue(m, now, 0, NO_EXTENSIONS) && !isPastDue(m, now, st.userId, ext)).map((m) => m.id)
+    const totalPercent = weightedTotal(
+      mods.map((m) => ({
+        weight: m.weight,
+        percent: cells[String(m.id)]?.percent ?? null,
+        pastDue: isPastDue(m, now, st.userId, ext),
+      })),
+    )
+    const extendedOpen = mods
+      .filter((m) => isPastDue(m, now, 0, NO_EXTENSIONS) && !isPastDue(m, now, st.userId, ext))
+      .map((m) => m.id)
     return { ...st, cells, totalPercent, extendedOpen }
   })
 
@@ -192,9 +209,18 @@ export async function gradebook(db: Database, e: CourseEnrollment, q: GradebookQ
     }
     const hardestChecks = [...perCheck.values()]
       .filter((c) => c.fails > 0)
-      .sort((a, b) => b.fails - a.fails || b.fails / b.attempts - a.fails / a.attempts || a.label.localeCompare(b.label))
+      .sort(
+        (a, b) => b.fails - a.fails || b.fails / b.attempts - a.fails / a.attempts || a.label.localeCompare(b.label),
+      )
       .slice(0, 5)
-    return { moduleId: m.id, n: percents.length, meanPercent: mean(percents), medianPercent: median(percents), histogram: histogram(percents), hardestChecks }
+    return {
+      moduleId: m.id,
+      n: percents.length,
+      meanPercent: mean(percents),
+      medianPercent: median(percents),
+      histogram: histogram(percents),
+      hardestChecks,
+    }
   })
 
   const modulesOut: GradebookModule[] = mods.map((m) => ({
@@ -233,7 +259,13 @@ export async function changeWeight(db: Database, e: CourseEnrollment, moduleId: 
  * and every student of the course gets one e-mail, queued in the same transaction as the
  * release. Releasing again changes nothing and sends nothing (the e-mails carry a dedupe key).
  */
-export async function releaseGrades(db: Database, e: CourseEnrollment, moduleId: number, appUrl: string, now = new Date()): Promise<ReleaseResult> {
+export async function releaseGrades(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  appUrl: string,
+  now = new Date(),
+): Promise<ReleaseResult> {
   const course = await courseTimeZone(db, e.courseId)
   return db.transaction(async (tx) => {
     const m = await findModule(tx, e.courseId, moduleId, true)
@@ -255,32 +287,38 @@ export async function releaseGrades(db: Database, e: CourseEnrollment, moduleId:
     // A release withdrawn and made again mails nobody twice.
     const dedupeKey = `grades-released:${moduleId}`
     const already = await queuedAddresses(tx, dedupeKey)
-    const mails = students.filter((st) => !already.has(st.email)).map((st) => {
-      const counted = gm ? countedFor(st, gm, graded) : null
-      const link = counted ? `${base}/courses/${e.courseId}/submissions/${counted.id}` : `${base}/courses/${e.courseId}/grades`
-      const what = counted ? 'See your result' : 'See your grades'
-      return {
-        dedupeKey,
-        toAddress: st.email,
-        toName: st.name,
-        subject: `${course.code}: grades released — ${title}`,
-        textBody: [
-          `Hello ${st.name},`,
-          '',
-          `The grades for “${title}” in ${course.code} were released on ${when}.`,
-          counted ? 'Your counted hand-in, its checks and any staff comments are on your result page.' : 'There is no graded hand-in of yours for this module.',
-          '',
-          `${what}: ${link}`,
-          '',
-          '— Isentrope',
-        ].join('\n'),
-        htmlBody: `<p>Hello ${escapeHtml(st.name)},</p>
+    const mails = students
+      .filter((st) => !already.has(st.email))
+      .map((st) => {
+        const counted = gm ? countedFor(st, gm, graded) : null
+        const link = counted
+          ? `${base}/courses/${e.courseId}/submissions/${counted.id}`
+          : `${base}/courses/${e.courseId}/grades`
+        const what = counted ? 'See your result' : 'See your grades'
+        return {
+          dedupeKey,
+          toAddress: st.email,
+          toName: st.name,
+          subject: `${course.code}: grades released — ${title}`,
+          textBody: [
+            `Hello ${st.name},`,
+            '',
+            `The grades for “${title}” in ${course.code} were released on ${when}.`,
+            counted
+              ? 'Your counted hand-in, its checks and any staff comments are on your result page.'
+              : 'There is no graded hand-in of yours for this module.',
+            '',
+            `${what}: ${link}`,
+            '',
+            '— Isentrope',
+          ].join('\n'),
+          htmlBody: `<p>Hello ${escapeHtml(st.name)},</p>
 <p>The grades for <strong>${escapeHtml(title)}</strong> in ${escapeHtml(course.code)} were released on ${escapeHtml(when)}.</p>
 <p>${counted ? 'Your counted hand-in, its checks and any staff comments are on your result page.' : 'There is no graded hand-in of yours for this module.'}</p>
 <p><a href="${escapeHtml(link)}">${what}</a></p>
 <p style="color:#5d574c">— Isentrope</p>`,
-      }
-    })
+        }
+      })
     await enqueueMail(tx, mails)
     return { moduleId, releasedAt: now.toISOString(), emailed: mails.length }
   })
@@ -319,12 +357,17 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
     const s = countedFor(me, m, graded)
     if (s) counted.set(m.id, s)
   }
-  const regrades = await regradeViews(db, [...counted.values()].map((s) => s.id))
+  const regrades = await regradeViews(
+    db,
+    [...counted.values()].map((s) => s.id),
+  )
 
   const rows: MyGradeRow[] = mods.map((m) => {
     const s = counted.get(m.id) ?? null
     const byGroup = m.fm.groupSubmission && e.labGroupId !== null
-    const anyAttempt = attempts.find((a) => a.moduleId === m.id && (byGroup ? a.labGroupId === e.labGroupId : a.userId === e.userId)) ?? null
+    const anyAttempt =
+      attempts.find((a) => a.moduleId === m.id && (byGroup ? a.labGroupId === e.labGroupId : a.userId === e.userId)) ??
+      null
     const vis = visibility(
       {
         moduleId: m.id,

@@ -55,7 +55,11 @@ export type JobOutcome = 'graded' | 'failed' | 'requeued' | 'superseded'
 export function gradingInputOf(
   fm: ModuleFrontMatter,
   inputs: SubmissionInputs,
-  files: { tableKey: string; parsed: Record<string, number[]>; mapping: Record<string, { pressure?: 'gauge' | 'absolute' }> }[],
+  files: {
+    tableKey: string
+    parsed: Record<string, number[]>
+    mapping: Record<string, { pressure?: 'gauge' | 'absolute' }>
+  }[],
   latePenalty: number,
 ): GradeInput {
   const a = fm.assignment
@@ -116,11 +120,19 @@ async function saveOutcome(
   db: Database,
   ctx: GradingContext,
   claim: GradingClaim,
-  grade: { gradingError: string | null; rawScore: number | null; score: number | null; maxScore: number | null; status: 'graded' | 'grading-failed' },
+  grade: {
+    gradingError: string | null
+    rawScore: number | null
+    score: number | null
+    maxScore: number | null
+    status: 'graded' | 'grading-failed'
+  },
   checks: CheckWrite[],
   flags: FlagWrite[],
 ): Promise<boolean> {
-  const mails = ctx.receipt ? await ctx.receipt(claim.submissionId, { status: grade.status, score: grade.score, maxScore: grade.maxScore }) : []
+  const mails = ctx.receipt
+    ? await ctx.receipt(claim.submissionId, { status: grade.status, score: grade.score, maxScore: grade.maxScore })
+    : []
   const saved = await retryOnLockConflict(() =>
     db.transaction(async (tx) => {
       if (!(await saveGrade(tx, claim, grade, checks, flags))) return false
@@ -134,9 +146,14 @@ async function saveOutcome(
 
 /** Records a hand-in as not gradable automatically: the cause stays in the log and in grading_error. */
 function saveFailure(db: Database, ctx: GradingContext, claim: GradingClaim, cause: string): Promise<boolean> {
-  return saveOutcome(db, ctx, claim, { status: 'grading-failed', gradingError: cause.slice(0, 1000), rawScore: null, score: null, maxScore: null }, [], [
-    { code: 'grading-failed', message: GRADING_FAILED_MESSAGE, detail: null },
-  ])
+  return saveOutcome(
+    db,
+    ctx,
+    claim,
+    { status: 'grading-failed', gradingError: cause.slice(0, 1000), rawScore: null, score: null, maxScore: null },
+    [],
+    [{ code: 'grading-failed', message: GRADING_FAILED_MESSAGE, detail: null }],
+  )
 }
 
 /**
@@ -170,7 +187,13 @@ export async function runGradingJob(db: Database, ctx: GradingContext, claim: Gr
     ...result.flags.map((f) => ({ code: f.code, message: f.message, detail: f.detail ?? null })),
     ...(await copyFlags(db, s, fm)),
   ]
-  const grade = { status: 'graded' as const, gradingError: null, rawScore: result.rawScore, score: result.score, maxScore: result.maxScore }
+  const grade = {
+    status: 'graded' as const,
+    gradingError: null,
+    rawScore: result.rawScore,
+    score: result.score,
+    maxScore: result.maxScore,
+  }
   return (await saveOutcome(db, ctx, claim, grade, checkWrites(result), flags)) ? 'graded' : 'superseded'
 }
 

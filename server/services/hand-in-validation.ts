@@ -28,7 +28,8 @@ export function readingSense(
   return m.role === 'ambient-pressure' ? 'absolute' : (typed.pressure ?? m.pressure)
 }
 
-const fmt = (x: number) => (Math.abs(x) >= 1e5 || (Math.abs(x) < 1e-3 && x !== 0) ? x.toExponential(3) : String(Number(x.toPrecision(6))))
+const fmt = (x: number) =>
+  Math.abs(x) >= 1e5 || (Math.abs(x) < 1e-3 && x !== 0) ? x.toExponential(3) : String(Number(x.toPrecision(6)))
 
 /** At most this many problems go back with a refused hand-in; `more` counts the others. */
 export const MAX_SHOWN_ISSUES = 20
@@ -62,7 +63,8 @@ function impossible(label: string, value: number, unit: string, si: number, role
     const to = kind === null || kind === 'dimensionless' ? 'SI' : SI_UNITS[kind]
     return `${typed} is too large: it is not a finite number once converted to ${to}; check the value and its unit.`
   }
-  if (kind === 'temperature' && si < 0) return `${typed} is below absolute zero (0 K, -273.15 degC, -459.67 degF); no temperature can be.`
+  if (kind === 'temperature' && si < 0)
+    return `${typed} is below absolute zero (0 K, -273.15 degC, -459.67 degF); no temperature can be.`
   const what = (kind ? NEVER_NEGATIVE[kind] : undefined) ?? (kind === 'length' && role ? SIZE_ROLES[role] : undefined)
   if (what && si < 0) return `${typed} is negative; ${what} cannot be negative.`
   return null
@@ -93,7 +95,9 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
   const ambientTyped = ambientSpec ? payload.measurements[ambientSpec.key] : undefined
   let ambientSI: number | 'bad' | undefined
   if (ambientSpec && ambientTyped) {
-    const si = isCompatibleUnit(ambientTyped.unit, ambientSpec.unit) ? rawToSI(ambientTyped.value, ambientTyped.unit) : Number.NaN
+    const si = isCompatibleUnit(ambientTyped.unit, ambientSpec.unit)
+      ? rawToSI(ambientTyped.value, ambientTyped.unit)
+      : Number.NaN
     ambientSI = Number.isFinite(si) && si >= 0 ? si : 'bad'
   }
 
@@ -106,7 +110,10 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
     }
     inputs.measurements[m.key] = typed
     if (!isCompatibleUnit(typed.unit, m.unit)) {
-      issues.push({ field, message: `${m.label}: ${clip(typed.unit, 40)} is not a unit of the right kind; use ${m.unit} or a unit like it.` })
+      issues.push({
+        field,
+        message: `${m.label}: ${clip(typed.unit, 40)} is not a unit of the right kind; use ${m.unit} or a unit like it.`,
+      })
       continue
     }
     const si = rawToSI(typed.value, typed.unit)
@@ -117,7 +124,10 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
     }
     const sense = dataUnitKind(m.unit) === 'pressure' ? readingSense(m, typed) : undefined
     if (sense === 'absolute' && si < 0) {
-      issues.push({ field, message: `${m.label}: ${String(typed.value)} ${typed.unit} absolute is below 0; an absolute pressure cannot be below 0.` })
+      issues.push({
+        field,
+        message: `${m.label}: ${String(typed.value)} ${typed.unit} absolute is below 0; an absolute pressure cannot be below 0.`,
+      })
       continue
     }
     if (sense === 'gauge' && typeof ambientSI === 'number' && si + ambientSI < 0) {
@@ -139,13 +149,24 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
     if (m.pressure && sense && sense !== m.pressure) {
       if (ambientSI === 'bad') continue
       if (ambientSI === undefined) {
-        issues.push({ field, message: `${m.label}: give the ambient pressure so a ${sense} reading can be converted to ${m.pressure}.` })
+        issues.push({
+          field,
+          message: `${m.label}: give the ambient pressure so a ${sense} reading can be converted to ${m.pressure}.`,
+        })
         continue
       }
       inSpec = toSpecSense(inSpec, sense, m.pressure, valueFromSI(ambientSI, m.unit))
     }
-    if (m.min !== undefined && inSpec < m.min) issues.push({ field, message: `${m.label}: ${fmt(inSpec)} ${m.unit} is below the plausible minimum of ${m.min} ${m.unit}.` })
-    else if (m.max !== undefined && inSpec > m.max) issues.push({ field, message: `${m.label}: ${fmt(inSpec)} ${m.unit} is above the plausible maximum of ${m.max} ${m.unit}.` })
+    if (m.min !== undefined && inSpec < m.min)
+      issues.push({
+        field,
+        message: `${m.label}: ${fmt(inSpec)} ${m.unit} is below the plausible minimum of ${m.min} ${m.unit}.`,
+      })
+    else if (m.max !== undefined && inSpec > m.max)
+      issues.push({
+        field,
+        message: `${m.label}: ${fmt(inSpec)} ${m.unit} is above the plausible maximum of ${m.max} ${m.unit}.`,
+      })
   }
 
   const reported: Record<string, number> = {}
@@ -158,7 +179,10 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
     }
     inputs.reported[r.key] = typed
     if (!isCompatibleUnit(typed.unit, r.unit)) {
-      issues.push({ field, message: `${r.label}: ${clip(typed.unit, 40)} is not a unit of the right kind; use ${r.unit}.` })
+      issues.push({
+        field,
+        message: `${r.label}: ${clip(typed.unit, 40)} is not a unit of the right kind; use ${r.unit}.`,
+      })
       continue
     }
     const wrong = impossible(r.label, typed.value, typed.unit, rawToSI(typed.value, typed.unit), undefined)
@@ -181,7 +205,13 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
   }
 
   const tables: Record<string, Record<string, number[]>> = {}
-  const files: { table: TableSpec; upload: UploadedTable; mapping: SubmissionPayload['mappings'][string]; columns: Record<string, number[]>; rowCount: number }[] = []
+  const files: {
+    table: TableSpec
+    upload: UploadedTable
+    mapping: SubmissionPayload['mappings'][string]
+    columns: Record<string, number[]>
+    rowCount: number
+  }[] = []
   for (const t of a.tables) {
     const field = `table:${t.key}`
     const upload = uploads.find((u) => u.field === field)
@@ -207,7 +237,13 @@ export function validateHandIn(fm: ModuleFrontMatter, payload: SubmissionPayload
     const parsed = parseLog(text, t, mapping)
     if (!parsed.ok) {
       unlisted += parsed.totalErrors - parsed.errors.length
-      for (const e of parsed.errors) issues.push({ field, message: e.message, ...(e.row ? { row: e.row } : {}), ...(e.column ? { column: e.column } : {}) })
+      for (const e of parsed.errors)
+        issues.push({
+          field,
+          message: e.message,
+          ...(e.row ? { row: e.row } : {}),
+          ...(e.column ? { column: e.column } : {}),
+        })
       continue
     }
     for (const c of t.columns) {
@@ -236,4 +272,3 @@ export function handInRefusal(v: { issues: SubmissionFieldIssue[]; totalIssues: 
     { issues: shown, more: v.totalIssues - shown.length },
   )
 }
-

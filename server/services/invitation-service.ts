@@ -4,7 +4,12 @@ import { hashPassword } from '../auth/password'
 import type { Database } from '../db/client'
 import { AppError } from '../errors'
 import type { InvitationRow } from '../repositories/invitations'
-import { claimInvitation, findInvitationByHash, retireOpenInvitations, setPasswordHash } from '../repositories/invitations'
+import {
+  claimInvitation,
+  findInvitationByHash,
+  retireOpenInvitations,
+  setPasswordHash,
+} from '../repositories/invitations'
 import { hashInvitationToken } from './roster-import-service'
 
 /**

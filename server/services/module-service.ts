@@ -60,7 +60,12 @@ export function toVersion(source: string, name: string, timeZoneFallback: string
   }
 }
 
-function listItem(m: ModuleRow, current: VersionRow | undefined, published: VersionRow | undefined, staff: boolean): ModuleListItem {
+function listItem(
+  m: ModuleRow,
+  current: VersionRow | undefined,
+  published: VersionRow | undefined,
+  staff: boolean,
+): ModuleListItem {
   const shown = staff ? (current ?? published) : published
   return {
     id: m.id,
@@ -70,7 +75,9 @@ function listItem(m: ModuleRow, current: VersionRow | undefined, published: Vers
     dueAt: (shown?.dueAt ?? null)?.toISOString() ?? null,
     publishedVersionNumber: published?.number ?? null,
     hasAssignment: Boolean(shown?.frontMatter && 'assignment' in shown.frontMatter && shown.frontMatter.assignment),
-    ...(staff && current ? { currentVersion: { id: current.id, number: current.number, status: current.status, valid: current.valid } } : {}),
+    ...(staff && current
+      ? { currentVersion: { id: current.id, number: current.number, status: current.status, valid: current.valid } }
+      : {}),
   }
 }
 
@@ -79,7 +86,10 @@ export async function listModules(db: Database, e: CourseEnrollment): Promise<Mo
   const staff = isStaff(e)
   const rows = await listModuleRows(db, e.courseId, staff ? undefined : ['published', 'closed'])
   const ids = rows.flatMap((r) => [r.currentVersionId, r.publishedVersionId]).filter((x): x is number => x !== null)
-  const [versions, counts] = await Promise.all([findVersions(db, [...new Set(ids)]), staff ? submissionCounts(db, e.courseId) : null])
+  const [versions, counts] = await Promise.all([
+    findVersions(db, [...new Set(ids)]),
+    staff ? submissionCounts(db, e.courseId) : null,
+  ])
   return rows.map((r) => ({
     ...listItem(
       r,
@@ -101,7 +111,9 @@ function studentFrontMatter(fm: Record<string, unknown> | null): Record<string, 
   if (!assignment) return fm
   const results = Array.isArray(assignment.results)
     ? (assignment.results as Record<string, unknown>[]).map(({ expected: _e, regime, ...rest }) =>
-        regime && typeof regime === 'object' ? { ...rest, regime: { margin: (regime as { margin?: unknown }).margin } } : rest,
+        regime && typeof regime === 'object'
+          ? { ...rest, regime: { margin: (regime as { margin?: unknown }).margin } }
+          : rest,
       )
     : assignment.results
   const { reviewRules: _r, ...restAssignment } = assignment
@@ -113,7 +125,8 @@ export async function readModule(db: Database, e: CourseEnrollment, moduleId: nu
   const staff = isStaff(e)
   // A draft does not exist for students: same answer as a module that is not there.
   if (!m || (!staff && m.status === 'draft') || m.publishedVersionId === null) {
-    if (m && staff) throw new AppError('not_published', 'This module has not been published yet; open it in the editor.', 409)
+    if (m && staff)
+      throw new AppError('not_published', 'This module has not been published yet; open it in the editor.', 409)
     throw notFound('That module')
   }
   const v = await findVersion(db, m.publishedVersionId)
@@ -151,7 +164,13 @@ async function editing(db: Database, courseId: number, moduleId: number): Promis
     slug: m.slug,
     status: m.status,
     timeZone,
-    current: { ...cur, source: current.source, html: current.html, issues: current.issues, dueAt: current.dueAt?.toISOString() ?? null },
+    current: {
+      ...cur,
+      source: current.source,
+      html: current.html,
+      issues: current.issues,
+      dueAt: current.dueAt?.toISOString() ?? null,
+    },
     published: summary(m.publishedVersionId),
     studentCount: students.length,
   }
@@ -169,7 +188,11 @@ export async function createModule(db: Database, e: CourseEnrollment, source: st
     let slug = base
     for (let n = 2; await slugExists(tx, e.courseId, slug); n++) slug = `${base}-${n}`
     const position = await nextPosition(tx, e.courseId)
-    const { moduleId } = await insertModuleWithVersion(tx, { courseId: e.courseId, slug, position, createdBy: e.userId }, v)
+    const { moduleId } = await insertModuleWithVersion(
+      tx,
+      { courseId: e.courseId, slug, position, createdBy: e.userId },
+      v,
+    )
     return moduleId
   })
   return editing(db, e.courseId, moduleId)
@@ -236,7 +259,11 @@ export async function publishModule(
         await setModuleStatus(tx, m.id, 'published')
         return 0
       }
-      throw new AppError('already_published', `Version ${v.number} is already published. Edit the module to start a new version.`, 409)
+      throw new AppError(
+        'already_published',
+        `Version ${v.number} is already published. Edit the module to start a new version.`,
+        409,
+      )
     }
     if (!v.valid) {
       throw new AppError(
@@ -331,7 +358,13 @@ export async function moduleVersionSource(db: Database, e: CourseEnrollment, mod
   return { id: v.id, number: v.number, status: v.status, source: v.source, html: v.html }
 }
 
-export async function diffModuleVersions(db: Database, e: CourseEnrollment, moduleId: number, from: number, to: number): Promise<ModuleDiff> {
+export async function diffModuleVersions(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  from: number,
+  to: number,
+): Promise<ModuleDiff> {
   const [a, b, summaries] = await Promise.all([
     versionOf(db, e, moduleId, from),
     versionOf(db, e, moduleId, to),
@@ -347,7 +380,11 @@ export async function diffModuleVersions(db: Database, e: CourseEnrollment, modu
   }
 }
 
-export async function exportModule(db: Database, e: CourseEnrollment, moduleId: number): Promise<{ filename: string; source: string }> {
+export async function exportModule(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+): Promise<{ filename: string; source: string }> {
   const m = await findModule(db, e.courseId, moduleId)
   if (!m || m.currentVersionId === null) throw notFound('That module')
   const v = await findVersion(db, m.currentVersionId)

@@ -4,7 +4,15 @@ import type { RegradeStatus, RegradeView } from '../../shared/schemas/grades'
 import type { Database, Executor } from '../db/client'
 import { AppError, forbidden, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
-import { findRegradeForUpdate, hasOpenRegrade, insertRegrade, listRegrades, lockSubmission, reopenForReview, saveRegradeAnswer } from '../repositories/grades'
+import {
+  findRegradeForUpdate,
+  hasOpenRegrade,
+  insertRegrade,
+  listRegrades,
+  lockSubmission,
+  reopenForReview,
+  saveRegradeAnswer,
+} from '../repositories/grades'
 import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
 import type { SubmissionRow } from '../repositories/submissions'
@@ -33,12 +41,17 @@ export async function regradeViews(db: Database, submissionIds: number[]): Promi
  * A student's own hand-in: they made it, or it is their lab group's hand-in of a module handed in
  * by group. Anything else does not exist for them (404).
  */
-async function ownSubmission(db: Database, e: CourseEnrollment, submissionId: number): Promise<{ s: SubmissionRow; fm: ModuleFrontMatter | null }> {
+async function ownSubmission(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+): Promise<{ s: SubmissionRow; fm: ModuleFrontMatter | null }> {
   const s = await findSubmission(db, e.courseId, submissionId)
   if (!s) throw notFound('That submission')
   const v = await findVersion(db, s.moduleVersionId)
   const fm = (v?.frontMatter ?? null) as unknown as ModuleFrontMatter | null
-  const mine = s.userId === e.userId || (!!fm?.groupSubmission && s.labGroupId !== null && s.labGroupId === e.labGroupId)
+  const mine =
+    s.userId === e.userId || (!!fm?.groupSubmission && s.labGroupId !== null && s.labGroupId === e.labGroupId)
   if (!mine) throw notFound('That submission')
   return { s, fm }
 }
@@ -51,7 +64,11 @@ async function refusal(db: Executor, s: SubmissionRow): Promise<AppError | null>
   }
   if (s.status !== 'graded') return new AppError('not_graded', 'This hand-in has no grade to look at again.', 409)
   if (await hasOpenRegrade(db, s.id)) {
-    return new AppError('regrade_open', 'A regrade request for this hand-in is already open; the staff will answer it first.', 409)
+    return new AppError(
+      'regrade_open',
+      'A regrade request for this hand-in is already open; the staff will answer it first.',
+      409,
+    )
   }
   return null
 }
@@ -72,7 +89,12 @@ export async function regradeStatus(db: Database, e: CourseEnrollment, submissio
  * A student asks the staff to look at a released grade again. The hand-in goes (back) into the
  * review queue, where "regrade requested" finds it.
  */
-export async function requestRegrade(db: Database, e: CourseEnrollment, submissionId: number, message: string): Promise<RegradeStatus> {
+export async function requestRegrade(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  message: string,
+): Promise<RegradeStatus> {
   if (e.role !== 'student') throw forbidden('Only students ask for a regrade; staff can change points in the review.')
   const { s } = await ownSubmission(db, e, submissionId)
   await db.transaction(async (tx) => {
@@ -87,7 +109,14 @@ export async function requestRegrade(db: Database, e: CourseEnrollment, submissi
 }
 
 /** Staff answer a regrade request (Markdown); the answer is e-mailed to the student who asked. */
-export async function answerRegrade(db: Database, e: CourseEnrollment, submissionId: number, requestId: number, answer: string, appUrl: string): Promise<RegradeStatus> {
+export async function answerRegrade(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  requestId: number,
+  answer: string,
+  appUrl: string,
+): Promise<RegradeStatus> {
   const s = await inScope(db, e, submissionId)
   const course = await courseTimeZone(db, e.courseId)
   const staff = await findUserById(db, e.userId)
@@ -95,7 +124,8 @@ export async function answerRegrade(db: Database, e: CourseEnrollment, submissio
   await db.transaction(async (tx) => {
     const r = await findRegradeForUpdate(tx, submissionId, requestId)
     if (!r) throw notFound('That regrade request')
-    if (r.status !== 'open') throw new AppError('regrade_answered', 'This regrade request has already been answered.', 409)
+    if (r.status !== 'open')
+      throw new AppError('regrade_answered', 'This regrade request has already been answered.', 409)
     await saveRegradeAnswer(tx, requestId, answer, e.userId)
     const student = await findUserById(tx, r.requestedBy)
     if (!student) return
@@ -108,7 +138,17 @@ export async function answerRegrade(db: Database, e: CourseEnrollment, submissio
         toAddress: student.email,
         toName: student.displayName,
         subject: `${course.code}: your regrade request was answered — ${title}`,
-        textBody: [`Hello ${student.displayName},`, '', `${by} answered your regrade request on “${title}” (attempt ${s.attempt}):`, '', answer, '', `See your result: ${link}`, '', '— Isentrope'].join('\n'),
+        textBody: [
+          `Hello ${student.displayName},`,
+          '',
+          `${by} answered your regrade request on “${title}” (attempt ${s.attempt}):`,
+          '',
+          answer,
+          '',
+          `See your result: ${link}`,
+          '',
+          '— Isentrope',
+        ].join('\n'),
         htmlBody: `<p>Hello ${escapeHtml(student.displayName)},</p>
 <p>${escapeHtml(by)} answered your regrade request on <strong>${escapeHtml(title)}</strong> (attempt ${s.attempt}):</p>
 <div>${renderModule(answer)}</div>

@@ -42,20 +42,29 @@ export interface FeedbackReport {
  *   graded (still being graded, or automatic grading failed); 409 `results_hidden` when its results
  *   are not yet visible to the student
  */
-export async function feedbackReport(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<FeedbackReport> {
+export async function feedbackReport(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  now = new Date(),
+): Promise<FeedbackReport> {
   const detail = await submissionDetail(db, e, submissionId, now)
   if (isAwaitingGrade(detail.status)) {
-    throw new AppError('not_graded', 'This hand-in is still being graded. The feedback report can be downloaded once it is graded.', 409)
-  }
-  if (detail.status === 'grading-failed') {
     throw new AppError(
       'not_graded',
-      `${GRADING_FAILED_MESSAGE} There is no feedback report for it until then.`,
+      'This hand-in is still being graded. The feedback report can be downloaded once it is graded.',
       409,
     )
   }
+  if (detail.status === 'grading-failed') {
+    throw new AppError('not_graded', `${GRADING_FAILED_MESSAGE} There is no feedback report for it until then.`, 409)
+  }
   if (!detail.resultsVisible || detail.score === null || detail.maxScore === null) {
-    throw new AppError('results_hidden', `The feedback report is not available yet. ${detail.resultsHiddenReason ?? 'Results are not shown yet.'}`, 409)
+    throw new AppError(
+      'results_hidden',
+      `The feedback report is not available yet. ${detail.resultsHiddenReason ?? 'Results are not shown yet.'}`,
+      409,
+    )
   }
   const row = await findSubmission(db, e.courseId, submissionId)
   const version = row ? await findVersion(db, row.moduleVersionId) : null
@@ -103,7 +112,8 @@ export async function feedbackReport(db: Database, e: CourseEnrollment, submissi
       outcome: c.outcome,
       adjusted: adjusted.has(c.id),
       // The student's view: the figures only where the module shows expected values.
-      uncertainty: c.uncertainty && !showExpected ? { ...c.uncertainty, standard: null, expanded: null } : c.uncertainty,
+      uncertainty:
+        c.uncertainty && !showExpected ? { ...c.uncertainty, standard: null, expanded: null } : c.uncertainty,
     })),
     flags: flagRows.map((f) => ({ message: f.message, status: f.status, resolvedAt: f.resolvedAt })),
     comments: commentRows.map((c) => ({ author: c.author, at: c.at, paragraphs: markdownToParagraphs(c.body) })),
@@ -193,5 +203,9 @@ export async function moduleReportsZip(
     zip.abort()
     out.destroy(err instanceof Error ? err : new Error(String(err)))
   })
-  return { filename: `${fileSlug(course.code, 'course')}_${fileSlug(mod.slug, 'module')}_feedback-reports.zip`, count: ids.length, stream: out }
+  return {
+    filename: `${fileSlug(course.code, 'course')}_${fileSlug(mod.slug, 'module')}_feedback-reports.zip`,
+    count: ids.length,
+    stream: out,
+  }
 }

@@ -42,7 +42,10 @@ export async function reviewQueue(db: Database, e: CourseEnrollment, q: ReviewQu
       throw new AppError('forbidden', 'You review the submissions of your own section only.', 403)
     }
   }
-  const [allSections, reasons] = await Promise.all([listSectionOptions(db, e.courseId), listFlagReasons(db, e.courseId)])
+  const [allSections, reasons] = await Promise.all([
+    listSectionOptions(db, e.courseId),
+    listFlagReasons(db, e.courseId),
+  ])
   const sections = e.role === 'ta' ? allSections.filter((s) => s.id === e.sectionId) : allSections
   const facets = { sections, reasons: [...reasons, { code: REGRADE_REASON, example: 'A student asked for a regrade' }] }
   if (e.role === 'ta') {
@@ -64,14 +67,21 @@ const conflict = () =>
  * Overrides the points of one check (or the total) with a written reason. The change is audited,
  * and a stale `revision` (another staff member saved first) is refused instead of overwriting.
  */
-export async function overridePoints(db: Database, e: CourseEnrollment, submissionId: number, o: Override): Promise<void> {
+export async function overridePoints(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  o: Override,
+): Promise<void> {
   const s = await inScope(db, e, submissionId)
   await db.transaction(async (tx) => {
     if (!(await lockRevision(tx, submissionId, o.revision))) throw conflict()
     if (o.checkId === null) {
       const max = s.maxScore ?? 0
       if (o.points < 0 || o.points > max) {
-        throw new AppError('points_out_of_range', `points: the total must be between 0 and ${max}.`, 400, { field: 'points' })
+        throw new AppError('points_out_of_range', `points: the total must be between 0 and ${max}.`, 400, {
+          field: 'points',
+        })
       }
       await insertGradeChange(tx, {
         submissionId,
@@ -88,7 +98,12 @@ export async function overridePoints(db: Database, e: CourseEnrollment, submissi
     const c = await findCheck(tx, submissionId, o.checkId)
     if (!c) throw notFound('That check')
     if (o.points < 0 || o.points > c.pointsPossible) {
-      throw new AppError('points_out_of_range', `points: ${c.label} is worth between 0 and ${c.pointsPossible} points.`, 400, { field: 'points' })
+      throw new AppError(
+        'points_out_of_range',
+        `points: ${c.label} is worth between 0 and ${c.pointsPossible} points.`,
+        400,
+        { field: 'points' },
+      )
     }
     await setCheckPoints(tx, c.id, o.points)
     await insertGradeChange(tx, {
@@ -105,7 +120,13 @@ export async function overridePoints(db: Database, e: CourseEnrollment, submissi
   })
 }
 
-export async function addComment(db: Database, e: CourseEnrollment, submissionId: number, body: string, revision: number): Promise<void> {
+export async function addComment(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  body: string,
+  revision: number,
+): Promise<void> {
   await inScope(db, e, submissionId)
   await db.transaction(async (tx) => {
     if (!(await lockRevision(tx, submissionId, revision))) throw conflict()
@@ -114,16 +135,30 @@ export async function addComment(db: Database, e: CourseEnrollment, submissionId
   })
 }
 
-export async function changeFlag(db: Database, e: CourseEnrollment, submissionId: number, flagId: number, action: 'resolve' | 'reopen', revision: number) {
+export async function changeFlag(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  flagId: number,
+  action: 'resolve' | 'reopen',
+  revision: number,
+) {
   await inScope(db, e, submissionId)
   await db.transaction(async (tx) => {
     if (!(await lockRevision(tx, submissionId, revision))) throw conflict()
-    if (!(await setFlagStatus(tx, submissionId, flagId, action === 'resolve' ? 'resolved' : 'open', e.userId))) throw notFound('That flag')
+    if (!(await setFlagStatus(tx, submissionId, flagId, action === 'resolve' ? 'resolved' : 'open', e.userId)))
+      throw notFound('That flag')
     await bumpRevision(tx, submissionId, action === 'reopen' ? { reviewStatus: 'open' } : {})
   })
 }
 
-export async function setReviewStatus(db: Database, e: CourseEnrollment, submissionId: number, status: 'open' | 'in-review' | 'resolved', revision: number) {
+export async function setReviewStatus(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  status: 'open' | 'in-review' | 'resolved',
+  revision: number,
+) {
   await inScope(db, e, submissionId)
   await db.transaction(async (tx) => {
     if (!(await lockRevision(tx, submissionId, revision))) throw conflict()

@@ -52,7 +52,11 @@ export interface RosterImportOptions {
   invitationTtlHours: number
 }
 
-const ROLE_WORDS: Record<CourseRole, string> = { instructor: 'instructor', ta: 'teaching assistant', student: 'student' }
+const ROLE_WORDS: Record<CourseRole, string> = {
+  instructor: 'instructor',
+  ta: 'teaching assistant',
+  student: 'student',
+}
 const q = (s: string) => `"${s}"`
 
 interface PlannedRow {
@@ -113,7 +117,8 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date, invi
 
   // The spelling the file first used for each section it names.
   const spelling = new Map<string, string>()
-  for (const r of parsed.rows) if (r.section !== null && !spelling.has(r.section.toLowerCase())) spelling.set(r.section.toLowerCase(), r.section)
+  for (const r of parsed.rows)
+    if (r.section !== null && !spelling.has(r.section.toLowerCase())) spelling.set(r.section.toLowerCase(), r.section)
   const sectionName = (key: string) => sectionByKey.get(key)?.name ?? newSections.get(key) ?? key
   const rows: PlannedRow[] = parsed.rows.map((r) => {
     const problems: RosterRowProblem[] = [...r.problems]
@@ -141,11 +146,17 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date, invi
     const person = personByEmail.get(r.email) ?? null
     const current = person?.enrollment?.role ?? null
     if (current === 'instructor') {
-      problems.push({ column: 'role', message: 'role: this person teaches this course; an import does not change instructors.' })
+      problems.push({
+        column: 'role',
+        message: 'role: this person teaches this course; an import does not change instructors.',
+      })
     }
     const role = r.roleGiven || current === null || current === 'instructor' ? r.role : current
     if (role === 'ta' && !r.roleGiven && groupKey !== null) {
-      problems.push({ column: 'group', message: 'group: this person is a teaching assistant here, and teaching assistants are not put in lab groups.' })
+      problems.push({
+        column: 'group',
+        message: 'group: this person is a teaching assistant here, and teaching assistants are not put in lab groups.',
+      })
     }
     const view: RosterImportRow = {
       row: r.row,
@@ -233,7 +244,12 @@ async function plan(db: Executor, courseId: number, csv: string, now: Date, invi
 }
 
 /** What importing `csv` would do; writes nothing. */
-export async function previewRosterImport(db: Database, e: CourseEnrollment, csv: string, opts: Pick<RosterImportOptions, 'invitationTtlHours'>): Promise<RosterImportPreview> {
+export async function previewRosterImport(
+  db: Database,
+  e: CourseEnrollment,
+  csv: string,
+  opts: Pick<RosterImportOptions, 'invitationTtlHours'>,
+): Promise<RosterImportPreview> {
   return (await plan(db, e.courseId, csv, new Date(), opts.invitationTtlHours)).preview
 }
 
@@ -277,13 +293,18 @@ export async function confirmRosterImport(
       await insertGroups(
         tx,
         e.courseId,
-        [...p.newGroups.values()].map((g) => ({ name: g.name, sectionId: g.sectionKey === null ? null : (sectionId.get(g.sectionKey) ?? null) })),
+        [...p.newGroups.values()].map((g) => ({
+          name: g.name,
+          sectionId: g.sectionKey === null ? null : (sectionId.get(g.sectionKey) ?? null),
+        })),
       )
       const groupId = new Map((await listCourseGroups(tx, e.courseId)).map((g) => [g.name.toLowerCase(), g.id]))
 
       const created = await insertPasswordlessUsers(
         tx,
-        p.rows.filter((r) => r.view.kind === 'new').map((r) => ({ email: r.parsed.email, displayName: r.parsed.displayName })),
+        p.rows
+          .filter((r) => r.view.kind === 'new')
+          .map((r) => ({ email: r.parsed.email, displayName: r.parsed.displayName })),
       )
       const inserts: EnrollmentWrite[] = []
       let updated = 0
@@ -300,7 +321,11 @@ export async function confirmRosterImport(
           labGroupId: r.groupKey !== null ? (groupId.get(r.groupKey) ?? null) : (enrolled?.labGroupId ?? null),
         }
         if (!enrolled) inserts.push(write)
-        else if (enrolled.role !== write.role || enrolled.sectionId !== write.sectionId || enrolled.labGroupId !== write.labGroupId) {
+        else if (
+          enrolled.role !== write.role ||
+          enrolled.sectionId !== write.sectionId ||
+          enrolled.labGroupId !== write.labGroupId
+        ) {
           await updateEnrollment(tx, e.courseId, write)
           updated++
         } else if (r.view.changes.length === 0) unchanged++
@@ -313,7 +338,13 @@ export async function confirmRosterImport(
         .map((r) => ({ r, userId: userIdOf(r)!, ...newInvitationToken() }))
       const ids = await insertInvitations(
         tx,
-        invited.map((i) => ({ userId: i.userId, courseId: e.courseId, tokenHash: i.tokenHash, expiresAt, createdBy: e.userId })),
+        invited.map((i) => ({
+          userId: i.userId,
+          courseId: e.courseId,
+          tokenHash: i.tokenHash,
+          expiresAt,
+          createdBy: e.userId,
+        })),
       )
       const base = opts.appUrl.replace(/\/$/, '')
       const mails: NewMail[] = [

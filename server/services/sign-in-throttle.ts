@@ -3,7 +3,14 @@ import type { Config } from '../config'
 import type { Database } from '../db/client'
 import { AppError } from '../errors'
 import type { CounterKey, LockedCounter } from '../repositories/sign-in-throttles'
-import { deleteCounter, isLockConflict, lockCounters, pruneCounters, setCounter, takeBackAttempt } from '../repositories/sign-in-throttles'
+import {
+  deleteCounter,
+  isLockConflict,
+  lockCounters,
+  pruneCounters,
+  setCounter,
+  takeBackAttempt,
+} from '../repositories/sign-in-throttles'
 
 /**
  * How failed sign-ins slow further attempts down (README, "Sign-in policy"). Nothing is ever
@@ -39,7 +46,11 @@ export function signInPolicy(config: Config): SignInPolicy {
  * any wait: first delay, then doubling, up to the maximum.
  * @example delayAfter(5, 5, { firstDelayMs: 1000, maxDelayMs: 300_000 }) === 1000; delayAfter(7, 5, …) === 4000
  */
-export function delayAfter(failures: number, free: number, policy: Pick<SignInPolicy, 'firstDelayMs' | 'maxDelayMs'>): number {
+export function delayAfter(
+  failures: number,
+  free: number,
+  policy: Pick<SignInPolicy, 'firstDelayMs' | 'maxDelayMs'>,
+): number {
   if (failures < free) return 0
   // Capping the exponent keeps 2^n finite; 2^30 times any sensible first delay is past the cap.
   return Math.min(policy.maxDelayMs, policy.firstDelayMs * 2 ** Math.min(failures - free, 30))
@@ -83,7 +94,10 @@ export function clientAddress(ip: string | undefined): string {
     const [hi = 0, lo = 0] = groups.slice(6)
     return [hi >> 8, hi & 0xff, lo >> 8, lo & 0xff].join('.')
   }
-  return `${groups.slice(0, 4).map((g) => g.toString(16)).join(':')}::/64`
+  return `${groups
+    .slice(0, 4)
+    .map((g) => g.toString(16))
+    .join(':')}::/64`
 }
 
 /** The eight 16-bit groups of an IPv6 address (already checked by isIPv6). */

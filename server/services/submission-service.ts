@@ -82,7 +82,11 @@ async function publishedModule(db: Database, courseId: number, moduleId: number)
 function ownerOf(e: CourseEnrollment, fm: ModuleFrontMatter): Owner {
   if (fm.groupSubmission) {
     if (e.labGroupId === null) {
-      throw new AppError('no_lab_group', 'This module is handed in by lab group, and you are not in one yet. Ask your instructor to add you to a group.', 409)
+      throw new AppError(
+        'no_lab_group',
+        'This module is handed in by lab group, and you are not in one yet. Ask your instructor to add you to a group.',
+        409,
+      )
     }
     return { labGroupId: e.labGroupId }
   }
@@ -96,18 +100,31 @@ function ownerOf(e: CourseEnrollment, fm: ModuleFrontMatter): Owner {
  * extended student keeps the same late window everyone else had (otherwise an extension past
  * `acceptUntil` would leave no late window at all, and one close to it would shrink it).
  */
-function lateness(p: Published, now: Date, timeZone: string, extendedDue: Date | null = null): { isLate: boolean; daysLate: number; penalty: number } {
+function lateness(
+  p: Published,
+  now: Date,
+  timeZone: string,
+  extendedDue: Date | null = null,
+): { isLate: boolean; daysLate: number; penalty: number } {
   const dueAt = dueFor(p.dueAt, extendedDue)
   const shift = dueAt && p.dueAt ? dueAt.getTime() - p.dueAt.getTime() : 0
   if (!dueAt || now.getTime() <= dueAt.getTime()) return { isLate: false, daysLate: 0, penalty: 0 }
   const late = p.fm.late
   if (!late) {
-    throw new AppError('past_due', `The due date (${formatInZone(dueAt, timeZone)}) has passed and this module does not accept late hand-ins.`, 409)
+    throw new AppError(
+      'past_due',
+      `The due date (${formatInZone(dueAt, timeZone)}) has passed and this module does not accept late hand-ins.`,
+      409,
+    )
   }
   if (late.acceptUntil) {
     const until = new Date(zonedTimeToUtc(late.acceptUntil, p.fm.due?.timeZone ?? timeZone).getTime() + shift)
     if (now.getTime() > until.getTime()) {
-      throw new AppError('past_late_limit', `Late hand-ins were accepted until ${formatInZone(until, timeZone)}; that time has passed.`, 409)
+      throw new AppError(
+        'past_late_limit',
+        `Late hand-ins were accepted until ${formatInZone(until, timeZone)}; that time has passed.`,
+        409,
+      )
     }
   }
   const daysLate = Math.ceil((now.getTime() - dueAt.getTime()) / DAY_MS)
@@ -123,7 +140,9 @@ export function visibility(p: Published, now: Date, timeZone: string): { visible
       }
       return { visible: true, reason: null }
     case 'after-release':
-      return p.gradesReleasedAt ? { visible: true, reason: null } : { visible: false, reason: 'Results are shown once the course staff release the grades.' }
+      return p.gradesReleasedAt
+        ? { visible: true, reason: null }
+        : { visible: false, reason: 'Results are shown once the course staff release the grades.' }
     default:
       return { visible: true, reason: null }
   }
@@ -142,7 +161,8 @@ export async function submitHandIn(
   uploads: UploadedTable[],
   opts: { now?: Date; grading?: GradingContext } = {},
 ): Promise<SubmissionDetail> {
-  if (e.role !== 'student') throw forbidden('Only students hand in work; staff can see submissions in the review queue.')
+  if (e.role !== 'student')
+    throw forbidden('Only students hand in work; staff can see submissions in the review queue.')
   const now = opts.now ?? new Date()
   const p = await publishedModule(db, e.courseId, moduleId)
   if (p.moduleStatus === 'closed') throw new AppError('module_closed', 'This module is closed to hand-ins.', 409)
@@ -157,42 +177,44 @@ export async function submitHandIn(
   if (refusal) throw refusal
 
   // The whole transaction runs again if InnoDB picks it as a deadlock victim in a burst.
-  const stored = await retryOnLockConflict(() => db.transaction(async (tx) => {
-    await lockOwner(tx, e.courseId, owner)
-    const used = await countAttempts(tx, p.moduleId, owner)
-    if (used >= p.fm.attempts) {
-      throw new AppError('attempts_used', `All ${p.fm.attempts} attempts for this module have been used.`, 409)
-    }
-    const id = await insertSubmission(tx, {
-      courseId: e.courseId,
-      moduleId: p.moduleId,
-      moduleVersionId: p.versionId,
-      userId: e.userId,
-      labGroupId: 'labGroupId' in owner ? owner.labGroupId : e.labGroupId,
-      attempt: used + 1,
-      inputs: v.inputs,
-      isLate: late.isLate,
-      daysLate: late.daysLate,
-      latePenalty: late.penalty,
-    })
-    for (const f of v.files) {
-      await insertFile(tx, {
-        submissionId: id,
+  const stored = await retryOnLockConflict(() =>
+    db.transaction(async (tx) => {
+      await lockOwner(tx, e.courseId, owner)
+      const used = await countAttempts(tx, p.moduleId, owner)
+      if (used >= p.fm.attempts) {
+        throw new AppError('attempts_used', `All ${p.fm.attempts} attempts for this module have been used.`, 409)
+      }
+      const id = await insertSubmission(tx, {
         courseId: e.courseId,
-        tableKey: f.table.key,
-        filename: f.upload.filename.slice(0, 255),
-        contentType: f.upload.contentType.slice(0, 120),
-        size: f.upload.bytes.length,
-        sha256: createHash('sha256').update(f.upload.bytes).digest('hex'),
-        bytes: f.upload.bytes,
-        mapping: f.mapping,
-        parsed: f.columns,
-        rowCount: f.rowCount,
-        fingerprint: logFingerprint(f.table, f.columns),
+        moduleId: p.moduleId,
+        moduleVersionId: p.versionId,
+        userId: e.userId,
+        labGroupId: 'labGroupId' in owner ? owner.labGroupId : e.labGroupId,
+        attempt: used + 1,
+        inputs: v.inputs,
+        isLate: late.isLate,
+        daysLate: late.daysLate,
+        latePenalty: late.penalty,
       })
-    }
-    return { id, attempt: used + 1 }
-  }))
+      for (const f of v.files) {
+        await insertFile(tx, {
+          submissionId: id,
+          courseId: e.courseId,
+          tableKey: f.table.key,
+          filename: f.upload.filename.slice(0, 255),
+          contentType: f.upload.contentType.slice(0, 120),
+          size: f.upload.bytes.length,
+          sha256: createHash('sha256').update(f.upload.bytes).digest('hex'),
+          bytes: f.upload.bytes,
+          mapping: f.mapping,
+          parsed: f.columns,
+          rowCount: f.rowCount,
+          fingerprint: logFingerprint(f.table, f.columns),
+        })
+      }
+      return { id, attempt: used + 1 }
+    }),
+  )
 
   // From here the hand-in is stored and acknowledged whatever happens next: grading is a job the
   // background worker finishes if this request cannot (a database hiccup, a full grading pool).
@@ -274,7 +296,11 @@ async function canSee(db: Database, e: CourseEnrollment, s: SubmissionRow): Prom
  * is shown (U = k·u_c would give it away), the contributing inputs and their shares always.
  */
 function uncertaintyView(
-  c: { standardUncertainty: number | null; coverageFactor: number | null; uncertaintyContributions: CheckUncertaintyView['contributions'] | null },
+  c: {
+    standardUncertainty: number | null
+    coverageFactor: number | null
+    uncertaintyContributions: CheckUncertaintyView['contributions'] | null
+  },
   showExpected: boolean,
 ): CheckUncertaintyView | null {
   if (c.standardUncertainty === null || c.coverageFactor === null) return null
@@ -286,7 +312,12 @@ function uncertaintyView(
   }
 }
 
-export async function submissionDetail(db: Database, e: CourseEnrollment, submissionId: number, now = new Date()): Promise<SubmissionDetail> {
+export async function submissionDetail(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  now = new Date(),
+): Promise<SubmissionDetail> {
   const s = await findSubmission(db, e.courseId, submissionId)
   // Someone else's submission does not exist for a student.
   if (!s || !(await canSee(db, e, s))) throw notFound('That submission')
@@ -298,7 +329,18 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
   const vis = isStaff(e)
     ? { visible: true, reason: null }
     : visibility(
-        { ...(p ?? { moduleId: s.moduleId, moduleStatus: 'published', versionId: version.id, versionNumber: version.number, title: version.title, gradesReleasedAt: null }), dueAt: version.dueAt, fm },
+        {
+          ...(p ?? {
+            moduleId: s.moduleId,
+            moduleStatus: 'published',
+            versionId: version.id,
+            versionNumber: version.number,
+            title: version.title,
+            gradesReleasedAt: null,
+          }),
+          dueAt: version.dueAt,
+          fm,
+        },
         now,
         course.timeZone,
       )
@@ -353,7 +395,14 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
     checks: checkViews,
     flags: flags.map((f) => ({ id: f.id, code: f.code, message: f.message, status: f.status })),
     chart,
-    files: files.map((f) => ({ id: f.id, tableKey: f.tableKey, filename: f.filename, size: f.size, rowCount: f.rowCount, sha256: f.sha256 })),
+    files: files.map((f) => ({
+      id: f.id,
+      tableKey: f.tableKey,
+      filename: f.filename,
+      size: f.size,
+      rowCount: f.rowCount,
+      sha256: f.sha256,
+    })),
     inputs: s.inputs,
     attemptsAllowed: fm.attempts,
     attemptsUsed: used,
@@ -361,7 +410,12 @@ export async function submissionDetail(db: Database, e: CourseEnrollment, submis
   }
 }
 
-export async function mySubmissions(db: Database, e: CourseEnrollment, moduleId: number, now = new Date()): Promise<MySubmissions> {
+export async function mySubmissions(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  now = new Date(),
+): Promise<MySubmissions> {
   const p = await publishedModule(db, e.courseId, moduleId)
   const course = await courseTimeZone(db, e.courseId)
   let owner: Owner = { userId: e.userId }
@@ -436,9 +490,14 @@ export async function handInReceipt(
   }
   const course = await courseTimeZone(db, e.courseId)
   const version = await findVersion(db, s.moduleVersionId)
-  const group = (version?.frontMatter as unknown as ModuleFrontMatter | null)?.groupSubmission === true && s.labGroupId !== null
+  const group =
+    (version?.frontMatter as unknown as ModuleFrontMatter | null)?.groupSubmission === true && s.labGroupId !== null
   const me = await findUserById(db, s.userId)
-  const people = group ? await groupMemberEmails(db, s.labGroupId!) : me ? [{ email: me.email, displayName: me.displayName }] : []
+  const people = group
+    ? await groupMemberEmails(db, s.labGroupId!)
+    : me
+      ? [{ email: me.email, displayName: me.displayName }]
+      : []
   const link = `${appUrl.replace(/\/$/, '')}/courses/${d.courseId}/submissions/${d.id}`
   const when = formatInZone(new Date(d.submittedAt), course.timeZone)
   const scoreLine =
@@ -448,24 +507,24 @@ export async function handInReceipt(
         ? `Score: ${Number(d.score.toFixed(2))} of ${d.maxScore}${d.latePenalty > 0 ? ` (after a ${Math.round(d.latePenalty * 100)} % late penalty)` : ''}.`
         : (d.resultsHiddenReason ?? 'Results are not shown yet.')
   return people.map((p) => ({
-      dedupeKey: `submission-receipt:${d.id}`,
-      toAddress: p.email,
-      toName: p.displayName,
-      subject: `${course.code}: hand-in received — ${d.moduleTitle} (attempt ${d.attempt})`,
-      textBody: [
-        `Hello ${p.displayName},`,
-        '',
-        `Isentrope received ${group && d.labGroupName ? `${d.labGroupName}'s` : 'your'} hand-in for “${d.moduleTitle}” (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${when}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.`,
-        scoreLine,
-        '',
-        `See the checks: ${link}`,
-        '',
-        '— Isentrope',
-      ].join('\n'),
-      htmlBody: `<p>Hello ${escapeHtml(p.displayName)},</p>
+    dedupeKey: `submission-receipt:${d.id}`,
+    toAddress: p.email,
+    toName: p.displayName,
+    subject: `${course.code}: hand-in received — ${d.moduleTitle} (attempt ${d.attempt})`,
+    textBody: [
+      `Hello ${p.displayName},`,
+      '',
+      `Isentrope received ${group && d.labGroupName ? `${d.labGroupName}'s` : 'your'} hand-in for “${d.moduleTitle}” (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${when}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.`,
+      scoreLine,
+      '',
+      `See the checks: ${link}`,
+      '',
+      '— Isentrope',
+    ].join('\n'),
+    htmlBody: `<p>Hello ${escapeHtml(p.displayName)},</p>
 <p>Isentrope received ${group && d.labGroupName ? `${escapeHtml(d.labGroupName)}'s` : 'your'} hand-in for <strong>${escapeHtml(d.moduleTitle)}</strong> (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${escapeHtml(when)}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.</p>
 <p>${escapeHtml(scoreLine)}</p>
 <p><a href="${escapeHtml(link)}">See the checks</a></p>
 <p style="color:#5d574c">— Isentrope</p>`,
-    }))
+  }))
 }

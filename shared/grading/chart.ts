@@ -92,12 +92,22 @@ function decimate(n: number, series: readonly (readonly number[])[], maxPoints: 
  */
 export function chartSeries(assignment: Assignment, data: SubmissionData): ChartSeries {
   // The chart shows the columns as logged (no transducer zero taken), as the data checks see them.
-  const scope = buildExpressionScope(assignment, { tables: data.tables, measurements: data.measurements, ...(data.pressures ? { pressures: data.pressures } : {}) }, { units: 'si', tare: false })
+  const scope = buildExpressionScope(
+    assignment,
+    { tables: data.tables, measurements: data.measurements, ...(data.pressures ? { pressures: data.pressures } : {}) },
+    { units: 'si', tare: false },
+  )
   const d = roleData(assignment, scope)
   const time = d.time ?? []
   const n = time.length
   const spans: [number, number][] = []
-  if (d.chamber && d.ambient !== undefined && d.throatArea !== undefined && d.exitArea !== undefined && d.exitArea >= d.throatArea) {
+  if (
+    d.chamber &&
+    d.ambient !== undefined &&
+    d.throatArea !== undefined &&
+    d.exitArea !== undefined &&
+    d.exitArea >= d.throatArea
+  ) {
     const limit = nozzlePressureRatios(d.exitArea / d.throatArea, CHECK_GAMMA).shockAtExit
     let start = -1
     for (let i = 0; i < n; i++) {
@@ -111,7 +121,9 @@ export function chartSeries(assignment: Assignment, data: SubmissionData): Chart
     }
     if (start >= 0) spans.push([time[start] as number, time[n - 1] as number])
   }
-  const plotted = [d.thrust, d.chamber, d.receiver].filter((s): s is readonly number[] => s !== undefined && s.length === n)
+  const plotted = [d.thrust, d.chamber, d.receiver].filter(
+    (s): s is readonly number[] => s !== undefined && s.length === n,
+  )
   const idx = decimate(n, plotted, CHART_MAX_POINTS)
   const pick = (xs: readonly number[]) => idx.map((i) => xs[i] as number)
   const out: ChartSeries = { time: pick(time), supersonicSpans: spans }
@@ -125,4 +137,3 @@ export function chartSeries(assignment: Assignment, data: SubmissionData): Chart
   if (d.receiver && d.receiver.length === n) out.receiverPressure = pick(d.receiver)
   return out
 }
-

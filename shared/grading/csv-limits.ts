@@ -132,7 +132,9 @@ export function checkLines(text: string): { ok: true; lines: LogLines } | { ok: 
         issue: {
           message:
             `The file has more than ${count(LOG_LIMITS.maxRows + 1)} rows${mostlyBlank ? ', most of them blank' : ''}; a log may have a header row and at most ${count(LOG_LIMITS.maxRows)} rows under it (blank rows count). ` +
-            (mostlyBlank ? 'Delete the blank rows and upload it again.' : 'Hand in the part of the run the assignment asks for, or log at a lower sample rate.'),
+            (mostlyBlank
+              ? 'Delete the blank rows and upload it again.'
+              : 'Hand in the part of the run the assignment asks for, or log at a lower sample rate.'),
         },
       }
     }
@@ -160,7 +162,10 @@ export function checkHeader(line: string, row: number, delimiter: string): Limit
   const first = long[0]
   if (first !== undefined) {
     const name = (names[first] as string).trim()
-    const others = long.length > 1 ? ` (${long.length - 1} more column name${long.length === 2 ? ' is' : 's are'} too long as well)` : ''
+    const others =
+      long.length > 1
+        ? ` (${long.length - 1} more column name${long.length === 2 ? ' is' : 's are'} too long as well)`
+        : ''
     return {
       row,
       message: `Row ${row}, the header: the name of column ${first + 1}, ${quote(name)}, is ${count(name.length)} characters long; a column name may have at most ${LOG_LIMITS.maxHeaderChars}${others}. Give the column a short name.`,

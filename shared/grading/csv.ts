@@ -336,7 +336,9 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
   for (const spec of table.columns) {
     const entry = mapping[spec.key]
     if (!entry) {
-      issues.add({ message: `No column of the file is chosen for ${spec.label} (${spec.key}): choose one in the column mapping.` })
+      issues.add({
+        message: `No column of the file is chosen for ${spec.label} (${spec.key}): choose one in the column mapping.`,
+      })
       continue
     }
     // The mapping comes from the form: its header may be anything, so it is cut in messages.
@@ -472,7 +474,11 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
       const cell = row[m.index] as string
       const v = parseDecimal(cell)
       if (Number.isNaN(v)) {
-        issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${describeBadCell(cell)}.` })
+        issues.add({
+          row: lineOf(r),
+          column: m.header,
+          message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${describeBadCell(cell)}.`,
+        })
         continue
       }
       const si = m.toSI(v)
@@ -485,7 +491,11 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
         continue
       }
       if (m.temperature && si < 0) {
-        issues.add({ row: lineOf(r), column: m.header, message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${quote(cell)} is below absolute zero.` })
+        issues.add({
+          row: lineOf(r),
+          column: m.header,
+          message: `Row ${lineOf(r)}, column ${quote(m.header)}: ${quote(cell)} is below absolute zero.`,
+        })
         continue
       }
       ;(values[j] as number[])[n] = si
@@ -594,7 +604,12 @@ export function suggestMapping(headers: readonly string[], table: TableSpec): Re
       const score = Math.max(0, ...names.filter(([n]) => candidates.includes(n)).map(([, s]) => s))
       if (score > 0 && (!best || score > best.score)) {
         const unit = reading.unit && dataUnitKind(reading.unit.unit) === kind ? reading.unit : undefined
-        best = { index, score, ...(unit ? { unit: unit.unit } : {}), ...(unit?.pressure ? { pressure: unit.pressure } : {}) }
+        best = {
+          index,
+          score,
+          ...(unit ? { unit: unit.unit } : {}),
+          ...(unit?.pressure ? { pressure: unit.pressure } : {}),
+        }
       }
     })
     if (!best) continue
@@ -618,10 +633,18 @@ export type ContentSniff = { binary: false } | { binary: true; kind: string; mes
 const SIGNATURES: readonly { bytes: readonly number[]; kind: string; hint?: string }[] = [
   { bytes: [0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a], kind: 'a PNG image' },
   { bytes: [0x25, 0x50, 0x44, 0x46, 0x2d], kind: 'a PDF document' },
-  { bytes: [0x50, 0x4b, 0x03, 0x04], kind: 'a ZIP archive', hint: ' (an .xlsx workbook is one: open it and save the sheet as CSV)' },
+  {
+    bytes: [0x50, 0x4b, 0x03, 0x04],
+    kind: 'a ZIP archive',
+    hint: ' (an .xlsx workbook is one: open it and save the sheet as CSV)',
+  },
   { bytes: [0x50, 0x4b, 0x05, 0x06], kind: 'a ZIP archive' },
   { bytes: [0x50, 0x4b, 0x07, 0x08], kind: 'a ZIP archive' },
-  { bytes: [0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1], kind: 'an Office 97–2003 file', hint: ' (an .xls workbook: open it and save the sheet as CSV)' },
+  {
+    bytes: [0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1],
+    kind: 'an Office 97–2003 file',
+    hint: ' (an .xls workbook: open it and save the sheet as CSV)',
+  },
   { bytes: [0x1f, 0x8b], kind: 'a gzip archive' },
   { bytes: [0xff, 0xd8, 0xff], kind: 'a JPEG image' },
   { bytes: [0x47, 0x49, 0x46, 0x38], kind: 'a GIF image' },
@@ -645,19 +668,25 @@ export function sniffBinary(bytes: Uint8Array): ContentSniff {
   const advice = ' Export the log from the data logger as CSV (comma-separated text) and upload that.'
   for (const s of SIGNATURES) {
     if (bytes.length >= s.bytes.length && s.bytes.every((b, i) => bytes[i] === b)) {
-      return { binary: true, kind: s.kind, message: `This file is ${s.kind}${s.hint ?? ''}, not a CSV text file.${advice}` }
+      return {
+        binary: true,
+        kind: s.kind,
+        message: `This file is ${s.kind}${s.hint ?? ''}, not a CSV text file.${advice}`,
+      }
     }
   }
   if (bytes.length >= 2 && ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff))) {
     return {
       binary: true,
       kind: 'UTF-16 text',
-      message: 'This file is UTF-16 text; save it as CSV in UTF-8 (the usual "CSV" or "CSV UTF-8" choice) and upload that.',
+      message:
+        'This file is UTF-16 text; save it as CSV in UTF-8 (the usual "CSV" or "CSV UTF-8" choice) and upload that.',
     }
   }
   const end = Math.min(bytes.length, SNIFF_BYTES)
   for (let i = 0; i < end; i++) {
-    if (bytes[i] === 0) return { binary: true, kind: 'binary data', message: `This file holds binary data, not CSV text.${advice}` }
+    if (bytes[i] === 0)
+      return { binary: true, kind: 'binary data', message: `This file holds binary data, not CSV text.${advice}` }
   }
   return { binary: false }
 }

@@ -190,7 +190,11 @@ export function idealAt(p0: number, d: RoleData): number | undefined {
   }
 }
 
-export function dataFlags(assignment: Assignment, data: SubmissionData, scope: Record<string, ExpressionValue>): GradeFlag[] {
+export function dataFlags(
+  assignment: Assignment,
+  data: SubmissionData,
+  scope: Record<string, ExpressionValue>,
+): GradeFlag[] {
   const d = roleData(assignment, scope)
   const flags: GradeFlag[] = []
   const thrustFlag = thrustAboveIdeal(d)
@@ -332,7 +336,11 @@ function pressureSense(data: SubmissionData, d: RoleData, which: 'chamber' | 're
       detail,
     }
   }
-  if (sense === 'gauge' && (Math.abs(logged - pa) <= LOOKS_ABSOLUTE_BAND * pa || Math.abs(logged - STANDARD_ATMOSPHERE) <= LOOKS_ABSOLUTE_BAND * STANDARD_ATMOSPHERE)) {
+  if (
+    sense === 'gauge' &&
+    (Math.abs(logged - pa) <= LOOKS_ABSOLUTE_BAND * pa ||
+      Math.abs(logged - STANDARD_ATMOSPHERE) <= LOOKS_ABSOLUTE_BAND * STANDARD_ATMOSPHERE)
+  ) {
     return {
       code: 'pressure-looks-absolute',
       message: `${Name} is declared gauge, but at rest (the start or end of the log) it reads about ${kPa(logged)}, close to the barometric pressure (${kPa(pa)}), where a gauge reading would be near 0. It looks like an absolute reading: check the gauge/absolute choice for the ${name}.`,
@@ -361,15 +369,22 @@ function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
   let worst = 0
   let peakReceiver = -Infinity
   for (let i = 0; i < chamber.length; i++) {
-    if ((chamber[i] as number) - (receiver[i] as number) > (chamber[worst] as number) - (receiver[worst] as number)) worst = i
+    if ((chamber[i] as number) - (receiver[i] as number) > (chamber[worst] as number) - (receiver[worst] as number))
+      worst = i
     if ((receiver[i] as number) > peakReceiver) peakReceiver = receiver[i] as number
   }
   const excess = (chamber[worst] as number) - (receiver[worst] as number)
   let peakChamber = -Infinity
   for (const p of chamber) if (p > peakChamber) peakChamber = p
   const margin = Math.max(
-    transducerError(d.keys.table?.columns.find((c) => c.key === d.keys.chamberPressure), peakChamber) +
-      transducerError(d.keys.table?.columns.find((c) => c.key === d.keys.receiverPressure), peakReceiver),
+    transducerError(
+      d.keys.table?.columns.find((c) => c.key === d.keys.chamberPressure),
+      peakChamber,
+    ) +
+      transducerError(
+        d.keys.table?.columns.find((c) => c.key === d.keys.receiverPressure),
+        peakReceiver,
+      ),
     CHAMBER_ABOVE_RECEIVER_FLOOR,
   )
   if (!(excess > margin)) return undefined
@@ -408,7 +423,14 @@ function timeGap(d: RoleData): GradeFlag | undefined {
   return {
     code: 'time-gap',
     message: `The log has ${count === 1 ? 'a gap' : `${count} gaps`} between samples: the largest, ${fmt(gap)} s after t = ${fmt(t[largest] as number)} s, is ${fmt(gap / typical)} times the usual step of ${fmt(typical)} s. Samples may be missing; the impulse is integrated straight across a gap.`,
-    detail: { gaps: count, largestGap: gap, after: t[largest] as number, sample: largest + 2, medianStep: typical, factor: TIME_GAP_FACTOR },
+    detail: {
+      gaps: count,
+      largestGap: gap,
+      after: t[largest] as number,
+      sample: largest + 2,
+      medianStep: typical,
+      factor: TIME_GAP_FACTOR,
+    },
   }
 }
 
@@ -443,7 +465,8 @@ function medianWithin(xs: readonly number[], i: number, half: number): number {
  */
 function thrustBelowIdeal(d: RoleData): GradeFlag | undefined {
   const { thrust, chamber, ambient, throatArea, exitArea } = d
-  if (!thrust || !chamber || ambient === undefined || throatArea === undefined || exitArea === undefined) return undefined
+  if (!thrust || !chamber || ambient === undefined || throatArea === undefined || exitArea === undefined)
+    return undefined
   if (!(ambient > 0) || !(exitArea >= throatArea)) return undefined
   let chokeLimit: number
   try {

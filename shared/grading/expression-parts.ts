@@ -35,7 +35,13 @@ interface Part {
 const PLACEHOLDER = '__part'
 
 function isPartNode(n: MathNode): boolean {
-  return math.isFunctionNode(n) || math.isAccessorNode(n) || math.isOperatorNode(n) || math.isConditionalNode(n) || math.isRelationalNode(n)
+  return (
+    math.isFunctionNode(n) ||
+    math.isAccessorNode(n) ||
+    math.isOperatorNode(n) ||
+    math.isConditionalNode(n) ||
+    math.isRelationalNode(n)
+  )
 }
 
 function partOf(node: MathNode): Part {

@@ -154,11 +154,16 @@ function resolutionOf(values: readonly number[]): number {
  * logFingerprint(runTable, { t: [0, 0.01, …], thrust: [0.2, 0.3, …], p_chamber: […] })
  * // → { version: 1, reference: 2.104, times: [0.316, …], columns: { thrust: […], p_chamber: […] }, resolution: { thrust: 0.001, p_chamber: 100 } }
  */
-export function logFingerprint(table: TableSpec, columns: Readonly<Record<string, readonly number[]>>): LogFingerprint | null {
+export function logFingerprint(
+  table: TableSpec,
+  columns: Readonly<Record<string, readonly number[]>>,
+): LogFingerprint | null {
   const timeKey = table.columns.find((c) => c.role === 'time')?.key
   const time = timeKey === undefined ? undefined : columns[timeKey]
   if (!time || time.length < NEAR_COPY_MIN_OVERLAP) return null
-  const keys = table.columns.filter((c) => c.key !== timeKey && columns[c.key]?.length === time.length).map((c) => c.key)
+  const keys = table.columns
+    .filter((c) => c.key !== timeKey && columns[c.key]?.length === time.length)
+    .map((c) => c.key)
   const referenceKey = table.columns.find((c) => c.role === 'thrust' && keys.includes(c.key))?.key ?? keys[0]
   if (referenceKey === undefined) return null
   const start = runStart(time, columns[referenceKey] as readonly number[])
@@ -208,7 +213,8 @@ const FAR_OUT = 6
 function prepare(values: readonly number[], resolution: number): PreparedColumn {
   const n = Math.max(0, values.length - 2)
   const detail = new Float64Array(n)
-  for (let k = 0; k < n; k++) detail[k] = (values[k + 1] as number) - ((values[k] as number) + (values[k + 2] as number)) / 2
+  for (let k = 0; k < n; k++)
+    detail[k] = (values[k + 1] as number) - ((values[k] as number) + (values[k + 2] as number)) / 2
   const centre = n ? medianOf(detail) : 0
   const spread = n ? 1.4826 * medianOf(detail.map((v) => Math.abs(v - centre))) : 0
   // Lag-1 autocorrelation over the values that are not far out: −2/3 for white noise, near +1 for a smooth curve.
@@ -220,7 +226,10 @@ function prepare(values: readonly number[], resolution: number): PreparedColumn 
     first.push(detail[k] as number)
     second.push(detail[k + 1] as number)
   }
-  const lag1 = spread > 0 ? pearson(Float64Array.from(first), Float64Array.from(second), new Uint8Array(first.length).fill(1)) : Number.NaN
+  const lag1 =
+    spread > 0
+      ? pearson(Float64Array.from(first), Float64Array.from(second), new Uint8Array(first.length).fill(1))
+      : Number.NaN
   const noise = lag1 <= NOISE_LIKE_AUTOCORRELATION
   return { values, resolution, detail, centre, spread, noise }
 }
@@ -283,7 +292,10 @@ function trimmedCorrelation(a: PreparedColumn, b: PreparedColumn, from: number, 
   const allowed = Math.ceil(NEAR_COPY_TRIM * n)
   let dropped = 0
   for (let i = 0; i < n && dropped < allowed; i++) {
-    if (Math.abs((x[i] as number) - a.centre) > FAR_OUT * a.spread || Math.abs((y[i] as number) - b.centre) > FAR_OUT * b.spread) {
+    if (
+      Math.abs((x[i] as number) - a.centre) > FAR_OUT * a.spread ||
+      Math.abs((y[i] as number) - b.centre) > FAR_OUT * b.spread
+    ) {
       keep[i] = 0
       dropped++
     }
@@ -315,7 +327,8 @@ function trimmedCorrelation(a: PreparedColumn, b: PreparedColumn, from: number, 
   const dy = Math.sqrt(vy / k)
   const sign = r < 0 ? -1 : 1
   const residual = new Float64Array(n)
-  for (let i = 0; i < n; i++) residual[i] = Math.abs(((y[i] as number) - my) / dy - (sign * ((x[i] as number) - mx)) / dx)
+  for (let i = 0; i < n; i++)
+    residual[i] = Math.abs(((y[i] as number) - my) / dy - (sign * ((x[i] as number) - mx)) / dx)
   const kept = residual.filter((_, i) => keep[i] === 1)
   const limit = FAR_OUT * 1.4826 * medianOf(kept)
   const second = Math.ceil(NEAR_COPY_TRIM * n)
@@ -352,7 +365,11 @@ function compareColumn(key: string, a: PreparedColumn, b: PreparedColumn, lag: n
   const from = Math.max(0, -lag)
   const to = Math.min(a.values.length, b.values.length - lag)
   if (to - from < NEAR_COPY_MIN_OVERLAP) return null
-  const rounded = roundedShare(a.values.slice(from, to), b.values.slice(from + lag, to + lag), Math.max(a.resolution, b.resolution))
+  const rounded = roundedShare(
+    a.values.slice(from, to),
+    b.values.slice(from + lag, to + lag),
+    Math.max(a.resolution, b.resolution),
+  )
   if (rounded.distinct >= MIN_DISTINCT_VALUES && rounded.share >= NEAR_COPY_ROUNDED_SHARE) {
     return { key, roundedShare: rounded.share, correlation: null, how: 'rounded' }
   }
@@ -432,9 +449,12 @@ export function nearCopyMessage(filename: string, who: string, match: NearCopy):
   const rounded = match.columns.filter((c) => c.how === 'rounded').map((c) => c.key)
   const correlated = match.columns.filter((c) => c.how === 'correlated').map((c) => c.key)
   const parts: string[] = []
-  if (rounded.length) parts.push(`${rounded.join(', ')} agree${rounded.length === 1 ? 's' : ''} sample for sample once rounded`)
+  if (rounded.length)
+    parts.push(`${rounded.join(', ')} agree${rounded.length === 1 ? 's' : ''} sample for sample once rounded`)
   if (correlated.length) {
-    parts.push(`${correlated.join(', ')} carr${correlated.length === 1 ? 'ies' : 'y'} the same sample-to-sample noise (in other units or with another zero)`)
+    parts.push(
+      `${correlated.join(', ')} carr${correlated.length === 1 ? 'ies' : 'y'} the same sample-to-sample noise (in other units or with another zero)`,
+    )
   }
   return `The uploaded log ${filename} is a near-copy of a log handed in by ${who}: from the start of the run, ${parts.join('; ')}. Two runs never log the same noise; a teaching assistant will ask about it.`
 }

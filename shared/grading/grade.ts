@@ -148,7 +148,14 @@ function checkResult(
   uncertainty?: CheckUncertainty | null,
 ): CheckResult {
   const reported = typeof reportedValue === 'number' && Number.isFinite(reportedValue) ? reportedValue : null
-  const base = { key: spec.key, label: spec.label, unit: spec.unit, reported, pointsPossible: spec.points, ...(uncertainty === undefined ? {} : { uncertainty }) }
+  const base = {
+    key: spec.key,
+    label: spec.label,
+    unit: spec.unit,
+    reported,
+    pointsPossible: spec.points,
+    ...(uncertainty === undefined ? {} : { uncertainty }),
+  }
   let expected: number
   try {
     const si = evaluateExpression(spec.expected, scope)
@@ -170,14 +177,26 @@ function checkResult(
   }
   const tolerance = effectiveTolerance(spec.tolerance, expected, uncertainty)
   if (reported === null) {
-    return { ...base, expected, absError: null, relError: null, tolerance, pointsAwarded: 0, pass: false, outcome: 'fail' }
+    return {
+      ...base,
+      expected,
+      absError: null,
+      relError: null,
+      tolerance,
+      pointsAwarded: 0,
+      pass: false,
+      outcome: 'fail',
+    }
   }
   const absError = Math.abs(reported - expected)
   const relError = expected === 0 ? null : absError / Math.abs(expected)
   const slack = BOUNDARY_SLACK * tolerance + 1e-12 * Math.abs(expected)
   let outcome: CheckOutcome = 'fail'
   let pointsAwarded = 0
-  if (absError <= tolerance + slack || (spec.regime && regimeNeighbourAccepted(spec.regime, (e) => evaluateExpression(e, scope), reported, expected))) {
+  if (
+    absError <= tolerance + slack ||
+    (spec.regime && regimeNeighbourAccepted(spec.regime, (e) => evaluateExpression(e, scope), reported, expected))
+  ) {
     outcome = 'pass'
     pointsAwarded = spec.points
   } else if (spec.partial && absError <= spec.partial.within * tolerance + slack) {
@@ -212,7 +231,11 @@ export function gradeSubmission(input: GradeInput): GradeResult {
     throw new RangeError(`latePenalty must be a fraction from 0 to 1 (got ${String(latePenalty)})`)
   }
   const { assignment, reported } = input
-  const data: SubmissionData = { tables: input.data.tables, measurements: input.data.measurements, ...(input.data.pressures ? { pressures: input.data.pressures } : {}) }
+  const data: SubmissionData = {
+    tables: input.data.tables,
+    measurements: input.data.measurements,
+    ...(input.data.pressures ? { pressures: input.data.pressures } : {}),
+  }
   // Expressions see pressures with their transducer zero taken (tare: true); the data checks see them as logged.
   const logged = buildExpressionScope(assignment, data, { units: 'si', tare: false })
   const scope = taredScope(assignment, data, logged)
@@ -241,9 +264,16 @@ export function gradeSubmission(input: GradeInput): GradeResult {
 }
 
 /** The module's review rules, over the data and the reported results in SI. */
-function ruleFlags(assignment: Assignment, dataScope: Record<string, ExpressionValue>, reported: Readonly<Record<string, number>>): GradeFlag[] {
+function ruleFlags(
+  assignment: Assignment,
+  dataScope: Record<string, ExpressionValue>,
+  reported: Readonly<Record<string, number>>,
+): GradeFlag[] {
   if (assignment.reviewRules.length === 0) return []
-  const scope: Record<string, ExpressionValue> = Object.assign(Object.create(null) as Record<string, ExpressionValue>, dataScope)
+  const scope: Record<string, ExpressionValue> = Object.assign(
+    Object.create(null) as Record<string, ExpressionValue>,
+    dataScope,
+  )
   const missing: string[] = []
   for (const r of assignment.results) {
     const value = reported[r.key]
@@ -277,7 +307,6 @@ function ruleFlags(assignment: Assignment, dataScope: Record<string, ExpressionV
   }
   return flags
 }
-
 
 export * from './data-flags'
 export * from './chart'

@@ -43,7 +43,10 @@ declare module 'papaparse/papaparse.min.js' {
   }
 
   export function parse(input: string, config?: ParseConfig & { header?: false }): ParseResult<string[]>
-  export function parse(input: string, config: ParseConfig & { header: true }): ParseResult<Record<string, string | string[] | undefined>>
+  export function parse(
+    input: string,
+    config: ParseConfig & { header: true },
+  ): ParseResult<Record<string, string | string[] | undefined>>
 
   const Papa: { parse: typeof parse }
   export default Papa

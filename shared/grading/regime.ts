@@ -28,7 +28,10 @@ export const REGIME_CHOICES: readonly RegimeChoice[] = NOZZLE_REGIMES.map((regim
   ...(
     {
       subsonic: { label: 'Subsonic', hint: 'subsonic throughout: the throat is not choked' },
-      'shock-in-nozzle': { label: 'Shock in the nozzle', hint: 'choked, with a normal shock standing inside the diverging part' },
+      'shock-in-nozzle': {
+        label: 'Shock in the nozzle',
+        hint: 'choked, with a normal shock standing inside the diverging part',
+      },
       overexpanded: { label: 'Over-expanded', hint: 'supersonic exit, exit pressure below ambient' },
       ideal: { label: 'Ideally expanded', hint: 'supersonic exit, exit pressure equal to ambient (within 1 %)' },
       underexpanded: { label: 'Under-expanded', hint: 'supersonic exit, exit pressure above ambient' },
@@ -48,7 +51,12 @@ export const REGIME_CHOICES: readonly RegimeChoice[] = NOZZLE_REGIMES.map((regim
  * regimeBoundaries(nozzlePressureRatios(1.6875, 1.4)) // → [0.9088, 0.5751, 0.1291, 0.1265]
  */
 export function regimeBoundaries(ratios: NozzlePressureRatios): [number, number, number, number] {
-  return [ratios.chokeLimit, ratios.shockAtExit, ratios.design * (1 + IDEAL_EXPANSION_BAND), ratios.design * (1 - IDEAL_EXPANSION_BAND)]
+  return [
+    ratios.chokeLimit,
+    ratios.shockAtExit,
+    ratios.design * (1 + IDEAL_EXPANSION_BAND),
+    ratios.design * (1 - IDEAL_EXPANSION_BAND),
+  ]
 }
 
 /**
@@ -103,7 +111,13 @@ export function regimeNeighbourAccepted(
     const pressureRatio = evaluate(spec.pressureRatio)
     const areaRatio = evaluate(spec.areaRatio)
     if (typeof pressureRatio !== 'number' || typeof areaRatio !== 'number') return false
-    return acceptsNeighbourRegime(reported, expected, pressureRatio, nozzlePressureRatios(areaRatio, spec.gamma), spec.margin)
+    return acceptsNeighbourRegime(
+      reported,
+      expected,
+      pressureRatio,
+      nozzlePressureRatios(areaRatio, spec.gamma),
+      spec.margin,
+    )
   } catch {
     return false
   }

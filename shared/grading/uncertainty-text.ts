@@ -10,7 +10,9 @@ import type { UncertaintyContribution } from './uncertainty'
 function lowerFirst(label: string): string {
   const first = label.charAt(0)
   const second = label.charAt(1)
-  return second && second === second.toUpperCase() && second !== second.toLowerCase() ? label : first.toLowerCase() + label.slice(1)
+  return second && second === second.toUpperCase() && second !== second.toLowerCase()
+    ? label
+    : first.toLowerCase() + label.slice(1)
 }
 
 /** A share of the variance as a whole per cent ("62 %"). */
@@ -34,12 +36,20 @@ export function contributionText(c: Pick<UncertaintyContribution, 'label' | 'par
  *   { key: 'd_throat', part: 'value', label: 'Throat diameter', share: 0.3 }])
  * // → "mostly the chamber pressure column's gain (62 %) and the throat diameter (30 %)"
  */
-export function dominantInputsText(contributions: readonly Pick<UncertaintyContribution, 'key' | 'label' | 'part' | 'share'>[]): string | null {
+export function dominantInputsText(
+  contributions: readonly Pick<UncertaintyContribution, 'key' | 'label' | 'part' | 'share'>[],
+): string | null {
   const [first, second] = contributions
   if (!first) return null
-  if (!second) return first.share >= 0.995 ? `all from ${contributionText(first)}` : `mostly ${contributionText(first)} (${shareText(first.share)})`
+  if (!second)
+    return first.share >= 0.995
+      ? `all from ${contributionText(first)}`
+      : `mostly ${contributionText(first)} (${shareText(first.share)})`
   // Both parts of one column: "the thrust column's offset (76 %) and gain (24 %)".
-  const secondText = second.key === first.key && second.part !== 'value' && first.part !== 'value' ? second.part : contributionText(second)
+  const secondText =
+    second.key === first.key && second.part !== 'value' && first.part !== 'value'
+      ? second.part
+      : contributionText(second)
   return `mostly ${contributionText(first)} (${shareText(first.share)}) and ${secondText} (${shareText(second.share)})`
 }
 
@@ -47,7 +57,13 @@ export function dominantInputsText(contributions: readonly Pick<UncertaintyContr
  * An expected value with its expanded uncertainty U = k·u_c: "109.09 ± 2.4 N·s (k = 2)" (U to two
  * significant figures); the plain value when there is no uncertainty to show (none, or zero).
  */
-export function expectedWithUncertaintyText(expected: number | null, expanded: number | null, coverage: number | null, unit: string): string {
-  if (expected === null || !Number.isFinite(expected) || expanded === null || !(expanded > 0) || coverage === null) return valueText(expected, unit)
+export function expectedWithUncertaintyText(
+  expected: number | null,
+  expanded: number | null,
+  coverage: number | null,
+  unit: string,
+): string {
+  if (expected === null || !Number.isFinite(expected) || expanded === null || !(expanded > 0) || coverage === null)
+    return valueText(expected, unit)
   return `${withUnit(`${formatCompact(expected, 5)} ± ${formatCompact(expanded, 2)}`, unit)} (k = ${formatCompact(coverage, 3)})`
 }

@@ -85,7 +85,10 @@ export interface CheckUncertainty {
 
 /** Whether any measurement or column of the assignment declares an uncertainty. */
 export function declaresUncertainty(assignment: Assignment): boolean {
-  return assignment.measurements.some((m) => m.uncertainty) || assignment.tables.some((t) => t.columns.some((c) => c.uncertainty))
+  return (
+    assignment.measurements.some((m) => m.uncertainty) ||
+    assignment.tables.some((t) => t.columns.some((c) => c.uncertainty))
+  )
 }
 
 /**
@@ -94,7 +97,11 @@ export function declaresUncertainty(assignment: Assignment): boolean {
  *
  * @param uncertainty - the expected value's, in the result's unit; without one, only the floor counts
  */
-export function effectiveTolerance(tolerance: Tolerance, expected: number, uncertainty?: CheckUncertainty | null): number {
+export function effectiveTolerance(
+  tolerance: Tolerance,
+  expected: number,
+  uncertainty?: CheckUncertainty | null,
+): number {
   const floor = Math.max(tolerance.absolute ?? 0, (tolerance.relative ?? 0) * Math.abs(expected))
   if (tolerance.coverage === undefined || !uncertainty) return floor
   return Math.max(floor, tolerance.coverage * uncertainty.standard)
@@ -151,14 +158,21 @@ function plusScaled(samples: readonly number[], read: readonly number[], factor:
 }
 
 /** A copy of the scope (the same arrays) with some entries replaced. */
-function withEntries(scope: Readonly<Record<string, ExpressionValue>>, entries: [string, ExpressionValue][]): Record<string, ExpressionValue> {
+function withEntries(
+  scope: Readonly<Record<string, ExpressionValue>>,
+  entries: [string, ExpressionValue][],
+): Record<string, ExpressionValue> {
   const out = Object.assign(Object.create(null) as Record<string, ExpressionValue>, scope)
   for (const [k, v] of entries) out[k] = v
   return out
 }
 
 /** Every entry named moved by `delta` (numbers and every sample of a column). */
-function shifted(scope: Readonly<Record<string, ExpressionValue>>, names: Iterable<string>, delta: number): Record<string, ExpressionValue> {
+function shifted(
+  scope: Readonly<Record<string, ExpressionValue>>,
+  names: Iterable<string>,
+  delta: number,
+): Record<string, ExpressionValue> {
   const entries: [string, ExpressionValue][] = []
   for (const k of names) {
     const v = scope[k]
@@ -173,7 +187,11 @@ function shifted(scope: Readonly<Record<string, ExpressionValue>>, names: Iterab
  * buildExpressionScope turns the data into a scope (SI, gauge readings plus the barometer), entry
  * by entry; a test holds the two against each other.
  */
-function components(assignment: Assignment, data: SubmissionData, scope: Readonly<Record<string, ExpressionValue>>): Component[] {
+function components(
+  assignment: Assignment,
+  data: SubmissionData,
+  scope: Readonly<Record<string, ExpressionValue>>,
+): Component[] {
   const out: Component[] = []
   const ambient = assignment.measurements.find((m) => m.role === 'ambient-pressure')
   const gauge = [
@@ -184,7 +202,10 @@ function components(assignment: Assignment, data: SubmissionData, scope: Readonl
     const raw = data.measurements[m.key]
     const x = scope[m.key]
     if (!m.uncertainty || typeof raw !== 'number' || typeof x !== 'number') continue
-    const u = Math.hypot((m.uncertainty.absolute ?? 0) * unitScale(m.unit), (m.uncertainty.relative ?? 0) * Math.abs(raw))
+    const u = Math.hypot(
+      (m.uncertainty.absolute ?? 0) * unitScale(m.unit),
+      (m.uncertainty.relative ?? 0) * Math.abs(raw),
+    )
     if (!(u > 0)) continue
     const step = x === 0 ? u : Math.min(Math.max(u, MIN_STEP * Math.abs(x)), MAX_STEP * Math.abs(x))
     const moved = m === ambient ? [m.key, ...gauge] : [m.key]
@@ -194,7 +215,12 @@ function components(assignment: Assignment, data: SubmissionData, scope: Readonl
       label: m.label,
       moved: new Set(moved),
       ratio: u / step,
-      scope: (sign, read) => shifted(scope, moved.filter((k) => read.has(k)), sign * step),
+      scope: (sign, read) =>
+        shifted(
+          scope,
+          moved.filter((k) => read.has(k)),
+          sign * step,
+        ),
     })
   }
   for (const t of assignment.tables) {
@@ -207,7 +233,14 @@ function components(assignment: Assignment, data: SubmissionData, scope: Readonl
       const offset = (c.uncertainty.absolute ?? 0) * unitScale(c.unit)
       if (offset > 0) {
         const step = Math.max(offset, MIN_STEP * maxAbs(samples))
-        out.push({ key: c.key, part: 'offset', label: c.label, moved, ratio: offset / step, scope: (sign) => withEntries(scope, [[c.key, plus(samples, sign * step)]]) })
+        out.push({
+          key: c.key,
+          part: 'offset',
+          label: c.label,
+          moved,
+          ratio: offset / step,
+          scope: (sign) => withEntries(scope, [[c.key, plus(samples, sign * step)]]),
+        })
       }
       const gain = c.uncertainty.relative ?? 0
       if (gain > 0) {
@@ -266,7 +299,13 @@ export function propagateUncertainties(
 ): Map<string, CheckUncertainty | null> | null {
   if (!declaresUncertainty(assignment)) return null
   const evaluator = new PartEvaluator(scope)
-  const results = assignment.results.map((spec) => ({ spec, reads: readsOf(spec), base: valueOf(evaluator, spec), terms: [] as { c: Component; z: number }[], failed: false }))
+  const results = assignment.results.map((spec) => ({
+    spec,
+    reads: readsOf(spec),
+    base: valueOf(evaluator, spec),
+    terms: [] as { c: Component; z: number }[],
+    failed: false,
+  }))
 
   for (const c of components(assignment, data, scope)) {
     const users = results.filter((r) => r.base !== null && [...c.moved].some((n) => r.reads.has(n)))
@@ -280,7 +319,14 @@ export function propagateUncertainties(
       const plus = up[i] ?? null
       const minus = down[i] ?? null
       const base = r.base as number
-      const difference = plus !== null && minus !== null ? (plus - minus) / 2 : plus !== null ? plus - base : minus !== null ? base - minus : null
+      const difference =
+        plus !== null && minus !== null
+          ? (plus - minus) / 2
+          : plus !== null
+            ? plus - base
+            : minus !== null
+              ? base - minus
+              : null
       if (difference === null) r.failed = true
       else r.terms.push({ c, z: difference * c.ratio })
     })
@@ -303,7 +349,11 @@ export function propagateUncertainties(
             // Under half a per cent a contribution is not worth naming ("0 %").
             .filter((c) => c.share >= MIN_SHARE)
         : []
-    out.set(r.spec.key, { standard: Math.sqrt(variance), coverage: r.spec.tolerance.coverage ?? DEFAULT_COVERAGE, contributions })
+    out.set(r.spec.key, {
+      standard: Math.sqrt(variance),
+      coverage: r.spec.tolerance.coverage ?? DEFAULT_COVERAGE,
+      contributions,
+    })
   }
   return out
 }

@@ -7,7 +7,15 @@
  * shadow a function without pulling the expression engine into every bundle that validates a form.
  * `expressions.ts` enforces these lists; `schema.ts` uses {@link RESERVED_NAMES}.
  */
-import type { IsentropicRatios, NormalShock, NozzleFlow, NozzleInput, NozzlePressureRatios, ThrustRun, ThrustRunOptions } from '../physics'
+import type {
+  IsentropicRatios,
+  NormalShock,
+  NozzleFlow,
+  NozzleInput,
+  NozzlePressureRatios,
+  ThrustRun,
+  ThrustRunOptions,
+} from '../physics'
 
 /** Smallest and largest argument count; `max` is Infinity for variadic functions. */
 export interface Arity {
@@ -97,7 +105,11 @@ export const MATH_FUNCTIONS: Readonly<Record<string, Arity>> = {
 }
 
 /** Every callable name, with its arity. */
-export const FUNCTIONS: Readonly<Record<string, Arity>> = { ...LIBRARY_FUNCTIONS, ...EXTRA_FUNCTIONS, ...MATH_FUNCTIONS }
+export const FUNCTIONS: Readonly<Record<string, Arity>> = {
+  ...LIBRARY_FUNCTIONS,
+  ...EXTRA_FUNCTIONS,
+  ...MATH_FUNCTIONS,
+}
 
 /** Named constants (symbols, not calls). `true` and `false` are literals and need no entry. */
 export const CONSTANTS: readonly string[] = ['pi', 'e', 'G0']

@@ -135,14 +135,16 @@ const argmin = (values: unknown) => argExtreme('argmin', values, (a, b) => a < b
 
 /** interp(x, xs, ys): linear interpolation; xs strictly increasing, x within [xs₁, xsₙ]. */
 function interp(x: unknown, xs: unknown, ys: unknown): number {
-  if (typeof x !== 'number' || !Number.isFinite(x)) throw new RangeError(`interp: x must be a finite number (got ${String(x)})`)
+  if (typeof x !== 'number' || !Number.isFinite(x))
+    throw new RangeError(`interp: x must be a finite number (got ${String(x)})`)
   const a = requireNumbers('interp', 'xs', xs)
   const b = requireNumbers('interp', 'ys', ys)
   if (a.length !== b.length || a.length < 2) {
     throw new RangeError(`interp: xs and ys must have the same length, at least 2 (got ${a.length} and ${b.length})`)
   }
   for (let i = 1; i < a.length; i++) {
-    if (!((a[i] as number) > (a[i - 1] as number))) throw new RangeError(`interp: xs must increase (xs[${i}] ≥ xs[${i + 1}])`)
+    if (!((a[i] as number) > (a[i - 1] as number)))
+      throw new RangeError(`interp: xs must increase (xs[${i}] ≥ xs[${i + 1}])`)
   }
   const first = a[0] as number
   const last = a[a.length - 1] as number
@@ -181,7 +183,8 @@ function reduceThrustRun(time: readonly number[], thrust: readonly number[], opt
 /** regimeCode(regime): 1 subsonic, 2 shock in nozzle, 3 over-expanded, 4 ideal, 5 under-expanded. */
 function regimeCode(regime: unknown): number {
   const i = (NOZZLE_REGIMES as readonly unknown[]).indexOf(regime)
-  if (i < 0) throw new RangeError(`regimeCode: unknown regime ${String(regime)}; expected one of ${NOZZLE_REGIMES.join(', ')}`)
+  if (i < 0)
+    throw new RangeError(`regimeCode: unknown regime ${String(regime)}; expected one of ${NOZZLE_REGIMES.join(', ')}`)
   return i + 1
 }
 
@@ -280,16 +283,25 @@ const isNumberArray = (x: unknown): x is number[] => {
   for (const [name, op] of Object.entries(FAST_ELEMENTWISE)) {
     const original = (math as unknown as Record<string, Fn>)[name]!
     // multiply/divide of two arrays are matrix products in mathjs: keep those as they are.
-    const arrays: Fn | null = name === 'multiply' || name === 'divide' ? null : (a: unknown, b: unknown) =>
-      isNumberArray(a) && isNumberArray(b) && a.length === b.length ? a.map((v, i) => op(v, b[i]!)) : original(a, b)
+    const arrays: Fn | null =
+      name === 'multiply' || name === 'divide'
+        ? null
+        : (a: unknown, b: unknown) =>
+            isNumberArray(a) && isNumberArray(b) && a.length === b.length
+              ? a.map((v, i) => op(v, b[i]!))
+              : original(a, b)
     replacements[name] = typed(name, {
       'number, number': (a: unknown, b: unknown) => op(a as number, b as number),
       ...(arrays ? { 'Array, Array': arrays } : {}),
-      'Array, number': (a: unknown, b: unknown) => (isNumberArray(a) ? a.map((v) => op(v, b as number)) : original(a, b)),
-      'number, Array': (a: unknown, b: unknown) => (isNumberArray(b) ? b.map((v) => op(a as number, v)) : original(a, b)),
+      'Array, number': (a: unknown, b: unknown) =>
+        isNumberArray(a) ? a.map((v) => op(v, b as number)) : original(a, b),
+      'number, Array': (a: unknown, b: unknown) =>
+        isNumberArray(b) ? b.map((v) => op(a as number, v)) : original(a, b),
       'any, any': (a: unknown, b: unknown) => original(a, b),
       // add(a, b, c, …) and multiply(a, b, c, …) keep taking any number of arguments.
-      ...(name === 'add' || name === 'multiply' ? { 'any, any, ...any': (a: unknown, b: unknown, rest: unknown) => original(a, b, ...(rest as unknown[])) } : {}),
+      ...(name === 'add' || name === 'multiply'
+        ? { 'any, any, ...any': (a: unknown, b: unknown, rest: unknown) => original(a, b, ...(rest as unknown[])) }
+        : {}),
     })
   }
   math.import(replacements, { override: true })
@@ -459,7 +471,8 @@ class Checker {
   check(node: MathNode): void {
     if (math.isConstantNode(node)) {
       const t = typeof node.value
-      if (t !== 'number' && t !== 'string' && t !== 'boolean') this.refuse(`the value ${node.toString()} cannot be used`)
+      if (t !== 'number' && t !== 'string' && t !== 'boolean')
+        this.refuse(`the value ${node.toString()} cannot be used`)
     } else if (math.isSymbolNode(node)) {
       this.symbol(node.name)
     } else if (math.isFunctionNode(node)) {
@@ -493,11 +506,15 @@ class Checker {
     } else if (math.isFunctionAssignmentNode(node)) {
       this.refuse(`defining a function (${node.name}(…) = …) is not allowed in module expressions`)
     } else if (math.isBlockNode(node)) {
-      this.refuse('an expression is a single formula; several statements separated by ";" or line breaks are not allowed')
+      this.refuse(
+        'an expression is a single formula; several statements separated by ";" or line breaks are not allowed',
+      )
     } else if (math.isRangeNode(node)) {
       this.refuse('ranges (a:b) are not supported in module expressions')
     } else if (math.isObjectNode(node)) {
-      this.refuse('an object {…} is allowed only as the input of nozzleFlow({…}) and as the options of reduceThrustRun(t, thrust, {threshold: …})')
+      this.refuse(
+        'an object {…} is allowed only as the input of nozzleFlow({…}) and as the options of reduceThrustRun(t, thrust, {threshold: …})',
+      )
     } else {
       this.refuse(`"${node.toString()}" (${node.type}) is not supported in module expressions`)
     }
@@ -507,7 +524,8 @@ class Checker {
     if (CONSTANT_NAMES.has(name)) return
     if (this.known?.has(name)) return
     if (DISABLED.has(name)) this.refuse(`${name} is disabled in module expressions`)
-    else if (Object.prototype.hasOwnProperty.call(FUNCTIONS, name)) this.refuse(`${name} is a function: call it with its arguments, ${name}(…)`)
+    else if (Object.prototype.hasOwnProperty.call(FUNCTIONS, name))
+      this.refuse(`${name} is a function: call it with its arguments, ${name}(…)`)
     else this.unknown(name)
   }
 
@@ -532,7 +550,8 @@ class Checker {
       return
     }
     const n = node.args.length
-    if (n < arity.min || n > arity.max) this.refuse(`${describeArity(name, arity.min, arity.max)}, but ${n} ${n === 1 ? 'is' : 'are'} given`)
+    if (n < arity.min || n > arity.max)
+      this.refuse(`${describeArity(name, arity.min, arity.max)}, but ${n} ${n === 1 ? 'is' : 'are'} given`)
     const keys = OBJECT_ARGUMENTS[name]
     if (keys) {
       const input = node.args[0]
@@ -541,7 +560,8 @@ class Checker {
         const missing = keys.filter((k) => !given.includes(k))
         const extra = given.filter((k) => !keys.includes(k))
         if (missing.length > 0) this.refuse(`${name}({…}) needs ${missing.join(', ')}`)
-        if (extra.length > 0) this.refuse(`${name}({…}) has no input named ${extra.join(', ')}; its inputs are ${keys.join(', ')}`)
+        if (extra.length > 0)
+          this.refuse(`${name}({…}) has no input named ${extra.join(', ')}; its inputs are ${keys.join(', ')}`)
         for (const value of Object.values(input.properties)) this.check(value)
       } else if (input) {
         this.refuse(`${name} takes one object of named inputs: ${name}({${keys.map((k) => `${k}: …`).join(', ')}})`)
@@ -553,7 +573,10 @@ class Checker {
     node.args.forEach((a, i) => {
       if (options && i === options.index && math.isObjectNode(a)) {
         const extra = Object.keys(a.properties).filter((k) => !options.keys.includes(k))
-        if (extra.length > 0) this.refuse(`${name}(…, {…}) has no option named ${extra.join(', ')}; its options are ${options.keys.join(', ')}`)
+        if (extra.length > 0)
+          this.refuse(
+            `${name}(…, {…}) has no option named ${extra.join(', ')}; its options are ${options.keys.join(', ')}`,
+          )
         for (const value of Object.values(a.properties)) this.check(value)
       } else {
         this.check(a)
@@ -568,14 +591,17 @@ class Checker {
       const index = base.index
       const dimension = index.dimensions[0]
       if (!index.dotNotation || index.dimensions.length !== 1 || !dimension || !math.isConstantNode(dimension)) {
-        this.refuse(`indexing with brackets ("${node.toString()}") is not supported; pick a sample with at(values, i), counting from 1`)
+        this.refuse(
+          `indexing with brackets ("${node.toString()}") is not supported; pick a sample with at(values, i), counting from 1`,
+        )
         return
       }
       fields.unshift(String(dimension.value))
       base = base.object
     }
     const name = math.isFunctionNode(base) && math.isSymbolNode(base.fn) ? base.fn.name : undefined
-    const tree = name !== undefined && Object.prototype.hasOwnProperty.call(RESULT_FIELDS, name) ? RESULT_FIELDS[name] : undefined
+    const tree =
+      name !== undefined && Object.prototype.hasOwnProperty.call(RESULT_FIELDS, name) ? RESULT_FIELDS[name] : undefined
     if (!tree) {
       this.refuse(`"${node.toString()}": a field can only be read from the result of ${OBJECT_FUNCTIONS}`)
       return
@@ -589,7 +615,8 @@ class Checker {
       }
       level = level[field] as FieldTree | true
     }
-    if (level !== true) this.refuse(`"${node.toString()}" is a group of values; read one of ${Object.keys(level).join(', ')}`)
+    if (level !== true)
+      this.refuse(`"${node.toString()}" is a group of values; read one of ${Object.keys(level).join(', ')}`)
     this.check(base)
   }
 }
@@ -662,7 +689,8 @@ export function checkedExpressionTree(expr: string): MathNode {
 }
 
 function describeResult(value: unknown): string {
-  if (Array.isArray(value)) return `a list of ${value.length} values instead of one; reduce it with max(), mean(), at() or similar`
+  if (Array.isArray(value))
+    return `a list of ${value.length} values instead of one; reduce it with max(), mean(), at() or similar`
   if (typeof value === 'string') return `the text "${value}" instead of a number`
   if (value === null || value === undefined) return 'no value'
   if (typeof value === 'object') return 'a group of values instead of one; read one of its fields with .name'
@@ -682,7 +710,9 @@ export function evaluateExpression(expr: string, scope: ExpressionScope): number
   const code = compiled(expr)
   const missing = code.freeNames.filter((n) => !Object.prototype.hasOwnProperty.call(scope, n))
   if (missing.length > 0) {
-    throw new ExpressionError(`unknown name${missing.length === 1 ? '' : 's'} ${missing.map((n) => `"${n}"`).join(', ')}`)
+    throw new ExpressionError(
+      `unknown name${missing.length === 1 ? '' : 's'} ${missing.map((n) => `"${n}"`).join(', ')}`,
+    )
   }
   const values = new Map<string, unknown>()
   for (const name of code.freeNames) values.set(name, scope[name])
@@ -759,7 +789,9 @@ export function validateExpression(expr: string, context: ExpressionContext): Ex
     return [{ message: `a trial run with made-up data failed: ${(error as Error).message}` }]
   }
   if (context.produces === 'boolean' && typeof value !== 'boolean') {
-    return [{ message: `a review rule must give true or false, but this gives the number ${value}; compare with <, >, == …` }]
+    return [
+      { message: `a review rule must give true or false, but this gives the number ${value}; compare with <, >, == …` },
+    ]
   }
   if (context.produces === 'number' && typeof value !== 'number') {
     return [{ message: 'an expected value must be a number, but this gives true/false' }]
@@ -836,7 +868,10 @@ const TRIAL_ROWS = 41
 /** The assignment with each table's minRows lowered to {@link TRIAL_ROWS} for the made-up data. */
 function trialSized(assignment: Assignment): Assignment {
   if (!assignment.tables.some((t) => t.minRows > TRIAL_ROWS)) return assignment
-  return { ...assignment, tables: assignment.tables.map((t) => (t.minRows > TRIAL_ROWS ? { ...t, minRows: TRIAL_ROWS } : t)) }
+  return {
+    ...assignment,
+    tables: assignment.tables.map((t) => (t.minRows > TRIAL_ROWS ? { ...t, minRows: TRIAL_ROWS } : t)),
+  }
 }
 
 /**
@@ -859,7 +894,12 @@ export function validateAssignmentExpressions(assignment: Assignment): LocatedEx
     full ??= assignmentContexts(assignment)
     return validateExpression(expr, pick(full))
   }
-  const validate = (owner: string, expr: string, path: (string | number)[], pick: (c: AssignmentContexts) => ExpressionContext) => {
+  const validate = (
+    owner: string,
+    expr: string,
+    path: (string | number)[],
+    pick: (c: AssignmentContexts) => ExpressionContext,
+  ) => {
     const over = expressionBudgetProblem(expr)
     if (over !== null) {
       issues.push({ message: `${owner}: ${over}`, path })
@@ -867,12 +907,26 @@ export function validateAssignmentExpressions(assignment: Assignment): LocatedEx
     }
     for (const issue of check(expr, pick)) issues.push({ ...issue, path })
   }
-  assignment.results.forEach((r, i) => validate(`result "${r.key}"`, r.expected, ['assignment', 'results', i, 'expected'], (c) => c.expected))
+  assignment.results.forEach((r, i) =>
+    validate(`result "${r.key}"`, r.expected, ['assignment', 'results', i, 'expected'], (c) => c.expected),
+  )
   assignment.results.forEach((r, i) => {
     if (!r.regime) return
-    validate(`result "${r.key}" (regime pressure ratio)`, r.regime.pressureRatio, ['assignment', 'results', i, 'regime', 'pressureRatio'], (c) => c.expected)
-    validate(`result "${r.key}" (regime area ratio)`, r.regime.areaRatio, ['assignment', 'results', i, 'regime', 'areaRatio'], (c) => c.expected)
+    validate(
+      `result "${r.key}" (regime pressure ratio)`,
+      r.regime.pressureRatio,
+      ['assignment', 'results', i, 'regime', 'pressureRatio'],
+      (c) => c.expected,
+    )
+    validate(
+      `result "${r.key}" (regime area ratio)`,
+      r.regime.areaRatio,
+      ['assignment', 'results', i, 'regime', 'areaRatio'],
+      (c) => c.expected,
+    )
   })
-  assignment.reviewRules.forEach((rule, i) => validate(`review rule "${rule.key}"`, rule.when, ['assignment', 'reviewRules', i, 'when'], (c) => c.review))
+  assignment.reviewRules.forEach((rule, i) =>
+    validate(`review rule "${rule.key}"`, rule.when, ['assignment', 'reviewRules', i, 'when'], (c) => c.review),
+  )
   return issues
 }

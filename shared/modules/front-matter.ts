@@ -144,7 +144,8 @@ function plainMessage(raw: RawIssue): string | undefined {
     }
     case 'unrecognized_keys': {
       const inst: unknown = raw.inst
-      const shape = typeof inst === 'object' && inst !== null && 'shape' in inst ? (inst as { shape: unknown }).shape : undefined
+      const shape =
+        typeof inst === 'object' && inst !== null && 'shape' in inst ? (inst as { shape: unknown }).shape : undefined
       const allowed = typeof shape === 'object' && shape !== null ? Object.keys(shape) : []
       const keys = raw.keys.map((k) => `"${k}"`).join(', ')
       const hint = allowed.length > 0 ? `; the fields allowed here are ${allowed.join(', ')}` : ''
@@ -176,7 +177,13 @@ export function parseModuleSource(source: string, name: string): ParsedModule {
   if (utf8ByteLength(source) > MAX_SOURCE_BYTES) {
     return {
       ok: false,
-      errors: [moduleIssue(name, '', 'the module is larger than 1 MB (1 048 576 bytes of UTF-8); split it into smaller modules')],
+      errors: [
+        moduleIssue(
+          name,
+          '',
+          'the module is larger than 1 MB (1 048 576 bytes of UTF-8); split it into smaller modules',
+        ),
+      ],
     }
   }
   const normalised = source.replace(/^\uFEFF/, '').replace(/\r\n?/g, '\n')
@@ -194,7 +201,8 @@ export function parseModuleSource(source: string, name: string): ParsedModule {
 
   const lineCounter = new LineCounter()
   const doc = parseDocument(split.yaml, { lineCounter, prettyErrors: false, uniqueKeys: true })
-  const toLine = (offset: number | undefined) => (offset === undefined ? undefined : lineCounter.linePos(offset).line + split.yamlLine - 1)
+  const toLine = (offset: number | undefined) =>
+    offset === undefined ? undefined : lineCounter.linePos(offset).line + split.yamlLine - 1
 
   const yamlProblems = [...doc.errors, ...doc.warnings]
   if (yamlProblems.length > 0) {
@@ -216,7 +224,14 @@ export function parseModuleSource(source: string, name: string): ParsedModule {
     return fail([moduleIssue(name, '', 'the front matter is empty; it needs at least a title', split.yamlLine)])
   }
   if (typeof data !== 'object' || Array.isArray(data)) {
-    return fail([moduleIssue(name, '', 'the front matter must be a set of "name: value" lines (title, due, assignment, …)', split.yamlLine)])
+    return fail([
+      moduleIssue(
+        name,
+        '',
+        'the front matter must be a set of "name: value" lines (title, due, assignment, …)',
+        split.yamlLine,
+      ),
+    ])
   }
 
   const lineOf = (path: readonly (string | number)[]) => toLine(offsetOf(doc, path))

@@ -44,7 +44,8 @@ function readCalculatorBlock(info: string, content: string): CalculatorBlock {
   const words = info.trim().split(/\s+/)
   const kind = words[1]
   const kinds = CALCULATOR_KINDS.join(', ')
-  if (kind === undefined) return { ok: false, message: `say which calculator, e.g. "calculator nozzle"; the kinds are ${kinds}` }
+  if (kind === undefined)
+    return { ok: false, message: `say which calculator, e.g. "calculator nozzle"; the kinds are ${kinds}` }
   if (!isCalculatorKind(kind)) return { ok: false, message: `there is no calculator "${kind}"; the kinds are ${kinds}` }
   if (words.length > 2) return { ok: false, message: `write only "calculator ${kind}" after the three backticks` }
 
@@ -65,7 +66,8 @@ function readCalculatorBlock(info: string, content: string): CalculatorBlock {
   if (entries.length > MAX_DEFAULTS) return { ok: false, message: `a calculator takes at most ${MAX_DEFAULTS} inputs` }
   const defaults: CalculatorDefaults = {}
   for (const [name, value] of entries) {
-    if (!DEFAULT_NAME.test(name)) return { ok: false, message: `"${name}" is not an input name (letters, digits and _)` }
+    if (!DEFAULT_NAME.test(name))
+      return { ok: false, message: `"${name}" is not an input name (letters, digits and _)` }
     const fine =
       (typeof value === 'number' && Number.isFinite(value)) ||
       typeof value === 'boolean' ||
@@ -156,9 +158,12 @@ const NUMBER = String.raw`-?(?:\d+(?:\.\d+)?|\.\d+)`
 const LENGTH = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt|mu|%)?$`)
 const LENGTHS = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt|mu|%)?(?:\s+${NUMBER}(?:em|ex|px|pt|mu|%)?){0,3}$`)
 const WIDTH = new RegExp(String.raw`^(?:${NUMBER}(?:em|ex|px|pt|mu|%)?|calc\(100% - ${NUMBER}em\))$`)
-const COLOR = /^(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}|rgba?\(\s*[\d.]+%?\s*,\s*[\d.]+%?\s*,\s*[\d.]+%?\s*(?:,\s*[\d.]+\s*)?\))$/
+const COLOR =
+  /^(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}|rgba?\(\s*[\d.]+%?\s*,\s*[\d.]+%?\s*,\s*[\d.]+%?\s*(?:,\s*[\d.]+\s*)?\))$/
 const BORDER_STYLE = /^(?:solid|dashed|dotted|none)$/
-const BORDER = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt)?\s+(?:solid|dashed|dotted)(?:\s+(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}))?$`)
+const BORDER = new RegExp(
+  String.raw`^${NUMBER}(?:em|ex|px|pt)?\s+(?:solid|dashed|dotted)(?:\s+(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}))?$`,
+)
 
 const KATEX_STYLES: Record<string, RegExp[]> = {
   'background-color': [COLOR],
@@ -260,12 +265,42 @@ const MATHML_ATTRIBUTES = [
 const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
   allowedTags: [
     // Markdown
-    'p', 'h1', 'h2', 'h3', 'h4', 'h5', 'h6', 'blockquote', 'ul', 'ol', 'li', 'strong', 'em', 's', 'del',
-    'code', 'pre', 'hr', 'br', 'a', 'img', 'table', 'thead', 'tbody', 'tr', 'th', 'td',
+    'p',
+    'h1',
+    'h2',
+    'h3',
+    'h4',
+    'h5',
+    'h6',
+    'blockquote',
+    'ul',
+    'ol',
+    'li',
+    'strong',
+    'em',
+    's',
+    'del',
+    'code',
+    'pre',
+    'hr',
+    'br',
+    'a',
+    'img',
+    'table',
+    'thead',
+    'tbody',
+    'tr',
+    'th',
+    'td',
     // markdown-it-texmath's wrappers and KaTeX's HTML
-    'section', 'eqn', 'eq', 'span',
+    'section',
+    'eqn',
+    'eq',
+    'span',
     // KaTeX's SVG (square roots, stretchy arrows and accents)
-    'svg', 'path', 'line',
+    'svg',
+    'path',
+    'line',
     // the calculator placeholder and inline error boxes
     'div',
     ...MATHML_TAGS,
@@ -285,7 +320,9 @@ const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
     line: ['x1', 'y1', 'x2', 'y2', 'stroke-width'],
     math: ['xmlns', 'display', ...MATHML_ATTRIBUTES],
     annotation: ['encoding'],
-    ...Object.fromEntries(MATHML_TAGS.filter((t) => t !== 'math' && t !== 'annotation').map((t) => [t, MATHML_ATTRIBUTES])),
+    ...Object.fromEntries(
+      MATHML_TAGS.filter((t) => t !== 'math' && t !== 'annotation').map((t) => [t, MATHML_ATTRIBUTES]),
+    ),
     mpadded: [...MATHML_ATTRIBUTES, 'style'],
   },
   allowedClasses: {

@@ -19,7 +19,11 @@ const cache = new WeakMap<object, Map<object, Map<string, Outcome>>>()
  * too and thrown again. Arguments that are not arrays go straight to the library, which refuses
  * them with its own message.
  */
-export function cachedThrustRun(time: readonly number[], thrust: readonly number[], options?: ThrustRunOptions): ThrustRunAnalysis {
+export function cachedThrustRun(
+  time: readonly number[],
+  thrust: readonly number[],
+  options?: ThrustRunOptions,
+): ThrustRunAnalysis {
   if (!Array.isArray(time) || !Array.isArray(thrust)) return analyseThrustRun(time, thrust, options)
   const key = options === undefined ? '' : JSON.stringify(options)
   let byTime = cache.get(thrust)

@@ -38,9 +38,13 @@ const KEY_PATTERN = /^[a-z][a-zA-Z0-9_]*$/
 const KeySchema = z
   .string()
   .max(40, 'a key has at most 40 characters')
-  .regex(KEY_PATTERN, 'a key starts with a lower-case letter and has only letters, digits and _ (for example chamber_pressure)')
+  .regex(
+    KEY_PATTERN,
+    'a key starts with a lower-case letter and has only letters, digits and _ (for example chamber_pressure)',
+  )
   .refine((k) => !RESERVED_NAMES.has(k), {
-    message: 'this key is the name of a function, constant or keyword of the expressions; choose another (for example add a suffix)',
+    message:
+      'this key is the name of a function, constant or keyword of the expressions; choose another (for example add a suffix)',
   })
 
 const TableKeySchema = z
@@ -122,7 +126,10 @@ const ResultUnitSchema = z
   .refine(isResultUnit, `${dataUnitMessage}; results may also use ${Object.keys(RESULT_ONLY_UNITS).join(', ')}`)
 
 /** A pressure unit needs to say gauge or absolute; any other unit must not. */
-function checkPressureSense(value: { unit: string; pressure?: 'gauge' | 'absolute' | undefined }, ctx: z.RefinementCtx): void {
+function checkPressureSense(
+  value: { unit: string; pressure?: 'gauge' | 'absolute' | undefined },
+  ctx: z.RefinementCtx,
+): void {
   if (isPressureUnit(value.unit) && value.pressure === undefined) {
     ctx.addIssue({
       code: 'custom',
@@ -160,8 +167,12 @@ export const UncertaintySchema = z
   })
 
 /** A relative uncertainty of a Celsius or Fahrenheit reading would depend on where the scale's zero is. */
-function checkUncertainty(value: { unit: string; uncertainty?: { relative?: number | undefined } | undefined }, ctx: z.RefinementCtx): void {
-  if (value.uncertainty?.relative === undefined || dataUnitKind(value.unit) !== 'temperature' || value.unit === 'K') return
+function checkUncertainty(
+  value: { unit: string; uncertainty?: { relative?: number | undefined } | undefined },
+  ctx: z.RefinementCtx,
+): void {
+  if (value.uncertainty?.relative === undefined || dataUnitKind(value.unit) !== 'temperature' || value.unit === 'K')
+    return
   ctx.addIssue({
     code: 'custom',
     path: ['uncertainty', 'relative'],
@@ -197,7 +208,10 @@ const ROLE_KINDS: Readonly<Record<ColumnRole | MeasurementRole, { kind: string; 
   'receiver-volume': { kind: 'volume', words: 'the receiver volume must be in a volume unit (m3, L, gal)' },
 }
 
-function checkRoleUnit(value: { unit: string; role?: ColumnRole | MeasurementRole | undefined }, ctx: z.RefinementCtx): void {
+function checkRoleUnit(
+  value: { unit: string; role?: ColumnRole | MeasurementRole | undefined },
+  ctx: z.RefinementCtx,
+): void {
   if (value.role === undefined) return
   const need = ROLE_KINDS[value.role]
   if (isDataUnit(value.unit) && dataUnitKind(value.unit) !== need.kind) {
@@ -214,9 +228,7 @@ export const ColumnSchema = z
     uncertainty: UncertaintySchema.optional(),
     pressure: PressureSenseSchema.optional(),
     /** What the column is to the built-in data checks; see {@link COLUMN_ROLES}. */
-    role: z
-      .enum(COLUMN_ROLES, { message: `a column role is one of ${COLUMN_ROLES.join(', ')}` })
-      .optional(),
+    role: z.enum(COLUMN_ROLES, { message: `a column role is one of ${COLUMN_ROLES.join(', ')}` }).optional(),
     /**
      * A gauge pressure whose transducer zero is taken like the load cell's: the column's median
      * over the thrust run's quiet samples before and after the run is removed along the run's tare
@@ -232,7 +244,10 @@ export const ColumnSchema = z
      * transducer. The chamber-above-receiver check allows each pressure transducer's error,
      * `fullScaleError` × full scale, instead of guessing it from the largest reading.
      */
-    fullScale: z.number().positive('the full scale is the span of the instrument, greater than 0, in the column unit').optional(),
+    fullScale: z
+      .number()
+      .positive('the full scale is the span of the instrument, greater than 0, in the column unit')
+      .optional(),
     /** The instrument's error as a fraction of its full scale, 0–0.2; left out, 0.01 (±1 % of full scale). */
     fullScaleError: z
       .number()
@@ -248,11 +263,16 @@ export const ColumnSchema = z
       ctx.addIssue({
         code: 'custom',
         path: ['tare'],
-        message: 'tare: true takes the zero of a gauge pressure transducer, so it needs a pressure column with "pressure: gauge"',
+        message:
+          'tare: true takes the zero of a gauge pressure transducer, so it needs a pressure column with "pressure: gauge"',
       })
     }
     if (column.fullScaleError !== undefined && column.fullScale === undefined) {
-      ctx.addIssue({ code: 'custom', path: ['fullScaleError'], message: 'a full-scale error needs the full scale too: add "fullScale"' })
+      ctx.addIssue({
+        code: 'custom',
+        path: ['fullScaleError'],
+        message: 'a full-scale error needs the full scale too: add "fullScale"',
+      })
     }
   })
 
@@ -268,7 +288,11 @@ export const TableSchema = z
   .superRefine((table, ctx) => {
     const timeColumns = table.columns.flatMap((c, i) => (c.role === 'time' ? [i] : []))
     for (const i of timeColumns.slice(1)) {
-      ctx.addIssue({ code: 'custom', path: ['columns', i, 'role'], message: 'a table has at most one column with role: time' })
+      ctx.addIssue({
+        code: 'custom',
+        path: ['columns', i, 'role'],
+        message: 'a table has at most one column with role: time',
+      })
     }
     // A tared column takes its zero and window from the thrust run logged beside it.
     const hasRun = timeColumns.length > 0 && table.columns.some((c) => c.role === 'thrust')
@@ -277,7 +301,8 @@ export const TableSchema = z
         ctx.addIssue({
           code: 'custom',
           path: ['columns', i, 'tare'],
-          message: 'tare: true takes the zero and the window of the thrust run, so the table needs a column with role: thrust and one with role: time',
+          message:
+            'tare: true takes the zero and the window of the thrust run, so the table needs a column with role: thrust and one with role: time',
         })
       }
     })
@@ -315,7 +340,8 @@ export const MeasurementSchema = z
       ctx.addIssue({
         code: 'custom',
         path: ['role'],
-        message: 'the ambient pressure must be an absolute pressure (a barometer reading): give a pressure unit and "pressure: absolute"',
+        message:
+          'the ambient pressure must be an absolute pressure (a barometer reading): give a pressure unit and "pressure: absolute"',
       })
     }
   })
@@ -396,26 +422,31 @@ export const RegimeSpecSchema = z.strictObject({
 
 /** A result's fields before its expressions are checked (zod cannot make a refined schema partial). */
 const ResultSpecFields = z.strictObject({
-    key: KeySchema,
-    label: LabelSchema,
-    unit: ResultUnitSchema,
-    /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
-    expected: ExpressionTextSchema,
-    tolerance: ToleranceSchema,
-    points: z.number().positive('points must be greater than 0'),
-    partial: PartialCreditSchema.optional(),
-    /** This result is an expansion-regime code; see {@link RegimeSpecSchema}. */
-    regime: RegimeSpecSchema.optional(),
-  })
+  key: KeySchema,
+  label: LabelSchema,
+  unit: ResultUnitSchema,
+  /** Expected value in SI over the submission's data (see expressions.ts for the scope). */
+  expected: ExpressionTextSchema,
+  tolerance: ToleranceSchema,
+  points: z.number().positive('points must be greater than 0'),
+  partial: PartialCreditSchema.optional(),
+  /** This result is an expansion-regime code; see {@link RegimeSpecSchema}. */
+  regime: RegimeSpecSchema.optional(),
+})
 
 export const ResultSpecSchema = ResultSpecFields.superRefine((r, ctx) => {
-    checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected')
-    if (r.regime) {
-      checkExpressionLength(`result "${r.key}" (regime pressure ratio)`, r.regime.pressureRatio, ctx, 'regime')
-      checkExpressionLength(`result "${r.key}" (regime area ratio)`, r.regime.areaRatio, ctx, 'regime')
-      if (r.unit !== DIMENSIONLESS) ctx.addIssue({ code: 'custom', path: ['unit'], message: `a regime code is a pure number: use unit '${DIMENSIONLESS}'` })
-    }
-  })
+  checkExpressionLength(`result "${r.key}"`, r.expected, ctx, 'expected')
+  if (r.regime) {
+    checkExpressionLength(`result "${r.key}" (regime pressure ratio)`, r.regime.pressureRatio, ctx, 'regime')
+    checkExpressionLength(`result "${r.key}" (regime area ratio)`, r.regime.areaRatio, ctx, 'regime')
+    if (r.unit !== DIMENSIONLESS)
+      ctx.addIssue({
+        code: 'custom',
+        path: ['unit'],
+        message: `a regime code is a pure number: use unit '${DIMENSIONLESS}'`,
+      })
+  }
+})
 
 /**
  * A result as a student's browser receives it: without the grading expressions (the expected
@@ -432,14 +463,19 @@ export const ReviewRuleSchema = z
     /** Boolean expression over the data and the reported results; true flags the submission. */
     when: ExpressionTextSchema,
     /** What staff read in the review queue. */
-    reason: z.string().trim().min(1, 'say in words why the rule flags a submission').max(500, 'a reason has at most 500 characters'),
+    reason: z
+      .string()
+      .trim()
+      .min(1, 'say in words why the rule flags a submission')
+      .max(500, 'a reason has at most 500 characters'),
   })
   .superRefine((r, ctx) => checkExpressionLength(`review rule "${r.key}"`, r.when, ctx, 'when'))
 
 /** "… (the 41st is "isp_2")": the first entry over a count limit, by its key. */
 function firstOver(input: unknown, limit: number): string {
   const entry: unknown = Array.isArray(input) ? input[limit] : undefined
-  const key = typeof entry === 'object' && entry !== null && 'key' in entry ? (entry as { key: unknown }).key : undefined
+  const key =
+    typeof entry === 'object' && entry !== null && 'key' in entry ? (entry as { key: unknown }).key : undefined
   return typeof key === 'string' ? `; the first over the limit is "${key}"` : ''
 }
 
@@ -466,7 +502,10 @@ export const AssignmentSchema = z
     // Table keys, column keys, measurement keys and result keys share one namespace: the expressions'.
     const seen = new Map<string, string>()
     const claim = (key: string, path: (string | number)[]) => {
-      const where = path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${p}`)).join('').slice(1)
+      const where = path
+        .map((p) => (typeof p === 'number' ? `[${p}]` : `.${p}`))
+        .join('')
+        .slice(1)
       const first = seen.get(key)
       if (first !== undefined) {
         ctx.addIssue({
@@ -488,7 +527,11 @@ export const AssignmentSchema = z
     const ruleKeys = new Set<string>()
     a.reviewRules.forEach((r, i) => {
       if (ruleKeys.has(r.key)) {
-        ctx.addIssue({ code: 'custom', path: ['reviewRules', i, 'key'], message: `another review rule already has the key "${r.key}"` })
+        ctx.addIssue({
+          code: 'custom',
+          path: ['reviewRules', i, 'key'],
+          message: `another review rule already has the key "${r.key}"`,
+        })
       }
       ruleKeys.add(r.key)
     })
@@ -497,7 +540,10 @@ export const AssignmentSchema = z
     // (except `time`, once per table: TableSchema checks that).
     const roleHolder = new Map<string, string>()
     const claimRole = (role: string, path: (string | number)[], key: string) => {
-      const where = `${path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${p}`)).join('').slice(1)} (${key})`
+      const where = `${path
+        .map((p) => (typeof p === 'number' ? `[${p}]` : `.${p}`))
+        .join('')
+        .slice(1)} (${key})`
       const first = roleHolder.get(role)
       if (first !== undefined) {
         ctx.addIssue({
@@ -520,7 +566,9 @@ export const AssignmentSchema = z
     // Thrust and the two pressures are compared sample by sample, against the sample times: they
     // must share one table, and that table needs its time column.
     const logRoles = a.tables.flatMap((t, i) =>
-      t.columns.flatMap((c, j) => (c.role !== undefined && c.role !== 'time' ? [{ table: i, column: j, role: c.role }] : [])),
+      t.columns.flatMap((c, j) =>
+        c.role !== undefined && c.role !== 'time' ? [{ table: i, column: j, role: c.role }] : [],
+      ),
     )
     const logTable = logRoles[0]?.table
     for (const r of logRoles) {
@@ -541,7 +589,8 @@ export const AssignmentSchema = z
       })
     }
 
-    const declared = a.measurements.some((m) => m.uncertainty) || a.tables.some((t) => t.columns.some((c) => c.uncertainty))
+    const declared =
+      a.measurements.some((m) => m.uncertainty) || a.tables.some((t) => t.columns.some((c) => c.uncertainty))
     a.results.forEach((r, i) => {
       if (r.tolerance.coverage === undefined || declared) return
       ctx.addIssue({
@@ -553,7 +602,8 @@ export const AssignmentSchema = z
 
     const ambient = a.measurements.flatMap((m, i) => (m.role === 'ambient-pressure' ? [i] : []))
     const gauge =
-      a.tables.some((t) => t.columns.some((c) => c.pressure === 'gauge')) || a.measurements.some((m) => m.pressure === 'gauge')
+      a.tables.some((t) => t.columns.some((c) => c.pressure === 'gauge')) ||
+      a.measurements.some((m) => m.pressure === 'gauge')
     if (gauge && ambient.length === 0) {
       ctx.addIssue({
         code: 'custom',
@@ -578,7 +628,12 @@ export const FrontMatterSchema = z
     title: ModuleTitleSchema,
     summary: z.string().trim().max(1000, 'a summary has at most 1000 characters').optional(),
     due: DueSchema.optional(),
-    attempts: z.number().int('must be a whole number').positive('must be at least 1').max(100, 'must be at most 100').default(3),
+    attempts: z
+      .number()
+      .int('must be a whole number')
+      .positive('must be at least 1')
+      .max(100, 'must be at most 100')
+      .default(3),
     late: LateSchema.optional(),
     /** When students see their graded results. */
     results: z.enum(RESULTS_VISIBILITY).default('immediately'),
@@ -590,7 +645,11 @@ export const FrontMatterSchema = z
   })
   .superRefine((fm, ctx) => {
     if (fm.late && !fm.due) {
-      ctx.addIssue({ code: 'custom', path: ['late'], message: 'late submissions need a due date: add "due" or remove "late"' })
+      ctx.addIssue({
+        code: 'custom',
+        path: ['late'],
+        message: 'late submissions need a due date: add "due" or remove "late"',
+      })
     }
     if (fm.late?.acceptUntil && fm.due && comparableLocal(fm.late.acceptUntil) <= comparableLocal(fm.due.at)) {
       ctx.addIssue({

@@ -71,12 +71,14 @@ export class ScopeError extends Error {
 const STANDARD_AMBIENT = 101325
 
 function convert(value: number, unit: string, gauge: boolean, ambient: number | undefined, what: string): number {
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ScopeError(`${what} is not a finite number (got ${String(value)})`)
+  if (typeof value !== 'number' || !Number.isFinite(value))
+    throw new ScopeError(`${what} is not a finite number (got ${String(value)})`)
   let si: number
   try {
     si = valueToSI(value, unit)
     if (gauge) {
-      if (ambient === undefined) throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
+      if (ambient === undefined)
+        throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
       si = gaugeToAbsolute(si, ambient)
     }
   } catch (error) {
@@ -108,17 +110,27 @@ function isGauge(data: SubmissionData, key: string, declared: 'gauge' | 'absolut
  * An SI column as the scope holds it: the same array when nothing changes (no copy of a 50 000-row
  * log), a new one with the ambient pressure added when it was read gauge.
  */
-function siColumn(samples: readonly number[], gauge: boolean, ambient: number | undefined, what: string): readonly number[] {
+function siColumn(
+  samples: readonly number[],
+  gauge: boolean,
+  ambient: number | undefined,
+  what: string,
+): readonly number[] {
   for (let i = 0; i < samples.length; i++) {
     const v = samples[i]
-    if (typeof v !== 'number' || !Number.isFinite(v)) throw new ScopeError(`${what}[row ${i + 1}] is not a finite number (got ${String(v)})`)
+    if (typeof v !== 'number' || !Number.isFinite(v))
+      throw new ScopeError(`${what}[row ${i + 1}] is not a finite number (got ${String(v)})`)
   }
   if (!gauge) return samples
-  if (ambient === undefined) throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
+  if (ambient === undefined)
+    throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
   const out = new Array<number>(samples.length)
   for (let i = 0; i < samples.length; i++) {
     const absolute = (samples[i] as number) + ambient
-    if (absolute < 0) throw new ScopeError(`${what}[row ${i + 1}]: a gauge pressure of ${samples[i]} Pa is below vacuum at an ambient of ${ambient} Pa`)
+    if (absolute < 0)
+      throw new ScopeError(
+        `${what}[row ${i + 1}]: a gauge pressure of ${samples[i]} Pa is below vacuum at an ambient of ${ambient} Pa`,
+      )
     out[i] = absolute
   }
   return out
@@ -142,7 +154,12 @@ export const MAX_TARE_ZERO = 0.1
  * logged. When the thrust shows no run to reduce, the columns stay as logged too: every expression
  * that reduces the run fails with the library's reason, and the grading engine flags it for staff.
  */
-function tareColumns(table: TableSpec, scope: Record<string, ExpressionValue>, data: SubmissionData, ambient: number | undefined): void {
+function tareColumns(
+  table: TableSpec,
+  scope: Record<string, ExpressionValue>,
+  data: SubmissionData,
+  ambient: number | undefined,
+): void {
   const columns = table.columns.filter((c) => c.tare === true && isGauge(data, c.key, c.pressure))
   if (columns.length === 0 || ambient === undefined) return
   const time = scope[table.columns.find((c) => c.role === 'time')?.key ?? '']
@@ -163,7 +180,10 @@ function tareColumns(table: TableSpec, scope: Record<string, ExpressionValue>, d
     const tared = tareWithRun(time, values, run)
     for (let i = 0; i < tared.length; i++) {
       const absolute = (tared[i] as number) + ambient
-      if (absolute < 0) throw new ScopeError(`${column.key}[row ${i + 1}]: after its zero is taken, the gauge pressure ${tared[i]} Pa is below vacuum at an ambient of ${ambient} Pa`)
+      if (absolute < 0)
+        throw new ScopeError(
+          `${column.key}[row ${i + 1}]: after its zero is taken, the gauge pressure ${tared[i]} Pa is below vacuum at an ambient of ${ambient} Pa`,
+        )
       tared[i] = absolute
     }
     scope[column.key] = tared
@@ -180,12 +200,20 @@ function tareColumns(table: TableSpec, scope: Record<string, ExpressionValue>, d
  * @param logged - the scope built with `tare: false`
  * @returns `logged` itself when no column is tared, else a copy with the tared columns
  */
-export function taredScope(assignment: Assignment, data: SubmissionData, logged: Record<string, ExpressionValue>): Record<string, ExpressionValue> {
+export function taredScope(
+  assignment: Assignment,
+  data: SubmissionData,
+  logged: Record<string, ExpressionValue>,
+): Record<string, ExpressionValue> {
   if (!assignment.tables.some((t) => t.columns.some((c) => c.tare === true))) return logged
   const ambientKey = assignment.measurements.find((m) => m.role === 'ambient-pressure')?.key
   const ambient = ambientKey === undefined ? undefined : logged[ambientKey]
-  const scope: Record<string, ExpressionValue> = Object.assign(Object.create(null) as Record<string, ExpressionValue>, logged)
-  for (const table of assignment.tables) tareColumns(table, scope, data, typeof ambient === 'number' ? ambient : undefined)
+  const scope: Record<string, ExpressionValue> = Object.assign(
+    Object.create(null) as Record<string, ExpressionValue>,
+    logged,
+  )
+  for (const table of assignment.tables)
+    tareColumns(table, scope, data, typeof ambient === 'number' ? ambient : undefined)
   return scope
 }
 
@@ -216,7 +244,9 @@ export function buildExpressionScope(
       const samples = columns[column.key]
       if (!Array.isArray(samples)) throw new ScopeError(`the column "${column.key}" of table "${table.key}" is missing`)
       if (length !== undefined && samples.length !== length) {
-        throw new ScopeError(`the columns of table "${table.key}" have different lengths (${length} and ${samples.length})`)
+        throw new ScopeError(
+          `the columns of table "${table.key}" have different lengths (${length} and ${samples.length})`,
+        )
       }
       length = samples.length
       const gauge = isGauge(data, column.key, column.pressure)
@@ -229,7 +259,13 @@ export function buildExpressionScope(
   for (const m of assignment.measurements) {
     const value = data.measurements[m.key]
     if (value === undefined) throw new ScopeError(`the measurement "${m.key}" is missing`)
-    scope[m.key] = convert(value, si ? SI_PASS : m.unit, isGauge(data, m.key, m.pressure), ambient, `measurement "${m.key}"`)
+    scope[m.key] = convert(
+      value,
+      si ? SI_PASS : m.unit,
+      isGauge(data, m.key, m.pressure),
+      ambient,
+      `measurement "${m.key}"`,
+    )
   }
   if (options.withResults) {
     for (const r of assignment.results) {
@@ -273,7 +309,8 @@ function syntheticColumn(column: ColumnSpec, rows: number, pressureIndex: number
     // A blow-down: 6 bar falling to 2 bar absolute, each further pressure column 3 % below the last
     // (a chamber reads a little below the receiver that feeds it). A column whose zero is taken
     // reads the ambient pressure at rest and follows the blow-down during the run.
-    else if (kind === 'pressure' && column.tare === true) si = running ? (6e5 - 4e5 * u) * 0.97 ** pressureIndex : ambient
+    else if (kind === 'pressure' && column.tare === true)
+      si = running ? (6e5 - 4e5 * u) * 0.97 ** pressureIndex : ambient
     else if (kind === 'pressure') si = (6e5 - 4e5 * f) * 0.97 ** pressureIndex
     // A load cell with a 0.3 N zero: at rest, then 60 N falling to 15 N during the run.
     else if (kind === 'force') si = 0.3 + (running ? 60 - 45 * u : 0)

@@ -243,8 +243,15 @@ export function tankBlowdown(input: BlowdownInput): Blowdown {
   )
   const throatArea = requirePositive('throatArea', input.throatArea)
   const exitArea =
-    input.exitArea === undefined ? throatArea : requireAtLeast('exitArea', input.exitArea, throatArea, `throatArea (${throatArea})`)
-  const cd = requireInterval('dischargeCoefficient', input.dischargeCoefficient, { value: 0, open: true }, { value: 1, open: false })
+    input.exitArea === undefined
+      ? throatArea
+      : requireAtLeast('exitArea', input.exitArea, throatArea, `throatArea (${throatArea})`)
+  const cd = requireInterval(
+    'dischargeCoefficient',
+    input.dischargeCoefficient,
+    { value: 0, open: true },
+    { value: 1, open: false },
+  )
   const gamma = requireGamma(input.gamma)
   const gasConstant = requirePositive('gasConstant', input.gasConstant)
   const process = requireOneOf('process', input.process, BLOWDOWN_PROCESSES)
@@ -268,7 +275,15 @@ export function tankBlowdown(input: BlowdownInput): Blowdown {
     if (ambientPressure / p <= chokeLimit) return cd * chokedMassFlowUnchecked(p, t, throatArea, gamma, gasConstant)
     return (
       cd *
-      nozzleFlow({ chamberPressure: p, chamberTemperature: t, ambientPressure, throatArea, exitArea, gamma, gasConstant }).massFlow
+      nozzleFlow({
+        chamberPressure: p,
+        chamberTemperature: t,
+        ambientPressure,
+        throatArea,
+        exitArea,
+        gamma,
+        gasConstant,
+      }).massFlow
     )
   }
   const rate = (p: number): number => {

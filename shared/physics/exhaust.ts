@@ -39,7 +39,12 @@ export function idealExhaustVelocity(
   gasConstant: number,
 ): number {
   const p0 = requirePositive('chamberPressure', chamberPressure)
-  requireInterval('exitPressure', exitPressure, { value: 0, open: false }, { value: p0, open: false, text: `chamberPressure (${p0})` })
+  requireInterval(
+    'exitPressure',
+    exitPressure,
+    { value: 0, open: false },
+    { value: p0, open: false, text: `chamberPressure (${p0})` },
+  )
   requirePositive('chamberTemperature', chamberTemperature)
   requireGamma(gamma)
   requirePositive('gasConstant', gasConstant)
@@ -78,6 +83,11 @@ export function idealSpecificImpulse(
   gasConstant: number,
 ): number {
   const p0 = requirePositive('chamberPressure', chamberPressure)
-  requireInterval('ambientPressure', ambientPressure, { value: 0, open: false }, { value: p0, open: false, text: `chamberPressure (${p0})` })
+  requireInterval(
+    'ambientPressure',
+    ambientPressure,
+    { value: 0, open: false },
+    { value: p0, open: false, text: `chamberPressure (${p0})` },
+  )
   return idealExhaustVelocity(p0, ambientPressure, chamberTemperature, gamma, gasConstant) / G0
 }

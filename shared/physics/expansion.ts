@@ -95,7 +95,7 @@ export function machFromPrandtlMeyer(nu: number, gamma: number): number {
   )
   if (nu === 0) return 1
   const aSquared = (gamma + 1) / (gamma - 1)
-  const lower = Math.cbrt((1.5 * (gamma + 1)) * nu)
+  const lower = Math.cbrt(1.5 * (gamma + 1) * nu)
   const upper = (aSquared - 1) / (numax - nu)
   const beta = findRoot((b) => prandtlMeyerOfBeta(b, gamma) - nu, lower, upper)
   return Math.sqrt(1 + beta * beta)

@@ -57,13 +57,23 @@ function requireUnderexpanded(exitPressure: number, ambientPressure: number): vo
  * machDiskDistance(0.01, 2e6, 1e5, 2e6 * 0.528) // the same, for a sonic exit at p* = 0.528·p0
  * machDiskDistance(0.01, 7.88e5, 98.6e3, 2.35e4) // throws: exitPressure must be … (over-expanded)
  */
-export function machDiskDistance(exitDiameter: number, chamberPressure: number, ambientPressure: number, exitPressure?: number): number {
+export function machDiskDistance(
+  exitDiameter: number,
+  chamberPressure: number,
+  ambientPressure: number,
+  exitPressure?: number,
+): number {
   requirePositive('exitDiameter', exitDiameter)
   requirePositive('ambientPressure', ambientPressure)
   requireGreaterThan('chamberPressure', chamberPressure, ambientPressure, `ambientPressure (${ambientPressure})`)
   if (exitPressure !== undefined) {
     requireUnderexpanded(exitPressure, ambientPressure)
-    requireInterval('exitPressure', exitPressure, { value: 0, open: true }, { value: chamberPressure, open: false, text: `chamberPressure (${chamberPressure})` })
+    requireInterval(
+      'exitPressure',
+      exitPressure,
+      { value: 0, open: true },
+      { value: chamberPressure, open: false, text: `chamberPressure (${chamberPressure})` },
+    )
   }
   return MACH_DISK_COEFFICIENT * exitDiameter * Math.sqrt(chamberPressure / ambientPressure)
 }

@@ -26,8 +26,19 @@ export {
 } from './nozzle'
 export type { NozzleInput, NozzleFlow, NozzlePressureRatios, NozzleRegime } from './nozzle'
 export { SEPARATION_PRESSURE_RATIO } from './nozzle'
-export { machDiskDistance, machDiskDistanceLewisCarlson, MACH_DISK_COEFFICIENT, LEWIS_CARLSON_COEFFICIENT } from './free-jet'
-export { tankBlowdown, dischargeMassFlow, blowdownTimeConstant, BLOWDOWN_PROCESSES, MAX_BLOWDOWN_SAMPLES } from './blowdown'
+export {
+  machDiskDistance,
+  machDiskDistanceLewisCarlson,
+  MACH_DISK_COEFFICIENT,
+  LEWIS_CARLSON_COEFFICIENT,
+} from './free-jet'
+export {
+  tankBlowdown,
+  dischargeMassFlow,
+  blowdownTimeConstant,
+  BLOWDOWN_PROCESSES,
+  MAX_BLOWDOWN_SAMPLES,
+} from './blowdown'
 export type { BlowdownInput, Blowdown, BlowdownProcess } from './blowdown'
 export {
   totalImpulse,

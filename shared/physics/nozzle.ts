@@ -24,7 +24,13 @@ import { requireAtLeast, requireGamma, requireInterval, requireObject, requirePo
 export type NozzleRegime = 'subsonic' | 'shock-in-nozzle' | 'overexpanded' | 'ideal' | 'underexpanded'
 
 /** The regimes in the order they occur as the ambient (back) pressure falls. */
-export const NOZZLE_REGIMES: readonly NozzleRegime[] = ['subsonic', 'shock-in-nozzle', 'overexpanded', 'ideal', 'underexpanded']
+export const NOZZLE_REGIMES: readonly NozzleRegime[] = [
+  'subsonic',
+  'shock-in-nozzle',
+  'overexpanded',
+  'ideal',
+  'underexpanded',
+]
 
 /**
  * Half-width of the band around the design exit pressure that is called 'ideal' expansion:
@@ -127,8 +133,16 @@ export function chokedMassFlow(
  * @example
  * chokedMassFlowUnchecked(1e6, 300, 1e-4, 1.4, 287) // ≈ 0.23336 kg/s
  */
-export function chokedMassFlowUnchecked(p0: number, t0: number, throatArea: number, gamma: number, gasConstant: number): number {
-  return throatArea * p0 * Math.sqrt(gamma / (gasConstant * t0)) * (2 / (gamma + 1)) ** ((gamma + 1) / (2 * (gamma - 1)))
+export function chokedMassFlowUnchecked(
+  p0: number,
+  t0: number,
+  throatArea: number,
+  gamma: number,
+  gasConstant: number,
+): number {
+  return (
+    throatArea * p0 * Math.sqrt(gamma / (gasConstant * t0)) * (2 / (gamma + 1)) ** ((gamma + 1) / (2 * (gamma - 1)))
+  )
 }
 
 /** Inputs of {@link nozzleFlow}; all SI, pressures absolute. */
@@ -318,7 +332,9 @@ export function nozzleFlow(input: NozzleInput): NozzleFlow {
   const exitVelocity = exitMach * Math.sqrt(gamma * gasConstant * exitTemperature)
   const throatChoked = regime !== 'subsonic' || r === bounds.chokeLimit
   const massFlow =
-    regime === 'subsonic' ? exitDensity * exitVelocity * exitArea : chokedMassFlowUnchecked(p0, t0, throatArea, gamma, gasConstant)
+    regime === 'subsonic'
+      ? exitDensity * exitVelocity * exitArea
+      : chokedMassFlowUnchecked(p0, t0, throatArea, gamma, gasConstant)
   const thrust = massFlow * exitVelocity + (exitPressure - pa) * exitArea
 
   // Separation: where the supersonic wall pressure first reaches ps, if it does before the exit

@@ -209,7 +209,12 @@ const DEGREES_PER_RADIAN = 180 / Math.PI
  * obliqueShock(2, (10 * Math.PI) / 180, 1.4, 'weak')
  * // → waveAngle ≈ 0.68615 rad (39.314°), mach2 ≈ 1.6405, pressureRatio ≈ 1.7066
  */
-export function obliqueShock(mach1: number, deflection: number, gamma: number, branch: ObliqueShockBranch): ObliqueShock {
+export function obliqueShock(
+  mach1: number,
+  deflection: number,
+  gamma: number,
+  branch: ObliqueShockBranch,
+): ObliqueShock {
   requireAtLeast('mach1', mach1, 1)
   requireGamma(gamma)
   requireOneOf('branch', branch, OBLIQUE_SHOCK_BRANCHES)

@@ -169,7 +169,15 @@ function thresholdOf(options: ThrustRunOptions | undefined): number {
 }
 
 /** The zero line: zb up to start, linear to za at end, za after; the tared signal is x − zero. */
-function tare(t: ArrayLike<number>, x: ArrayLike<number>, zb: number, za: number, start: number, end: number, out: Float64Array): Float64Array {
+function tare(
+  t: ArrayLike<number>,
+  x: ArrayLike<number>,
+  zb: number,
+  za: number,
+  start: number,
+  end: number,
+  out: Float64Array,
+): Float64Array {
   const slope = end > start ? (za - zb) / (end - start) : 0
   for (let i = 0; i < t.length; i++) {
     const ti = t[i] as number
@@ -234,7 +242,9 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
     count = 0
     for (let i = 1; i < n - 1; i += stride) {
       if (pass === 1 || (smooth[i] as number) - lowest < 0.5 * (top - lowest)) {
-        residual[count++] = Math.abs((thrust[i] as number) - 0.5 * ((thrust[i - 1] as number) + (thrust[i + 1] as number)))
+        residual[count++] = Math.abs(
+          (thrust[i] as number) - 0.5 * ((thrust[i - 1] as number) + (thrust[i + 1] as number)),
+        )
       }
     }
   }
@@ -371,7 +381,11 @@ function analyse(time: readonly number[], thrust: readonly number[], threshold: 
  * // → { zeroBefore: 0.3, zeroAfter: 0.3, start ≈ 0.9905, end ≈ 2.0095, burnTime ≈ 1.019,
  * //     totalImpulse = 20.2, peakThrust = 20, meanThrust ≈ 19.82 }
  */
-export function reduceThrustRun(time: readonly number[], thrust: readonly number[], options?: ThrustRunOptions): ThrustRun {
+export function reduceThrustRun(
+  time: readonly number[],
+  thrust: readonly number[],
+  options?: ThrustRunOptions,
+): ThrustRun {
   return runResult(analyseThrustRun(time, thrust, options))
 }
 
@@ -387,7 +401,11 @@ export function reduceThrustRun(time: readonly number[], thrust: readonly number
  * @example
  * analyseThrustRun(t, F).quietBeforeEnd // = 100 for the run of the reduceThrustRun example
  */
-export function analyseThrustRun(time: readonly number[], thrust: readonly number[], options?: ThrustRunOptions): ThrustRunAnalysis {
+export function analyseThrustRun(
+  time: readonly number[],
+  thrust: readonly number[],
+  options?: ThrustRunOptions,
+): ThrustRunAnalysis {
   requireRunSamples(time, thrust)
   return analyse(time, thrust, thresholdOf(options))
 }
@@ -480,7 +498,11 @@ export function tareWithRun(time: readonly number[], values: readonly number[], 
  * @example
  * signalZeros(t, pc, analyseThrustRun(t, F)) // → { before: 1500, after: 1500 } for the example above
  */
-export function signalZeros(time: readonly number[], values: readonly number[], run: ThrustRunAnalysis): { before: number; after: number } {
+export function signalZeros(
+  time: readonly number[],
+  values: readonly number[],
+  run: ThrustRunAnalysis,
+): { before: number; after: number } {
   requireSamples('values', values, 1)
   requireSameLength('time', time, 'values', values)
   const before = medianOf(values, 0, run.quietBeforeEnd)

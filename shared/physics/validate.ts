@@ -219,5 +219,6 @@ export function requireSameLength(nameA: string, a: readonly unknown[], nameB: s
  * requireObject('input', null) // throws RangeError: input must be an object of named inputs (got null)
  */
 export function requireObject(name: string, value: unknown): void {
-  if (typeof value !== 'object' || value === null || Array.isArray(value)) fail(name, 'an object of named inputs', value)
+  if (typeof value !== 'object' || value === null || Array.isArray(value))
+    fail(name, 'an object of named inputs', value)
 }

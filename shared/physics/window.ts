@@ -41,7 +41,12 @@ function valueAt(t: ArrayLike<number>, x: ArrayLike<number>, at: number): number
  * @example
  * windowIntegralUnchecked([0, 1, 2, 3], [0, 10, 10, 0], 0.5, 2.5) // = 17.5
  */
-export function windowIntegralUnchecked(t: ArrayLike<number>, x: ArrayLike<number>, start: number, end: number): number {
+export function windowIntegralUnchecked(
+  t: ArrayLike<number>,
+  x: ArrayLike<number>,
+  start: number,
+  end: number,
+): number {
   if (end <= start) return 0
   const i = firstAfter(t, start) // first sample strictly inside (start, …]
   const j = firstAfter(t, end) // first sample after end
@@ -79,14 +84,25 @@ export function requireStrictlyIncreasing(name: string, t: readonly number[]): v
   }
 }
 
-function requireWindow(time: readonly number[], values: readonly number[], start: number, end: number, strict: boolean): void {
+function requireWindow(
+  time: readonly number[],
+  values: readonly number[],
+  start: number,
+  end: number,
+  strict: boolean,
+): void {
   requireSamples('time', time, 2)
   requireSamples('values', values, 2)
   requireSameLength('time', time, 'values', values)
   requireStrictlyIncreasing('time', time)
   const first = time[0] as number
   const last = time[time.length - 1] as number
-  requireInterval('start', start, { value: first, open: false, text: `the first time (${first})` }, { value: last, open: false, text: `the last time (${last})` })
+  requireInterval(
+    'start',
+    start,
+    { value: first, open: false, text: `the first time (${first})` },
+    { value: last, open: false, text: `the last time (${last})` },
+  )
   requireInterval(
     'end',
     end,

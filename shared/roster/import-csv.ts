@@ -61,8 +61,7 @@ export interface ParsedRosterRow {
 }
 
 export type RosterParseResult =
-  | { ok: true; rows: ParsedRosterRow[]; ignoredColumns: string[] }
-  | { ok: false; problems: RosterFileProblem[] }
+  { ok: true; rows: ParsedRosterRow[]; ignoredColumns: string[] } | { ok: false; problems: RosterFileProblem[] }
 
 const normalise = (header: string) => header.toLowerCase().replace(/[^a-z0-9]/g, '')
 const isBlank = (record: readonly string[]) => record.every((c) => c.trim() === '')
@@ -87,11 +86,18 @@ export function parseRosterCsv(text: string): RosterParseResult {
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes')
   if (quoteError) {
     const where = quoteError.row !== undefined ? `Row ${quoteError.row + 1}` : 'A row'
-    return { ok: false, problems: [{ message: `${where} has a quoted cell that is never closed (a " without its partner).` }] }
+    return {
+      ok: false,
+      problems: [{ message: `${where} has a quoted cell that is never closed (a " without its partner).` }],
+    }
   }
   const records = parsed.data
   const headerIndex = records.findIndex((r) => !isBlank(r))
-  if (headerIndex < 0) return { ok: false, problems: [{ message: 'The file is empty: it needs a header row (email, name, …) and one row per person.' }] }
+  if (headerIndex < 0)
+    return {
+      ok: false,
+      problems: [{ message: 'The file is empty: it needs a header row (email, name, …) and one row per person.' }],
+    }
   const header = records[headerIndex] ?? []
 
   const columnAt = new Map<RosterColumn, number>()
@@ -159,31 +165,57 @@ function readRow(row: number, cells: string[], cell: (cells: string[], c: Roster
   const displayName = cell(cells, 'name').replace(/\s+/g, ' ')
   const nameProblem = singleLineProblem(displayName)
   if (displayName === '') problems.push({ column: 'name', message: 'name: empty; every person needs a name.' })
-  else if (displayName.length > MAX_NAME_LENGTH) problems.push({ column: 'name', message: `name: at most ${MAX_NAME_LENGTH} characters.` })
-  else if (nameProblem) problems.push({ column: 'name', message: `name: a display name is one line of plain text; this one contains ${nameProblem}.` })
+  else if (displayName.length > MAX_NAME_LENGTH)
+    problems.push({ column: 'name', message: `name: at most ${MAX_NAME_LENGTH} characters.` })
+  else if (nameProblem)
+    problems.push({
+      column: 'name',
+      message: `name: a display name is one line of plain text; this one contains ${nameProblem}.`,
+    })
   const roleText = cell(cells, 'role')
   let role: ImportRole = 'student'
   if (roleText !== '') {
     const r = ROLE_WORDS[normalise(roleText)]
     if (r) role = r
     else if (normalise(roleText) === 'instructor') {
-      problems.push({ column: 'role', message: 'role: an import adds students and TAs only; instructors are not imported.' })
-    } else problems.push({ column: 'role', message: `role: ${shown(roleText)} is not a role here; write student or ta (empty means student).` })
+      problems.push({
+        column: 'role',
+        message: 'role: an import adds students and TAs only; instructors are not imported.',
+      })
+    } else
+      problems.push({
+        column: 'role',
+        message: `role: ${shown(roleText)} is not a role here; write student or ta (empty means student).`,
+      })
   }
   const section = cell(cells, 'section') || null
   if (section !== null && section.length > MAX_SECTION_LENGTH) {
-    problems.push({ column: 'section', message: `section: a section name has at most ${MAX_SECTION_LENGTH} characters.` })
+    problems.push({
+      column: 'section',
+      message: `section: a section name has at most ${MAX_SECTION_LENGTH} characters.`,
+    })
   }
   const sectionProblem = section === null ? null : singleLineProblem(section)
-  if (sectionProblem) problems.push({ column: 'section', message: `section: a section name is one line of plain text; this one contains ${sectionProblem}.` })
+  if (sectionProblem)
+    problems.push({
+      column: 'section',
+      message: `section: a section name is one line of plain text; this one contains ${sectionProblem}.`,
+    })
   const group = cell(cells, 'group') || null
   if (group !== null && group.length > MAX_GROUP_LENGTH) {
     problems.push({ column: 'group', message: `group: a lab-group name has at most ${MAX_GROUP_LENGTH} characters.` })
   }
   const groupProblem = group === null ? null : singleLineProblem(group)
-  if (groupProblem) problems.push({ column: 'group', message: `group: a lab-group name is one line of plain text; this one contains ${groupProblem}.` })
+  if (groupProblem)
+    problems.push({
+      column: 'group',
+      message: `group: a lab-group name is one line of plain text; this one contains ${groupProblem}.`,
+    })
   if (group !== null && role === 'ta') {
-    problems.push({ column: 'group', message: 'group: teaching assistants are not put in lab groups; leave the cell empty.' })
+    problems.push({
+      column: 'group',
+      message: 'group: teaching assistants are not put in lab groups; leave the cell empty.',
+    })
   }
   return { row, email, displayName, role, roleGiven: roleText !== '', section, group, problems }
 }

@@ -9,7 +9,10 @@ import { singleLineName } from './names'
  */
 
 const idOf = (what: string) =>
-  z.coerce.number({ error: `${what} must be a number.` }).int(`${what} must be a whole number.`).positive(`${what} must be a positive whole number.`)
+  z.coerce
+    .number({ error: `${what} must be a number.` })
+    .int(`${what} must be a whole number.`)
+    .positive(`${what} must be a positive whole number.`)
 
 export const SectionParamsSchema = CourseIdParamsSchema.extend({ sectionId: idOf('sectionId') })
 export const LabGroupParamsSchema = CourseIdParamsSchema.extend({ labGroupId: idOf('labGroupId') })
@@ -19,9 +22,16 @@ export const ExtensionParamsSchema = CourseIdParamsSchema.extend({ moduleId: idO
 const sectionName = singleLineName({
   field: 'section name',
   max: 60,
-  messages: { missing: 'name: give the section a name.', tooShort: 'name: give the section a name.', tooLong: 'name: at most 60 characters.' },
+  messages: {
+    missing: 'name: give the section a name.',
+    tooShort: 'name: give the section a name.',
+    tooLong: 'name: at most 60 characters.',
+  },
 })
-const meets = z.string({ error: 'meets: write when and where the section meets, or leave it empty.' }).trim().max(120, 'meets: at most 120 characters.')
+const meets = z
+  .string({ error: 'meets: write when and where the section meets, or leave it empty.' })
+  .trim()
+  .max(120, 'meets: at most 120 characters.')
 
 /** A new section: its name (unique in the course) and, optionally, when and where it meets. */
 export const SectionCreateSchema = z.object({ name: sectionName, meets: meets.default('') })
@@ -36,10 +46,18 @@ export type SectionUpdate = z.infer<typeof SectionUpdateSchema>
 const groupName = singleLineName({
   field: 'lab-group name',
   max: 60,
-  messages: { missing: 'name: give the lab group a name.', tooShort: 'name: give the lab group a name.', tooLong: 'name: at most 60 characters.' },
+  messages: {
+    missing: 'name: give the lab group a name.',
+    tooShort: 'name: give the lab group a name.',
+    tooLong: 'name: at most 60 characters.',
+  },
 })
 /** null: the group is not tied to a section and takes students of any section. */
-const optionalSectionId = z.number({ error: 'sectionId: choose a section or none.' }).int().positive('sectionId must be a positive whole number.').nullable()
+const optionalSectionId = z
+  .number({ error: 'sectionId: choose a section or none.' })
+  .int()
+  .positive('sectionId must be a positive whole number.')
+  .nullable()
 
 export const LabGroupCreateSchema = z.object({ name: groupName, sectionId: optionalSectionId.default(null) })
 export type LabGroupCreate = z.infer<typeof LabGroupCreateSchema>
@@ -56,7 +74,12 @@ export type LabGroupUpdate = z.infer<typeof LabGroupUpdateSchema>
 export const PlacementSchema = z
   .object({
     sectionId: optionalSectionId.optional(),
-    labGroupId: z.number({ error: 'labGroupId: choose a lab group or none.' }).int().positive('labGroupId must be a positive whole number.').nullable().optional(),
+    labGroupId: z
+      .number({ error: 'labGroupId: choose a lab group or none.' })
+      .int()
+      .positive('labGroupId must be a positive whole number.')
+      .nullable()
+      .optional(),
   })
   .refine((v) => v.sectionId !== undefined || v.labGroupId !== undefined, 'Send a section, a lab group, or both.')
 export type Placement = z.infer<typeof PlacementSchema>

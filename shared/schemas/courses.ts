@@ -13,17 +13,40 @@ const isTimeZone = (tz: string): boolean => {
 
 /** Creating a course (site administrators). */
 export const CreateCourseSchema = z.object({
-  code: singleLineName({ field: 'course code', min: 2, max: 32, messages: { tooShort: 'Course code needs at least 2 characters.', tooLong: 'Course code: at most 32 characters.' } }),
-  title: singleLineName({ field: 'course title', min: 3, max: 200, messages: { tooShort: 'Title needs at least 3 characters.', tooLong: 'Title: at most 200 characters.' } }),
-  term: singleLineName({ field: 'term', min: 2, max: 40, messages: { tooShort: 'Term needs at least 2 characters.', tooLong: 'Term: at most 40 characters.' } }),
-  institution: singleLineName({ field: 'institution', min: 2, max: 200, messages: { tooShort: 'Institution needs at least 2 characters.' } }),
+  code: singleLineName({
+    field: 'course code',
+    min: 2,
+    max: 32,
+    messages: { tooShort: 'Course code needs at least 2 characters.', tooLong: 'Course code: at most 32 characters.' },
+  }),
+  title: singleLineName({
+    field: 'course title',
+    min: 3,
+    max: 200,
+    messages: { tooShort: 'Title needs at least 3 characters.', tooLong: 'Title: at most 200 characters.' },
+  }),
+  term: singleLineName({
+    field: 'term',
+    min: 2,
+    max: 40,
+    messages: { tooShort: 'Term needs at least 2 characters.', tooLong: 'Term: at most 40 characters.' },
+  }),
+  institution: singleLineName({
+    field: 'institution',
+    min: 2,
+    max: 200,
+    messages: { tooShort: 'Institution needs at least 2 characters.' },
+  }),
   timeZone: z.string().trim().refine(isTimeZone, 'Time zone must be an IANA name such as America/Denver.'),
 })
 export type CreateCourse = z.infer<typeof CreateCourseSchema>
 
 /** `:courseId` and similar path parameters. */
 export const CourseIdParamsSchema = z.object({
-  courseId: z.coerce.number({ error: 'courseId must be a number.' }).int().positive('courseId must be a positive whole number.'),
+  courseId: z.coerce
+    .number({ error: 'courseId must be a number.' })
+    .int()
+    .positive('courseId must be a positive whole number.'),
 })
 
 export interface CourseSummary {

@@ -5,7 +5,8 @@ import { z } from 'zod'
  * (the browser checks forms with the same ones) and the shapes the API answers with.
  */
 
-const optionalId = () => z.coerce.number({ error: 'must be a number.' }).int().positive('must be a positive whole number.').optional()
+const optionalId = () =>
+  z.coerce.number({ error: 'must be a number.' }).int().positive('must be a positive whole number.').optional()
 
 /** Filters of the gradebook and its CSV export. */
 export const GradebookQuerySchema = z.object({

@@ -12,6 +12,7 @@ import { z } from 'zod'
  *   U+2066–U+2069), which can make a name display as something other than what it is.
  * Joiners (U+200C, U+200D) stay allowed: several scripts and emoji need them.
  */
+// eslint-disable-next-line no-control-regex -- control characters are exactly what this refuses
 const NOT_IN_A_NAME = /[\u0000-\u001f\u007f-\u009f\u2028\u2029\u202a-\u202e\u2066-\u2069]/
 
 const CALLED: Readonly<Record<string, string>> = {
@@ -28,7 +29,8 @@ export function singleLineProblem(text: string): string | null {
   if (!m) return null
   const ch = m[0]
   const code = `U+${ch.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}`
-  const what = CALLED[ch] ?? (ch >= '\u202a' ? `an invisible text-direction control (${code})` : `the control character ${code}`)
+  const what =
+    CALLED[ch] ?? (ch >= '\u202a' ? `an invisible text-direction control (${code})` : `the control character ${code}`)
   return `${what} at character ${m.index + 1}`
 }
 
@@ -52,15 +54,25 @@ export interface SingleLineNameOptions {
 export function singleLineName(opts: SingleLineNameOptions) {
   const min = opts.min ?? 1
   const m = opts.messages ?? {}
-  return z
-    // Without a message of its own, a missing or non-text value keeps zod's (or the caller's
-    // error map's) wording, e.g. the module editor's "should be text, not the number 5".
-    .string(m.missing === undefined ? undefined : { error: m.missing })
-    .trim()
-    .min(min, m.tooShort ?? (min === 1 ? `The ${opts.field} must not be empty.` : `The ${opts.field} needs at least ${min} characters.`))
-    .max(opts.max, m.tooLong ?? `The ${opts.field} has at most ${opts.max} characters.`)
-    .superRefine((text, ctx) => {
-      const problem = singleLineProblem(text)
-      if (problem) ctx.addIssue({ code: 'custom', message: `The ${opts.field} must be one line of plain text, but it contains ${problem}.` })
-    })
+  return (
+    z
+      // Without a message of its own, a missing or non-text value keeps zod's (or the caller's
+      // error map's) wording, e.g. the module editor's "should be text, not the number 5".
+      .string(m.missing === undefined ? undefined : { error: m.missing })
+      .trim()
+      .min(
+        min,
+        m.tooShort ??
+          (min === 1 ? `The ${opts.field} must not be empty.` : `The ${opts.field} needs at least ${min} characters.`),
+      )
+      .max(opts.max, m.tooLong ?? `The ${opts.field} has at most ${opts.max} characters.`)
+      .superRefine((text, ctx) => {
+        const problem = singleLineProblem(text)
+        if (problem)
+          ctx.addIssue({
+            code: 'custom',
+            message: `The ${opts.field} must be one line of plain text, but it contains ${problem}.`,
+          })
+      })
+  )
 }

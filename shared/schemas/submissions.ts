@@ -115,7 +115,8 @@ export const isAwaitingGrade = (status: SubmissionStatus) => status === 'receive
  * What a person is told when a hand-in could not be graded automatically, wherever it shows (the
  * result, the flag, the e-mail, the report). The cause is logged on the server, never shown.
  */
-export const GRADING_FAILED_MESSAGE = 'This hand-in could not be graded automatically; the course staff have been told and will grade it.'
+export const GRADING_FAILED_MESSAGE =
+  'This hand-in could not be graded automatically; the course staff have been told and will grade it.'
 
 export interface SubmissionSummary {
   id: number

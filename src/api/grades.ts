@@ -11,13 +11,17 @@ function filterQuery(q: GradebookQuery): string {
   return s ? `?${s}` : ''
 }
 
-export const fetchGradebook = (courseId: number, q: GradebookQuery) => http<Gradebook>('GET', `${courseBase(courseId)}/gradebook${filterQuery(q)}`)
+export const fetchGradebook = (courseId: number, q: GradebookQuery) =>
+  http<Gradebook>('GET', `${courseBase(courseId)}/gradebook${filterQuery(q)}`)
 
 /** Where the browser downloads the gradebook as CSV (same filters; served as an attachment). */
-export const gradebookCsvUrl = (courseId: number, q: GradebookQuery) => `${courseBase(courseId)}/gradebook.csv${filterQuery(q)}`
+export const gradebookCsvUrl = (courseId: number, q: GradebookQuery) =>
+  `${courseBase(courseId)}/gradebook.csv${filterQuery(q)}`
 
 export const putWeight = (courseId: number, moduleId: number, weight: number) =>
-  http<{ moduleId: number; weight: number }>('PUT', `${courseBase(courseId)}/gradebook/modules/${moduleId}/weight`, { weight })
+  http<{ moduleId: number; weight: number }>('PUT', `${courseBase(courseId)}/gradebook/modules/${moduleId}/weight`, {
+    weight,
+  })
 
 export const postRelease = (courseId: number, moduleId: number) =>
   http<ReleaseResult>('POST', `${courseBase(courseId)}/gradebook/modules/${moduleId}/release`)
@@ -34,4 +38,6 @@ export const postRegrade = (courseId: number, submissionId: number, message: str
   http<RegradeStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/regrade`, { message })
 
 export const postRegradeAnswer = (courseId: number, submissionId: number, requestId: number, answer: string) =>
-  http<RegradeStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/regrade/${requestId}/answer`, { answer })
+  http<RegradeStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/regrade/${requestId}/answer`, {
+    answer,
+  })

@@ -27,7 +27,7 @@ export function csrfHeader(): Record<string, string> {
 
 /** The server's error body (already read as text) → an ApiError with the server's own message. */
 export function apiErrorFrom(status: number, statusText: string, text: string): ApiError {
-  let parsed: unknown = undefined
+  let parsed: unknown
   try {
     parsed = text ? JSON.parse(text) : undefined
   } catch {

@@ -5,4 +5,5 @@ import { http } from './http'
 const url = (token: string) => `/api/auth/invitations/${encodeURIComponent(token)}`
 
 export const fetchInvitation = (token: string) => http<InvitationInfo>('GET', url(token))
-export const postAcceptInvitation = (token: string, body: AcceptInvitation) => http<SessionState>('POST', url(token), body)
+export const postAcceptInvitation = (token: string, body: AcceptInvitation) =>
+  http<SessionState>('POST', url(token), body)

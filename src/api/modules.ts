@@ -12,10 +12,12 @@ import { http } from './http'
 const base = (courseId: number) => `/api/courses/${courseId}/modules`
 
 export const fetchModules = (courseId: number) => http<ModuleListItem[]>('GET', base(courseId))
-export const fetchModule = (courseId: number, moduleId: number) => http<ModuleReading>('GET', `${base(courseId)}/${moduleId}`)
+export const fetchModule = (courseId: number, moduleId: number) =>
+  http<ModuleReading>('GET', `${base(courseId)}/${moduleId}`)
 export const fetchModuleForEditing = (courseId: number, moduleId: number) =>
   http<ModuleEditing>('GET', `${base(courseId)}/${moduleId}/edit`)
-export const createModule = (courseId: number, source: string) => http<ModuleEditing>('POST', base(courseId), { source })
+export const createModule = (courseId: number, source: string) =>
+  http<ModuleEditing>('POST', base(courseId), { source })
 export const saveModule = (courseId: number, moduleId: number, source: string, baseVersionId: number) =>
   http<ModuleEditing>('PUT', `${base(courseId)}/${moduleId}`, { source, baseVersionId })
 export const publishModule = (courseId: number, moduleId: number, versionId: number) =>

@@ -5,7 +5,9 @@
 const course = (courseId: number) => `/api/courses/${courseId}`
 
 /** One hand-in's feedback report (PDF). */
-export const feedbackReportUrl = (courseId: number, submissionId: number) => `${course(courseId)}/submissions/${submissionId}/report.pdf`
+export const feedbackReportUrl = (courseId: number, submissionId: number) =>
+  `${course(courseId)}/submissions/${submissionId}/report.pdf`
 
 /** Every lab group's or student's counted report of a module, one PDF each, in a zip (instructors). */
-export const moduleReportsZipUrl = (courseId: number, moduleId: number) => `${course(courseId)}/modules/${moduleId}/reports.zip`
+export const moduleReportsZipUrl = (courseId: number, moduleId: number) =>
+  `${course(courseId)}/modules/${moduleId}/reports.zip`

@@ -12,7 +12,8 @@ export interface ReviewExtras {
 
 export type ReviewStatus = 'open' | 'in-review' | 'resolved'
 
-const submissionBase = (courseId: number, submissionId: number) => `/api/courses/${courseId}/submissions/${submissionId}`
+const submissionBase = (courseId: number, submissionId: number) =>
+  `/api/courses/${courseId}/submissions/${submissionId}`
 
 /** The review queue; undefined filters are left out of the query string. */
 export function fetchReviewQueue(courseId: number, q: Partial<ReviewQuery>): Promise<ReviewPage> {
@@ -30,8 +31,13 @@ export const postOverride = (courseId: number, submissionId: number, o: Override
 export const postComment = (courseId: number, submissionId: number, body: string, revision: number) =>
   http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/comments`, { body, revision })
 
-export const postFlagAction = (courseId: number, submissionId: number, flagId: number, action: 'resolve' | 'reopen', revision: number) =>
-  http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/flags/${flagId}`, { action, revision })
+export const postFlagAction = (
+  courseId: number,
+  submissionId: number,
+  flagId: number,
+  action: 'resolve' | 'reopen',
+  revision: number,
+) => http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/flags/${flagId}`, { action, revision })
 
 export const postReviewStatus = (courseId: number, submissionId: number, status: ReviewStatus, revision: number) =>
   http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/review-status`, { status, revision })

@@ -2,7 +2,8 @@ import type { MySubmissions, SubmissionDetail, SubmissionPayload } from '@shared
 import { ApiError, apiErrorFrom, csrfHeader, http } from './http'
 
 const moduleBase = (courseId: number, moduleId: number) => `/api/courses/${courseId}/modules/${moduleId}/submissions`
-const submissionBase = (courseId: number, submissionId: number) => `/api/courses/${courseId}/submissions/${submissionId}`
+const submissionBase = (courseId: number, submissionId: number) =>
+  `/api/courses/${courseId}/submissions/${submissionId}`
 
 export const fetchMySubmissions = (courseId: number, moduleId: number) =>
   http<MySubmissions>('GET', `${moduleBase(courseId, moduleId)}/mine`)
@@ -72,7 +73,13 @@ export function submitHandIn(
         try {
           resolve(JSON.parse(text) as SubmissionDetail)
         } catch {
-          reject(new ApiError(xhr.status, 'bad_response', 'The server accepted the hand-in but its answer could not be read. Open the module to see your attempts.'))
+          reject(
+            new ApiError(
+              xhr.status,
+              'bad_response',
+              'The server accepted the hand-in but its answer could not be read. Open the module to see your attempts.',
+            ),
+          )
         }
         return
       }
@@ -87,7 +94,9 @@ export function submitHandIn(
         ),
       ),
     )
-    xhr.addEventListener('abort', () => reject(new ApiError(0, 'aborted', 'The hand-in was cancelled before it was sent.')))
+    xhr.addEventListener('abort', () =>
+      reject(new ApiError(0, 'aborted', 'The hand-in was cancelled before it was sent.')),
+    )
     onProgress({ phase: 'uploading', loaded: 0, total: 0 })
     xhr.send(form)
   })

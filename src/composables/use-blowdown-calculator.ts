@@ -38,7 +38,8 @@ const STEPS = 1000
 /** An optional numeric starting value: the text given (as {@link defaultNumber} reads it), or '' (left empty). */
 function optionalDefault(d: CalculatorDefaults | undefined, key: string): string {
   const given = d?.[key]
-  const usable = (typeof given === 'number' && Number.isFinite(given)) || (typeof given === 'string' && given.trim() !== '')
+  const usable =
+    (typeof given === 'number' && Number.isFinite(given)) || (typeof given === 'string' && given.trim() !== '')
   return usable ? defaultNumber(d, key, 0) : ''
 }
 
@@ -139,7 +140,9 @@ function compute(form: BlowdownForm): BlowdownResult {
   )
   const temperatureTyped = readNumber('initialTemperature', form.initialTemperature, 'initial temperature')
   const temperatureMessage = 'The initial temperature must be above absolute zero (0 K, −273.15 °C).'
-  const temperature = forField('initialTemperature', temperatureMessage, () => toSI(temperatureTyped, form.initialTemperatureUnit))
+  const temperature = forField('initialTemperature', temperatureMessage, () =>
+    toSI(temperatureTyped, form.initialTemperatureUnit),
+  )
   const throatTyped = readNumber('throatDiameter', form.throatDiameter, 'throat diameter')
   const throatArea = forField('throatDiameter', 'The throat diameter must be greater than 0.', () =>
     areaFromDiameter(toSI(throatTyped, form.throatDiameterUnit)),
@@ -179,7 +182,10 @@ function compute(form: BlowdownForm): BlowdownResult {
       },
       duration: { field: 'duration', message: () => 'The duration must be greater than 0 s.' },
       gamma: { field: 'gamma', message: () => 'The ratio of specific heats γ must be greater than 1 (air: 1.4).' },
-      gasConstant: { field: 'gasConstant', message: () => 'The gas constant must be greater than 0 (air: 287.05 J/(kg·K)).' },
+      gasConstant: {
+        field: 'gasConstant',
+        message: () => 'The gas constant must be greater than 0 (air: 287.05 J/(kg·K)).',
+      },
     },
     () => {
       const run = tankBlowdown({
@@ -236,5 +242,11 @@ export interface BlowdownCalculator extends LiveCalculation<BlowdownResult> {
  */
 export function useBlowdownCalculator(defaults: CalculatorDefaults | undefined): BlowdownCalculator {
   const form = blowdownForm(defaults)
-  return { form, ...useLiveCalculation(() => ({ ...form }), () => compute(form)) }
+  return {
+    form,
+    ...useLiveCalculation(
+      () => ({ ...form }),
+      () => compute(form),
+    ),
+  }
 }

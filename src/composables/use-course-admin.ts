@@ -6,7 +6,16 @@
 import { ref } from 'vue'
 import type { Ref } from 'vue'
 import type { z } from 'zod'
-import type { CourseStructure, ExtensionInput, ExtensionOverview, LabGroupCreate, LabGroupUpdate, Placement, SectionCreate, SectionUpdate } from '@shared/schemas/course-admin'
+import type {
+  CourseStructure,
+  ExtensionInput,
+  ExtensionOverview,
+  LabGroupCreate,
+  LabGroupUpdate,
+  Placement,
+  SectionCreate,
+  SectionUpdate,
+} from '@shared/schemas/course-admin'
 import { ApiError } from '@/api/http'
 import {
   deleteExtension,
@@ -27,11 +36,19 @@ import { useResource } from './use-resource'
 const asApiError = (err: unknown) => (err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err)))
 
 /** The first problem the shared schema finds in a form's value, as an ApiError the form can show. */
-export function checkForm<S extends z.ZodType>(schema: S, value: unknown): { data: z.infer<S>; error: null } | { data: null; error: ApiError } {
+export function checkForm<S extends z.ZodType>(
+  schema: S,
+  value: unknown,
+): { data: z.infer<S>; error: null } | { data: null; error: ApiError } {
   const parsed = schema.safeParse(value)
   if (parsed.success) return { data: parsed.data, error: null }
   const first = parsed.error.issues[0]
-  return { data: null, error: new ApiError(400, 'validation_failed', first?.message ?? 'Check the form.', [{ path: first?.path.join('.') ?? '', message: first?.message ?? '' }]) }
+  return {
+    data: null,
+    error: new ApiError(400, 'validation_failed', first?.message ?? 'Check the form.', [
+      { path: first?.path.join('.') ?? '', message: first?.message ?? '' },
+    ]),
+  }
 }
 
 /**
@@ -97,14 +114,21 @@ export function useCourseStructure(courseId: Ref<number>) {
     createGroup: (b: LabGroupCreate) => change(() => postLabGroup(courseId.value, b)),
     updateGroup: (id: number, b: LabGroupUpdate) => change(() => patchLabGroup(courseId.value, id, b)),
     removeGroup: (id: number) => change(() => deleteLabGroup(courseId.value, id)),
-    placeTa: (userId: number, sectionId: number | null) => change(() => patchPlacement(courseId.value, userId, { sectionId }), true),
+    placeTa: (userId: number, sectionId: number | null) =>
+      change(() => patchPlacement(courseId.value, userId, { sectionId }), true),
   }
 }
 
 /** What the roster's per-row actions need: the course structure, extensions, and the changes. */
 export function useRosterAdmin(courseId: Ref<number>, enabled: Ref<boolean>, onChanged: () => Promise<void>) {
-  const structure = useResource<CourseStructure | null>(() => (enabled.value ? fetchCourseStructure(courseId.value) : Promise.resolve(null)), () => [courseId.value, enabled.value])
-  const extensions = useResource<ExtensionOverview | null>(() => (enabled.value ? fetchExtensions(courseId.value) : Promise.resolve(null)), () => [courseId.value, enabled.value])
+  const structure = useResource<CourseStructure | null>(
+    () => (enabled.value ? fetchCourseStructure(courseId.value) : Promise.resolve(null)),
+    () => [courseId.value, enabled.value],
+  )
+  const extensions = useResource<ExtensionOverview | null>(
+    () => (enabled.value ? fetchExtensions(courseId.value) : Promise.resolve(null)),
+    () => [courseId.value, enabled.value],
+  )
   const busy = ref(false)
 
   async function run(action: () => Promise<unknown>, after: () => Promise<void>): Promise<ApiError | null> {
@@ -131,9 +155,15 @@ export function useRosterAdmin(courseId: Ref<number>, enabled: Ref<boolean>, onC
     place: (userId: number, p: Placement) => run(() => patchPlacement(courseId.value, userId, p), refreshAll),
     remove: (userId: number) => run(() => deleteMember(courseId.value, userId), refreshAll),
     grant: (moduleId: number, userId: number, input: ExtensionInput) =>
-      run(async () => (extensions.data.value = await putExtension(courseId.value, moduleId, userId, input)), async () => {}),
+      run(
+        async () => (extensions.data.value = await putExtension(courseId.value, moduleId, userId, input)),
+        async () => {},
+      ),
     revoke: (moduleId: number, userId: number) =>
-      run(async () => (extensions.data.value = await deleteExtension(courseId.value, moduleId, userId)), async () => {}),
+      run(
+        async () => (extensions.data.value = await deleteExtension(courseId.value, moduleId, userId)),
+        async () => {},
+      ),
   }
 }
 

@@ -7,7 +7,17 @@ import type { Ref } from 'vue'
 import type { GradebookQuery, MyGradeState, RegradeStatus } from '@shared/schemas/grades'
 import { RegradeAnswerSchema, RegradeRequestSchema, WeightSchema } from '@shared/schemas/grades'
 import { ApiError } from '@/api/http'
-import { deleteRelease, fetchGradebook, fetchMyGrades, fetchRegrade, gradebookCsvUrl, postRegrade, postRegradeAnswer, postRelease, putWeight } from '@/api/grades'
+import {
+  deleteRelease,
+  fetchGradebook,
+  fetchMyGrades,
+  fetchRegrade,
+  gradebookCsvUrl,
+  postRegrade,
+  postRegradeAnswer,
+  postRelease,
+  putWeight,
+} from '@/api/grades'
 import { useResource } from './use-resource'
 
 export const MY_GRADE_STATE_WORDS: Record<MyGradeState, string> = {
@@ -30,7 +40,10 @@ const sentence = (s: string) => s.charAt(0).toUpperCase() + s.slice(1)
 
 /** The staff gradebook with its filters, and the instructor's actions on it. */
 export function useGradebook(courseId: Ref<number>, filters: Ref<GradebookQuery>) {
-  const book = useResource(() => fetchGradebook(courseId.value, filters.value), () => [courseId.value, filters.value.sectionId, filters.value.labGroupId])
+  const book = useResource(
+    () => fetchGradebook(courseId.value, filters.value),
+    () => [courseId.value, filters.value.sectionId, filters.value.labGroupId],
+  )
   const busy = ref(false)
   const actionError = shallowRef<ApiError | null>(null)
   /** A weight problem per module id. */
@@ -56,7 +69,10 @@ export function useGradebook(courseId: Ref<number>, filters: Ref<GradebookQuery>
   async function setWeight(moduleId: number, weight: number | null): Promise<boolean> {
     const parsed = WeightSchema.safeParse({ weight: weight ?? Number.NaN })
     if (!parsed.success) {
-      weightErrors.value = { ...weightErrors.value, [moduleId]: sentence(parsed.error.issues[0]?.message ?? 'enter a number.') }
+      weightErrors.value = {
+        ...weightErrors.value,
+        [moduleId]: sentence(parsed.error.issues[0]?.message ?? 'enter a number.'),
+      }
       return false
     }
     const next = { ...weightErrors.value }
@@ -72,7 +88,10 @@ export function useGradebook(courseId: Ref<number>, filters: Ref<GradebookQuery>
 }
 
 export function useMyGrades(courseId: Ref<number>) {
-  return useResource(() => fetchMyGrades(courseId.value), () => courseId.value)
+  return useResource(
+    () => fetchMyGrades(courseId.value),
+    () => courseId.value,
+  )
 }
 
 /**
@@ -80,7 +99,10 @@ export function useMyGrades(courseId: Ref<number>) {
  * form's field, anything else (409: not released, one already open) as a message above it.
  */
 export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
-  const status = useResource(() => fetchRegrade(courseId.value, submissionId.value), () => [courseId.value, submissionId.value])
+  const status = useResource(
+    () => fetchRegrade(courseId.value, submissionId.value),
+    () => [courseId.value, submissionId.value],
+  )
   const busy = ref(false)
   const fieldError = ref<string | null>(null)
   const actionError = shallowRef<ApiError | null>(null)

@@ -18,15 +18,24 @@ export function useModuleList(courseId: Ref<number>) {
 }
 
 export function useModuleReading(courseId: Ref<number>, moduleId: Ref<number>) {
-  return useResource(() => fetchModule(courseId.value, moduleId.value), () => [courseId.value, moduleId.value])
+  return useResource(
+    () => fetchModule(courseId.value, moduleId.value),
+    () => [courseId.value, moduleId.value],
+  )
 }
 
 export function useModuleEditing(courseId: Ref<number>, moduleId: Ref<number>) {
-  return useResource(() => fetchModuleForEditing(courseId.value, moduleId.value), () => [courseId.value, moduleId.value])
+  return useResource(
+    () => fetchModuleForEditing(courseId.value, moduleId.value),
+    () => [courseId.value, moduleId.value],
+  )
 }
 
 export function useModuleVersions(courseId: Ref<number>, moduleId: Ref<number>) {
-  return useResource(() => fetchVersions(courseId.value, moduleId.value), () => [courseId.value, moduleId.value])
+  return useResource(
+    () => fetchVersions(courseId.value, moduleId.value),
+    () => [courseId.value, moduleId.value],
+  )
 }
 
 /** A new module in the course (from the starter text or an imported file). */

@@ -109,7 +109,13 @@ export interface NozzleResult {
  * is not choked; supersonic up to the normal shock and subsonic after it, at the lower stagnation
  * pressure p02 = p01·(p02/p01) and larger sonic area A*2 = At/(p02/p01), when there is one.
  */
-function flowProfile(flow: NozzleFlow, throatDiameter: number, exitDiameter: number, gamma: number, lengthUnit: UnitSymbol): {
+function flowProfile(
+  flow: NozzleFlow,
+  throatDiameter: number,
+  exitDiameter: number,
+  gamma: number,
+  lengthUnit: UnitSymbol,
+): {
   profile: ProfilePoint[]
   shockPosition: number | null
 } {
@@ -186,16 +192,22 @@ function compute(form: NozzleForm): NozzleResult {
 
   const temperatureTyped = readNumber('chamberTemperature', form.chamberTemperature, 'chamber temperature')
   const temperatureMessage = 'The chamber temperature must be above absolute zero (0 K, −273.15 °C).'
-  const temperature = forField('chamberTemperature', temperatureMessage, () => toSI(temperatureTyped, form.chamberTemperatureUnit))
+  const temperature = forField('chamberTemperature', temperatureMessage, () =>
+    toSI(temperatureTyped, form.chamberTemperatureUnit),
+  )
 
   const throatTyped = readNumber('throatDiameter', form.throatDiameter, 'throat diameter')
   const throatDiameter = toSI(throatTyped, form.throatDiameterUnit)
-  const throatArea = forField('throatDiameter', 'The throat diameter must be greater than 0.', () => areaFromDiameter(throatDiameter))
+  const throatArea = forField('throatDiameter', 'The throat diameter must be greater than 0.', () =>
+    areaFromDiameter(throatDiameter),
+  )
   const exitTyped = readNumber('exitDiameter', form.exitDiameter, 'exit diameter')
   const exitDiameter = toSI(exitTyped, form.exitDiameterUnit)
   const exitMessage = `The exit diameter must be at least the throat diameter (${throatTyped} ${unitLabel(form.throatDiameterUnit)}): the diverging section cannot be narrower than the throat.`
-  const exitArea = forField('exitDiameter', exitDiameter > 0 ? exitMessage : 'The exit diameter must be greater than 0.', () =>
-    areaFromDiameter(exitDiameter),
+  const exitArea = forField(
+    'exitDiameter',
+    exitDiameter > 0 ? exitMessage : 'The exit diameter must be greater than 0.',
+    () => areaFromDiameter(exitDiameter),
   )
   const gamma = readNumber('gamma', form.gamma, 'ratio of specific heats')
   const gasConstant = readNumber('gasConstant', form.gasConstant, 'gas constant')
@@ -215,7 +227,10 @@ function compute(form: NozzleForm): NozzleResult {
       throatArea: { field: 'throatDiameter', message: () => 'The throat diameter must be greater than 0.' },
       exitArea: { field: 'exitDiameter', message: () => exitMessage },
       gamma: { field: 'gamma', message: () => 'The ratio of specific heats γ must be greater than 1 (air: 1.4).' },
-      gasConstant: { field: 'gasConstant', message: () => 'The gas constant must be greater than 0 (air: 287.05 J/(kg·K)).' },
+      gasConstant: {
+        field: 'gasConstant',
+        message: () => 'The gas constant must be greater than 0 (air: 287.05 J/(kg·K)).',
+      },
     },
     () => {
       const flow = nozzleFlow({
@@ -237,7 +252,9 @@ function compute(form: NozzleForm): NozzleResult {
           }
         : null
       const separationPosition =
-        flow.separationAreaRatio === null ? null : distanceFromThroat(Math.sqrt(flow.separationAreaRatio) * throatDiameter, throatDiameter, lengthUnit)
+        flow.separationAreaRatio === null
+          ? null
+          : distanceFromThroat(Math.sqrt(flow.separationAreaRatio) * throatDiameter, throatDiameter, lengthUnit)
       const { profile, shockPosition } = flowProfile(flow, throatDiameter, exitDiameter, gamma, lengthUnit)
       return {
         flow,
@@ -256,7 +273,6 @@ function compute(form: NozzleForm): NozzleResult {
   )
 }
 
-
 /** What {@link useNozzleCalculator} gives the component: the form to bind and the live results. */
 export interface NozzleCalculator extends LiveCalculation<NozzleResult> {
   form: NozzleForm
@@ -268,5 +284,11 @@ export interface NozzleCalculator extends LiveCalculation<NozzleResult> {
  */
 export function useNozzleCalculator(defaults: CalculatorDefaults | undefined): NozzleCalculator {
   const form = nozzleForm(defaults)
-  return { form, ...useLiveCalculation(() => ({ ...form }), () => compute(form)) }
+  return {
+    form,
+    ...useLiveCalculation(
+      () => ({ ...form }),
+      () => compute(form),
+    ),
+  }
 }

@@ -8,7 +8,14 @@ import type { ReviewQuery } from '@shared/schemas/review'
 import { OverrideSchema } from '@shared/schemas/review'
 import { ApiError } from '@/api/http'
 import { fetchModules } from '@/api/modules'
-import { fetchReviewExtras, fetchReviewQueue, postComment, postFlagAction, postOverride, postReviewStatus } from '@/api/review'
+import {
+  fetchReviewExtras,
+  fetchReviewQueue,
+  postComment,
+  postFlagAction,
+  postOverride,
+  postReviewStatus,
+} from '@/api/review'
 import type { ReviewExtras, ReviewStatus } from '@/api/review'
 import { useSubmission } from './use-submissions'
 import { useResource } from './use-resource'
@@ -38,8 +45,14 @@ export type QueueQuery = Required<Pick<ReviewQuery, 'page' | 'pageSize' | 'sort'
 
 /** One page of the review queue; re-loads whenever the query changes (server-side paging, sorting, filters). */
 export function useReviewQueue(courseId: Ref<number>, query: Ref<QueueQuery>) {
-  const page = useResource(() => fetchReviewQueue(courseId.value, query.value), () => [courseId.value, JSON.stringify(query.value)])
-  const modules = useResource(() => fetchModules(courseId.value), () => courseId.value)
+  const page = useResource(
+    () => fetchReviewQueue(courseId.value, query.value),
+    () => [courseId.value, JSON.stringify(query.value)],
+  )
+  const modules = useResource(
+    () => fetchModules(courseId.value),
+    () => courseId.value,
+  )
   return { page, modules }
 }
 
@@ -48,7 +61,8 @@ function fieldProblem(err: ApiError): { field: string; message: string } | null 
   const d = err.details as { field?: unknown } | { path?: unknown; message?: unknown }[] | undefined
   if (Array.isArray(d)) {
     const first = d[0]
-    if (typeof first?.path === 'string' && typeof first.message === 'string') return { field: first.path, message: first.message }
+    if (typeof first?.path === 'string' && typeof first.message === 'string')
+      return { field: first.path, message: first.message }
     return null
   }
   if (typeof d?.field === 'string') return { field: d.field, message: err.message }
@@ -62,7 +76,10 @@ function fieldProblem(err: ApiError): { field: string; message: string } | null 
  */
 export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<number>) {
   const detail = useSubmission(courseId, submissionId)
-  const extras = useResource<ReviewExtras>(() => fetchReviewExtras(courseId.value, submissionId.value), () => [courseId.value, submissionId.value])
+  const extras = useResource<ReviewExtras>(
+    () => fetchReviewExtras(courseId.value, submissionId.value),
+    () => [courseId.value, submissionId.value],
+  )
   const busy = ref(false)
   const conflict = shallowRef<ApiError | null>(null)
   const actionError = shallowRef<ApiError | null>(null)
@@ -95,7 +112,12 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
   }
 
   /** Checks the override in the browser with the server's own schema and range, then sends it. */
-  async function override(checkId: number | null, points: number | null, reason: string, maxPoints: number): Promise<boolean> {
+  async function override(
+    checkId: number | null,
+    points: number | null,
+    reason: string,
+    maxPoints: number,
+  ): Promise<boolean> {
     const parsed = OverrideSchema.safeParse({ checkId, points: points ?? Number.NaN, reason, revision: revision.value })
     const errs: Record<string, string> = {}
     if (!parsed.success) {
@@ -105,7 +127,10 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
       }
     }
     if (!errs.points && points !== null && (points < 0 || points > maxPoints)) {
-      errs.points = checkId === null ? `points: the total must be between 0 and ${maxPoints}.` : `points: this check is worth between 0 and ${maxPoints} points.`
+      errs.points =
+        checkId === null
+          ? `points: the total must be between 0 and ${maxPoints}.`
+          : `points: this check is worth between 0 and ${maxPoints} points.`
     }
     if (points === null) errs.points = 'points: enter a number.'
     if (Object.keys(errs).length) {
@@ -127,7 +152,8 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
   const flag = (flagId: number, action: 'resolve' | 'reopen') =>
     run(() => postFlagAction(courseId.value, submissionId.value, flagId, action, revision.value), [])
 
-  const setStatus = (status: ReviewStatus) => run(() => postReviewStatus(courseId.value, submissionId.value, status, revision.value), [])
+  const setStatus = (status: ReviewStatus) =>
+    run(() => postReviewStatus(courseId.value, submissionId.value, status, revision.value), [])
 
   async function reloadAll() {
     conflict.value = null

@@ -59,9 +59,14 @@ export function useRosterImport(courseId: Ref<number>) {
     const local = parseRosterCsv(text)
     if (!local.ok) {
       fileProblems.value = local.problems
-      previewError.value = new ApiError(422, 'roster_file_refused', local.problems[0]?.message ?? 'The file cannot be read.', {
-        problems: local.problems,
-      })
+      previewError.value = new ApiError(
+        422,
+        'roster_file_refused',
+        local.problems[0]?.message ?? 'The file cannot be read.',
+        {
+          problems: local.problems,
+        },
+      )
       previewState.value = 'error'
       return
     }
@@ -75,7 +80,8 @@ export function useRosterImport(courseId: Ref<number>) {
       if (previewedCsv !== text) return
       const e = asApiError(err)
       previewError.value = e
-      fileProblems.value = e.code === 'roster_file_refused' ? ((e.details as RosterFileRefusal | undefined)?.problems ?? []) : []
+      fileProblems.value =
+        e.code === 'roster_file_refused' ? ((e.details as RosterFileRefusal | undefined)?.problems ?? []) : []
       previewState.value = 'error'
     }
   }

@@ -32,7 +32,11 @@ export { formatScore, percentText, unitText, valueText, withUnit }
 // Loading.
 
 /** My (or my lab group's) attempts at a module; nothing is loaded while `enabled` is false. */
-export function useMySubmissions(courseId: Ref<number>, moduleId: Ref<number | null>, enabled: Ref<boolean> = ref(true)) {
+export function useMySubmissions(
+  courseId: Ref<number>,
+  moduleId: Ref<number | null>,
+  enabled: Ref<boolean> = ref(true),
+) {
   return useResource(
     async () => (enabled.value && moduleId.value !== null ? fetchMySubmissions(courseId.value, moduleId.value) : null),
     () => [courseId.value, moduleId.value, enabled.value],
@@ -43,7 +47,10 @@ export function useMySubmissions(courseId: Ref<number>, moduleId: Ref<number | n
 const GRADE_WAIT_MS = 5 * 60_000
 
 export function useSubmission(courseId: Ref<number>, submissionId: Ref<number>) {
-  const resource = useResource(() => fetchSubmission(courseId.value, submissionId.value), () => [courseId.value, submissionId.value])
+  const resource = useResource(
+    () => fetchSubmission(courseId.value, submissionId.value),
+    () => [courseId.value, submissionId.value],
+  )
   let timer: ReturnType<typeof setTimeout> | null = null
   let waitedMs = 0
   const stop = () => {
@@ -106,7 +113,9 @@ export function studentAssignment(frontMatter: Record<string, unknown> | null | 
   if (raw === undefined || raw === null) return null
   const parsed = StudentAssignmentSchema.safeParse(raw)
   if (!parsed.success) {
-    throw new Error(`This module's hand-in form could not be read: ${parsed.error.issues[0]?.message ?? 'unknown problem'}.`)
+    throw new Error(
+      `This module's hand-in form could not be read: ${parsed.error.issues[0]?.message ?? 'unknown problem'}.`,
+    )
   }
   const a = parsed.data
   return a.tables.length + a.measurements.length + a.results.length > 0 ? a : null
@@ -154,7 +163,8 @@ export function rangeText(m: MeasurementSpec): string | null {
   const sense = m.pressure ? ` ${m.pressure}` : ''
   const u = unitText(m.unit)
   const unit = u ? ` ${u}` : ''
-  if (m.min !== undefined && m.max !== undefined) return `Plausible range: ${formatCompact(m.min)} to ${formatCompact(m.max)}${unit}${sense}`
+  if (m.min !== undefined && m.max !== undefined)
+    return `Plausible range: ${formatCompact(m.min)} to ${formatCompact(m.max)}${unit}${sense}`
   if (m.min !== undefined) return `Plausible range: at least ${formatCompact(m.min)}${unit}${sense}`
   if (m.max !== undefined) return `Plausible range: at most ${formatCompact(m.max)}${unit}${sense}`
   return null
@@ -206,9 +216,7 @@ function previewOf(text: string): { headers: string[]; rows: PreviewRow[] } {
   for (let lines = 0; lines < PREVIEW_ROWS + 12 && end >= 0; lines++) end = text.indexOf('\n', end + 1)
   const head = end < 0 ? text : text.slice(0, end)
   const parsed = Papa.parse(head.replace(/^\uFEFF/, ''), { header: false, skipEmptyLines: false }).data
-  const rows = parsed
-    .map((cells, i) => ({ line: i + 1, cells }))
-    .filter((r) => r.cells.some((c) => c.trim() !== ''))
+  const rows = parsed.map((cells, i) => ({ line: i + 1, cells })).filter((r) => r.cells.some((c) => c.trim() !== ''))
   const [header, ...rest] = rows
   return { headers: (header?.cells ?? []).map((h) => h.trim()), rows: rest.slice(0, PREVIEW_ROWS) }
 }
@@ -263,7 +271,8 @@ export function useLogUpload(table: TableSpec): LogUpload {
       suggested.value = Object.keys(guess)
       text.value = content
     } catch (err) {
-      if (mine === run) fileProblem.value = `${next.name} could not be read (${err instanceof Error ? err.message : String(err)}); choose it again.`
+      if (mine === run)
+        fileProblem.value = `${next.name} could not be read (${err instanceof Error ? err.message : String(err)}); choose it again.`
     } finally {
       if (mine === run) reading.value = false
     }
@@ -272,7 +281,11 @@ export function useLogUpload(table: TableSpec): LogUpload {
   function setMapping(columnKey: string, patch: Partial<ColumnMappingEntry>) {
     const spec = table.columns.find((c) => c.key === columnKey)
     if (!spec) return
-    const before = mapping.value[columnKey] ?? { header: '', unit: spec.unit, ...(spec.pressure ? { pressure: spec.pressure } : {}) }
+    const before = mapping.value[columnKey] ?? {
+      header: '',
+      unit: spec.unit,
+      ...(spec.pressure ? { pressure: spec.pressure } : {}),
+    }
     mapping.value = { ...mapping.value, [columnKey]: { ...before, ...patch } }
   }
 
@@ -286,7 +299,8 @@ export function useLogUpload(table: TableSpec): LogUpload {
   const previewSeries = computed(() => {
     const r = result.value
     if (!r || !r.ok) return null
-    const time = table.columns.find((c) => c.role === 'time') ?? table.columns.find((c) => dataUnitKind(c.unit) === 'time')
+    const time =
+      table.columns.find((c) => c.role === 'time') ?? table.columns.find((c) => dataUnitKind(c.unit) === 'time')
     const xs = time ? r.columns[time.key] : undefined
     if (!time || !xs) return null
     const others = table.columns.filter((c) => c !== time && r.columns[c.key])
@@ -306,7 +320,10 @@ export function useLogUpload(table: TableSpec): LogUpload {
     const title = (u: string) => {
       const cols = others.filter((c) => c.unit === u)
       const kind = dataUnitKind(u)
-      const name = cols.length === 1 || !kind || kind === 'dimensionless' ? (cols[0]?.label ?? '') : kind[0]!.toUpperCase() + kind.slice(1)
+      const name =
+        cols.length === 1 || !kind || kind === 'dimensionless'
+          ? (cols[0]?.label ?? '')
+          : kind[0]!.toUpperCase() + kind.slice(1)
       return `${name}${unitText(u) ? ` (${unitText(u)})` : ''}`
     }
     return {
@@ -317,7 +334,20 @@ export function useLogUpload(table: TableSpec): LogUpload {
     }
   })
 
-  return { table, file, reading, fileProblem, headers, previewRows, mapping, suggested, result, previewSeries, setFile, setMapping }
+  return {
+    table,
+    file,
+    reading,
+    fileProblem,
+    headers,
+    previewRows,
+    mapping,
+    suggested,
+    result,
+    previewSeries,
+    setFile,
+    setMapping,
+  }
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -366,11 +396,19 @@ export function useHandInForm(assignment: StudentAssignment) {
     Object.fromEntries(
       assignment.measurements.map((m) => [
         m.key,
-        { text: '', unit: m.unit, ...(isPressureUnit(m.unit) ? { pressure: m.role === 'ambient-pressure' ? 'absolute' : (m.pressure ?? 'absolute') } : {}) },
+        {
+          text: '',
+          unit: m.unit,
+          ...(isPressureUnit(m.unit)
+            ? { pressure: m.role === 'ambient-pressure' ? 'absolute' : (m.pressure ?? 'absolute') }
+            : {}),
+        },
       ]),
     ),
   )
-  const results = reactive<Record<string, TypedEntry>>(Object.fromEntries(assignment.results.map((r) => [r.key, { text: '', unit: r.unit }])))
+  const results = reactive<Record<string, TypedEntry>>(
+    Object.fromEntries(assignment.results.map((r) => [r.key, { text: '', unit: r.unit }])),
+  )
   /** True after the first attempt to send: from then on, problems are shown as they are fixed. */
   const attempted = ref(false)
   /** The server's problems of the last refused attempt, by field. */
@@ -383,8 +421,10 @@ export function useHandInForm(assignment: StudentAssignment) {
     const e = measurements[m.key]
     if (!e || e.text.trim() === '') return `${m.label}: enter a value.`
     const value = typedNumber(e.text)
-    if (Number.isNaN(value)) return `${m.label}: “${e.text.trim()}” is not a number; write it with a point for decimals, like 84.2.`
-    if (!isCompatibleUnit(e.unit, m.unit)) return `${m.label}: ${unitText(e.unit)} does not measure the same kind of quantity as ${unitText(m.unit)}; choose another unit.`
+    if (Number.isNaN(value))
+      return `${m.label}: “${e.text.trim()}” is not a number; write it with a point for decimals, like 84.2.`
+    if (!isCompatibleUnit(e.unit, m.unit))
+      return `${m.label}: ${unitText(e.unit)} does not measure the same kind of quantity as ${unitText(m.unit)}; choose another unit.`
     let inSpec: number
     try {
       inSpec = toSpecUnit(value, e.unit, m.unit)
@@ -401,18 +441,26 @@ export function useHandInForm(assignment: StudentAssignment) {
       inSpec = toSpecSense(inSpec, sense, m.pressure, toSpecUnit(ambientValue, ambient.unit, m.unit))
     }
     const shown = `${formatCompact(inSpec)} ${unitText(m.unit)}${m.pressure ? ` ${m.pressure}` : ''}`.trim()
-    const inYourUnit = e.unit !== m.unit || (m.pressure && sense !== m.pressure) ? ` (your ${formatCompact(value)} ${unitText(e.unit)}${sense && m.pressure ? ` ${sense}` : ''} is ${shown})` : ''
-    if (m.min !== undefined && inSpec < m.min) return `${m.label}: below the plausible minimum of ${formatCompact(m.min)} ${unitText(m.unit)}${inYourUnit}.`
-    if (m.max !== undefined && inSpec > m.max) return `${m.label}: above the plausible maximum of ${formatCompact(m.max)} ${unitText(m.unit)}${inYourUnit}.`
+    const inYourUnit =
+      e.unit !== m.unit || (m.pressure && sense !== m.pressure)
+        ? ` (your ${formatCompact(value)} ${unitText(e.unit)}${sense && m.pressure ? ` ${sense}` : ''} is ${shown})`
+        : ''
+    if (m.min !== undefined && inSpec < m.min)
+      return `${m.label}: below the plausible minimum of ${formatCompact(m.min)} ${unitText(m.unit)}${inYourUnit}.`
+    if (m.max !== undefined && inSpec > m.max)
+      return `${m.label}: above the plausible maximum of ${formatCompact(m.max)} ${unitText(m.unit)}${inYourUnit}.`
     return null
   }
 
   function resultProblem(r: StudentResultSpec): string | null {
     const e = results[r.key]
-    if (r.regime) return !e || e.text === '' ? `${r.label}: choose the regime.` : regimeCodeProblem(r.label, Number(e.text))
+    if (r.regime)
+      return !e || e.text === '' ? `${r.label}: choose the regime.` : regimeCodeProblem(r.label, Number(e.text))
     if (!e || e.text.trim() === '') return `${r.label}: enter your result.`
-    if (Number.isNaN(typedNumber(e.text))) return `${r.label}: “${e.text.trim()}” is not a number; write it with a point for decimals, like 0.672.`
-    if (!isCompatibleUnit(e.unit, r.unit)) return `${r.label}: ${unitText(e.unit)} is not a unit of the right kind; choose another unit.`
+    if (Number.isNaN(typedNumber(e.text)))
+      return `${r.label}: “${e.text.trim()}” is not a number; write it with a point for decimals, like 0.672.`
+    if (!isCompatibleUnit(e.unit, r.unit))
+      return `${r.label}: ${unitText(e.unit)} is not a unit of the right kind; choose another unit.`
     return null
   }
 
@@ -451,7 +499,11 @@ export function useHandInForm(assignment: StudentAssignment) {
     for (const issue of serverIssues.value) {
       if (!issue.field.startsWith('table:')) continue
       const list = (out[issue.field.slice('table:'.length)] ??= { items: [], more: 0 })
-      list.items.push({ message: issue.message, ...(issue.row !== undefined ? { row: issue.row } : {}), ...(issue.column !== undefined ? { column: issue.column } : {}) })
+      list.items.push({
+        message: issue.message,
+        ...(issue.row !== undefined ? { row: issue.row } : {}),
+        ...(issue.column !== undefined ? { column: issue.column } : {}),
+      })
     }
     // The server counts the unlisted file problems over the whole hand-in; an assignment has one log as a rule.
     const first = Object.values(out)[0]
@@ -472,7 +524,9 @@ export function useHandInForm(assignment: StudentAssignment) {
       if (!listed) continue
       const n = listed.items.length + listed.more
       out[fieldId.table(u.table.key)] =
-        n === 1 ? (listed.items[0]?.message ?? '') : `${u.table.label}: the server found ${n} problems in the file; see the list under the upload.`
+        n === 1
+          ? (listed.items[0]?.message ?? '')
+          : `${u.table.label}: the server found ${n} problems in the file; see the list under the upload.`
     }
     if (attempted.value) Object.assign(out, clientProblems.value)
     return out
@@ -500,14 +554,22 @@ export function useHandInForm(assignment: StudentAssignment) {
       for (const c of u.table.columns) {
         const e = u.mapping.value[c.key]
         if (!e || e.header === '') continue
-        m[c.key] = { header: e.header, unit: e.unit, ...(isPressureUnit(c.unit) && e.pressure ? { pressure: e.pressure } : {}) }
+        m[c.key] = {
+          header: e.header,
+          unit: e.unit,
+          ...(isPressureUnit(c.unit) && e.pressure ? { pressure: e.pressure } : {}),
+        }
       }
       mappings[u.table.key] = m
     }
     const ms: SubmissionPayload['measurements'] = {}
     for (const m of assignment.measurements) {
       const e = measurements[m.key] as TypedEntry
-      ms[m.key] = { value: typedNumber(e.text), unit: e.unit, ...(isPressureUnit(m.unit) && e.pressure ? { pressure: e.pressure } : {}) }
+      ms[m.key] = {
+        value: typedNumber(e.text),
+        unit: e.unit,
+        ...(isPressureUnit(m.unit) && e.pressure ? { pressure: e.pressure } : {}),
+      }
     }
     const rs: SubmissionPayload['reported'] = {}
     for (const r of assignment.results) {
@@ -518,7 +580,9 @@ export function useHandInForm(assignment: StudentAssignment) {
   }
 
   function files(): HandInFile[] {
-    return uploads.flatMap((u) => (u.file.value ? [{ tableKey: u.table.key, file: u.file.value, filename: u.file.value.name }] : []))
+    return uploads.flatMap((u) =>
+      u.file.value ? [{ tableKey: u.table.key, file: u.file.value, filename: u.file.value.name }] : [],
+    )
   }
 
   /** The problems to list in the error summary, in form order (each linked to its control). */
@@ -613,7 +677,10 @@ export function invalidSubmissionIssues(err: ApiError): { issues: SubmissionFiel
   const issues = Array.isArray(d?.issues)
     ? (d.issues as unknown[]).filter(
         (i): i is SubmissionFieldIssue =>
-          typeof i === 'object' && i !== null && typeof (i as SubmissionFieldIssue).field === 'string' && typeof (i as SubmissionFieldIssue).message === 'string',
+          typeof i === 'object' &&
+          i !== null &&
+          typeof (i as SubmissionFieldIssue).field === 'string' &&
+          typeof (i as SubmissionFieldIssue).message === 'string',
       )
     : []
   return { issues, more: typeof d?.more === 'number' ? d.more : 0 }

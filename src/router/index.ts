@@ -27,7 +27,12 @@ const router = createRouter({
       props: (r) => ({ token: String(r.params.token) }),
       meta: { public: true, title: 'Choose your password' },
     },
-    { path: '/courses', name: 'courses', component: () => import('@/views/CoursesView.vue'), meta: { title: 'My courses' } },
+    {
+      path: '/courses',
+      name: 'courses',
+      component: () => import('@/views/CoursesView.vue'),
+      meta: { title: 'My courses' },
+    },
     {
       path: '/courses/:courseId(\\d+)',
       name: 'course-home',

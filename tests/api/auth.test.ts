@@ -19,7 +19,10 @@ afterAll(async () => {
 describe('sign-in', () => {
   it('signs in with the right password, sets an httpOnly SameSite session cookie and returns the person', async () => {
     const c = await anonymous(ctx)
-    const res = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email: fx.student.email, password: PASSWORD })
+    const res = await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', c.csrf)
+      .send({ email: fx.student.email, password: PASSWORD })
     expect(res.status).toBe(200)
     expect(res.body.user).toMatchObject({ id: fx.student.id, email: fx.student.email, isSiteAdmin: false })
     expect(res.body.user.passwordHash).toBeUndefined()
@@ -37,9 +40,14 @@ describe('sign-in', () => {
     const c = await anonymous(ctx)
     // An anonymous session cookie planted before sign-in must not survive it (fixation).
     const before = await c.agent.get('/api/auth/session')
-    const res = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email: fx.instructor.email, password: PASSWORD })
+    const res = await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', c.csrf)
+      .send({ email: fx.instructor.email, password: PASSWORD })
     const sid = (res.headers['set-cookie'] as unknown as string[]).find((x) => x.startsWith('isentrope.sid='))
-    const beforeSid = ((before.headers['set-cookie'] as unknown as string[] | undefined) ?? []).find((x) => x.startsWith('isentrope.sid='))
+    const beforeSid = ((before.headers['set-cookie'] as unknown as string[] | undefined) ?? []).find((x) =>
+      x.startsWith('isentrope.sid='),
+    )
     expect(sid).toBeDefined()
     expect(sid).not.toBe(beforeSid)
     const again = await c.agent.get('/api/auth/session').expect(200)
@@ -50,8 +58,14 @@ describe('sign-in', () => {
 
   it('answers a wrong password and an unknown e-mail with the same generic message', async () => {
     const c = await anonymous(ctx)
-    const wrong = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email: fx.student2.email, password: 'nope' })
-    const unknown = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email: 'nobody@test.example', password: 'nope' })
+    const wrong = await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', c.csrf)
+      .send({ email: fx.student2.email, password: 'nope' })
+    const unknown = await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', c.csrf)
+      .send({ email: 'nobody@test.example', password: 'nope' })
     expect(wrong.status).toBe(401)
     expect(unknown.status).toBe(401)
     expect(wrong.body).toEqual({ error: { code: 'bad_credentials', message: BAD_CREDENTIALS } })
@@ -62,7 +76,11 @@ describe('sign-in', () => {
     const c = await anonymous(ctx)
     const email = fx.outsider.email
     for (let i = 0; i < 3; i++) {
-      await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email, password: `wrong-${i}` }).expect(401)
+      await c.agent
+        .post('/api/auth/sign-in')
+        .set('x-csrf-token', c.csrf)
+        .send({ email, password: `wrong-${i}` })
+        .expect(401)
     }
     const pair = () =>
       ctx.handle.db
@@ -70,7 +88,10 @@ describe('sign-in', () => {
         .from(signInThrottles)
         .where(and(eq(signInThrottles.scope, 'account_address'), eq(signInThrottles.email, email)))
     expect(await pair()).toEqual([{ failures: 3 }])
-    const early = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email, password: PASSWORD })
+    const early = await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', c.csrf)
+      .send({ email, password: PASSWORD })
     expect(early.status).toBe(429)
     expect(early.body.error.code).toBe('too_many_attempts')
     expect(early.body.error.message).toMatch(/Try again in \d+ seconds/)
@@ -81,7 +102,10 @@ describe('sign-in', () => {
 
   it('names the field when the e-mail is malformed', async () => {
     const c = await anonymous(ctx)
-    const res = await c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).send({ email: 'not-an-address', password: 'x' })
+    const res = await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', c.csrf)
+      .send({ email: 'not-an-address', password: 'x' })
     expect(res.status).toBe(400)
     expect(res.body.error.code).toBe('validation_failed')
     expect(res.body.error.details).toContainEqual(expect.objectContaining({ path: 'email' }))
@@ -112,7 +136,11 @@ describe('CSRF', () => {
   it('refuses a token issued before sign-in once the person is signed in', async () => {
     const c = await anonymous(ctx)
     const old = c.csrf
-    await c.agent.post('/api/auth/sign-in').set('x-csrf-token', old).send({ email: fx.admin.email, password: PASSWORD }).expect(200)
+    await c.agent
+      .post('/api/auth/sign-in')
+      .set('x-csrf-token', old)
+      .send({ email: fx.admin.email, password: PASSWORD })
+      .expect(200)
     const res = await c.agent
       .post('/api/courses')
       .set('x-csrf-token', old)

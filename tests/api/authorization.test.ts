@@ -4,7 +4,15 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
 import { and, eq } from 'drizzle-orm'
-import { dueExtensions, enrollments, labGroups, modules, regradeRequests, sections, users } from '../../server/db/schema'
+import {
+  dueExtensions,
+  enrollments,
+  labGroups,
+  modules,
+  regradeRequests,
+  sections,
+  users,
+} from '../../server/db/schema'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
@@ -38,7 +46,10 @@ const pub = () => mods.published!.id
 const C = (fx: Fixture) => `/api/courses/${fx.courseId}`
 /** The fixture's lab group G1. */
 async function groupG1(fx: Fixture): Promise<number> {
-  const [g] = await ctx.handle.db.select({ id: labGroups.id }).from(labGroups).where(and(eq(labGroups.courseId, fx.courseId), eq(labGroups.name, 'G1')))
+  const [g] = await ctx.handle.db
+    .select({ id: labGroups.id })
+    .from(labGroups)
+    .where(and(eq(labGroups.courseId, fx.courseId), eq(labGroups.name, 'G1')))
   return g!.id
 }
 
@@ -136,7 +147,10 @@ const CASES: Case[] = [
     route: 'POST /api/courses/:courseId/sections',
     call: async (c, fx) => {
       const name = `Matrix ${uniq()}`
-      const res = await c.agent.post(`${C(fx)}/sections`).set('x-csrf-token', c.csrf).send({ name })
+      const res = await c.agent
+        .post(`${C(fx)}/sections`)
+        .set('x-csrf-token', c.csrf)
+        .send({ name })
       await ctx.handle.db.delete(sections).where(and(eq(sections.courseId, fx.courseId), eq(sections.name, name)))
       return res
     },
@@ -144,13 +158,20 @@ const CASES: Case[] = [
   },
   {
     route: 'PATCH /api/courses/:courseId/sections/:sectionId',
-    call: (c, fx) => c.agent.patch(`${C(fx)}/sections/${fx.sectionA}`).set('x-csrf-token', c.csrf).send({ name: 'A' }),
+    call: (c, fx) =>
+      c.agent
+        .patch(`${C(fx)}/sections/${fx.sectionA}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ name: 'A' }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
     route: 'DELETE /api/courses/:courseId/sections/:sectionId',
     call: async (c, fx) => {
-      const [row] = await ctx.handle.db.insert(sections).values({ courseId: fx.courseId, name: `Matrix ${uniq()}` }).$returningId()
+      const [row] = await ctx.handle.db
+        .insert(sections)
+        .values({ courseId: fx.courseId, name: `Matrix ${uniq()}` })
+        .$returningId()
       const res = await c.agent.delete(`${C(fx)}/sections/${row!.id}`).set('x-csrf-token', c.csrf)
       await ctx.handle.db.delete(sections).where(eq(sections.id, row!.id))
       return res
@@ -161,7 +182,10 @@ const CASES: Case[] = [
     route: 'POST /api/courses/:courseId/lab-groups',
     call: async (c, fx) => {
       const name = `Matrix ${uniq()}`
-      const res = await c.agent.post(`${C(fx)}/lab-groups`).set('x-csrf-token', c.csrf).send({ name, sectionId: fx.sectionA })
+      const res = await c.agent
+        .post(`${C(fx)}/lab-groups`)
+        .set('x-csrf-token', c.csrf)
+        .send({ name, sectionId: fx.sectionA })
       await ctx.handle.db.delete(labGroups).where(and(eq(labGroups.courseId, fx.courseId), eq(labGroups.name, name)))
       return res
     },
@@ -169,13 +193,20 @@ const CASES: Case[] = [
   },
   {
     route: 'PATCH /api/courses/:courseId/lab-groups/:labGroupId',
-    call: async (c, fx) => c.agent.patch(`${C(fx)}/lab-groups/${await groupG1(fx)}`).set('x-csrf-token', c.csrf).send({ name: 'G1' }),
+    call: async (c, fx) =>
+      c.agent
+        .patch(`${C(fx)}/lab-groups/${await groupG1(fx)}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ name: 'G1' }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
     route: 'DELETE /api/courses/:courseId/lab-groups/:labGroupId',
     call: async (c, fx) => {
-      const [row] = await ctx.handle.db.insert(labGroups).values({ courseId: fx.courseId, name: `Matrix ${uniq()}` }).$returningId()
+      const [row] = await ctx.handle.db
+        .insert(labGroups)
+        .values({ courseId: fx.courseId, name: `Matrix ${uniq()}` })
+        .$returningId()
       const res = await c.agent.delete(`${C(fx)}/lab-groups/${row!.id}`).set('x-csrf-token', c.csrf)
       await ctx.handle.db.delete(labGroups).where(eq(labGroups.id, row!.id))
       return res
@@ -185,7 +216,11 @@ const CASES: Case[] = [
   {
     route: 'PATCH /api/courses/:courseId/roster/:userId',
     // The fixture student's own section again: group G1 is in section A, so nothing changes.
-    call: (c, fx) => c.agent.patch(`${C(fx)}/roster/${fx.student.id}`).set('x-csrf-token', c.csrf).send({ sectionId: fx.sectionA }),
+    call: (c, fx) =>
+      c.agent
+        .patch(`${C(fx)}/roster/${fx.student.id}`)
+        .set('x-csrf-token', c.csrf)
+        .send({ sectionId: fx.sectionA }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 204, admin: 404 },
   },
   {
@@ -193,10 +228,15 @@ const CASES: Case[] = [
     // A throw-away student enrolled for this call only.
     call: async (c, fx) => {
       const tag = uniq()
-      const [u] = await ctx.handle.db.insert(users).values({ email: `matrix.${tag}@test.example`, displayName: `Matrix ${tag}` }).$returningId()
+      const [u] = await ctx.handle.db
+        .insert(users)
+        .values({ email: `matrix.${tag}@test.example`, displayName: `Matrix ${tag}` })
+        .$returningId()
       await ctx.handle.db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'student' })
       const res = await c.agent.delete(`${C(fx)}/roster/${u!.id}`).set('x-csrf-token', c.csrf)
-      await ctx.handle.db.delete(enrollments).where(and(eq(enrollments.userId, u!.id), eq(enrollments.courseId, fx.courseId)))
+      await ctx.handle.db
+        .delete(enrollments)
+        .where(and(eq(enrollments.userId, u!.id), eq(enrollments.courseId, fx.courseId)))
       return res
     },
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 204, admin: 404 },
@@ -219,9 +259,14 @@ const CASES: Case[] = [
     route: 'DELETE /api/courses/:courseId/extensions/:moduleId/:userId',
     call: async (c, fx) => {
       const key = { moduleId: mods.coldFlow!.id, userId: fx.student.id }
-      await ctx.handle.db.insert(dueExtensions).values({ ...key, dueAt: new Date('2030-01-01T12:00:00Z') }).onDuplicateKeyUpdate({ set: { note: '' } })
+      await ctx.handle.db
+        .insert(dueExtensions)
+        .values({ ...key, dueAt: new Date('2030-01-01T12:00:00Z') })
+        .onDuplicateKeyUpdate({ set: { note: '' } })
       const res = await c.agent.delete(`${C(fx)}/extensions/${key.moduleId}/${key.userId}`).set('x-csrf-token', c.csrf)
-      await ctx.handle.db.delete(dueExtensions).where(and(eq(dueExtensions.moduleId, key.moduleId), eq(dueExtensions.userId, key.userId)))
+      await ctx.handle.db
+        .delete(dueExtensions)
+        .where(and(eq(dueExtensions.moduleId, key.moduleId), eq(dueExtensions.userId, key.userId)))
       return res
     },
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
@@ -233,7 +278,11 @@ const CASES: Case[] = [
   },
   {
     route: 'POST /api/courses/:courseId/modules',
-    call: (c, fx) => c.agent.post(M(fx)).set('x-csrf-token', c.csrf).send({ source: moduleSource('Matrix module') }),
+    call: (c, fx) =>
+      c.agent
+        .post(M(fx))
+        .set('x-csrf-token', c.csrf)
+        .send({ source: moduleSource('Matrix module') }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
   },
   {
@@ -267,10 +316,16 @@ const CASES: Case[] = [
         const me = await c.agent.get('/api/auth/session')
         if (me.body.user?.email === fx.instructor.email) {
           const m = await createModuleAs(c, fx.courseId, moduleSource('Publish row'))
-          return c.agent.post(`${M(fx)}/${m.id}/publish`).set('x-csrf-token', c.csrf).send({ versionId: m.versionId })
+          return c.agent
+            .post(`${M(fx)}/${m.id}/publish`)
+            .set('x-csrf-token', c.csrf)
+            .send({ versionId: m.versionId })
         }
       }
-      return c.agent.post(`${M(fx)}/${pub()}/publish`).set('x-csrf-token', c.csrf).send({ versionId: 1 })
+      return c.agent
+        .post(`${M(fx)}/${pub()}/publish`)
+        .set('x-csrf-token', c.csrf)
+        .send({ versionId: 1 })
     },
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
@@ -291,13 +346,18 @@ const CASES: Case[] = [
   },
   {
     route: 'GET /api/courses/:courseId/modules/:moduleId/diff',
-    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/diff?from=${mods.published!.versionId}&to=${mods.published!.versionId}`),
+    call: (c, fx) =>
+      c.agent.get(`${M(fx)}/${pub()}/diff?from=${mods.published!.versionId}&to=${mods.published!.versionId}`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
   {
     route: 'POST /api/courses/:courseId/modules/:moduleId/submissions',
     // The reading module has nothing to hand in: a student reaches the service (409), staff are refused.
-    call: (c, fx) => c.agent.post(`${M(fx)}/${pub()}/submissions`).set('x-csrf-token', c.csrf).field('payload', '{}'),
+    call: (c, fx) =>
+      c.agent
+        .post(`${M(fx)}/${pub()}/submissions`)
+        .set('x-csrf-token', c.csrf)
+        .field('payload', '{}'),
     expect: { anon: 401, outsider: 404, student: 409, ta: 403, instructor: 403, admin: 404 },
   },
   {
@@ -312,7 +372,8 @@ const CASES: Case[] = [
   },
   {
     route: 'GET /api/courses/:courseId/submissions/:submissionId/files/:fileId',
-    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/files/${handIn.fileId}`),
+    call: (c, fx) =>
+      c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/files/${handIn.fileId}`),
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
   {
@@ -331,7 +392,12 @@ const CASES: Case[] = [
       c.agent
         .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/overrides`)
         .set('x-csrf-token', c.csrf)
-        .send({ checkId: null, points: 1, reason: 'Authorization matrix check.', revision: await revisionSeenBy(c, fx) }),
+        .send({
+          checkId: null,
+          points: 1,
+          reason: 'Authorization matrix check.',
+          revision: await revisionSeenBy(c, fx),
+        }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
   {
@@ -390,17 +456,23 @@ const CASES: Case[] = [
   },
   {
     route: 'PUT /api/courses/:courseId/gradebook/modules/:moduleId/weight',
-    call: (c, fx) => c.agent.put(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/weight`).set('x-csrf-token', c.csrf).send({ weight: 1 }),
+    call: (c, fx) =>
+      c.agent
+        .put(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/weight`)
+        .set('x-csrf-token', c.csrf)
+        .send({ weight: 1 }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
     route: 'POST /api/courses/:courseId/gradebook/modules/:moduleId/release',
-    call: (c, fx) => c.agent.post(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/release`).set('x-csrf-token', c.csrf),
+    call: (c, fx) =>
+      c.agent.post(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/release`).set('x-csrf-token', c.csrf),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
     route: 'DELETE /api/courses/:courseId/gradebook/modules/:moduleId/release',
-    call: (c, fx) => c.agent.delete(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/release`).set('x-csrf-token', c.csrf),
+    call: (c, fx) =>
+      c.agent.delete(`/api/courses/${fx.courseId}/gradebook/modules/${pub()}/release`).set('x-csrf-token', c.csrf),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
@@ -419,7 +491,10 @@ const CASES: Case[] = [
       // A regrade needs released grades: release the hand-in's module first (as the instructor would).
       await ctx.handle.db.update(modules).set({ gradesReleasedAt: new Date() }).where(eq(modules.id, mods.coldFlow!.id))
       await ctx.handle.db.delete(regradeRequests).where(eq(regradeRequests.submissionId, handIn.submissionId!))
-      return c.agent.post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade`).set('x-csrf-token', c.csrf).send({ message: 'Matrix regrade.' })
+      return c.agent
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade`)
+        .set('x-csrf-token', c.csrf)
+        .send({ message: 'Matrix regrade.' })
     },
     expect: { anon: 401, outsider: 404, student: 201, ta: 403, instructor: 403, admin: 404 },
   },
@@ -429,7 +504,12 @@ const CASES: Case[] = [
       // A fresh open request for each caller, so every row answers an open one.
       const [row] = await ctx.handle.db
         .insert(regradeRequests)
-        .values({ courseId: fx.courseId, submissionId: handIn.submissionId!, requestedBy: fx.student.id, message: 'Matrix request.' })
+        .values({
+          courseId: fx.courseId,
+          submissionId: handIn.submissionId!,
+          requestedBy: fx.student.id,
+          message: 'Matrix request.',
+        })
         .$returningId()
       return c.agent
         .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade/${row!.id}/answer`)
@@ -458,7 +538,11 @@ beforeAll(async () => {
   mods.toUnpublish = await createModuleAs(inst, fx.courseId, moduleSource('To unpublish'))
   await publishAs(inst, fx.courseId, mods.toUnpublish)
   // A cold-flow module with one hand-in by the fixture student.
-  mods.coldFlow = await createModuleAs(inst, fx.courseId, currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')))
+  mods.coldFlow = await createModuleAs(
+    inst,
+    fx.courseId,
+    currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')),
+  )
   await publishAs(inst, fx.courseId, mods.coldFlow)
   const st = await signedInAs(ctx, fx.student.email)
   // Thrust scaled up so the hand-in carries flags for the review rows.
@@ -560,11 +644,19 @@ describe('hand-in routes for both kinds of module', () => {
       .insert(users)
       .values({ email, displayName: `Partner ${tag}`, passwordHash: await hashPassword('partner-password-1') })
       .$returningId()
-    await ctx.handle.db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA, labGroupId: await groupG1(fx) })
+    await ctx.handle.db.insert(enrollments).values({
+      userId: u!.id,
+      courseId: fx.courseId,
+      role: 'student',
+      sectionId: fx.sectionA,
+      labGroupId: await groupG1(fx),
+    })
     partner = await signedInAs(ctx, email, 'partner-password-1')
     submitter = await signedInAs(ctx, fx.student.email)
     const inst = await signedInAs(ctx, fx.instructor.email)
-    const cold = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+    const cold = currentDueDates(
+      readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+    )
     for (const kind of ['group', 'individual'] as const) {
       const source = cold
         .replace(/^groupSubmission: true$/m, `groupSubmission: ${kind === 'group'}`)
@@ -583,9 +675,18 @@ describe('hand-in routes for both kinds of module', () => {
   })
 
   const routes: [string, (k: 'group' | 'individual') => string][] = [
-    ['GET /api/courses/:courseId/submissions/:submissionId', (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}`],
-    ['GET /api/courses/:courseId/submissions/:submissionId/files/:fileId', (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}/files/${made[k].fileId}`],
-    ['GET /api/courses/:courseId/submissions/:submissionId/report.pdf', (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}/report.pdf`],
+    [
+      'GET /api/courses/:courseId/submissions/:submissionId',
+      (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}`,
+    ],
+    [
+      'GET /api/courses/:courseId/submissions/:submissionId/files/:fileId',
+      (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}/files/${made[k].fileId}`,
+    ],
+    [
+      'GET /api/courses/:courseId/submissions/:submissionId/report.pdf',
+      (k) => `/api/courses/${fx.courseId}/submissions/${made[k].submissionId}/report.pdf`,
+    ],
   ]
   const expected = { group: { submitter: 200, partner: 200 }, individual: { submitter: 200, partner: 404 } } as const
 

@@ -12,7 +12,9 @@ import { createModuleAs, publishAs } from '../helpers/modules'
  * a policy of its own on purpose (the feedback reports: private, no-store).
  */
 
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+)
 
 let ctx: TestContext
 let fx: Fixture
@@ -65,7 +67,11 @@ describe('Cache-Control on API replies', () => {
     const replies = [
       ['not signed in', await anon.agent.get('/api/courses'), 401],
       ['not found', await inst.agent.get(`/api/courses/${fx.otherCourseId}`), 404],
-      ['bad input', await inst.agent.post(`/api/courses/${fx.courseId}/sections`).set('x-csrf-token', inst.csrf).send({ name: '' }), 400],
+      [
+        'bad input',
+        await inst.agent.post(`/api/courses/${fx.courseId}/sections`).set('x-csrf-token', inst.csrf).send({ name: '' }),
+        400,
+      ],
       ['unknown route', await inst.agent.get('/api/no-such-route'), 404],
     ] as const
     for (const [what, res, status] of replies) {

@@ -3,7 +3,15 @@ import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { CourseStructure, ExtensionOverview } from '../../shared/schemas/course-admin'
 import type { RosterEntry } from '../../shared/schemas/courses'
-import { dueExtensions, enrollments, gradeChanges, labGroups, sections, submissions, users } from '../../server/db/schema'
+import {
+  dueExtensions,
+  enrollments,
+  gradeChanges,
+  labGroups,
+  sections,
+  submissions,
+  users,
+} from '../../server/db/schema'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { hashPassword } from '../../server/auth/password'
 import { PASSWORD, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
@@ -44,7 +52,8 @@ function coldFlowDue(dueMs: number, acceptUntilMs: number): string {
     .replace(/^due:\n {2}at: .*\n {2}timeZone: .*$/m, `due:\n  at: ${localUtc(dueMs)}\n  timeZone: UTC`)
     .replace(/^ {2}acceptUntil: .*$/m, `  acceptUntil: ${localUtc(acceptUntilMs)}`)
     .replace(/^attempts: 3$/m, 'attempts: 10')
-  if (!out.includes('timeZone: UTC') || !out.includes('attempts: 10') || !out.includes(localUtc(acceptUntilMs))) throw new Error('the cold-flow module changed shape')
+  if (!out.includes('timeZone: UTC') || !out.includes('attempts: 10') || !out.includes(localUtc(acceptUntilMs)))
+    throw new Error('the cold-flow module changed shape')
   return out
 }
 
@@ -86,7 +95,10 @@ describe('sections', () => {
 
     const renamed = await send(inst, 'patch', `/sections/${s.id}`, { name: `${name} (Thu)`, meets: 'Thu 08:00, Bay 1' })
     expect(renamed.status).toBe(200)
-    expect((renamed.body as CourseStructure).sections.find((x) => x.id === s.id)).toMatchObject({ name: `${name} (Thu)`, meets: 'Thu 08:00, Bay 1' })
+    expect((renamed.body as CourseStructure).sections.find((x) => x.id === s.id)).toMatchObject({
+      name: `${name} (Thu)`,
+      meets: 'Thu 08:00, Bay 1',
+    })
 
     const read = await ta.agent.get(`${C()}/sections`).expect(200)
     expect((read.body as CourseStructure).sections.map((x) => x.id)).toContain(s.id)
@@ -135,7 +147,10 @@ describe('sections', () => {
     ]) {
       expect(res.status).toBe(404)
     }
-    const rows = await ctx.handle.db.select({ name: sections.name }).from(sections).where(eq(sections.courseId, other.courseId))
+    const rows = await ctx.handle.db
+      .select({ name: sections.name })
+      .from(sections)
+      .where(eq(sections.courseId, other.courseId))
     expect(rows.map((r) => r.name).sort()).toEqual(['A', 'B'])
   })
 
@@ -156,7 +171,10 @@ describe('lab groups', () => {
     expect(g).toMatchObject({ sectionId: fx.sectionB, sectionName: 'B', members: [], handInCount: 0 })
 
     const renamed = await send(inst, 'patch', `/lab-groups/${g.id}`, { name: `${name}b`, sectionId: null })
-    expect((renamed.body as CourseStructure).labGroups.find((x) => x.id === g.id)).toMatchObject({ name: `${name}b`, sectionId: null })
+    expect((renamed.body as CourseStructure).labGroups.find((x) => x.id === g.id)).toMatchObject({
+      name: `${name}b`,
+      sectionId: null,
+    })
 
     expect((await send(inst, 'delete', `/lab-groups/${g.id}`)).status).toBe(200)
     expect((await structure()).labGroups.map((x) => x.id)).not.toContain(g.id)
@@ -170,11 +188,17 @@ describe('lab groups', () => {
     const foreignSection = await send(inst, 'post', '/lab-groups', { name: `Grp ${uniq()}`, sectionId: other.sectionA })
     expect(foreignSection.status).toBe(404)
     expect(foreignSection.body.error.message).toContain('section')
-    const [otherG1] = await ctx.handle.db.select({ id: labGroups.id }).from(labGroups).where(eq(labGroups.courseId, other.courseId))
+    const [otherG1] = await ctx.handle.db
+      .select({ id: labGroups.id })
+      .from(labGroups)
+      .where(eq(labGroups.courseId, other.courseId))
     expect((await send(inst, 'patch', `/lab-groups/${otherG1!.id}`, { name: 'Mine now' })).status).toBe(404)
     expect((await send(inst, 'delete', `/lab-groups/${otherG1!.id}`)).status).toBe(404)
     expect(await structure()).toEqual(before)
-    const [still] = await ctx.handle.db.select({ name: labGroups.name }).from(labGroups).where(eq(labGroups.id, otherG1!.id))
+    const [still] = await ctx.handle.db
+      .select({ name: labGroups.name })
+      .from(labGroups)
+      .where(eq(labGroups.id, otherG1!.id))
     expect(still!.name).toBe('G1')
   })
 
@@ -195,14 +219,22 @@ describe('lab groups', () => {
 describe('placing people', () => {
   it('a student moved into a group tied to a section moves to that section; back out to no group', async () => {
     const name = `Grp ${uniq()}`
-    const s = (await send(inst, 'post', '/lab-groups', { name, sectionId: fx.sectionA }).expect(201)).body as CourseStructure
+    const s = (await send(inst, 'post', '/lab-groups', { name, sectionId: fx.sectionA }).expect(201))
+      .body as CourseStructure
     const g = s.labGroups.find((x) => x.name === name)!
     expect(await placed(fx.student2.id)).toMatchObject({ sectionId: fx.sectionB, labGroupId: null })
 
     expect((await send(inst, 'patch', `/roster/${fx.student2.id}`, { labGroupId: g.id })).status).toBe(204)
-    expect(await placed(fx.student2.id)).toMatchObject({ sectionId: fx.sectionA, sectionName: 'A', labGroupId: g.id, labGroupName: name })
+    expect(await placed(fx.student2.id)).toMatchObject({
+      sectionId: fx.sectionA,
+      sectionName: 'A',
+      labGroupId: g.id,
+      labGroupName: name,
+    })
 
-    expect((await send(inst, 'patch', `/roster/${fx.student2.id}`, { sectionId: fx.sectionB, labGroupId: null })).status).toBe(204)
+    expect(
+      (await send(inst, 'patch', `/roster/${fx.student2.id}`, { sectionId: fx.sectionB, labGroupId: null })).status,
+    ).toBe(204)
     expect(await placed(fx.student2.id)).toMatchObject({ sectionId: fx.sectionB, labGroupId: null })
     await send(inst, 'delete', `/lab-groups/${g.id}`).expect(200)
   })
@@ -217,7 +249,10 @@ describe('placing people', () => {
     // The student in G1 (section A) cannot be put in section B while staying in G1.
     const keepGroup = await send(inst, 'patch', `/roster/${fx.student.id}`, { sectionId: fx.sectionB })
     expect(keepGroup.status).toBe(409)
-    const [otherG1] = await ctx.handle.db.select({ id: labGroups.id }).from(labGroups).where(eq(labGroups.courseId, other.courseId))
+    const [otherG1] = await ctx.handle.db
+      .select({ id: labGroups.id })
+      .from(labGroups)
+      .where(eq(labGroups.courseId, other.courseId))
     const foreign = await send(inst, 'patch', `/roster/${fx.student2.id}`, { labGroupId: otherG1!.id })
     expect(foreign.status).toBe(404)
     expect(await placed(fx.student2.id)).toEqual(before)
@@ -282,10 +317,14 @@ describe('due-date extensions and lateness', () => {
     expect(tooFar.status).toBe(400)
     expect(tooFar.body.error.message).toContain('dueAt: choose a date before 2038')
 
-    expect((await send(inst, 'put', url(dated.id, other.student.id), { dueAt: '2030-01-01T00:00:00Z' })).status).toBe(404)
+    expect((await send(inst, 'put', url(dated.id, other.student.id), { dueAt: '2030-01-01T00:00:00Z' })).status).toBe(
+      404,
+    )
     const otherInst = await signedInAs(ctx, other.instructor.email)
     const foreignModule = await createModuleAs(otherInst, other.courseId, moduleSource(`Theirs ${uniq()}`))
-    expect((await send(inst, 'put', url(foreignModule.id, fx.student.id), { dueAt: '2030-01-01T00:00:00Z' })).status).toBe(404)
+    expect(
+      (await send(inst, 'put', url(foreignModule.id, fx.student.id), { dueAt: '2030-01-01T00:00:00Z' })).status,
+    ).toBe(404)
     const toTa = await send(inst, 'put', url(dated.id, fx.ta.id), { dueAt: '2030-01-01T00:00:00Z' })
     expect(toTa.status).toBe(409)
 
@@ -310,7 +349,12 @@ describe('due-date extensions and lateness', () => {
     const overview = (await ta.agent.get(`${C()}/extensions`).expect(200)).body as ExtensionOverview
     expect(overview.modules.find((m) => m.id === dated.id)!.dueAt).toBe('2027-02-10T00:00:00.000Z')
     expect(overview.extensions.filter((x) => x.moduleId === dated.id)).toEqual([
-      expect.objectContaining({ userId: fx.student.id, dueAt: '2027-02-13T04:00:00.000Z', moduleDueAt: '2027-02-10T00:00:00.000Z', note: 'One more day.' }),
+      expect.objectContaining({
+        userId: fx.student.id,
+        dueAt: '2027-02-13T04:00:00.000Z',
+        moduleDueAt: '2027-02-10T00:00:00.000Z',
+        note: 'One more day.',
+      }),
     ])
 
     expect((await send(inst, 'delete', url)).status).toBe(200)
@@ -403,7 +447,10 @@ describe('removing someone from the course', () => {
     expect(last.status).toBe(409)
     expect(last.body.error.code).toBe('last_instructor')
     const tag = uniq()
-    const [u] = await ctx.handle.db.insert(users).values({ email: `co.${tag}@test.example`, displayName: `Co-instructor ${tag}` }).$returningId()
+    const [u] = await ctx.handle.db
+      .insert(users)
+      .values({ email: `co.${tag}@test.example`, displayName: `Co-instructor ${tag}` })
+      .$returningId()
     await ctx.handle.db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'instructor' })
     const self = await send(inst, 'delete', `/roster/${fx.instructor.id}`)
     expect(self.status).toBe(409)
@@ -415,7 +462,10 @@ describe('removing someone from the course', () => {
 
   it('a person of another course is not found, and stays enrolled there', async () => {
     expect((await send(inst, 'delete', `/roster/${other.student.id}`)).status).toBe(404)
-    const rows = await ctx.handle.db.select().from(enrollments).where(and(eq(enrollments.userId, other.student.id), eq(enrollments.courseId, other.courseId)))
+    const rows = await ctx.handle.db
+      .select()
+      .from(enrollments)
+      .where(and(eq(enrollments.userId, other.student.id), eq(enrollments.courseId, other.courseId)))
     expect(rows).toHaveLength(1)
   })
 
@@ -423,20 +473,37 @@ describe('removing someone from the course', () => {
     // A fresh student with one graded, overridden hand-in.
     const tag = uniq()
     const email = `leaver.${tag}@test.example`
-    const [u] = await ctx.handle.db.insert(users).values({ email, displayName: `Leaver ${tag}`, passwordHash: await hashPassword(PASSWORD) }).$returningId()
+    const [u] = await ctx.handle.db
+      .insert(users)
+      .values({ email, displayName: `Leaver ${tag}`, passwordHash: await hashPassword(PASSWORD) })
+      .$returningId()
     const leaverId = u!.id
-    await ctx.handle.db.insert(enrollments).values({ userId: leaverId, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA })
+    await ctx.handle.db
+      .insert(enrollments)
+      .values({ userId: leaverId, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA })
     const leaver = await signedInAs(ctx, email)
-    const m = await publishedModule(coldFlowDue(Date.now() + 7 * DAY, Date.now() + 9 * DAY).replace('groupSubmission: true', 'groupSubmission: false'))
+    const m = await publishedModule(
+      coldFlowDue(Date.now() + 7 * DAY, Date.now() + 9 * DAY).replace(
+        'groupSubmission: true',
+        'groupSubmission: false',
+      ),
+    )
     const sub = await handIn(leaver, m.id)
     expect(sub.status).toBe(201)
     const extras = await inst.agent.get(`${C()}/submissions/${sub.body.id}/review`).expect(200)
     await inst.agent
       .post(`${C()}/submissions/${sub.body.id}/overrides`)
       .set('x-csrf-token', inst.csrf)
-      .send({ checkId: null, points: 9, reason: 'Checked the log by hand before the student left.', revision: extras.body.revision })
+      .send({
+        checkId: null,
+        points: 9,
+        reason: 'Checked the log by hand before the student left.',
+        revision: extras.body.revision,
+      })
       .expect(200)
-    await send(inst, 'put', `/extensions/${m.id}/${leaverId}`, { dueAt: new Date(Date.now() + 8 * DAY).toISOString() }).expect(200)
+    await send(inst, 'put', `/extensions/${m.id}/${leaverId}`, {
+      dueAt: new Date(Date.now() + 8 * DAY).toISOString(),
+    }).expect(200)
 
     const res = await send(inst, 'delete', `/roster/${leaverId}`)
     expect(res.status).toBe(204)
@@ -444,7 +511,9 @@ describe('removing someone from the course', () => {
     expect((await roster()).map((r) => r.userId)).not.toContain(leaverId)
     const [kept] = await ctx.handle.db.select().from(submissions).where(eq(submissions.id, sub.body.id))
     expect(kept).toMatchObject({ userId: leaverId, status: 'graded', scoreOverride: 9 })
-    expect(await ctx.handle.db.select().from(gradeChanges).where(eq(gradeChanges.submissionId, sub.body.id))).toHaveLength(1)
+    expect(
+      await ctx.handle.db.select().from(gradeChanges).where(eq(gradeChanges.submissionId, sub.body.id)),
+    ).toHaveLength(1)
     // The instructor still reads the hand-in.
     await inst.agent.get(`${C()}/submissions/${sub.body.id}`).expect(200)
     // Extensions of people no longer enrolled are not listed.

@@ -1,7 +1,13 @@
 import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_WRONG_RUNS } from '../../scripts/demo/demo-runs'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_STUDENT } from '../../scripts/demo/scenario'
+import {
+  DEFAULT_DEMO_PASSWORD,
+  DEMO_COURSE,
+  DEMO_GROUP_WITHOUT_HAND_IN,
+  DEMO_INSTRUCTOR,
+  DEMO_STUDENT,
+} from '../../scripts/demo/scenario'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { courses, labGroups, moduleVersions, modules, submissionFlags, submissions } from '../../server/db/schema'
 import type { TestContext } from '../helpers/app'
@@ -23,13 +29,23 @@ describe('the demo seed', () => {
   it('is idempotent: a second run changes nothing', async () => {
     const again = await seedDemo(ctx.handle.db)
     expect(again.created).toBe(false)
-    const found = await ctx.handle.db.select().from(courses).where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.term, DEMO_COURSE.term)))
+    const found = await ctx.handle.db
+      .select()
+      .from(courses)
+      .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.term, DEMO_COURSE.term)))
     expect(found).toHaveLength(1)
   })
 
   it('publishes the fundamentals and cold-flow modules and leaves the hot-fire module a draft', async () => {
     const rows = await ctx.handle.db
-      .select({ slug: modules.slug, status: modules.status, createdAt: modules.createdAt, current: moduleVersions.number, vStatus: moduleVersions.status, publishedAt: moduleVersions.publishedAt })
+      .select({
+        slug: modules.slug,
+        status: modules.status,
+        createdAt: modules.createdAt,
+        current: moduleVersions.number,
+        vStatus: moduleVersions.status,
+        publishedAt: moduleVersions.publishedAt,
+      })
       .from(modules)
       .innerJoin(moduleVersions, and(eq(moduleVersions.moduleId, modules.id), eq(moduleVersions.number, 1)))
       .where(eq(modules.courseId, courseId))
@@ -45,7 +61,12 @@ describe('the demo seed', () => {
 
   it('hands in one graded cold-flow run per lab group but one, and the wrong-on-purpose runs carry their flags', async () => {
     const rows = await ctx.handle.db
-      .select({ id: submissions.id, status: submissions.status, group: labGroups.name, review: submissions.reviewStatus })
+      .select({
+        id: submissions.id,
+        status: submissions.status,
+        group: labGroups.name,
+        review: submissions.reviewStatus,
+      })
       .from(submissions)
       .innerJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
       .where(eq(submissions.courseId, courseId))
@@ -57,7 +78,10 @@ describe('the demo seed', () => {
     for (const wrong of DEMO_WRONG_RUNS) {
       const row = rows.find((r) => r.group === `Group ${wrong.group}`)
       if (!row) continue
-      const flags = await ctx.handle.db.select({ code: submissionFlags.code }).from(submissionFlags).where(eq(submissionFlags.submissionId, row.id))
+      const flags = await ctx.handle.db
+        .select({ code: submissionFlags.code })
+        .from(submissionFlags)
+        .where(eq(submissionFlags.submissionId, row.id))
       const codes = flags.map((f) => f.code)
       for (const f of wrong.flags) expect(codes, `${wrong.group} ${f}`).toContain(f)
       if (wrong.copiesGroup) expect(codes, wrong.group).toContain('identical-file')
@@ -70,7 +94,10 @@ describe('the demo seed', () => {
     const inst = await signedInAs(ctx, DEMO_INSTRUCTOR.email, DEFAULT_DEMO_PASSWORD)
     const list = await inst.agent.get(`/api/courses/${courseId}/modules`).expect(200)
     const cold = list.body.find((m: { slug: string }) => m.slug === 'cold-flow-characterisation')
-    const all = await ctx.handle.db.select({ id: submissions.id }).from(submissions).where(eq(submissions.moduleId, cold.id))
+    const all = await ctx.handle.db
+      .select({ id: submissions.id })
+      .from(submissions)
+      .where(eq(submissions.moduleId, cold.id))
     expect(cold.submissionCount).toBe(all.length)
     expect(cold.submissionCount).toBeGreaterThanOrEqual(7)
     const st = await signedInAs(ctx, DEMO_STUDENT.email, DEFAULT_DEMO_PASSWORD)

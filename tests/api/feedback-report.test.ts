@@ -13,9 +13,14 @@ import { createModuleAs, publishAs } from '../helpers/modules'
 import type { CreatedModule } from '../helpers/modules'
 import { pdfFonts, readPdf, readZip, squash } from '../helpers/pdf'
 
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+)
 /** The same module, but its results wait for the staff to release the grades. */
-const COLD_AFTER_RELEASE = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, results after release').replace(/^results: .*$/m, 'results: after-release')
+const COLD_AFTER_RELEASE = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, results after release').replace(
+  /^results: .*$/m,
+  'results: after-release',
+)
 
 let ctx: TestContext
 let fx: Fixture
@@ -47,9 +52,17 @@ function binary(res: Response, cb: (err: Error | null, body: Buffer) => void) {
 }
 
 async function download(c: Client, url: string) {
-  const res = await c.agent.get(url).buffer(true).parse(binary as never)
+  const res = await c.agent
+    .get(url)
+    .buffer(true)
+    .parse(binary as never)
   const body = res.body as Buffer
-  return { status: res.status, headers: res.headers as Record<string, string>, body, json: () => JSON.parse(body.toString('utf8')) as { error: { code: string; message: string } } }
+  return {
+    status: res.status,
+    headers: res.headers as Record<string, string>,
+    body,
+    json: () => JSON.parse(body.toString('utf8')) as { error: { code: string; message: string } },
+  }
 }
 
 async function handIn(c: Client, moduleId: number, thrustScale: number): Promise<number> {
@@ -64,10 +77,18 @@ async function handIn(c: Client, moduleId: number, thrustScale: number): Promise
 }
 
 /** A person of our own, enrolled in the fixture course. */
-async function enrol(role: 'student' | 'ta', name: string, sectionId: number, labGroupId: number | null): Promise<Client> {
+async function enrol(
+  role: 'student' | 'ta',
+  name: string,
+  sectionId: number,
+  labGroupId: number | null,
+): Promise<Client> {
   const email = `${name.toLowerCase().replace(/\W+/g, '.')}.${uniq()}@test.example`
   const displayName = `${name} ${uniq()}`
-  const [u] = await ctx.handle.db.insert(users).values({ email, displayName, passwordHash: await hashPassword(PASSWORD) }).$returningId()
+  const [u] = await ctx.handle.db
+    .insert(users)
+    .values({ email, displayName, passwordHash: await hashPassword(PASSWORD) })
+    .$returningId()
   await ctx.handle.db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role, sectionId, labGroupId })
   people[name] = displayName
   return signedInAs(ctx, email)
@@ -83,7 +104,10 @@ beforeAll(async () => {
   taA = await signedInAs(ctx, fx.ta.email)
   outsider = await signedInAs(ctx, fx.outsider.email)
   const [g1] = await db.select({ id: labGroups.id }).from(labGroups).where(eq(labGroups.courseId, fx.courseId))
-  const [g2] = await db.insert(labGroups).values({ courseId: fx.courseId, sectionId: fx.sectionB, name: 'G2' }).$returningId()
+  const [g2] = await db
+    .insert(labGroups)
+    .values({ courseId: fx.courseId, sectionId: fx.sectionB, name: 'G2' })
+    .$returningId()
   groupMate = await enrol('student', 'Anežka Dvořák', fx.sectionA, g1!.id)
   g2Student = await enrol('student', 'Osric Pennick', fx.sectionB, g2!.id)
   taB = await enrol('ta', 'Section B TA', fx.sectionB, null)
@@ -104,7 +128,10 @@ beforeAll(async () => {
   const c = await taA.agent
     .post(`${C()}/submissions/${subG1}/comments`)
     .set('x-csrf-token', taA.csrf)
-    .send({ body: `**${comment}** See the [calibration sheet](https://lab.example/cal).\n\n- Zero it with no load.\n- Hang the 2 kg mass.`, revision: rev })
+    .send({
+      body: `**${comment}** See the [calibration sheet](https://lab.example/cal).\n\n- Zero it with no load.\n- Hang the 2 kg mass.`,
+      revision: rev,
+    })
   expect(c.status).toBe(201)
   rev = c.body.revision
   const o = await taA.agent
@@ -116,18 +143,29 @@ beforeAll(async () => {
   // A later G1 attempt that is not graded (a grading thread holds it, claimed just now): it neither
   // gets a report nor counts in the archive.
   subG1Later = await handIn(groupMate, mod.id, 1.0)
-  await db.update(submissions).set({ status: 'grading', gradeClaimedAt: new Date() }).where(eq(submissions.id, subG1Later))
+  await db
+    .update(submissions)
+    .set({ status: 'grading', gradeClaimedAt: new Date() })
+    .where(eq(submissions.id, subG1Later))
 }, 120_000)
 afterAll(async () => {
   // The hand-in held in 'grading' above goes back to graded, so no later file's grader takes it up.
-  await ctx.handle.db.update(submissions).set({ status: 'graded', gradeClaimedAt: null }).where(eq(submissions.id, subG1Later))
+  await ctx.handle.db
+    .update(submissions)
+    .set({ status: 'graded', gradeClaimedAt: null })
+    .where(eq(submissions.id, subG1Later))
   await ctx.close()
 })
 
 describe('feedback report (PDF)', () => {
   it('prints the course, the module, the score the API reports, every check, the flags and the staff comment', async () => {
     const detail = (await student.agent.get(`${C()}/submissions/${subG1}`).expect(200)).body as SubmissionDetail
-    const course = (await student.agent.get(C()).expect(200)).body.course as { code: string; title: string; term: string; institution: string }
+    const course = (await student.agent.get(C()).expect(200)).body.course as {
+      code: string
+      title: string
+      term: string
+      institution: string
+    }
     const res = await download(student, `${C()}/submissions/${subG1}/report.pdf`)
     expect(res.status).toBe(200)
     expect(res.headers['content-type']).toBe('application/pdf')
@@ -135,7 +173,8 @@ describe('feedback report (PDF)', () => {
     expect(res.body.subarray(0, 5).toString('latin1')).toBe('%PDF-')
 
     const pdf = await readPdf(res.body)
-    for (const s of [course.code, course.title, course.term, course.institution, detail.moduleTitle]) expect(pdf.text).toContain(squash(s))
+    for (const s of [course.code, course.title, course.term, course.institution, detail.moduleTitle])
+      expect(pdf.text).toContain(squash(s))
     expect(pdf.text).toContain(`version ${detail.moduleVersion}`)
     // The staff's total (4.5 of the maximum) as the API reports it, with the note that staff set it.
     expect(detail.score).toBe(4.5)
@@ -239,7 +278,10 @@ describe('feedback report (PDF)', () => {
     const failed = await download(inst, `${C()}/submissions/${subG1Later}/report.pdf`)
     expect(failed.status).toBe(409)
     expect(failed.json().error.message).toContain('could not be graded automatically')
-    await ctx.handle.db.update(submissions).set({ status: 'grading', gradeClaimedAt: new Date() }).where(eq(submissions.id, subG1Later))
+    await ctx.handle.db
+      .update(submissions)
+      .set({ status: 'grading', gradeClaimedAt: new Date() })
+      .where(eq(submissions.id, subG1Later))
   })
 
   it('names a bad or unknown submission id', async () => {
@@ -255,10 +297,15 @@ describe('all reports of a module (zip)', () => {
     const res = await download(inst, `${C()}/modules/${mod.id}/reports.zip`)
     expect(res.status).toBe(200)
     expect(res.headers['content-type']).toBe('application/zip')
-    expect(res.headers['content-disposition']).toMatch(/^attachment; filename="?[a-z0-9-]+_[a-z0-9-]+_feedback-reports\.zip"?$/)
+    expect(res.headers['content-disposition']).toMatch(
+      /^attachment; filename="?[a-z0-9-]+_[a-z0-9-]+_feedback-reports\.zip"?$/,
+    )
     const entries = await readZip(res.body)
     // G1's attempt 2 is not graded, so attempt 1 counts; G2's attempt 2 replaces its first.
-    expect(entries.map((e) => e.name).sort()).toEqual([expect.stringMatching(/_g1_attempt-1\.pdf$/), expect.stringMatching(/_g2_attempt-2\.pdf$/)])
+    expect(entries.map((e) => e.name).sort()).toEqual([
+      expect.stringMatching(/_g1_attempt-1\.pdf$/),
+      expect.stringMatching(/_g2_attempt-2\.pdf$/),
+    ])
     for (const e of entries) {
       expect(e.bytes.subarray(0, 5).toString('latin1')).toBe('%PDF-')
       const pdf = await readPdf(e.bytes)
@@ -284,7 +331,10 @@ describe('all reports of a module (zip)', () => {
 // tests above keep waiting ('received') on purpose.
 describe('feedback report: the uncertainty of the expected values', () => {
   /** The demo module with its expected values shown to students. */
-  const COLD_SHOWN = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, expected values shown').replace(/^showExpected: false$/m, 'showExpected: true')
+  const COLD_SHOWN = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, expected values shown').replace(
+    /^showExpected: false$/m,
+    'showExpected: true',
+  )
   let shownSub = 0
   beforeAll(async () => {
     expect(COLD_SHOWN).toContain('showExpected: true')

@@ -52,8 +52,13 @@ const R = () => `/api/courses/${fx.courseId}`
 
 async function addPerson(role: 'student' | 'ta', name: string, sectionId: number, labGroupId: number | null) {
   const email = `${role}.${uniq()}@test.example`
-  const [row] = await ctx.handle.db.insert(users).values({ email, displayName: name, passwordHash: await hashPassword(PASSWORD) }).$returningId()
-  await ctx.handle.db.insert(enrollments).values({ userId: row!.id, courseId: fx.courseId, role, sectionId, labGroupId })
+  const [row] = await ctx.handle.db
+    .insert(users)
+    .values({ email, displayName: name, passwordHash: await hashPassword(PASSWORD) })
+    .$returningId()
+  await ctx.handle.db
+    .insert(enrollments)
+    .values({ userId: row!.id, courseId: fx.courseId, role, sectionId, labGroupId })
   return { id: row!.id, email, name }
 }
 
@@ -90,7 +95,8 @@ async function staffView(submissionId: number) {
 async function drainMail() {
   const sender = createSmtpSender(ctx.config)
   try {
-    for (let i = 0; i < 20; i++) if ((await drainOnce(ctx.handle.db, sender, createLogger('silent'), DEFAULT_OUTBOX_OPTIONS)) === 0) break
+    for (let i = 0; i < 20; i++)
+      if ((await drainOnce(ctx.handle.db, sender, createLogger('silent'), DEFAULT_OUTBOX_OPTIONS)) === 0) break
   } finally {
     sender.close()
   }
@@ -117,9 +123,17 @@ beforeAll(async () => {
 
   m1 = await createModuleAs(inst, fx.courseId, coldFlowModule(M1_TITLE, { results: 'after-release', group: false }))
   await publishAs(inst, fx.courseId, m1)
-  m2 = await createModuleAs(inst, fx.courseId, coldFlowModule(`Group immediately ${tag}`, { results: 'immediately', group: true }))
+  m2 = await createModuleAs(
+    inst,
+    fx.courseId,
+    coldFlowModule(`Group immediately ${tag}`, { results: 'immediately', group: true }),
+  )
   await publishAs(inst, fx.courseId, m2)
-  m3 = await createModuleAs(inst, fx.courseId, coldFlowModule(`Past due ${tag}`, { results: 'immediately', group: false, pastDue: true }))
+  m3 = await createModuleAs(
+    inst,
+    fx.courseId,
+    coldFlowModule(`Past due ${tag}`, { results: 'immediately', group: false, pastDue: true }),
+  )
   await publishAs(inst, fx.courseId, m3)
   draft = await createModuleAs(inst, fx.courseId, moduleSource(`Draft ${tag}`))
 
@@ -150,14 +164,19 @@ afterAll(async () => {
   await ctx.close()
 })
 
-const book = async (c: Client, query = '') => (await c.agent.get(`${R()}/gradebook${query}`).expect(200)).body as Gradebook
+const book = async (c: Client, query = '') =>
+  (await c.agent.get(`${R()}/gradebook${query}`).expect(200)).body as Gradebook
 const rowOf = (b: Gradebook, email: string) => b.students.find((s) => s.email === email)
 
 describe('the gradebook', () => {
   it('counts the latest graded attempt (the staff total when overridden) and a group hand-in for every member', async () => {
     const b = await book(inst)
     expect(b.modules.map((m) => m.id)).toEqual([m1.id, m2.id, m3.id])
-    expect(b.students.map((s) => s.email).sort()).toEqual(Object.values(S).map((s) => s.email).sort())
+    expect(b.students.map((s) => s.email).sort()).toEqual(
+      Object.values(S)
+        .map((s) => s.email)
+        .sort(),
+    )
     for (const email of [S.s1.email, S.s2.email, S.s3.email, S.s4.email]) {
       const cell = rowOf(b, email)!.cells[String(m1.id)]!
       expect(cell.submissionId).toBe(counted[email]!.id)
@@ -205,11 +224,18 @@ describe('the gradebook', () => {
     for (const [k, t] of failing) if (!shown.has(k)) expect(t.fails).toBeLessThanOrEqual(minShown)
 
     const past = b.stats.find((s) => s.moduleId === m3.id)!
-    expect(past).toMatchObject({ n: 0, meanPercent: null, medianPercent: null, histogram: new Array(10).fill(0), hardestChecks: [] })
+    expect(past).toMatchObject({
+      n: 0,
+      meanPercent: null,
+      medianPercent: null,
+      histogram: new Array(10).fill(0),
+      hardestChecks: [],
+    })
   })
 
   it('weights: the instructor sets them, bad values are refused and change nothing, and totals follow', async () => {
-    const put = (c: Client, moduleId: number, body: object) => c.agent.put(`${R()}/gradebook/modules/${moduleId}/weight`).set('x-csrf-token', c.csrf).send(body)
+    const put = (c: Client, moduleId: number, body: object) =>
+      c.agent.put(`${R()}/gradebook/modules/${moduleId}/weight`).set('x-csrf-token', c.csrf).send(body)
     expect((await put(inst, m1.id, { weight: 3 })).status).toBe(200)
     for (const bad of [{ weight: -1 }, { weight: 'NaN' }, { weight: null }, {}, { weight: 1e9 }]) {
       const res = await put(inst, m1.id, bad)
@@ -279,7 +305,9 @@ describe('the CSV export', () => {
     const res = await inst.agent.get(`${R()}/gradebook.csv`)
     expect(res.status).toBe(200)
     expect(res.headers['content-type']).toContain('text/csv')
-    expect(res.headers['content-disposition']).toMatch(/^attachment; filename="?gradebook-[A-Za-z0-9_-]+-\d{4}-\d{2}-\d{2}\.csv"?$/)
+    expect(res.headers['content-disposition']).toMatch(
+      /^attachment; filename="?gradebook-[A-Za-z0-9_-]+-\d{4}-\d{2}-\d{2}\.csv"?$/,
+    )
     const parsed = Papa.parse<string[]>(res.text.replace(/^\uFEFF/, ''), { skipEmptyLines: true })
     const [header, ...rows] = parsed.data
     expect(header!.slice(0, 4)).toEqual(['email', 'name', 'section', 'group'])
@@ -294,7 +322,8 @@ describe('the CSV export', () => {
     expect(Number(s2[col])).toBe(counted[S.s2.email]!.points)
     expect(rows.find((r) => r[0] === S.s5.email)![col]).toBe('')
     // No cell starts a formula.
-    for (const r of rows) for (const cell of r) if (/^[=+@\t\r]/.test(cell)) throw new Error(`cell ${cell} starts a formula`)
+    for (const r of rows)
+      for (const cell of r) if (/^[=+@\t\r]/.test(cell)) throw new Error(`cell ${cell} starts a formula`)
 
     const a = await taA.agent.get(`${R()}/gradebook.csv`)
     const aRows = Papa.parse<string[]>(a.text.replace(/^\uFEFF/, ''), { skipEmptyLines: true }).data.slice(1)
@@ -303,7 +332,8 @@ describe('the CSV export', () => {
 })
 
 describe('releasing grades', () => {
-  const release = (c: Client, moduleId: number) => c.agent.post(`${R()}/gradebook/modules/${moduleId}/release`).set('x-csrf-token', c.csrf)
+  const release = (c: Client, moduleId: number) =>
+    c.agent.post(`${R()}/gradebook/modules/${moduleId}/release`).set('x-csrf-token', c.csrf)
 
   it('a draft cannot be released; a module of another course does not exist; only the instructor releases', async () => {
     const res = await release(inst, draft.id)
@@ -313,7 +343,10 @@ describe('releasing grades', () => {
     expect((await release(inst, 999_999_999)).status).toBe(404)
     expect((await release(taA, m1.id)).status).toBe(403)
     expect((await release(S.s1.c!, m1.id)).status).toBe(403)
-    const [row] = await ctx.handle.db.select({ at: modules.gradesReleasedAt }).from(modules).where(eq(modules.id, draft.id))
+    const [row] = await ctx.handle.db
+      .select({ at: modules.gradesReleasedAt })
+      .from(modules)
+      .where(eq(modules.id, draft.id))
     expect(row!.at).toBeNull()
   })
 
@@ -339,22 +372,34 @@ describe('releasing grades', () => {
     expect(after.body.score).toBe(counted[S.s2.email]!.points)
     expect(after.body.checks.length).toBeGreaterThan(0)
     const mine = (await s2.agent.get(`${R()}/my-grades`).expect(200)).body as MyGrades
-    expect(mine.rows.find((r) => r.moduleId === m1.id)).toMatchObject({ state: 'released', points: counted[S.s2.email]!.points, submissionId: counted[S.s2.email]!.id })
+    expect(mine.rows.find((r) => r.moduleId === m1.id)).toMatchObject({
+      state: 'released',
+      points: counted[S.s2.email]!.points,
+      submissionId: counted[S.s2.email]!.id,
+    })
     expect((await book(inst)).modules.find((m) => m.id === m1.id)!.releasedAt).toBe(first.body.releasedAt)
 
     // Withdrawn (no mail) and released again: still nobody is mailed twice.
     const off = await inst.agent.delete(`${R()}/gradebook/modules/${m1.id}/release`).set('x-csrf-token', inst.csrf)
     expect(off.status).toBe(200)
     expect(off.body.releasedAt).toBeNull()
-    expect((await s2.agent.get(`${R()}/submissions/${counted[S.s2.email]!.id}`).expect(200)).body.resultsVisible).toBe(false)
+    expect((await s2.agent.get(`${R()}/submissions/${counted[S.s2.email]!.id}`).expect(200)).body.resultsVisible).toBe(
+      false,
+    )
     const re = await release(inst, m1.id)
     expect(re.status).toBe(200)
     expect(re.body.emailed).toBe(0)
 
     await drainMail()
-    const all = await waitForMail((mails) => Object.values(S).every((s) => mails.some((m) => m.subject.includes(M1_TITLE) && m.to[0]?.address === s.email)))
+    const all = await waitForMail((mails) =>
+      Object.values(S).every((s) => mails.some((m) => m.subject.includes(M1_TITLE) && m.to[0]?.address === s.email)),
+    )
     const released = all.filter((m) => m.subject.includes(M1_TITLE) && m.subject.includes('grades released'))
-    for (const s of Object.values(S)) expect(released.filter((m) => m.to[0]?.address === s.email), s.email).toHaveLength(1)
+    for (const s of Object.values(S))
+      expect(
+        released.filter((m) => m.to[0]?.address === s.email),
+        s.email,
+      ).toHaveLength(1)
     expect(released).toHaveLength(5)
     const toS2 = released.find((m) => m.to[0]?.address === S.s2.email)!
     expect(toS2.text).toContain(`/courses/${fx.courseId}/submissions/${counted[S.s2.email]!.id}`)
@@ -367,8 +412,17 @@ describe('my grades', () => {
   it('shows every module with its state and counted score; staff are sent to the gradebook', async () => {
     const s3 = (await S.s3.c!.agent.get(`${R()}/my-grades`).expect(200)).body as MyGrades
     expect(s3.rows.map((r) => r.moduleId)).toEqual([m1.id, m2.id, m3.id])
-    expect(s3.rows.find((r) => r.moduleId === m2.id)).toMatchObject({ state: 'provisional', submissionId: m2Counted.id, points: m2Counted.points, maxScore: m2Counted.max })
-    expect(s3.rows.find((r) => r.moduleId === m3.id)).toMatchObject({ state: 'not-handed-in', submissionId: null, points: null })
+    expect(s3.rows.find((r) => r.moduleId === m2.id)).toMatchObject({
+      state: 'provisional',
+      submissionId: m2Counted.id,
+      points: m2Counted.points,
+      maxScore: m2Counted.max,
+    })
+    expect(s3.rows.find((r) => r.moduleId === m3.id)).toMatchObject({
+      state: 'not-handed-in',
+      submissionId: null,
+      points: null,
+    })
     const s5 = (await S.s5.c!.agent.get(`${R()}/my-grades`).expect(200)).body as MyGrades
     expect(s5.rows.every((r) => r.state === 'not-handed-in')).toBe(true)
     expect(s5.totalPercent).toBe(0)

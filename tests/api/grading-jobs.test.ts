@@ -31,12 +31,17 @@ let student: Client
 let mod: CreatedModule
 let grader: Grader
 let grading: GradingContext
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8')).replace(
-  /^attempts: 3$/m,
-  'attempts: 20',
-)
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+).replace(/^attempts: 3$/m, 'attempts: 20')
 
-const studentEnrollment = () => ({ courseId: fx.courseId, userId: fx.student.id, role: 'student' as const, sectionId: fx.sectionA, labGroupId: null as number | null })
+const studentEnrollment = () => ({
+  courseId: fx.courseId,
+  userId: fx.student.id,
+  role: 'student' as const,
+  sectionId: fx.sectionA,
+  labGroupId: null as number | null,
+})
 
 /** Stores a hand-in through the real service without grading it (as if the request died right after the commit). */
 async function storeOnly(): Promise<number> {
@@ -58,8 +63,13 @@ async function groupOf(userId: number): Promise<number | null> {
   return row?.g ?? null
 }
 
-const statusOf = async (id: number) => (await ctx.handle.db.select({ s: submissions.status }).from(submissions).where(eq(submissions.id, id)))[0]!.s
-const receipts = (id: number) => ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${id}`))
+const statusOf = async (id: number) =>
+  (await ctx.handle.db.select({ s: submissions.status }).from(submissions).where(eq(submissions.id, id)))[0]!.s
+const receipts = (id: number) =>
+  ctx.handle.db
+    .select()
+    .from(mailOutbox)
+    .where(eq(mailOutbox.dedupeKey, `submission-receipt:${id}`))
 
 beforeAll(async () => {
   // This file runs the grading cycle itself, step by step.
@@ -114,9 +124,13 @@ describe('grading as a durable job', () => {
     expect(await statusOf(id)).toBe('graded')
     // The dead worker wakes up and tries to save its own result: refused, nothing changes.
     const wrote = await ctx.handle.db.transaction((tx) =>
-      saveGrade(tx, claim!, { status: 'grading-failed', gradingError: 'late writer', rawScore: null, score: null, maxScore: null }, [], [
-        { code: 'late', message: 'late writer', detail: null },
-      ]),
+      saveGrade(
+        tx,
+        claim!,
+        { status: 'grading-failed', gradingError: 'late writer', rawScore: null, score: null, maxScore: null },
+        [],
+        [{ code: 'late', message: 'late writer', detail: null }],
+      ),
     )
     expect(wrote).toBe(false)
     expect(await statusOf(id)).toBe('graded')
@@ -128,7 +142,14 @@ describe('grading as a durable job', () => {
     const id = await storeOnly()
     const [claim] = await claimGradingJobs(ctx.handle.db, 1, id)
     const deadlocking: Grader = {
-      grade: () => Promise.reject(Object.assign(new Error('Deadlock found when trying to get lock'), { errno: 1213, code: 'ER_LOCK_DEADLOCK', sqlMessage: 'Deadlock' })),
+      grade: () =>
+        Promise.reject(
+          Object.assign(new Error('Deadlock found when trying to get lock'), {
+            errno: 1213,
+            code: 'ER_LOCK_DEADLOCK',
+            sqlMessage: 'Deadlock',
+          }),
+        ),
       idle: () => true,
       warmUp: () => Promise.resolve(),
       close: () => Promise.resolve(),
@@ -143,9 +164,14 @@ describe('grading as a durable job', () => {
   it('a failure shows people one plain sentence: no SQL, stack or hidden expected value reaches the student, the flag or the e-mail', async () => {
     const id = await storeOnly()
     const [claim] = await claimGradingJobs(ctx.handle.db, 1, id)
-    const secret = 'Failed query: insert into `submission_checks` (`expected`) values (114.8031) at Object.run (/srv/grade.ts:12:3)'
-    const broken: Grader = { grade: () => Promise.reject(new TypeError(secret)), idle: () => true,
-      warmUp: () => Promise.resolve(), close: () => Promise.resolve() }
+    const secret =
+      'Failed query: insert into `submission_checks` (`expected`) values (114.8031) at Object.run (/srv/grade.ts:12:3)'
+    const broken: Grader = {
+      grade: () => Promise.reject(new TypeError(secret)),
+      idle: () => true,
+      warmUp: () => Promise.resolve(),
+      close: () => Promise.resolve(),
+    }
     expect(await runClaimed(ctx.handle.db, { ...grading, grader: broken }, claim!)).toBe('failed')
     const [row] = await ctx.handle.db.select().from(submissions).where(eq(submissions.id, id))
     expect(row!.status).toBe('grading-failed')
@@ -154,11 +180,13 @@ describe('grading as a durable job', () => {
 
     const seen = await student.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(200)
     const text = JSON.stringify(seen.body)
-    for (const leak of ['Failed query', 'insert into', 'submission_checks', '114.8031', 'grade.ts', 'TypeError']) expect(text).not.toContain(leak)
+    for (const leak of ['Failed query', 'insert into', 'submission_checks', '114.8031', 'grade.ts', 'TypeError'])
+      expect(text).not.toContain(leak)
     expect(seen.body.flags.map((f: { message: string }) => f.message)).toEqual([GRADING_FAILED_MESSAGE])
     const [mail] = await receipts(id)
     expect(mail!.textBody).toContain(GRADING_FAILED_MESSAGE)
-    for (const leak of ['Failed query', 'insert into', '114.8031']) expect(mail!.textBody + mail!.htmlBody).not.toContain(leak)
+    for (const leak of ['Failed query', 'insert into', '114.8031'])
+      expect(mail!.textBody + mail!.htmlBody).not.toContain(leak)
     const pdf = await student.agent.get(`/api/courses/${fx.courseId}/submissions/${id}/report.pdf`)
     expect(pdf.status).toBe(409)
     expect(pdf.body.error.message).toContain(GRADING_FAILED_MESSAGE)
@@ -188,9 +216,20 @@ describe('grading as a durable job', () => {
     const ids = ok.map((r) => r.body.id as number)
     // Whatever the request did not finish, one background cycle does.
     await gradeWaiting(ctx.handle.db, grading, 50, 60_000)
-    const rows = await ctx.handle.db.select({ id: submissions.id, s: submissions.status }).from(submissions).where(inArray(submissions.id, ids))
+    const rows = await ctx.handle.db
+      .select({ id: submissions.id, s: submissions.status })
+      .from(submissions)
+      .where(inArray(submissions.id, ids))
     expect(rows.filter((r) => r.s !== 'graded')).toEqual([])
-    const mail = await ctx.handle.db.select({ k: mailOutbox.dedupeKey }).from(mailOutbox).where(inArray(mailOutbox.dedupeKey, ids.map((i) => `submission-receipt:${i}`)))
+    const mail = await ctx.handle.db
+      .select({ k: mailOutbox.dedupeKey })
+      .from(mailOutbox)
+      .where(
+        inArray(
+          mailOutbox.dedupeKey,
+          ids.map((i) => `submission-receipt:${i}`),
+        ),
+      )
     expect(mail).toHaveLength(ids.length)
   })
 })
@@ -209,10 +248,16 @@ describe('the grading budget', () => {
     const small = createGrader({ timeoutMs: 400, memoryMb: 256, threads: 1 })
     try {
       const slow = assignment(`sum(${literal(8)} .* x)`)
-      const err = await small.grade({ assignment: slow, data: { tables: column(40_000), measurements: {} }, reported: { r: 1 } }).catch((e: unknown) => e)
+      const err = await small
+        .grade({ assignment: slow, data: { tables: column(40_000), measurements: {} }, reported: { r: 1 } })
+        .catch((e: unknown) => e)
       expect(err).toBeInstanceOf(GradingBudgetError)
       expect((err as GradingBudgetError).kind).toBe('time')
-      const quick = await small.grade({ assignment: assignment('2 * 3'), data: { tables: column(10), measurements: {} }, reported: { r: 6 } })
+      const quick = await small.grade({
+        assignment: assignment('2 * 3'),
+        data: { tables: column(10), measurements: {} },
+        reported: { r: 6 },
+      })
       expect(quick.checks[0]!.pass).toBe(true)
     } finally {
       await small.close()
@@ -223,7 +268,9 @@ describe('the grading budget', () => {
     const small = createGrader({ timeoutMs: 60_000, memoryMb: 64, threads: 1 })
     try {
       const hungry = assignment(`sum(${literal(60)} * [x])`)
-      const err = await small.grade({ assignment: hungry, data: { tables: column(200_000), measurements: {} }, reported: { r: 1 } }).catch((e: unknown) => e)
+      const err = await small
+        .grade({ assignment: hungry, data: { tables: column(200_000), measurements: {} }, reported: { r: 1 } })
+        .catch((e: unknown) => e)
       expect(err).toBeInstanceOf(GradingBudgetError)
       expect((err as GradingBudgetError).kind).toBe('memory')
     } finally {

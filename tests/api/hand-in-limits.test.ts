@@ -18,7 +18,9 @@ let ctx: TestContext
 let fx: Fixture
 let student: Client
 let mod: CreatedModule
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+)
 const log = coldFlowCsv()
 
 type Issue = { field: string; row?: number; column?: string; message: string }
@@ -30,14 +32,19 @@ beforeAll(async () => {
   const inst = await signedInAs(ctx, fx.instructor.email)
   student = await signedInAs(ctx, fx.student2.email)
   // Handed in by each student (student2 is in no lab group), with attempts to spare.
-  mod = await createModuleAs(inst, fx.courseId, COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'))
+  mod = await createModuleAs(
+    inst,
+    fx.courseId,
+    COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'),
+  )
   await publishAs(inst, fx.courseId, mod)
 })
 afterAll(async () => {
   await ctx.close()
 })
 
-const stored = async () => (await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, mod.id))).length
+const stored = async () =>
+  (await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, mod.id))).length
 
 /** Hands in `csv` with `body`; expects a refusal and that no submission was stored. */
 async function refused(csv: string, body: unknown): Promise<Refusal> {
@@ -69,13 +76,20 @@ describe('typed values that cannot be right are a 422 naming the field, never a 
   it('a temperature below absolute zero (−300 °C)', async () => {
     const r = await refused(log.csv, withMeasurement('t_air', { value: -300, unit: 'degC' }))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'measurements.t_air', message: expect.stringMatching(/^Air \(room\) temperature: -300 degC is below absolute zero/) }])
+    expect(r.issues).toEqual([
+      {
+        field: 'measurements.t_air',
+        message: expect.stringMatching(/^Air \(room\) temperature: -300 degC is below absolute zero/),
+      },
+    ])
   })
 
   it('a pressure of 1e308 psi, which is not a finite number in pascals', async () => {
     const r = await refused(log.csv, withMeasurement('p_initial', { value: 1e308, unit: 'psi', pressure: 'gauge' }))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'measurements.p_initial', message: expect.stringMatching(/1e\+308 psi is too large/) }])
+    expect(r.issues).toEqual([
+      { field: 'measurements.p_initial', message: expect.stringMatching(/1e\+308 psi is too large/) },
+    ])
   })
 
   it('a barometric pressure of 1e308 kPa', async () => {
@@ -95,13 +109,17 @@ describe('typed values that cannot be right are a 422 naming the field, never a 
     // −200 kPa gauge with a barometer of 84 kPa is −116 kPa absolute.
     const r = await refused(log.csv, withMeasurement('p_final', { value: -200, unit: 'kPa', pressure: 'gauge' }))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'measurements.p_final', message: expect.stringMatching(/-116 kPa absolute.*cannot be below 0/) }])
+    expect(r.issues).toEqual([
+      { field: 'measurements.p_final', message: expect.stringMatching(/-116 kPa absolute.*cannot be below 0/) },
+    ])
   })
 
   it('a negative pressure typed as absolute', async () => {
     const r = await refused(log.csv, withMeasurement('p_final', { value: -5, unit: 'kPa', pressure: 'absolute' }))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'measurements.p_final', message: expect.stringMatching(/absolute pressure cannot be below 0/) }])
+    expect(r.issues).toEqual([
+      { field: 'measurements.p_final', message: expect.stringMatching(/absolute pressure cannot be below 0/) },
+    ])
   })
 
   it('a negative diameter and a negative volume', async () => {
@@ -118,13 +136,17 @@ describe('typed values that cannot be right are a 422 naming the field, never a 
   it('a reported impulse of 1e308 lbf*s is refused, not stored as NULL', async () => {
     const r = await refused(log.csv, coldFlowPayload(log, { impulse: { value: 1e308, unit: 'lbf*s' } }))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'reported.impulse', message: expect.stringMatching(/^Total impulse: 1e\+308 lbf\*s is too large/) }])
+    expect(r.issues).toEqual([
+      { field: 'reported.impulse', message: expect.stringMatching(/^Total impulse: 1e\+308 lbf\*s is too large/) },
+    ])
   })
 
   it('a reported mass that is negative', async () => {
     const r = await refused(log.csv, coldFlowPayload(log, { air_mass: { value: -0.1, unit: 'kg' } }))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'reported.air_mass', message: expect.stringMatching(/a mass cannot be negative/) }])
+    expect(r.issues).toEqual([
+      { field: 'reported.air_mass', message: expect.stringMatching(/a mass cannot be negative/) },
+    ])
   })
 
   it('a log value that overflows when converted to SI names its row and column', async () => {
@@ -133,7 +155,14 @@ describe('typed values that cannot be right are a 422 naming the field, never a 
     lines[6] = lines[6]!.replace(/,[^,]+$/, ',1e308')
     const r = await refused(lines.join('\n'), coldFlowPayload(log))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'table:run', row: 7, column: 'p_chamber_kPa', message: expect.stringMatching(/^Row 7, column "p_chamber_kPa": "1e308" is too large/) }])
+    expect(r.issues).toEqual([
+      {
+        field: 'table:run',
+        row: 7,
+        column: 'p_chamber_kPa',
+        message: expect.stringMatching(/^Row 7, column "p_chamber_kPa": "1e308" is too large/),
+      },
+    ])
     expect(r.more).toBe(0)
   })
 })
@@ -142,7 +171,15 @@ describe('hostile log files are refused early, naming the limit, with a short an
   it('a header of one name and 1.5 MB of commas', async () => {
     const r = await refused(`time_s${','.repeat(1_500_000)}\n0,0,0,0\n`, coldFlowPayload(log))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'table:run', row: 1, message: expect.stringMatching(/^Row 1 is 1,500,006 characters long; a line of a log may have at most 4,096 characters/) }])
+    expect(r.issues).toEqual([
+      {
+        field: 'table:run',
+        row: 1,
+        message: expect.stringMatching(
+          /^Row 1 is 1,500,006 characters long; a line of a log may have at most 4,096 characters/,
+        ),
+      },
+    ])
     expect(r.bodyLength).toBeLessThan(2048)
   })
 
@@ -150,7 +187,9 @@ describe('hostile log files are refused early, naming the limit, with a short an
     const header = `${log.csv.split('\n')[0]},${Array.from({ length: 61 }, (_, i) => `extra${i + 1}`).join(',')}`
     const r = await refused([header, ...log.csv.split('\n').slice(1)].join('\n'), coldFlowPayload(log))
     expect(r.status).toBe(422)
-    expect(r.issues).toEqual([{ field: 'table:run', row: 1, message: expect.stringMatching(/names 65 columns; a log may have at most 64/) }])
+    expect(r.issues).toEqual([
+      { field: 'table:run', row: 1, message: expect.stringMatching(/names 65 columns; a log may have at most 64/) },
+    ])
   })
 
   it('a formula cell with quotes in it is named once, at its row, and the rest of the file is still read', async () => {
@@ -159,7 +198,12 @@ describe('hostile log files are refused early, naming the limit, with a short an
     const r = await refused(lines.join('\n'), coldFlowPayload(log))
     expect(r.status).toBe(422)
     expect(r.issues).toEqual([
-      { field: 'table:run', row: 12, column: 'thrust_N', message: expect.stringMatching(/^Row 12, column "thrust_N": ".*" is a spreadsheet formula, not a number/) },
+      {
+        field: 'table:run',
+        row: 12,
+        column: 'thrust_N',
+        message: expect.stringMatching(/^Row 12, column "thrust_N": ".*" is a spreadsheet formula, not a number/),
+      },
     ])
     expect(r.more).toBe(0)
     expect(r.message).toMatch(/^One problem/)

@@ -20,7 +20,9 @@ import type { CreatedModule } from '../helpers/modules'
  * lazily: what the client was asked to produce shows whether the server kept reading.
  */
 
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+)
 const MB = 1024 * 1024
 // The test app's limit per hand-in: 2 MB of files (plus room for the form's payload field).
 const LIMIT_MB = 2
@@ -37,7 +39,11 @@ beforeAll(async () => {
   fx = await seedFixture(ctx)
   const inst = await signedInAs(ctx, fx.instructor.email)
   // Handed in by one student (student2 has no lab group), with attempts to spare.
-  mod = await createModuleAs(inst, fx.courseId, COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'))
+  mod = await createModuleAs(
+    inst,
+    fx.courseId,
+    COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'),
+  )
   await publishAs(inst, fx.courseId, mod)
   student = await signedInAs(ctx, fx.student2.email)
   server = ctx.created.app.listen(0, '127.0.0.1')
@@ -51,7 +57,8 @@ afterAll(async () => {
 })
 
 const handInPath = () => `/api/courses/${fx.courseId}/modules/${mod.id}/submissions`
-const stored = async () => (await ctx.handle.db.select({ id: submissions.id }).from(submissions).where(eq(submissions.moduleId, mod.id))).length
+const stored = async () =>
+  (await ctx.handle.db.select({ id: submissions.id }).from(submissions).where(eq(submissions.moduleId, mod.id))).length
 const log = coldFlowCsv()
 
 /** Signs in over real HTTP and returns the cookie header and CSRF token the browser would hold. */
@@ -82,7 +89,9 @@ const BOUNDARY = 'handin-test-boundary'
 const fieldPart = (name: string, value: string) =>
   Buffer.from(`--${BOUNDARY}\r\nContent-Disposition: form-data; name="${name}"\r\n\r\n${value}\r\n`)
 const fileHead = (name: string, filename: string) =>
-  Buffer.from(`--${BOUNDARY}\r\nContent-Disposition: form-data; name="${name}"; filename="${filename}"\r\nContent-Type: text/csv\r\n\r\n`)
+  Buffer.from(
+    `--${BOUNDARY}\r\nContent-Disposition: form-data; name="${name}"; filename="${filename}"\r\nContent-Type: text/csv\r\n\r\n`,
+  )
 const CLOSE = Buffer.from(`--${BOUNDARY}--\r\n`)
 
 /** `bytes` of filler in 64 KB pieces (digits and commas, like a log). */
@@ -104,7 +113,11 @@ interface StreamedReply {
  * Sends a chunked multipart body (no Content-Length) produced lazily from `parts`, and stops
  * producing as soon as the server answers.
  */
-function streamHandIn(session: { cookie: string; csrf: string }, parts: () => Generator<Buffer>, total: number): Promise<StreamedReply> {
+function streamHandIn(
+  session: { cookie: string; csrf: string },
+  parts: () => Generator<Buffer>,
+  total: number,
+): Promise<StreamedReply> {
   return new Promise((resolve, reject) => {
     let produced = 0
     let answered = false
@@ -134,7 +147,12 @@ function streamHandIn(session: { cookie: string; csrf: string }, parts: () => Ge
       res.on('data', (c: Buffer) => chunks.push(c))
       res.on('end', () => {
         req.destroy()
-        resolve({ status: res.statusCode ?? 0, body: JSON.parse(Buffer.concat(chunks).toString('utf8')) as StreamedReply['body'], produced: at, total })
+        resolve({
+          status: res.statusCode ?? 0,
+          body: JSON.parse(Buffer.concat(chunks).toString('utf8')) as StreamedReply['body'],
+          produced: at,
+          total,
+        })
       })
     })
     // Once the server has answered and closed, the client's unsent rest fails to write: expected.
@@ -153,8 +171,12 @@ describe('a chunked hand-in (no Content-Length) is measured as it streams', () =
     // 200 MB in all if the server read everything.
     const piece = Math.round(1.9 * MB)
     const fields = 100
-    const head = Buffer.concat([fieldPart('payload', JSON.stringify(coldFlowPayload(log))), fileHead('table:run', 'run.csv')])
-    const fieldHead = (i: number) => Buffer.from(`\r\n--${BOUNDARY}\r\nContent-Disposition: form-data; name="note${i}"\r\n\r\n`)
+    const head = Buffer.concat([
+      fieldPart('payload', JSON.stringify(coldFlowPayload(log))),
+      fileHead('table:run', 'run.csv'),
+    ])
+    const fieldHead = (i: number) =>
+      Buffer.from(`\r\n--${BOUNDARY}\r\nContent-Disposition: form-data; name="note${i}"\r\n\r\n`)
     const total = head.length + piece + fields * (fieldHead(0).length + piece) + CLOSE.length + 2
     const reply = await streamHandIn(
       session,
@@ -182,7 +204,10 @@ describe('a chunked hand-in (no Content-Length) is measured as it streams', () =
   it('a file field the module does not declare is refused with a 400 naming it when its part header arrives', async () => {
     const session = await httpSession(fx.student2.email)
     const before = await stored()
-    const head = Buffer.concat([fieldPart('payload', JSON.stringify(coldFlowPayload(log))), fileHead('table:extra', 'extra.csv')])
+    const head = Buffer.concat([
+      fieldPart('payload', JSON.stringify(coldFlowPayload(log))),
+      fileHead('table:extra', 'extra.csv'),
+    ])
     // The undeclared file would be 100 MB; the answer must come long before.
     const reply = await streamHandIn(
       session,
@@ -204,7 +229,10 @@ describe('a chunked hand-in (no Content-Length) is measured as it streams', () =
 
 describe('only the files the module declares, each once', () => {
   const handIn = (parts: { field: string; name: string; body: string }[]) => {
-    let req = student.agent.post(handInPath()).set('x-csrf-token', student.csrf).field('payload', JSON.stringify(coldFlowPayload(log)))
+    let req = student.agent
+      .post(handInPath())
+      .set('x-csrf-token', student.csrf)
+      .field('payload', JSON.stringify(coldFlowPayload(log)))
     for (const p of parts) req = req.attach(p.field, Buffer.from(p.body), p.name)
     return req
   }
@@ -236,7 +264,10 @@ describe('only the files the module declares, each once', () => {
   it('the declared file alone is taken and stored', async () => {
     const res = await handIn([{ field: 'table:run', name: 'run.csv', body: log.csv }])
     expect(res.status).toBe(201)
-    const files = await ctx.handle.db.select({ tableKey: submissionFiles.tableKey }).from(submissionFiles).where(eq(submissionFiles.submissionId, res.body.id))
+    const files = await ctx.handle.db
+      .select({ tableKey: submissionFiles.tableKey })
+      .from(submissionFiles)
+      .where(eq(submissionFiles.submissionId, res.body.id))
     expect(files).toEqual([{ tableKey: 'run' }])
   })
 })
@@ -248,7 +279,11 @@ describe('a broken form upload is a 400 with a plain message, not a 500', () => 
 
   it('a body cut off before its closing boundary', async () => {
     const before = await stored()
-    const whole = Buffer.concat([fieldPart('payload', JSON.stringify(coldFlowPayload(log))), fileHead('table:run', 'run.csv'), Buffer.from(log.csv)])
+    const whole = Buffer.concat([
+      fieldPart('payload', JSON.stringify(coldFlowPayload(log))),
+      fileHead('table:run', 'run.csv'),
+      Buffer.from(log.csv),
+    ])
     const res = await raw(`multipart/form-data; boundary=${BOUNDARY}`, whole.subarray(0, whole.length - 100))
     expect(res.status).toBe(400)
     expect(res.body.error.code).toBe('bad_upload')

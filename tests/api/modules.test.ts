@@ -30,12 +30,18 @@ describe('drafts and publishing', () => {
     expect(list.body.map((x: { id: number }) => x.id)).not.toContain(m.id)
     await student.agent.get(`${M()}/${m.id}`).expect(404)
     const staffList = await ta.agent.get(M()).expect(200)
-    expect(staffList.body.find((x: { id: number }) => x.id === m.id)).toMatchObject({ status: 'draft', title: 'Hidden draft' })
+    expect(staffList.body.find((x: { id: number }) => x.id === m.id)).toMatchObject({
+      status: 'draft',
+      title: 'Hidden draft',
+    })
   })
 
   it('publishing freezes the version, shows it to students with the due date in UTC, and queues one e-mail per student in the course', async () => {
     const m = await createModuleAs(inst, fx.courseId, moduleSource('Nozzle flow for publishing'))
-    const res = await inst.agent.post(`${M()}/${m.id}/publish`).set('x-csrf-token', inst.csrf).send({ versionId: m.versionId })
+    const res = await inst.agent
+      .post(`${M()}/${m.id}/publish`)
+      .set('x-csrf-token', inst.csrf)
+      .send({ versionId: m.versionId })
     expect(res.status).toBe(200)
     expect(res.body.emailed).toBe(2)
     const read = await student.agent.get(`${M()}/${m.id}`).expect(200)
@@ -43,7 +49,10 @@ describe('drafts and publishing', () => {
     // 17:00 in Denver in February is 00:00 UTC the next day (MST, UTC−7).
     expect(read.body.dueAt).toBe('2027-02-10T00:00:00.000Z')
     expect(read.body.html).toContain('class="katex"')
-    const mail = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `module-published:${m.versionId}`))
+    const mail = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `module-published:${m.versionId}`))
     expect(mail.map((r) => r.toAddress).sort()).toEqual([fx.student.email, fx.student2.email].sort())
     expect(mail[0]!.subject).toContain('Nozzle flow for publishing')
     // The e-mail states the due date in the course's zone (UTC for this test course).
@@ -72,7 +81,9 @@ describe('drafts and publishing', () => {
       [1, 'published'],
     ])
     expect(versions.body[1].publishedBy).toContain('instructor')
-    const diff = await ta.agent.get(`${M()}/${m.id}/diff?from=${versions.body[1].id}&to=${versions.body[0].id}`).expect(200)
+    const diff = await ta.agent
+      .get(`${M()}/${m.id}/diff?from=${versions.body[1].id}&to=${versions.body[0].id}`)
+      .expect(200)
     expect(diff.body.added).toBeGreaterThan(0)
     const lines = diff.body.hunks.flatMap((h: { lines: { kind: string; text: string }[] }) => h.lines)
     expect(lines).toContainEqual({ kind: 'add', text: 'A second paragraph, edited.' })
@@ -81,7 +92,11 @@ describe('drafts and publishing', () => {
   it('a save from a stale copy is refused with a conflict instead of overwriting', async () => {
     const m = await createModuleAs(inst, fx.courseId, moduleSource('Conflict module'))
     await publishAs(inst, fx.courseId, m)
-    await inst.agent.put(`${M()}/${m.id}`).set('x-csrf-token', inst.csrf).send({ source: moduleSource('Conflict module', 'first'), baseVersionId: m.versionId }).expect(200)
+    await inst.agent
+      .put(`${M()}/${m.id}`)
+      .set('x-csrf-token', inst.csrf)
+      .send({ source: moduleSource('Conflict module', 'first'), baseVersionId: m.versionId })
+      .expect(200)
     const stale = await inst.agent
       .put(`${M()}/${m.id}`)
       .set('x-csrf-token', inst.csrf)
@@ -117,14 +132,20 @@ describe('bad module input', () => {
     expect(res.status).toBe(201)
     expect(res.body.current.valid).toBe(false)
     expect(res.body.current.issues.length).toBeGreaterThan(0)
-    const pub = await inst.agent.post(`${M()}/${res.body.id}/publish`).set('x-csrf-token', inst.csrf).send({ versionId: res.body.current.id })
+    const pub = await inst.agent
+      .post(`${M()}/${res.body.id}/publish`)
+      .set('x-csrf-token', inst.csrf)
+      .send({ versionId: res.body.current.id })
     expect(pub.status).toBe(422)
     expect(pub.body.error.code).toBe('module_invalid')
     expect(pub.body.error.details.issues.length).toBeGreaterThan(0)
   })
 
   it('a module without a title is refused at publish with the field named', async () => {
-    const res = await inst.agent.post(M()).set('x-csrf-token', inst.csrf).send({ source: '---\nsummary: no title here\n---\n\nText\n' })
+    const res = await inst.agent
+      .post(M())
+      .set('x-csrf-token', inst.csrf)
+      .send({ source: '---\nsummary: no title here\n---\n\nText\n' })
     expect(res.status).toBe(201)
     expect(res.body.current.issues.map((i: { path: string }) => i.path).join(' ')).toContain('title')
   })
@@ -132,7 +153,10 @@ describe('bad module input', () => {
   it('a module over 1 MB is refused and the stored module is unchanged', async () => {
     const m = await createModuleAs(inst, fx.courseId, moduleSource('Size limit'))
     const huge = moduleSource('Size limit', 'x'.repeat(1_100_000))
-    const res = await inst.agent.put(`${M()}/${m.id}`).set('x-csrf-token', inst.csrf).send({ source: huge, baseVersionId: m.versionId })
+    const res = await inst.agent
+      .put(`${M()}/${m.id}`)
+      .set('x-csrf-token', inst.csrf)
+      .send({ source: huge, baseVersionId: m.versionId })
     expect(res.status).toBe(400)
     expect(res.body.error.message).toMatch(/1 MB/)
     const ed = await inst.agent.get(`${M()}/${m.id}/edit`).expect(200)
@@ -151,7 +175,10 @@ describe('bad module input', () => {
 
   it('publishing an unknown module or another course’s module is a 404', async () => {
     await inst.agent.post(`${M()}/999999999/publish`).set('x-csrf-token', inst.csrf).send({ versionId: 1 }).expect(404)
-    const others = await ctx.handle.db.select().from(mailOutbox).where(like(mailOutbox.dedupeKey, 'module-published:999999999%'))
+    const others = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(like(mailOutbox.dedupeKey, 'module-published:999999999%'))
     expect(others).toHaveLength(0)
   })
 })

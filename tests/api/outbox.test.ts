@@ -45,7 +45,10 @@ describe('mail outbox', () => {
     const tag = uniq()
     await enqueueMail(ctx.handle.db, mails(tag, 2))
     await enqueueMail(ctx.handle.db, mails(tag, 2))
-    const rows = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `test:${tag}`))
+    const rows = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `test:${tag}`))
     expect(rows).toHaveLength(2)
   })
 
@@ -60,7 +63,10 @@ describe('mail outbox', () => {
     try {
       let sent = 0
       for (let round = 0; round < 10; round++) {
-        const [x, y] = await Promise.all([drainOnce(ctx.handle.db, a, logger, opts), drainOnce(other.handle.db, b, logger, opts)])
+        const [x, y] = await Promise.all([
+          drainOnce(ctx.handle.db, a, logger, opts),
+          drainOnce(other.handle.db, b, logger, opts),
+        ])
         sent += x + y
         if (x + y === 0) break
       }
@@ -77,7 +83,10 @@ describe('mail outbox', () => {
     expect(new Set(mine.map((m) => m.to[0]?.address)).size).toBe(n)
     expect(mine[0]!.text.trim()).toMatch(/^Plain text \d+$/)
     expect(mine[0]!.html).toContain('<p>HTML')
-    const rows = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `test:${tag}`))
+    const rows = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `test:${tag}`))
     expect(rows.every((r) => r.status === 'sent' && r.attempts === 1 && r.sentAt !== null)).toBe(true)
   })
 
@@ -91,7 +100,10 @@ describe('mail outbox', () => {
     const before = Date.now()
     const sent = await drainOnce(ctx.handle.db, failing, logger, opts)
     expect(sent).toBe(0)
-    const [row] = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `test:${tag}`))
+    const [row] = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `test:${tag}`))
     expect(row).toMatchObject({ status: 'pending', attempts: 1, lastError: 'SMTP 451 try again later' })
     expect(row!.nextAttemptAt.getTime()).toBeGreaterThanOrEqual(before + backoffMs(1, opts) - 1000)
     // Not due yet: a second drain leaves it alone.
@@ -100,7 +112,10 @@ describe('mail outbox', () => {
     expect(still!.attempts).toBe(1)
     // Make it due and fail it until the attempts run out.
     for (let i = 0; i < 2; i++) {
-      await ctx.handle.db.update(mailOutbox).set({ nextAttemptAt: new Date(Date.now() - 1000) }).where(eq(mailOutbox.id, row!.id))
+      await ctx.handle.db
+        .update(mailOutbox)
+        .set({ nextAttemptAt: new Date(Date.now() - 1000) })
+        .where(eq(mailOutbox.id, row!.id))
       await drainOnce(ctx.handle.db, failing, logger, opts)
     }
     const [last] = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.id, row!.id))
@@ -109,7 +124,8 @@ describe('mail outbox', () => {
   })
 
   it('back-off doubles per attempt up to the cap', () => {
-    expect([1, 2, 3, 4, 5, 6].map((a) => backoffMs(a, opts))).toEqual([60_000, 120_000, 240_000, 480_000, 600_000, 600_000])
+    expect([1, 2, 3, 4, 5, 6].map((a) => backoffMs(a, opts))).toEqual([
+      60_000, 120_000, 240_000, 480_000, 600_000, 600_000,
+    ])
   })
 })
-

@@ -16,7 +16,9 @@ import { waitForMail } from '../helpers/maildev'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, publishAs } from '../helpers/modules'
 
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+)
 const moduleText = (title: string, group: boolean) =>
   COLD.replace(/^title: .*$/m, `title: ${title}`)
     .replace('results: immediately', 'results: after-release')
@@ -37,7 +39,11 @@ let soloSub: number
 let groupSub: number
 const tag = uniq()
 const R = () => `/api/courses/${fx.courseId}`
-const regrade = (c: Client, id: number, body: unknown) => c.agent.post(`${R()}/submissions/${id}/regrade`).set('x-csrf-token', c.csrf).send(body as object)
+const regrade = (c: Client, id: number, body: unknown) =>
+  c.agent
+    .post(`${R()}/submissions/${id}/regrade`)
+    .set('x-csrf-token', c.csrf)
+    .send(body as object)
 
 async function handIn(c: Client, moduleId: number) {
   const log = coldFlowCsv()
@@ -52,12 +58,18 @@ async function handIn(c: Client, moduleId: number) {
 
 async function addPerson(role: 'student' | 'ta', sectionId: number, labGroupId: number | null) {
   const email = `${role}.${uniq()}@test.example`
-  const [row] = await ctx.handle.db.insert(users).values({ email, displayName: `${role} ${tag}`, passwordHash: await hashPassword(PASSWORD) }).$returningId()
-  await ctx.handle.db.insert(enrollments).values({ userId: row!.id, courseId: fx.courseId, role, sectionId, labGroupId })
+  const [row] = await ctx.handle.db
+    .insert(users)
+    .values({ email, displayName: `${role} ${tag}`, passwordHash: await hashPassword(PASSWORD) })
+    .$returningId()
+  await ctx.handle.db
+    .insert(enrollments)
+    .values({ userId: row!.id, courseId: fx.courseId, role, sectionId, labGroupId })
   return email
 }
 
-const release = (moduleId: number) => inst.agent.post(`${R()}/gradebook/modules/${moduleId}/release`).set('x-csrf-token', inst.csrf).expect(200)
+const release = (moduleId: number) =>
+  inst.agent.post(`${R()}/gradebook/modules/${moduleId}/release`).set('x-csrf-token', inst.csrf).expect(200)
 
 beforeAll(async () => {
   ctx = startTestApp()
@@ -85,7 +97,12 @@ afterAll(async () => {
 })
 
 const openCount = async (submissionId: number) =>
-  (await ctx.handle.db.select().from(regradeRequests).where(and(eq(regradeRequests.submissionId, submissionId), eq(regradeRequests.status, 'open')))).length
+  (
+    await ctx.handle.db
+      .select()
+      .from(regradeRequests)
+      .where(and(eq(regradeRequests.submissionId, submissionId), eq(regradeRequests.status, 'open')))
+  ).length
 
 describe('asking for a regrade', () => {
   it('is refused before the grades are released (409), and the student is told why', async () => {
@@ -123,7 +140,11 @@ describe('asking for a regrade', () => {
     const body = ok.body as RegradeStatus
     expect(body.canRequest).toBe(false)
     expect(body.requests).toHaveLength(1)
-    expect(body.requests[0]).toMatchObject({ status: 'open', message: `The impulse check used the wrong window (${tag}).`, answerHtml: null })
+    expect(body.requests[0]).toMatchObject({
+      status: 'open',
+      message: `The impulse check used the wrong window (${tag}).`,
+      answerHtml: null,
+    })
     const dup = await regrade(student, soloSub, { message: 'Again, please.' })
     expect(dup.status).toBe(409)
     expect(dup.body.error.code).toBe('regrade_open')
@@ -132,7 +153,10 @@ describe('asking for a regrade', () => {
     const q = (await inst.agent.get(`${R()}/review?status=all&reason=regrade-requested`).expect(200)).body as ReviewPage
     expect(q.rows.map((r) => r.submissionId)).toEqual([soloSub])
     expect(q.rows[0]!.flagCodes).toContain('regrade-requested')
-    const [s] = await ctx.handle.db.select({ reviewStatus: submissions.reviewStatus }).from(submissions).where(eq(submissions.id, soloSub))
+    const [s] = await ctx.handle.db
+      .select({ reviewStatus: submissions.reviewStatus })
+      .from(submissions)
+      .where(eq(submissions.id, soloSub))
     expect(s!.reviewStatus).toBe('open')
     // The TA of the student's section sees it; the TA of the other section does not.
     const qa = (await ta.agent.get(`${R()}/review?status=all&reason=regrade-requested`).expect(200)).body as ReviewPage
@@ -147,7 +171,11 @@ describe('asking for a regrade', () => {
   it('staff answer in Markdown (sanitised); the student reads it and gets it by e-mail; a second answer is refused', async () => {
     const status = (await ta.agent.get(`${R()}/submissions/${soloSub}/regrade`).expect(200)).body as RegradeStatus
     const id = status.requests[0]!.id
-    const answer = (c: Client, body: unknown) => c.agent.post(`${R()}/submissions/${soloSub}/regrade/${id}/answer`).set('x-csrf-token', c.csrf).send(body as object)
+    const answer = (c: Client, body: unknown) =>
+      c.agent
+        .post(`${R()}/submissions/${soloSub}/regrade/${id}/answer`)
+        .set('x-csrf-token', c.csrf)
+        .send(body as object)
     expect((await answer(taB, { answer: 'Not my section.' })).status).toBe(404)
     expect((await answer(student, { answer: 'Answering myself.' })).status).toBe(403)
     const blank = await answer(ta, { answer: '' })
@@ -169,16 +197,23 @@ describe('asking for a regrade', () => {
     const seen = (await student.agent.get(`${R()}/submissions/${soloSub}/regrade`).expect(200)).body as RegradeStatus
     expect(seen.requests[0]!.answerHtml).toContain('the grade stands')
     expect(seen.canRequest).toBe(true)
-    expect((await ctx.handle.db.select().from(regradeRequests).where(eq(regradeRequests.submissionId, soloSub))).length).toBe(1)
+    expect(
+      (await ctx.handle.db.select().from(regradeRequests).where(eq(regradeRequests.submissionId, soloSub))).length,
+    ).toBe(1)
 
     const sender = createSmtpSender(ctx.config)
     try {
-      for (let i = 0; i < 20; i++) if ((await drainOnce(ctx.handle.db, sender, createLogger('silent'), DEFAULT_OUTBOX_OPTIONS)) === 0) break
+      for (let i = 0; i < 20; i++)
+        if ((await drainOnce(ctx.handle.db, sender, createLogger('silent'), DEFAULT_OUTBOX_OPTIONS)) === 0) break
     } finally {
       sender.close()
     }
-    const mail = await waitForMail((all) => all.some((m) => m.to[0]?.address === fx.student.email && m.subject.includes('regrade request was answered')))
-    const mine = mail.filter((m) => m.to[0]?.address === fx.student.email && m.subject.includes('regrade request was answered'))
+    const mail = await waitForMail((all) =>
+      all.some((m) => m.to[0]?.address === fx.student.email && m.subject.includes('regrade request was answered')),
+    )
+    const mine = mail.filter(
+      (m) => m.to[0]?.address === fx.student.email && m.subject.includes('regrade request was answered'),
+    )
     expect(mine).toHaveLength(1)
     expect(mine[0]!.text).toContain(`Checked the window ${tag}`)
     expect(mine[0]!.text).toContain(`/courses/${fx.courseId}/submissions/${soloSub}`)

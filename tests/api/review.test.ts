@@ -57,16 +57,23 @@ describe('review queue', () => {
 
   it('offers the instructor every section and a TA only their own; the reasons are those that occur, and the section filter narrows the queue', async () => {
     const all = (await inst.agent.get(`${R()}/review?status=all`).expect(200)).body
-    expect(all.facets.sections.map((s: { name: string }) => s.name)).toEqual(expect.arrayContaining(DEMO_SECTIONS.map((s) => s.name)))
+    expect(all.facets.sections.map((s: { name: string }) => s.name)).toEqual(
+      expect.arrayContaining(DEMO_SECTIONS.map((s) => s.name)),
+    )
     const a = (await taA.agent.get(`${R()}/review?status=all`).expect(200)).body
     expect(a.facets.sections.map((s: { name: string }) => s.name)).toEqual([DEMO_SECTIONS[0].name])
     // Every reason a row carries is offered, and nothing that no hand-in has (besides a regrade request).
     const codes = new Set(all.facets.reasons.map((r: { code: string }) => r.code))
-    for (const r of all.rows as { flagCodes: string[] }[]) for (const c of r.flagCodes) expect(codes.has(c), c).toBe(true)
+    for (const r of all.rows as { flagCodes: string[] }[])
+      for (const c of r.flagCodes) expect(codes.has(c), c).toBe(true)
     const flagged = new Set(
-      (await ctx.handle.db.select({ code: submissionFlags.code }).from(submissionFlags).innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId)).where(eq(submissions.courseId, courseId))).map(
-        (f) => f.code,
-      ),
+      (
+        await ctx.handle.db
+          .select({ code: submissionFlags.code })
+          .from(submissionFlags)
+          .innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId))
+          .where(eq(submissions.courseId, courseId))
+      ).map((f) => f.code),
     )
     expect(new Set([...codes].filter((c) => c !== 'regrade-requested'))).toEqual(flagged)
     const sectionB = all.facets.sections.find((s: { name: string }) => s.name === DEMO_SECTIONS[1].name)
@@ -83,7 +90,10 @@ describe('review queue', () => {
     const check = (await ctx.handle.db.select().from(submissionChecks).where(eq(submissionChecks.submissionId, id)))[0]!
     const rev = extras.body.revision as number
 
-    const noReason = await taA.agent.post(`${R()}/submissions/${id}/overrides`).set('x-csrf-token', taA.csrf).send({ checkId: check.id, points: 0, reason: '', revision: rev })
+    const noReason = await taA.agent
+      .post(`${R()}/submissions/${id}/overrides`)
+      .set('x-csrf-token', taA.csrf)
+      .send({ checkId: check.id, points: 0, reason: '', revision: rev })
     expect(noReason.status).toBe(400)
     expect(noReason.body.error.message).toContain('reason')
     const tooMany = await taA.agent
@@ -99,17 +109,27 @@ describe('review queue', () => {
     expect(negative.status).toBe(400)
     expect(await ctx.handle.db.select().from(gradeChanges).where(eq(gradeChanges.submissionId, id))).toHaveLength(0)
 
-    const ok = await taA.agent
-      .post(`${R()}/submissions/${id}/overrides`)
-      .set('x-csrf-token', taA.csrf)
-      .send({ checkId: check.id, points: check.pointsPossible, reason: 'The load cell was re-zeroed before the run; the value stands.', revision: rev })
+    const ok = await taA.agent.post(`${R()}/submissions/${id}/overrides`).set('x-csrf-token', taA.csrf).send({
+      checkId: check.id,
+      points: check.pointsPossible,
+      reason: 'The load cell was re-zeroed before the run; the value stands.',
+      revision: rev,
+    })
     expect(ok.status).toBe(200)
     expect(ok.body.revision).toBe(rev + 1)
     expect(ok.body.gradeChanges).toEqual([
-      expect.objectContaining({ target: check.label, oldPoints: check.pointsAwarded, newPoints: check.pointsPossible, changedBy: DEMO_SECTIONS[0].ta.displayName }),
+      expect.objectContaining({
+        target: check.label,
+        oldPoints: check.pointsAwarded,
+        newPoints: check.pointsPossible,
+        changedBy: DEMO_SECTIONS[0].ta.displayName,
+      }),
     ])
     const [after] = await ctx.handle.db.select().from(submissions).where(eq(submissions.id, id))
-    expect(after!.rawScore).toBeCloseTo((detail.body.rawScore as number) - check.pointsAwarded + check.pointsPossible, 9)
+    expect(after!.rawScore).toBeCloseTo(
+      (detail.body.rawScore as number) - check.pointsAwarded + check.pointsPossible,
+      9,
+    )
 
     // The instructor saved against the old revision: refused, nothing overwritten.
     const stale = await inst.agent

@@ -27,13 +27,18 @@ afterAll(async () => {
   await ctx.close()
 })
 
-const post = (c: Client, url: string, body: unknown) => c.agent.post(url).set('x-csrf-token', c.csrf).send(body as object)
+const post = (c: Client, url: string, body: unknown) =>
+  c.agent
+    .post(url)
+    .set('x-csrf-token', c.csrf)
+    .send(body as object)
 
 /** Row counts of every table an import writes (API test files run one at a time, so these are stable). */
 async function tableCounts() {
   const db = ctx.handle.db
-  const n = async (t: typeof users | typeof enrollments | typeof invitations | typeof mailOutbox | typeof sections | typeof labGroups) =>
-    (await db.select({ n: count() }).from(t))[0]!.n
+  const n = async (
+    t: typeof users | typeof enrollments | typeof invitations | typeof mailOutbox | typeof sections | typeof labGroups,
+  ) => (await db.select({ n: count() }).from(t))[0]!.n
   return {
     users: await n(users),
     enrollments: await n(enrollments),
@@ -49,7 +54,13 @@ async function deliverMail(): Promise<void> {
   const sender = createSmtpSender(ctx.config)
   try {
     for (let i = 0; i < 10; i++) {
-      if ((await drainOnce(ctx.handle.db, sender, createLogger('silent'), { ...DEFAULT_OUTBOX_OPTIONS, batchSize: 50 })) === 0) break
+      if (
+        (await drainOnce(ctx.handle.db, sender, createLogger('silent'), {
+          ...DEFAULT_OUTBOX_OPTIONS,
+          batchSize: 50,
+        })) === 0
+      )
+        break
     }
   } finally {
     sender.close()
@@ -83,7 +94,15 @@ describe('roster import: preview', () => {
     expect(await tableCounts()).toEqual(before)
     const body = res.body
     expect(body.ok).toBe(false)
-    expect(body.counts).toMatchObject({ rows: 5, new: 1, changed: 2, unchanged: 1, invalid: 1, invitations: 1, enrollmentMails: 1 })
+    expect(body.counts).toMatchObject({
+      rows: 5,
+      new: 1,
+      changed: 2,
+      unchanged: 1,
+      invalid: 1,
+      invitations: 1,
+      enrollmentMails: 1,
+    })
     expect(body.invitationValidHours).toBe(72)
     const byRow = new Map(body.rows.map((r: { row: number }) => [r.row, r]))
     expect(byRow.get(2)).toMatchObject({ kind: 'new', invite: true, section: 'A', group: 'G1' })
@@ -94,7 +113,9 @@ describe('roster import: preview', () => {
     expect((byRow.get(5) as { changes: string[] }).changes[0]).toContain('enrolled as teaching assistant')
     const bad = byRow.get(6) as { kind: string; problems: { column: string; message: string }[] }
     expect(bad.kind).toBe('invalid')
-    expect(bad.problems).toEqual([{ column: 'email', message: expect.stringContaining('"not-an-address" is not a valid e-mail address') }])
+    expect(bad.problems).toEqual([
+      { column: 'email', message: expect.stringContaining('"not-an-address" is not a valid e-mail address') },
+    ])
   })
 
   it('reads headers without regard to case and with the usual other names, and lists columns it ignores', async () => {
@@ -102,7 +123,12 @@ describe('roster import: preview', () => {
     const csv = `E-Mail Address;Display Name;ROLE;Lab Group;Student ID\nalias.${t}@import.example;Alias ${t};TA;;1234\n`
     const res = await post(inst, PREVIEW(), { csv }).expect(200)
     expect(res.body.ok).toBe(true)
-    expect(res.body.rows[0]).toMatchObject({ email: `alias.${t}@import.example`, displayName: `Alias ${t}`, role: 'ta', kind: 'new' })
+    expect(res.body.rows[0]).toMatchObject({
+      email: `alias.${t}@import.example`,
+      displayName: `Alias ${t}`,
+      role: 'ta',
+      kind: 'new',
+    })
     expect(res.body.ignoredColumns).toEqual(['Student ID'])
   })
 
@@ -146,7 +172,13 @@ describe('roster import: refused files', () => {
     const name = 'é'.repeat(150_000)
     await expectRefused(`email,name\nbig@import.example,${name}\n`, 422, 'roster_file_refused', 'at most 256 KB')
     // Plain ASCII over the limit is stopped by the request schema, naming the field.
-    await expectRefused(`email,name\nbig@import.example,${'x'.repeat(270_000)}\n`, 400, 'validation_failed', 'csv', '256 KB')
+    await expectRefused(
+      `email,name\nbig@import.example,${'x'.repeat(270_000)}\n`,
+      400,
+      'validation_failed',
+      'csv',
+      '256 KB',
+    )
   })
 
   it('refuses an empty file and a header with nobody under it', async () => {
@@ -186,8 +218,22 @@ describe('roster import: refused files', () => {
     ].join('\n')
     const before = await tableCounts()
     const pre = await post(inst, PREVIEW(), { csv }).expect(200)
-    const problems = new Map(pre.body.rows.map((r: { row: number; problems: { column: string }[] }) => [r.row, r.problems.map((p) => p.column)]))
-    expect(Object.fromEntries(problems)).toEqual({ 2: [], 3: ['email'], 4: ['role'], 5: ['role'], 6: ['group'], 7: ['group'], 8: ['email'], 9: ['name'] })
+    const problems = new Map(
+      pre.body.rows.map((r: { row: number; problems: { column: string }[] }) => [
+        r.row,
+        r.problems.map((p) => p.column),
+      ]),
+    )
+    expect(Object.fromEntries(problems)).toEqual({
+      2: [],
+      3: ['email'],
+      4: ['role'],
+      5: ['role'],
+      6: ['group'],
+      7: ['group'],
+      8: ['email'],
+      9: ['name'],
+    })
     expect(pre.body.rows[4].problems[0].message).toContain('section "A"')
     const res = await post(inst, IMPORT(), { csv })
     expect(res.status).toBe(422)
@@ -213,13 +259,14 @@ describe('roster import: confirm, mail and invitations', () => {
   const t = uniq()
   const newA = `ana.${t}@import.example`
   const newB = `ben.${t}@import.example`
-  const csvOf = () => [
-    'email,name,role,section,group',
-    `${newA},Ana ${t},student,Bay ${t},Rig ${t}`,
-    `${newB},Ben ${t},ta,Bay ${t},`,
-    `${fx.outsider.email},Outsider,student,A,G1`,
-    `${fx.student.email},Student,student,A,G1`,
-  ].join('\n')
+  const csvOf = () =>
+    [
+      'email,name,role,section,group',
+      `${newA},Ana ${t},student,Bay ${t},Rig ${t}`,
+      `${newB},Ben ${t},ta,Bay ${t},`,
+      `${fx.outsider.email},Outsider,student,A,G1`,
+      `${fx.student.email},Student,student,A,G1`,
+    ].join('\n')
   let csv = ''
   const tokens: Record<string, string> = {}
   beforeAll(() => {
@@ -252,7 +299,13 @@ describe('roster import: confirm, mail and invitations', () => {
     expect(ana).toMatchObject({ displayName: `Ana ${t}`, passwordHash: null })
     const db = ctx.handle.db
     const [enr] = await db
-      .select({ role: enrollments.role, section: sections.name, group: labGroups.name, groupSection: labGroups.sectionId, sectionId: sections.id })
+      .select({
+        role: enrollments.role,
+        section: sections.name,
+        group: labGroups.name,
+        groupSection: labGroups.sectionId,
+        sectionId: sections.id,
+      })
       .from(enrollments)
       .leftJoin(sections, eq(sections.id, enrollments.sectionId))
       .leftJoin(labGroups, eq(labGroups.id, enrollments.labGroupId))
@@ -260,15 +313,25 @@ describe('roster import: confirm, mail and invitations', () => {
     expect(enr).toMatchObject({ role: 'student', section: `Bay ${t}`, group: `Rig ${t}` })
     expect(enr!.groupSection).toBe(enr!.sectionId)
     const roster = await inst.agent.get(`/api/courses/${fx.courseId}/roster`).expect(200)
-    expect(roster.body.find((r: { email: string }) => r.email === newB)).toMatchObject({ role: 'ta', sectionName: `Bay ${t}` })
-    expect(roster.body.find((r: { email: string }) => r.email === fx.outsider.email)).toMatchObject({ role: 'student', sectionName: 'A', labGroupName: 'G1' })
+    expect(roster.body.find((r: { email: string }) => r.email === newB)).toMatchObject({
+      role: 'ta',
+      sectionName: `Bay ${t}`,
+    })
+    expect(roster.body.find((r: { email: string }) => r.email === fx.outsider.email)).toMatchObject({
+      role: 'student',
+      sectionName: 'A',
+      labGroupName: 'G1',
+    })
   })
 
   it('e-mails each new person a set-password link whose token is stored only as its SHA-256', async () => {
     await deliverMail()
     const to = (m: CaughtMail, a: string) => m.to[0]?.address === a
     const all = await waitForMail(
-      (m) => m.some((x) => to(x, newA)) && m.some((x) => to(x, newB)) && m.some((x) => to(x, fx.outsider.email) && x.subject.includes('added')),
+      (m) =>
+        m.some((x) => to(x, newA)) &&
+        m.some((x) => to(x, newB)) &&
+        m.some((x) => to(x, fx.outsider.email) && x.subject.includes('added')),
     )
     for (const address of [newA, newB]) {
       const mine = all.filter((m) => m.to[0]?.address === address)
@@ -281,7 +344,9 @@ describe('roster import: confirm, mail and invitations', () => {
       expect(stored).toHaveLength(1)
       expect(stored[0]!.tokenHash).toBe(createHash('sha256').update(token).digest('hex'))
       // INVITATION_TTL_HOURS is 72 for this file (the default is 168, a week).
-      expect(Math.abs(stored[0]!.expiresAt.getTime() - stored[0]!.createdAt.getTime() - 72 * 3_600_000)).toBeLessThan(60_000)
+      expect(Math.abs(stored[0]!.expiresAt.getTime() - stored[0]!.createdAt.getTime() - 72 * 3_600_000)).toBeLessThan(
+        60_000,
+      )
       expect(stored[0]!.usedAt).toBeNull()
       expect(JSON.stringify(stored)).not.toContain(token)
       tokens[address] = token
@@ -295,16 +360,36 @@ describe('roster import: confirm, mail and invitations', () => {
   it('importing the same file again changes nothing and sends no mail', async () => {
     const before = await tableCounts()
     const pre = await post(inst, PREVIEW(), { csv }).expect(200)
-    expect(pre.body.counts).toMatchObject({ rows: 4, new: 0, changed: 0, unchanged: 4, invitations: 0, enrollmentMails: 0 })
+    expect(pre.body.counts).toMatchObject({
+      rows: 4,
+      new: 0,
+      changed: 0,
+      unchanged: 4,
+      invitations: 0,
+      enrollmentMails: 0,
+    })
     const res = await post(inst, IMPORT(), { csv }).expect(200)
-    expect(res.body).toMatchObject({ created: 0, enrolled: 0, updated: 0, unchanged: 4, invitationsSent: 0, enrollmentMailsSent: 0, sectionsCreated: [], groupsCreated: [] })
+    expect(res.body).toMatchObject({
+      created: 0,
+      enrolled: 0,
+      updated: 0,
+      unchanged: 4,
+      invitationsSent: 0,
+      enrollmentMailsSent: 0,
+      sectionsCreated: [],
+      groupsCreated: [],
+    })
     expect(await tableCounts()).toEqual(before)
   })
 
   it('the link shows who it is for, without signing in', async () => {
     const anon = await anonymous(ctx)
     const res = await anon.agent.get(INVITE(tokens[newA]!)).expect(200)
-    expect(res.body).toMatchObject({ email: newA, displayName: `Ana ${t}`, courseTitle: expect.stringContaining('Test propulsion lab') })
+    expect(res.body).toMatchObject({
+      email: newA,
+      displayName: `Ana ${t}`,
+      courseTitle: expect.stringContaining('Test propulsion lab'),
+    })
   })
 
   it('a short password is refused naming the field, and the link still works afterwards', async () => {
@@ -342,7 +427,9 @@ describe('roster import: confirm, mail and invitations', () => {
     const email = `race.${t2}@import.example`
     await post(inst, IMPORT(), { csv: `email,name\n${email},Race ${t2}\n` }).expect(200)
     await deliverMail()
-    const mail = (await waitForMail((m) => m.some((x) => x.to[0]?.address === email))).find((x) => x.to[0]?.address === email)!
+    const mail = (await waitForMail((m) => m.some((x) => x.to[0]?.address === email))).find(
+      (x) => x.to[0]?.address === email,
+    )!
     const { token } = linkIn(mail)
     const [a, b] = [await anonymous(ctx), await anonymous(ctx)]
     const results = await Promise.all([
@@ -375,7 +462,10 @@ describe('roster import: confirm, mail and invitations', () => {
     expect(pre.body.rows.find((r: { email: string }) => r.email === newB).invite).toBe(true)
     const res = await post(inst, IMPORT(), { csv }).expect(200)
     expect(res.body).toMatchObject({ created: 0, invitationsSent: 1 })
-    const rows = await ctx.handle.db.select({ id: invitations.id }).from(invitations).where(eq(invitations.userId, user!.id))
+    const rows = await ctx.handle.db
+      .select({ id: invitations.id })
+      .from(invitations)
+      .where(eq(invitations.userId, user!.id))
     expect(rows).toHaveLength(2)
   })
 

@@ -41,7 +41,11 @@ afterAll(async () => {
 })
 
 function attempt(c: Client, from: string, email: string, password: string) {
-  return c.agent.post('/api/auth/sign-in').set('x-csrf-token', c.csrf).set('X-Forwarded-For', from).send({ email, password })
+  return c.agent
+    .post('/api/auth/sign-in')
+    .set('x-csrf-token', c.csrf)
+    .set('X-Forwarded-For', from)
+    .send({ email, password })
 }
 
 /** `times` wrong passwords one after another; returns their statuses. */
@@ -64,7 +68,13 @@ async function failures(scope: SignInScope, email: string, address: string): Pro
   const rows = await ctx.handle.db
     .select({ failures: signInThrottles.failures })
     .from(signInThrottles)
-    .where(and(eq(signInThrottles.scope, k.scope), eq(signInThrottles.email, k.email), eq(signInThrottles.address, k.address)))
+    .where(
+      and(
+        eq(signInThrottles.scope, k.scope),
+        eq(signInThrottles.email, k.email),
+        eq(signInThrottles.address, k.address),
+      ),
+    )
   return rows[0]?.failures ?? null
 }
 
@@ -73,7 +83,13 @@ async function letTimePass(email: string, address: string, seconds: number): Pro
   await ctx.handle.db
     .update(signInThrottles)
     .set({ lastFailedAt: sql`${signInThrottles.lastFailedAt} - INTERVAL ${seconds} SECOND` })
-    .where(and(eq(signInThrottles.scope, 'account_address'), eq(signInThrottles.email, email), eq(signInThrottles.address, address)))
+    .where(
+      and(
+        eq(signInThrottles.scope, 'account_address'),
+        eq(signInThrottles.email, email),
+        eq(signInThrottles.address, address),
+      ),
+    )
 }
 
 /** Pretends `seconds` have passed since every counter of this e-mail or this address last failed. */
@@ -100,7 +116,8 @@ describe('sign-in slow-down', () => {
     const burst = await Promise.all(Array.from({ length: 10 }, (_, i) => attempt(c, hammer, email, `guess-${i}`)))
     expect(burst.map((r) => r.status)).toEqual(Array(10).fill(429))
     // Two more addresses join in, taking the account past its own threshold.
-    for (let i = 0; i < 2; i++) expect(await failSequentially(freshAddress(), email, FREE)).toEqual(Array(FREE).fill(401))
+    for (let i = 0; i < 2; i++)
+      expect(await failSequentially(freshAddress(), email, FREE)).toEqual(Array(FREE).fill(401))
     const accountFailures = 1 + 3 * FREE
     expect(accountFailures).toBeGreaterThanOrEqual(ACCOUNT_FREE)
     expect(await failures('account', email, '')).toBe(accountFailures)
@@ -196,7 +213,8 @@ describe('sign-in slow-down', () => {
     const sprayer = freshAddress()
     const c = await anonymous(ctx)
     const statuses: number[] = []
-    for (let i = 0; i < ADDRESS_FREE; i++) statuses.push((await attempt(c, sprayer, `spray-${uniq()}@test.example`, 'Winter2026!')).status)
+    for (let i = 0; i < ADDRESS_FREE; i++)
+      statuses.push((await attempt(c, sprayer, `spray-${uniq()}@test.example`, 'Winter2026!')).status)
     expect(statuses).toEqual(Array(ADDRESS_FREE).fill(401))
     expect(await failures('address', '', sprayer)).toBe(ADDRESS_FREE)
 

@@ -3,7 +3,16 @@ import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { hashPassword } from '../../server/auth/password'
-import { enrollments, labGroups, mailOutbox, submissionChecks, submissionFiles, submissionFlags, submissions, users } from '../../server/db/schema'
+import {
+  enrollments,
+  labGroups,
+  mailOutbox,
+  submissionChecks,
+  submissionFiles,
+  submissionFlags,
+  submissions,
+  users,
+} from '../../server/db/schema'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
 import { coldFlowCsv, coldFlowPayload, trapezoid } from '../helpers/cold-flow'
@@ -17,12 +26,22 @@ let student: Client
 let student2: Client
 let ta: Client
 let mod: CreatedModule
-const COLD = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+const COLD = currentDueDates(
+  readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+)
 
 const payload = coldFlowPayload
 
-function handIn(c: Client, files: { field: string; name: string; body: Buffer | string }[], body: unknown, moduleId = mod.id) {
-  let req = c.agent.post(`/api/courses/${fx.courseId}/modules/${moduleId}/submissions`).set('x-csrf-token', c.csrf).field('payload', typeof body === 'string' ? body : JSON.stringify(body))
+function handIn(
+  c: Client,
+  files: { field: string; name: string; body: Buffer | string }[],
+  body: unknown,
+  moduleId = mod.id,
+) {
+  let req = c.agent
+    .post(`/api/courses/${fx.courseId}/modules/${moduleId}/submissions`)
+    .set('x-csrf-token', c.csrf)
+    .field('payload', typeof body === 'string' ? body : JSON.stringify(body))
   for (const f of files) req = req.attach(f.field, Buffer.isBuffer(f.body) ? f.body : Buffer.from(f.body), f.name)
   return req
 }
@@ -56,7 +75,8 @@ describe('handing in a cold-flow run', () => {
     expect(byKey.impulse.outcome).toBe('pass')
     expect(byKey.peak_thrust.outcome).toBe('pass')
     // The deliberately wrong values fail.
-    for (const k of ['burn_time', 'mean_thrust', 'cf_mean', 'air_mass', 'isp', 'exit_mach', 'regime']) expect(byKey[k].outcome, k).toBe('fail')
+    for (const k of ['burn_time', 'mean_thrust', 'cf_mean', 'air_mass', 'isp', 'exit_mach', 'regime'])
+      expect(byKey[k].outcome, k).toBe('fail')
     // showExpected is false in this module: the student does not see expected values.
     expect(byKey.impulse.expected).toBeNull()
     expect(d.score).toBe(3)
@@ -69,7 +89,10 @@ describe('handing in a cold-flow run', () => {
     const { createHash } = await import('node:crypto')
     expect(file!.sha256).toBe(createHash('sha256').update(log.csv).digest('hex'))
     // The receipt e-mail is queued for the lab group (student is in G1 alone in this fixture).
-    const mail = await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${d.id}`))
+    const mail = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `submission-receipt:${d.id}`))
     expect(mail.map((m) => m.toAddress)).toEqual([fx.student.email])
     expect(mail[0]!.textBody).toContain('Score: 3 of 12')
   })
@@ -80,9 +103,13 @@ describe('handing in a cold-flow run', () => {
     const staff = await ta.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(200)
     expect(staff.body.checks.find((c: { key: string }) => c.key === 'impulse').expected).toBeGreaterThan(0)
     await student2.agent.get(`/api/courses/${fx.courseId}/submissions/${id}`).expect(404)
-    const file = await student.agent.get(`/api/courses/${fx.courseId}/submissions/${id}/files/${staff.body.files[0].id}`).expect(200)
+    const file = await student.agent
+      .get(`/api/courses/${fx.courseId}/submissions/${id}/files/${staff.body.files[0].id}`)
+      .expect(200)
     expect(file.headers['content-disposition']).toMatch(/attachment/)
-    await student2.agent.get(`/api/courses/${fx.courseId}/submissions/${id}/files/${staff.body.files[0].id}`).expect(404)
+    await student2.agent
+      .get(`/api/courses/${fx.courseId}/submissions/${id}/files/${staff.body.files[0].id}`)
+      .expect(404)
   })
 
   it('flags an impossible thrust for staff review', async () => {
@@ -132,17 +159,26 @@ describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () =>
   let count = 0
   beforeAll(async () => {
     // A second copy of the module without group hand-in, so student2 can be refused for file problems.
-    other = await createModuleAs(inst, fx.courseId, COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'))
+    other = await createModuleAs(
+      inst,
+      fx.courseId,
+      COLD.replace('groupSubmission: true', 'groupSubmission: false').replace('attempts: 3', 'attempts: 50'),
+    )
     await publishAs(inst, fx.courseId, other)
   })
-  const stored = async () => (await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, other.id))).length
+  const stored = async () =>
+    (await ctx.handle.db.select().from(submissions).where(eq(submissions.moduleId, other.id))).length
   async function refused(files: { field: string; name: string; body: Buffer | string }[], body: unknown, status = 422) {
     const before = await stored()
     const res = await handIn(student2, files, body, other.id)
     expect(res.status).toBe(status)
     expect(await stored()).toBe(before)
     count++
-    return res.body.error as { code: string; message: string; details?: { issues: { field: string; row?: number; column?: string; message: string }[]; more: number } }
+    return res.body.error as {
+      code: string
+      message: string
+      details?: { issues: { field: string; row?: number; column?: string; message: string }[]; more: number }
+    }
   }
   const log = coldFlowCsv()
 
@@ -227,14 +263,21 @@ describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () =>
     const body = payload(log)
     body.measurements.d_throat = { value: 60, unit: 'mm' }
     const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
-    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'measurements.d_throat', message: expect.stringMatching(/maximum/) }))
+    expect(e.details!.issues).toContainEqual(
+      expect.objectContaining({ field: 'measurements.d_throat', message: expect.stringMatching(/maximum/) }),
+    )
   })
 
   it('a regime that is not one of the five', async () => {
     const body = payload(log)
     body.reported.regime = { value: 7, unit: '1' }
     const e = await refused([{ field: 'table:run', name: 'ok.csv', body: log.csv }], body)
-    expect(e.details!.issues).toContainEqual(expect.objectContaining({ field: 'reported.regime', message: expect.stringMatching(/choose one of the regimes/) }))
+    expect(e.details!.issues).toContainEqual(
+      expect.objectContaining({
+        field: 'reported.regime',
+        message: expect.stringMatching(/choose one of the regimes/),
+      }),
+    )
   })
 
   it('a missing file and a malformed payload', async () => {
@@ -271,10 +314,18 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
   /** A student of our own in a lab group of our own. */
   async function groupStudent(name: string): Promise<Client> {
     const db = ctx.handle.db
-    const [g] = await db.insert(labGroups).values({ courseId: fx.courseId, sectionId: fx.sectionA, name }).$returningId()
+    const [g] = await db
+      .insert(labGroups)
+      .values({ courseId: fx.courseId, sectionId: fx.sectionA, name })
+      .$returningId()
     const email = `${name.toLowerCase()}.${uniq()}@test.example`
-    const [u] = await db.insert(users).values({ email, displayName: `${name} student`, passwordHash: await hashPassword(PASSWORD) }).$returningId()
-    await db.insert(enrollments).values({ userId: u!.id, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA, labGroupId: g!.id })
+    const [u] = await db
+      .insert(users)
+      .values({ email, displayName: `${name} student`, passwordHash: await hashPassword(PASSWORD) })
+      .$returningId()
+    await db
+      .insert(enrollments)
+      .values({ userId: u!.id, courseId: fx.courseId, role: 'student', sectionId: fx.sectionA, labGroupId: g!.id })
     return signedInAs(ctx, email)
   }
 
@@ -284,9 +335,18 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
    */
   async function flagsOf(submissionId: number) {
     await expect
-      .poll(async () => (await ctx.handle.db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, `submission-receipt:${submissionId}`))).length, {
-        timeout: 30_000,
-      })
+      .poll(
+        async () =>
+          (
+            await ctx.handle.db
+              .select()
+              .from(mailOutbox)
+              .where(eq(mailOutbox.dedupeKey, `submission-receipt:${submissionId}`))
+          ).length,
+        {
+          timeout: 30_000,
+        },
+      )
       .toBeGreaterThan(0)
     return ctx.handle.db.select().from(submissionFlags).where(eq(submissionFlags.submissionId, submissionId))
   }
@@ -298,10 +358,18 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
   })
 
   it('stores a fingerprint with the file; an edited copy (one digit changed) is flagged near-copy, naming the other group', async () => {
-    const first = await handIn(group.N1!, [{ field: 'table:run', name: 'n1.csv', body: original.csv }], payload(original), copyMod.id)
+    const first = await handIn(
+      group.N1!,
+      [{ field: 'table:run', name: 'n1.csv', body: original.csv }],
+      payload(original),
+      copyMod.id,
+    )
     expect(first.status).toBe(201)
     firstId = first.body.id
-    const [file] = await ctx.handle.db.select().from(submissionFiles).where(eq(submissionFiles.submissionId, first.body.id))
+    const [file] = await ctx.handle.db
+      .select()
+      .from(submissionFiles)
+      .where(eq(submissionFiles.submissionId, first.body.id))
     expect(file!.fingerprint?.columns.thrust?.length).toBeGreaterThan(60)
 
     const lines = original.csv.split('\n')
@@ -310,7 +378,12 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
     lines[100] = cells.join(',')
     const edited = lines.join('\n')
     expect(edited).not.toBe(original.csv)
-    const copy = await handIn(group.N2!, [{ field: 'table:run', name: 'n2.csv', body: edited }], payload(original), copyMod.id)
+    const copy = await handIn(
+      group.N2!,
+      [{ field: 'table:run', name: 'n2.csv', body: edited }],
+      payload(original),
+      copyMod.id,
+    )
     expect(copy.status).toBe(201)
     const flag = (await flagsOf(copy.body.id)).find((f) => f.code === 'near-copy')
     expect(flag?.message).toContain('N1')
@@ -322,20 +395,39 @@ describe('near-copies of another group’s log (fingerprints stored with each fi
 
   it('an honest run of the same nozzle (its own noise) is not flagged', async () => {
     const honest = coldFlowCsv({ noise: 202 })
-    const res = await handIn(group.N3!, [{ field: 'table:run', name: 'n3.csv', body: honest.csv }], payload(honest), copyMod.id)
+    const res = await handIn(
+      group.N3!,
+      [{ field: 'table:run', name: 'n3.csv', body: honest.csv }],
+      payload(honest),
+      copyMod.id,
+    )
     expect(res.status).toBe(201)
     expect((await flagsOf(res.body.id)).map((f) => f.code)).not.toContain('near-copy')
   })
 
   it('a file stored before fingerprints existed is fingerprinted when first compared, and its copy is found', async () => {
     expect(firstId).toBeGreaterThan(0)
-    await ctx.handle.db.update(submissionFiles).set({ fingerprint: null }).where(eq(submissionFiles.submissionId, firstId))
+    await ctx.handle.db
+      .update(submissionFiles)
+      .set({ fingerprint: null })
+      .where(eq(submissionFiles.submissionId, firstId))
     const lines = original.csv.split('\n')
-    const shifted = [lines[0], ...lines.slice(1).filter((l) => l !== '').map((l) => {
-      const [t, ...rest] = l.split(',')
-      return [(Number(t) + 7.25).toFixed(3), ...rest].join(',')
-    })].join('\n')
-    const res = await handIn(group.N4!, [{ field: 'table:run', name: 'n4.csv', body: shifted }], payload(original), copyMod.id)
+    const shifted = [
+      lines[0],
+      ...lines
+        .slice(1)
+        .filter((l) => l !== '')
+        .map((l) => {
+          const [t, ...rest] = l.split(',')
+          return [(Number(t) + 7.25).toFixed(3), ...rest].join(',')
+        }),
+    ].join('\n')
+    const res = await handIn(
+      group.N4!,
+      [{ field: 'table:run', name: 'n4.csv', body: shifted }],
+      payload(original),
+      copyMod.id,
+    )
     expect(res.status).toBe(201)
     expect((await flagsOf(res.body.id)).map((f) => f.code)).toContain('near-copy')
     const [file] = await ctx.handle.db.select().from(submissionFiles).where(eq(submissionFiles.submissionId, firstId))
@@ -420,7 +512,18 @@ Invented test module.
     id = res.body.id
   })
 
-  type Check = { key: string; expected: number; tolerance: number; outcome: string; uncertainty: { standard: number | null; expanded: number | null; coverage: number; contributions: { key: string; part: string; label: string; share: number }[] } | null }
+  type Check = {
+    key: string
+    expected: number
+    tolerance: number
+    outcome: string
+    uncertainty: {
+      standard: number | null
+      expanded: number | null
+      coverage: number
+      contributions: { key: string; part: string; label: string; share: number }[]
+    } | null
+  }
   const byKey = (checks: Check[]) => Object.fromEntries(checks.map((c) => [c.key, c]))
 
   it('returns each check’s standard and expanded uncertainty, coverage factor and largest contributions', async () => {
@@ -436,7 +539,9 @@ Invented test module.
     ])
     expect(u.contributions[0]!.share / (Math.max(uGain, uOffset) ** 2 / uImpulse ** 2)).toBeCloseTo(1, 9)
     expect(c.throat_area!.uncertainty!.standard! / uArea).toBeCloseTo(1, 9)
-    expect(c.throat_area!.uncertainty!.contributions).toEqual([{ key: 'd_throat', part: 'value', label: 'Throat diameter', share: 1 }])
+    expect(c.throat_area!.uncertainty!.contributions).toEqual([
+      { key: 'd_throat', part: 'value', label: 'Throat diameter', share: 1 },
+    ])
   })
 
   it('grades a coverage tolerance: 1.9 u_c from the expected value passes, 2.1 u_c fails', async () => {
@@ -460,7 +565,9 @@ Invented test module.
     // The demo module (content/02) hides expected values and declares its instruments' uncertainties.
     const mine = await student.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}/submissions/mine`).expect(200)
     const sid = mine.body.submissions[0].id
-    const asStudent = byKey((await student.agent.get(`/api/courses/${fx.courseId}/submissions/${sid}`).expect(200)).body.checks)
+    const asStudent = byKey(
+      (await student.agent.get(`/api/courses/${fx.courseId}/submissions/${sid}`).expect(200)).body.checks,
+    )
     const asTa = byKey((await ta.agent.get(`/api/courses/${fx.courseId}/submissions/${sid}`).expect(200)).body.checks)
     const s = asStudent.peak_thrust!.uncertainty!
     expect(asStudent.peak_thrust!.expected).toBeNull()

@@ -100,7 +100,10 @@ function expectedNozzle(c: NozzleCase): { flow: NozzleFlow; exitDiameter: number
 
 async function enterNozzle(page: Page, nozzle: Locator, c: NozzleCase) {
   await pickUnit(page, nozzle, 'Chamber pressure', c.chamberUnitShown)
-  await nozzle.getByRole('group', { name: 'Chamber pressure reading' }).getByRole('button', { name: c.reading, exact: true }).click()
+  await nozzle
+    .getByRole('group', { name: 'Chamber pressure reading' })
+    .getByRole('button', { name: c.reading, exact: true })
+    .click()
   await type(nozzle, 'Chamber pressure', c.chamberPressure)
   await pickUnit(page, nozzle, 'Ambient pressure (absolute)', c.ambientUnitShown)
   await type(nozzle, 'Ambient pressure (absolute)', c.ambientPressure)
@@ -142,7 +145,11 @@ describe('the live calculators in Chromium', () => {
     // NACA Report 1135, Table II (normal shock), M1 = 2.00: M2 = 0.57735, p2/p1 = 4.5000, p02/p01 = 0.72087.
     expectPrinted(Number(await printedNumber(cell('shockMach2'))), '0.57735', 'M2 behind a Mach 2 shock')
     expectPrinted(Number(await printedNumber(cell('shockPressureRatio'))), '4.5000', 'p2/p1 of a Mach 2 shock')
-    expectPrinted(Number(await printedNumber(cell('shockStagnationPressureRatio'))), '0.72087', 'p02/p01 of a Mach 2 shock')
+    expectPrinted(
+      Number(await printedNumber(cell('shockStagnationPressureRatio'))),
+      '0.72087',
+      'p02/p01 of a Mach 2 shock',
+    )
     // NACA Report 1135, Table I, M = 2.00: Prandtl–Meyer angle ν = 26.380°.
     expectPrinted(Number(await printedNumber(cell('prandtlMeyer'))), '26.380', 'ν at M = 2, degrees')
 
@@ -250,11 +257,25 @@ describe('the live calculators in Chromium', () => {
       if (c.regime === 'underexpanded') {
         // Two Mach-disk estimates: Ashkenas & Sherman, x = 0.67·De·√(p0/pa), and Lewis & Carlson,
         // x = 0.69·De·Me·√(γ·pe/pa) (written out here; coefficients from memory).
-        const ashkenasSherman = fromSI(0.67 * expected.exitDiameter * Math.sqrt(expected.chamber / expected.ambient), c.input.lengthUnit)
-        expectPrinted(ashkenasSherman, await printedNumber(cell('machDisk')), `${c.name}: Mach-disk distance (Ashkenas & Sherman)`)
+        const ashkenasSherman = fromSI(
+          0.67 * expected.exitDiameter * Math.sqrt(expected.chamber / expected.ambient),
+          c.input.lengthUnit,
+        )
+        expectPrinted(
+          ashkenasSherman,
+          await printedNumber(cell('machDisk')),
+          `${c.name}: Mach-disk distance (Ashkenas & Sherman)`,
+        )
         const f = expected.flow
-        const lewisCarlson = fromSI(0.69 * expected.exitDiameter * f.exitMach * Math.sqrt((1.4 * f.exitPressure) / expected.ambient), c.input.lengthUnit)
-        expectPrinted(lewisCarlson, await printedNumber(cell('machDiskLewisCarlson')), `${c.name}: Mach-disk distance (Lewis & Carlson)`)
+        const lewisCarlson = fromSI(
+          0.69 * expected.exitDiameter * f.exitMach * Math.sqrt((1.4 * f.exitPressure) / expected.ambient),
+          c.input.lengthUnit,
+        )
+        expectPrinted(
+          lewisCarlson,
+          await printedNumber(cell('machDiskLewisCarlson')),
+          `${c.name}: Mach-disk distance (Lewis & Carlson)`,
+        )
         expect(await results.getByTestId('separation').count(), c.name).toBe(0)
       } else if (c.regime === 'overexpanded') {
         // The Mach-disk fits do not hold for an over-expanded jet: the page leaves them out and says why.
@@ -270,15 +291,25 @@ describe('the live calculators in Chromium', () => {
         const ms = Math.sqrt((2 / (g - 1)) * (Math.pow(ps, -(g - 1) / g) - 1))
         const as = Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * ms * ms), (g + 1) / (2 * (g - 1))) / ms
         const cf =
-          Math.sqrt(((2 * g * g) / (g - 1)) * Math.pow(2 / (g + 1), (g + 1) / (g - 1)) * (1 - Math.pow(ps, (g - 1) / g))) +
+          Math.sqrt(
+            ((2 * g * g) / (g - 1)) * Math.pow(2 / (g + 1), (g + 1) / (g - 1)) * (1 - Math.pow(ps, (g - 1) / g)),
+          ) +
           (ps - expected.ambient / expected.chamber) * as
         const throatArea = areaFromDiameter(toSI(Number(c.input.throatDiameter), c.input.lengthUnit))
         const sentence = results.getByTestId('separation')
         expect((await sentence.innerText()).replace(/\s+/g, ' ')).toMatch(
           /^The flow separates inside the nozzle at A\/A\* ≈ [\d.]+ \(.* from the throat in a 15° cone\), .* estimated thrust [\d.]+ N/,
         )
-        expectPrinted(as, await printedNumber(sentence.locator('[data-quantity="separationAreaRatio"]')), `${c.name}: separation A/A*`)
-        expectPrinted(cf * expected.chamber * throatArea, await printedNumber(sentence.locator('[data-quantity="separatedThrust"]')), `${c.name}: separated thrust, N`)
+        expectPrinted(
+          as,
+          await printedNumber(sentence.locator('[data-quantity="separationAreaRatio"]')),
+          `${c.name}: separation A/A*`,
+        )
+        expectPrinted(
+          cf * expected.chamber * throatArea,
+          await printedNumber(sentence.locator('[data-quantity="separatedThrust"]')),
+          `${c.name}: separated thrust, N`,
+        )
         expect(cf * expected.chamber * throatArea).toBeGreaterThan(expected.flow.thrust)
       } else {
         expect(await cell('machDisk').count(), c.name).toBe(0)
@@ -304,12 +335,21 @@ describe('the live calculators in Chromium', () => {
     const exit = nozzle.getByRole('textbox', { name: 'Exit diameter', exact: true })
     expect(await exit.getAttribute('aria-invalid')).toBe('true')
     const describedBy = (await exit.getAttribute('aria-describedby')) ?? ''
-    const message = page.locator(describedBy.split(' ').map((i) => `[id="${i}"]`).join(', ')).filter({ hasText: 'throat' })
+    const message = page
+      .locator(
+        describedBy
+          .split(' ')
+          .map((i) => `[id="${i}"]`)
+          .join(', '),
+      )
+      .filter({ hasText: 'throat' })
     expect(await message.innerText()).toContain('The exit diameter must be at least the throat diameter (4 mm)')
     // The message sits with the field, and the results say why there are none instead of going blank.
     expect(await nozzle.getByTestId('field-error').count()).toBe(1)
     await results.getByTestId('no-results').filter({ hasText: 'exit diameter' }).waitFor()
-    expect(await nozzle.getByRole('textbox', { name: 'Throat diameter', exact: true }).getAttribute('aria-invalid')).toBe('false')
+    expect(
+      await nozzle.getByRole('textbox', { name: 'Throat diameter', exact: true }).getAttribute('aria-invalid'),
+    ).toBe('false')
     await nozzle.screenshot({ path: screenshotPath('calculators-field-error') })
 
     // Fixing it clears the message and brings the results back.
@@ -329,7 +369,10 @@ describe('the live calculators in Chromium', () => {
     await pickUnit(page, blowdown, 'Receiver volume', 'L')
     await type(blowdown, 'Receiver volume', '50')
     await pickUnit(page, blowdown, 'Initial pressure', 'bar')
-    await blowdown.getByRole('group', { name: 'Initial pressure reading' }).getByRole('button', { name: 'gauge', exact: true }).click()
+    await blowdown
+      .getByRole('group', { name: 'Initial pressure reading' })
+      .getByRole('button', { name: 'gauge', exact: true })
+      .click()
     await type(blowdown, 'Initial pressure', '8')
     await pickUnit(page, blowdown, 'Ambient pressure (absolute)', 'kPa')
     await type(blowdown, 'Ambient pressure (absolute)', '101.325')
@@ -341,7 +384,10 @@ describe('the live calculators in Chromium', () => {
     await type(blowdown, 'Ratio of specific heats γ', '1.4')
     await type(blowdown, 'Gas constant R', '287.05')
     await type(blowdown, 'Duration', '20')
-    await blowdown.getByRole('group', { name: 'Gas in the receiver' }).getByRole('button', { name: 'isothermal' }).click()
+    await blowdown
+      .getByRole('group', { name: 'Gas in the receiver' })
+      .getByRole('button', { name: 'isothermal' })
+      .click()
     await settled(results)
 
     // Closed form, written out here from the ideal-gas law and the choked mass flow
@@ -362,16 +408,31 @@ describe('the live calculators in Chromium', () => {
     // Choked for the whole 20 s run; then the receiver holds p_i·exp(−20/τ) and has released V·(p_i − p)/(R·T).
     expect(await results.locator('[data-quantity="chokedFor"]').innerText()).toContain('the whole 20 s run')
     const endPressure = pi * Math.exp(-20 / tau)
-    expectClose(Number(await printedNumber(results.locator('[data-quantity="endPressure"]'))), endPressure / 1e5, 1e-3, 'receiver pressure at 20 s, bar')
+    expectClose(
+      Number(await printedNumber(results.locator('[data-quantity="endPressure"]'))),
+      endPressure / 1e5,
+      1e-3,
+      'receiver pressure at 20 s, bar',
+    )
     const released = (V * (pi - endPressure)) / (R * T)
     expect(await results.locator('[data-quantity="massReleased"]').innerText()).toMatch(/ g$/)
-    expectClose(Number(await printedNumber(results.locator('[data-quantity="massReleased"]'))), released * 1000, 1e-3, 'mass released, g')
+    expectClose(
+      Number(await printedNumber(results.locator('[data-quantity="massReleased"]'))),
+      released * 1000,
+      1e-3,
+      'mass released, g',
+    )
 
     // Long enough to unchoke: the time it stays choked.
     await type(blowdown, 'Duration', '60')
     await settled(results)
     expect(chokedFor).toBeLessThan(60)
-    expectClose(Number(await printedNumber(results.locator('[data-quantity="chokedFor"]'))), chokedFor, 1e-3, 'time choked, s')
+    expectClose(
+      Number(await printedNumber(results.locator('[data-quantity="chokedFor"]'))),
+      chokedFor,
+      1e-3,
+      'time choked, s',
+    )
     await page.close()
   })
 
@@ -385,7 +446,10 @@ describe('the live calculators in Chromium', () => {
     await pickUnit(page, blowdown, 'Receiver volume', 'L')
     await type(blowdown, 'Receiver volume', '50')
     await pickUnit(page, blowdown, 'Initial pressure', 'kPa')
-    await blowdown.getByRole('group', { name: 'Initial pressure reading' }).getByRole('button', { name: 'gauge', exact: true }).click()
+    await blowdown
+      .getByRole('group', { name: 'Initial pressure reading' })
+      .getByRole('button', { name: 'gauge', exact: true })
+      .click()
     await type(blowdown, 'Initial pressure', '700')
     await pickUnit(page, blowdown, 'Ambient pressure (absolute)', 'kPa')
     await type(blowdown, 'Ambient pressure (absolute)', '84')
@@ -399,7 +463,10 @@ describe('the live calculators in Chromium', () => {
     await type(blowdown, 'Ratio of specific heats γ', '1.4')
     await type(blowdown, 'Gas constant R', '287.05')
     await type(blowdown, 'Duration', '60')
-    await blowdown.getByRole('group', { name: 'Gas in the receiver' }).getByRole('button', { name: 'adiabatic' }).click()
+    await blowdown
+      .getByRole('group', { name: 'Gas in the receiver' })
+      .getByRole('button', { name: 'adiabatic' })
+      .click()
     await settled(results)
 
     // Independent computation. The choke limit of ε = (4.9/4)²: the p/p0 of the subsonic Mach number
@@ -407,7 +474,8 @@ describe('the live calculators in Chromium', () => {
     // here). While choked an adiabatic receiver follows p = p_i·(1 + (γ−1)/2·t/τ)^(−2γ/(γ−1)), with
     // τ = V/(Cd·At·√(γRT)·(2/(γ+1))^((γ+1)/(2(γ−1)))); it unchokes at p = pa/limit.
     const g = 1.4
-    const areaRatioOf = (m: number) => Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
+    const areaRatioOf = (m: number) =>
+      Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
     const epsilon = (4.9 / 4) ** 2
     let lo = 1e-6
     let hi = 1
@@ -420,13 +488,23 @@ describe('the live calculators in Chromium', () => {
     const critical = Math.pow(2 / (g + 1), g / (g - 1))
     const pa = 84e3
     const pi = 784e3
-    const tau = 0.05 / (0.98 * ((Math.PI * 0.004 ** 2) / 4) * Math.sqrt(g * 287.05 * 293.15) * Math.pow(2 / (g + 1), (g + 1) / (2 * (g - 1))))
+    const tau =
+      0.05 /
+      (0.98 *
+        ((Math.PI * 0.004 ** 2) / 4) *
+        Math.sqrt(g * 287.05 * 293.15) *
+        Math.pow(2 / (g + 1), (g + 1) / (2 * (g - 1))))
     const chokedUntil = (unchokeAt: number) => ((2 * tau) / (g - 1)) * (Math.pow(pi / unchokeAt, (g - 1) / (2 * g)) - 1)
 
     const cell = (q: string) => results.locator(`[data-quantity="${q}"]`)
     expectPrinted(limit, await printedNumber(cell('chokeLimit')), 'choke limit of ε = 1.5')
     expectPrinted(limit, '0.881', 'choke limit (hand computation)')
-    expectClose(Number(await printedNumber(cell('chokedFor'))), chokedUntil(pa / limit), 1e-3, 'time choked with the nozzle, s')
+    expectClose(
+      Number(await printedNumber(cell('chokedFor'))),
+      chokedUntil(pa / limit),
+      1e-3,
+      'time choked with the nozzle, s',
+    )
     expectPrinted(chokedUntil(pa / limit), '35.9', 'time choked with the nozzle (hand computation)')
     expect(await results.getByTestId('choke-note').innerText()).toMatch(/this nozzle \(ε = 1\.50\)/)
 
@@ -434,7 +512,12 @@ describe('the live calculators in Chromium', () => {
     await type(blowdown, 'Exit diameter', '')
     await settled(results)
     expectPrinted(critical, await printedNumber(cell('chokeLimit')), 'critical pressure ratio')
-    expectClose(Number(await printedNumber(cell('chokedFor'))), chokedUntil(pa / critical), 1e-3, 'time choked as an orifice, s')
+    expectClose(
+      Number(await printedNumber(cell('chokedFor'))),
+      chokedUntil(pa / critical),
+      1e-3,
+      'time choked as an orifice, s',
+    )
     expectPrinted(chokedUntil(pa / critical), '26.2', 'time choked as an orifice (hand computation)')
 
     // An exit narrower than the throat is explained at the exit-diameter field.
@@ -442,7 +525,10 @@ describe('the live calculators in Chromium', () => {
     await settled(results)
     const exit = blowdown.getByRole('textbox', { name: 'Exit diameter', exact: true })
     expect(await exit.getAttribute('aria-invalid')).toBe('true')
-    await results.getByTestId('no-results').filter({ hasText: 'exit diameter must be at least the throat diameter' }).waitFor()
+    await results
+      .getByTestId('no-results')
+      .filter({ hasText: 'exit diameter must be at least the throat diameter' })
+      .waitFor()
     await page.close()
   })
 

@@ -27,12 +27,21 @@ beforeAll(async () => {
   const db = app.db.db
   const hash = await hashPassword(PASSWORD)
   for (const p of Object.values(people)) {
-    const [u] = await db.insert(users).values({ email: p.email, displayName: p.name, passwordHash: hash }).$returningId()
+    const [u] = await db
+      .insert(users)
+      .values({ email: p.email, displayName: p.name, passwordHash: hash })
+      .$returningId()
     p.id = u!.id
   }
   const [c] = await db
     .insert(courses)
-    .values({ code: `ADM${tag.slice(0, 4)}`, title: `Admin journey course ${tag}`, term: 'Test term', institution: 'Test University (fictional)', timeZone: 'America/Denver' })
+    .values({
+      code: `ADM${tag.slice(0, 4)}`,
+      title: `Admin journey course ${tag}`,
+      term: 'Test term',
+      institution: 'Test University (fictional)',
+      timeZone: 'America/Denver',
+    })
     .$returningId()
   courseId = c!.id
   await db.insert(enrollments).values([
@@ -41,7 +50,11 @@ beforeAll(async () => {
   ])
   // A published module due 2027-02-09 17:00 Denver time.
   const v = toVersion(moduleSource('Nozzle sizing worksheet'), 'nozzle-sizing', 'America/Denver')
-  const m = await insertModuleWithVersion(db, { courseId, slug: `nozzle-${tag}`, position: 1, createdBy: people.instructor.id }, v)
+  const m = await insertModuleWithVersion(
+    db,
+    { courseId, slug: `nozzle-${tag}`, position: 1, createdBy: people.instructor.id },
+    v,
+  )
   await markPublished(db, m.moduleId, m.versionId, null, people.instructor.id)
   moduleId = m.moduleId
   chrome = await launchBrowser()
@@ -70,7 +83,9 @@ describe('course administration in the browser', () => {
     // The same name again is refused with a message at the form.
     await page.getByLabel('New section name').fill('tuesday bay')
     await page.getByRole('button', { name: 'Add section' }).click()
-    await expect.poll(() => page.getByTestId('section-create').getByRole('alert').innerText()).toContain('already a section named')
+    await expect
+      .poll(() => page.getByTestId('section-create').getByRole('alert').innerText())
+      .toContain('already a section named')
 
     // Row actions: edit and cancel, then a throw-away section renamed, and deleted after confirming.
     await page.getByLabel('New section name').fill('Spare bay')
@@ -110,7 +125,9 @@ describe('course administration in the browser', () => {
     await placement.waitFor()
     expect(await placement.innerText()).toContain('only future hand-ins follow the new group')
     await choose(page, 'Lab group', 'Rig 7 (section Tuesday bay)')
-    await expect.poll(() => page.getByRole('combobox', { name: 'Section', exact: true }).innerText()).toBe('Tuesday bay')
+    await expect
+      .poll(() => page.getByRole('combobox', { name: 'Section', exact: true }).innerText())
+      .toBe('Tuesday bay')
     await placement.getByRole('button', { name: 'Save' }).click()
     await placement.waitFor({ state: 'hidden' })
     const row = page.getByTestId('roster-table').getByRole('row', { name: new RegExp(people.student.name) })
@@ -149,7 +166,10 @@ describe('course administration in the browser', () => {
     await noSideways(page)
     await remove.getByRole('button', { name: 'Keep them' }).click()
     await remove.waitFor({ state: 'hidden' })
-    const [still] = await app.db.db.select().from(enrollments).where(and(eq(enrollments.userId, people.student.id), eq(enrollments.courseId, courseId)))
+    const [still] = await app.db.db
+      .select()
+      .from(enrollments)
+      .where(and(eq(enrollments.userId, people.student.id), eq(enrollments.courseId, courseId)))
     expect(still).toBeDefined()
     await ctx.close()
   })

@@ -3,7 +3,14 @@ import request from 'supertest'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_COURSE, DEMO_GROUP_WITHOUT_HAND_IN, DEMO_INSTRUCTOR, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import {
+  DEFAULT_DEMO_PASSWORD,
+  DEMO_COURSE,
+  DEMO_GROUP_WITHOUT_HAND_IN,
+  DEMO_INSTRUCTOR,
+  DEMO_SECTIONS,
+  DEMO_STUDENTS,
+} from '../../scripts/demo/scenario'
 import type { MySubmissions } from '../../shared/schemas/submissions'
 import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { readPdf, readZip, squash } from '../helpers/pdf'
@@ -23,7 +30,11 @@ const COLD_FLOW_TITLE = /^Cold-flow characterisation/
 async function apiAs(email: string) {
   const agent = request.agent(app.url)
   const s = await agent.get('/api/auth/session').expect(200)
-  const signed = await agent.post('/api/auth/sign-in').set('x-csrf-token', s.body.csrfToken).send({ email, password: DEFAULT_DEMO_PASSWORD }).expect(200)
+  const signed = await agent
+    .post('/api/auth/sign-in')
+    .set('x-csrf-token', s.body.csrfToken)
+    .send({ email, password: DEFAULT_DEMO_PASSWORD })
+    .expect(200)
   return { agent, csrf: signed.body.csrfToken as string }
 }
 
@@ -53,15 +64,21 @@ describe('journey 4: a student downloads the graded feedback report', () => {
   it('sees the staff comment on the result page and downloads a PDF with the same score and the comment', async () => {
     // The TA of section A comments on the group's latest hand-in through the review API.
     const taApi = await apiAs(ta.email)
-    const modules = (await taApi.agent.get(`/api/courses/${courseId}/modules`).expect(200)).body as { id: number; title: string }[]
+    const modules = (await taApi.agent.get(`/api/courses/${courseId}/modules`).expect(200)).body as {
+      id: number
+      title: string
+    }[]
     const coldFlow = modules.find((m) => COLD_FLOW_TITLE.test(m.title))!
     expect(coldFlow).toBeDefined()
     const studentApi = await apiAs(student.email)
-    const mine = (await studentApi.agent.get(`/api/courses/${courseId}/modules/${coldFlow.id}/submissions/mine`).expect(200)).body as MySubmissions
+    const mine = (
+      await studentApi.agent.get(`/api/courses/${courseId}/modules/${coldFlow.id}/submissions/mine`).expect(200)
+    ).body as MySubmissions
     const latest = mine.submissions[0]!
     expect(latest.status).toBe('graded')
     const comment = `Clean run, ${student.displayName.split(' ')[0]}: repeat it with the larger nozzle next week (${Date.now()}).`
-    const rev = (await taApi.agent.get(`/api/courses/${courseId}/submissions/${latest.id}/review`).expect(200)).body.revision as number
+    const rev = (await taApi.agent.get(`/api/courses/${courseId}/submissions/${latest.id}/review`).expect(200)).body
+      .revision as number
     await taApi.agent
       .post(`/api/courses/${courseId}/submissions/${latest.id}/comments`)
       .set('x-csrf-token', taApi.csrf)
@@ -76,7 +93,9 @@ describe('journey 4: a student downloads the graded feedback report', () => {
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     // My grades shows the module as released and leads to the counted result.
     await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My grades' }).click()
-    const row = page.getByTestId('my-grades-table').locator('tr', { has: page.getByRole('rowheader', { name: COLD_FLOW_TITLE }) })
+    const row = page
+      .getByTestId('my-grades-table')
+      .locator('tr', { has: page.getByRole('rowheader', { name: COLD_FLOW_TITLE }) })
     await expect.poll(() => row.getAttribute('data-state')).toBe('released')
     await row.getByRole('link', { name: /See the result/ }).click()
     await page.getByRole('heading', { level: 1, name: new RegExp(`^Attempt ${latest.attempt}:`) }).waitFor()

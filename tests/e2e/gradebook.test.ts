@@ -68,7 +68,9 @@ describe('the instructor’s gradebook', () => {
     }
     await panel.getByRole('button', { name: 'Release grades' }).click()
     const dialog = page.getByRole('alertdialog')
-    await expect.poll(() => dialog.innerText()).toContain(`${book.body.enrolledStudents} students of the course will be e-mailed`)
+    await expect
+      .poll(() => dialog.innerText())
+      .toContain(`${book.body.enrolledStudents} students of the course will be e-mailed`)
     await dialog.getByRole('button', { name: `Release and e-mail ${book.body.enrolledStudents}` }).click()
     await expect.poll(() => state.innerText()).toBe('released')
     const after = await api<Gradebook>(page, `/api/courses/${courseId}/gradebook`)
@@ -80,7 +82,11 @@ describe('the instructor’s gradebook', () => {
     const [header, ...rows] = Papa.parse<string[]>(text, { skipEmptyLines: true }).data
     expect(header!.slice(0, 4)).toEqual(['email', 'name', 'section', 'group'])
     expect(rows).toHaveLength(book.body.students.length)
-    for (const s of DEMO_STUDENTS) expect(rows.filter((r) => r[0] === s.email), s.email).toHaveLength(1)
+    for (const s of DEMO_STUDENTS)
+      expect(
+        rows.filter((r) => r[0] === s.email),
+        s.email,
+      ).toHaveLength(1)
 
     await page.setViewportSize({ width: 375, height: 812 })
     await noSideways(page)

@@ -57,7 +57,11 @@ function engine(reported: Record<string, number>) {
   const parsed = parseLog(csv, table, MAPPING)
   if (!parsed.ok) throw new Error(`test log does not parse: ${parsed.errors.map((e) => e.message).join('; ')}`)
   const measurements = Object.fromEntries(Object.entries(typed).map(([k, v]) => [k, valueToSI(Number(v.text), v.unit)]))
-  return gradeSubmission({ assignment, data: { tables: { [table.key]: parsed.columns }, measurements, pressures: parsed.pressures }, reported })
+  return gradeSubmission({
+    assignment,
+    data: { tables: { [table.key]: parsed.columns }, measurements, pressures: parsed.pressures },
+    reported,
+  })
 }
 const expected = Object.fromEntries(engine({}).checks.map((c) => [c.key, c.expected]))
 /** The one result reported out of tolerance on purpose: peak thrust 25 % high (2 % tolerance, no partial credit). */
@@ -93,7 +97,6 @@ afterAll(async () => {
   await chrome?.close()
   await app?.close()
 })
-
 
 /** Picks an option in a PrimeVue select found by its accessible name. */
 
@@ -134,12 +137,22 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     expect(await preview.locator('thead th').allInnerTexts()).toEqual(['row', ...HEADERS])
     expect(await preview.locator('tbody tr').count()).toBe(8)
     const rows = csv.split('\n')
-    expect(await preview.locator('tbody tr').first().locator('td').allInnerTexts()).toEqual(['2', ...rows[1]!.split(',')])
+    expect(await preview.locator('tbody tr').first().locator('td').allInnerTexts()).toEqual([
+      '2',
+      ...rows[1]!.split(','),
+    ])
     for (const c of table.columns) {
       const m = MAPPING[c.key]!
-      expect(await page.getByRole('combobox', { name: `${c.label} column in the file`, exact: true }).innerText()).toBe(m.header)
-      expect(await page.getByRole('combobox', { name: `${c.label} unit in the file`, exact: true }).innerText()).toBe(m.unit)
-      if (m.pressure) expect(await page.getByRole('combobox', { name: `${c.label} read as`, exact: true }).innerText()).toBe(m.pressure)
+      expect(await page.getByRole('combobox', { name: `${c.label} column in the file`, exact: true }).innerText()).toBe(
+        m.header,
+      )
+      expect(await page.getByRole('combobox', { name: `${c.label} unit in the file`, exact: true }).innerText()).toBe(
+        m.unit,
+      )
+      if (m.pressure)
+        expect(await page.getByRole('combobox', { name: `${c.label} read as`, exact: true }).innerText()).toBe(
+          m.pressure,
+        )
     }
     expect(await page.locator('.log-upload .tag.suggested').count()).toBe(table.columns.length)
     expect(await page.getByTestId('file-issues').count()).toBe(0)
@@ -158,7 +171,10 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     // A unit of the wrong kind is not offered.
     const unitPicker = page.getByRole('combobox', { name: 'Receiver pressure before the run unit', exact: true })
     await unitPicker.click()
-    const offered = await page.locator(`[id="${await unitPicker.getAttribute('aria-controls')}"]`).getByRole('option').allInnerTexts()
+    const offered = await page
+      .locator(`[id="${await unitPicker.getAttribute('aria-controls')}"]`)
+      .getByRole('option')
+      .allInnerTexts()
     await page.keyboard.press('Escape')
     expect(offered).toContain('bar')
     expect(offered).not.toContain('N')
@@ -172,7 +188,9 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
       // The regime is offered in words, not as a number to type; the page sends its code.
       expect(await page.getByRole('textbox', { name: r.label }).count()).toBe(0)
       const group = page.getByRole('group', { name: r.label })
-      const offeredRegimes = await group.getByRole('radio').evaluateAll((els) => els.map((e) => e.closest('label')?.querySelector('.name')?.textContent?.trim()))
+      const offeredRegimes = await group
+        .getByRole('radio')
+        .evaluateAll((els) => els.map((e) => e.closest('label')?.querySelector('.name')?.textContent?.trim()))
       expect(offeredRegimes).toEqual(REGIME_CHOICES.map((c) => c.label))
       const choice = REGIME_CHOICES.find((c) => c.code === reported[r.key])!
       await group.getByRole('radio', { name: new RegExp(`^${choice.label}`) }).check()
@@ -189,12 +207,22 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
         const entry = `${state}:${bar}:${el?.textContent?.trim().slice(0, 20)}`
         if (seen[seen.length - 1] !== entry) seen.push(entry)
       }
-      new MutationObserver(note).observe(document.body, { subtree: true, childList: true, attributes: true, characterData: true })
+      new MutationObserver(note).observe(document.body, {
+        subtree: true,
+        childList: true,
+        attributes: true,
+        characterData: true,
+      })
     })
     // A slow link (DevTools network emulation), so the upload and grading states stay on screen long enough to see.
     const cdp = await ctx.newCDPSession(page)
     await cdp.send('Network.enable')
-    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 1500, downloadThroughput: -1, uploadThroughput: 48 * 1024 })
+    await cdp.send('Network.emulateNetworkConditions', {
+      offline: false,
+      latency: 1500,
+      downloadThroughput: -1,
+      uploadThroughput: 48 * 1024,
+    })
     await page.getByRole('button', { name: 'Hand in attempt 1 of 3' }).click()
     const progress = page.getByTestId('hand-in-progress')
     await progress.getByText(/Uploading… \d+ %/).waitFor()
@@ -204,7 +232,12 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
 
     // The result page.
     await page.getByRole('heading', { level: 1, name: `Attempt 1: ${MODULE_TITLE}` }).waitFor({ timeout: 30_000 })
-    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 })
+    await cdp.send('Network.emulateNetworkConditions', {
+      offline: false,
+      latency: 0,
+      downloadThroughput: -1,
+      uploadThroughput: -1,
+    })
     const seen = await page.evaluate(() => (window as unknown as { progressSeen: string[] }).progressSeen)
     // A determinate bar that moved (some percentage below 100), then the indeterminate grading bar.
     const uploading = seen.findIndex((e) => /^uploading:bar:Uploading… [1-9]\d? %/.test(e))
@@ -227,7 +260,9 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     // The regime the student chose is shown by its name on the result page too, not as a bare code.
     for (const r of assignment.results.filter((x) => x.regime)) {
       const choice = REGIME_CHOICES.find((c) => c.code === reported[r.key])!
-      expect(await checks.locator(`tr[data-check="${r.key}"] td[data-label="Your value"]`).innerText()).toBe(`${choice.label} (${choice.code})`)
+      expect(await checks.locator(`tr[data-check="${r.key}"] td[data-label="Your value"]`).innerText()).toBe(
+        `${choice.label} (${choice.code})`,
+      )
     }
     const wrongRow = checks.locator(`tr[data-check="${WRONG}"]`)
     expect(await wrongRow.getAttribute('data-outcome')).toBe('fail')
@@ -238,7 +273,9 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     expect(await checks.locator('thead th').allInnerTexts()).not.toContain('Expected')
 
     // Notes on the data: exactly what the engine raises for these data (none for a sound run).
-    const flagCodes = await page.locator('[data-testid="flags"] li').evaluateAll((els) => els.map((e) => e.getAttribute('data-flag')))
+    const flagCodes = await page
+      .locator('[data-testid="flags"] li')
+      .evaluateAll((els) => els.map((e) => e.getAttribute('data-flag')))
     expect(flagCodes.sort()).toEqual(graded.flags.map((f) => f.code).sort())
 
     // The chart: an image with a name, painted, with a text summary.
@@ -250,7 +287,9 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     expect(await page.locator('#thrust-chart-summary').innerText()).toContain('supersonic')
 
     // The psi value was kept as typed, and the uploaded file downloads byte for byte.
-    expect(await page.getByRole('definition').filter({ hasText: 'psi' }).innerText()).toBe(`${Number(typed.p_initial!.text)} psi gauge`)
+    expect(await page.getByRole('definition').filter({ hasText: 'psi' }).innerText()).toBe(
+      `${Number(typed.p_initial!.text)} psi gauge`,
+    )
     const download = page.getByTestId('files').getByRole('link', { name: 'b3-cold-flow.csv' })
     const res = await page.request.get(new URL((await download.getAttribute('href'))!, app.url).toString())
     expect(res.status()).toBe(200)
@@ -265,8 +304,13 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
 
     // Back on the module page, the attempt is listed with its score.
     await page.setViewportSize({ width: 1366, height: 900 })
-    await page.getByRole('navigation', { name: 'Breadcrumb' }).getByRole('link', { name: MODULE_TITLE, exact: true }).click()
-    await expect.poll(() => page.getByTestId('hand-in-panel').getByTestId('attempts').innerText()).toBe('1 of 3 attempts used')
+    await page
+      .getByRole('navigation', { name: 'Breadcrumb' })
+      .getByRole('link', { name: MODULE_TITLE, exact: true })
+      .click()
+    await expect
+      .poll(() => page.getByTestId('hand-in-panel').getByTestId('attempts').innerText())
+      .toBe('1 of 3 attempts used')
     const listed = page.getByTestId('hand-in-panel').getByTestId('attempt-list')
     expect(await listed.innerText()).toContain(`${Number(score![1])} of ${graded.maxScore}`)
     await page.getByTestId('hand-in-panel').screenshot({ path: screenshotPath('module-hand-in-panel') })
@@ -296,13 +340,16 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     // The preview outlines the cell.
     expect(await page.getByTestId('log-preview').locator('td.bad-cell').allInnerTexts()).toEqual(['n/a'])
     // The upload's control is described by the list, so a screen reader hears it there too.
-    const describedBy = (await page.getByLabel('Log file (CSV or text, comma-separated)').getAttribute('aria-describedby')) ?? ''
+    const describedBy =
+      (await page.getByLabel('Log file (CSV or text, comma-separated)').getAttribute('aria-describedby')) ?? ''
     expect(describedBy.split(' ')).toContain(await issues.locator('ul').getAttribute('id'))
 
     await page.getByRole('button', { name: /^Hand in attempt 2 of 3/ }).click()
     const summary = page.getByTestId('error-summary')
     await summary.waitFor()
-    await expect.poll(() => page.evaluate(() => document.activeElement?.getAttribute('data-testid'))).toBe('error-summary')
+    await expect
+      .poll(() => page.evaluate(() => document.activeElement?.getAttribute('data-testid')))
+      .toBe('error-summary')
     expect(await summary.getByRole('link', { name: /the file has a problem/ }).count()).toBe(1)
     await noSideways(page)
     await page.screenshot({ path: screenshotPath('hand-in-bad-file-375'), fullPage: true })

@@ -20,7 +20,6 @@ afterAll(async () => {
   await app?.close()
 })
 
-
 describe('journey 1: an instructor publishes a module and students are e-mailed', () => {
   it('edits a draft, sees the equation in the preview, publishes, and a student opens it from the e-mail', async () => {
     const page = await browser.newPage({ viewport: { width: 1400, height: 900 } })

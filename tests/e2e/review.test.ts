@@ -28,7 +28,6 @@ afterAll(async () => {
   await app?.close()
 })
 
-
 /** Picks an option in a PrimeVue select found by its accessible name. */
 
 /** A GET through the page, with the signed-in person's cookies. */
@@ -43,7 +42,6 @@ async function api<T>(page: Page, url: string): Promise<{ status: number; body: 
 async function settled(page: Page) {
   await expect.poll(() => page.locator('.p-datatable-mask, .p-select-overlay').count()).toBe(0)
 }
-
 
 describe('journey 3: a teaching assistant reviews a flagged submission', () => {
   it('sees only their section in the queue, overrides the total and one check with reasons, comments, resolves the flag and marks the hand-in resolved', async () => {
@@ -61,7 +59,9 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     const table = page.getByTestId('review-table')
     const rows = table.locator('tbody tr')
     await expect.poll(() => rows.filter({ hasText: GROUP_NAME }).count()).toBeGreaterThan(0)
-    const sections = await rows.evaluateAll((trs) => trs.map((tr) => (tr as HTMLTableRowElement).cells[2]?.textContent?.trim()))
+    const sections = await rows.evaluateAll((trs) =>
+      trs.map((tr) => (tr as HTMLTableRowElement).cells[2]?.textContent?.trim()),
+    )
     expect(sections.length).toBeGreaterThan(0)
     expect(new Set(sections)).toEqual(new Set(['Section B']))
     expect(await table.innerText()).not.toContain('Group A3')
@@ -72,7 +72,10 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     expect(queue.status).toBe(200)
     expect(queue.body.rows.every((r) => r.sectionName === 'Section B')).toBe(true)
     const row = queue.body.rows.find((r) => r.labGroupName === GROUP_NAME && r.flagCodes.includes(FLAG))
-    expect(row, `a flagged hand-in of ${GROUP_NAME} among ${JSON.stringify(queue.body.rows.map((r) => [r.labGroupName, r.flagCodes]))}`).toBeDefined()
+    expect(
+      row,
+      `a flagged hand-in of ${GROUP_NAME} among ${JSON.stringify(queue.body.rows.map((r) => [r.labGroupName, r.flagCodes]))}`,
+    ).toBeDefined()
     await settled(page)
     await page.screenshot({ path: screenshotPath('review-queue-desktop'), fullPage: true })
 
@@ -84,7 +87,8 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     const max = before.body.maxScore!
     expect(max).toBeGreaterThan(0)
     // A new total the submission does not have yet, inside the allowed range.
-    const points = before.body.score === Math.round(max * 40) / 100 ? Math.round(max * 60) / 100 : Math.round(max * 40) / 100
+    const points =
+      before.body.score === Math.round(max * 40) / 100 ? Math.round(max * 60) / 100 : Math.round(max * 40) / 100
     const reason = `Load cell calibration factor 1.6 too large; thrust rescaled by hand (${Date.now()}).`
 
     // A reason is required: refused at the field, nothing saved.
@@ -121,7 +125,9 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     const comment = `Your load cell reads high; recalibrate before the next run (${Date.now()}).`
     await page.getByLabel('Comment to the student (Markdown)').fill(`**${comment}**`)
     await page.getByRole('button', { name: 'Add comment' }).click()
-    await expect.poll(() => page.locator('#comments-h').locator('..').locator('strong').filter({ hasText: comment }).count()).toBe(1)
+    await expect
+      .poll(() => page.locator('#comments-h').locator('..').locator('strong').filter({ hasText: comment }).count())
+      .toBe(1)
     await expect.poll(() => page.getByLabel('Comment to the student (Markdown)').inputValue()).toBe('')
 
     const flag = page.getByTestId('review-flags').locator(`li[data-flag="${FLAG}"]`)
@@ -146,13 +152,18 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     const after = await api<SubmissionDetail>(page, `/api/courses/${courseId}/submissions/${row!.submissionId}`)
     expect(after.body.score).toBe(points)
     expect(after.body.flags.find((f) => f.code === FLAG)?.status).toBe('resolved')
-    const extras = await api<{ reviewStatus: string; scoreOverride: number | null; gradeChanges: { reason: string; newPoints: number; changedBy: string }[]; comments: { html: string }[] }>(
-      page,
-      `/api/courses/${courseId}/submissions/${row!.submissionId}/review`,
-    )
+    const extras = await api<{
+      reviewStatus: string
+      scoreOverride: number | null
+      gradeChanges: { reason: string; newPoints: number; changedBy: string }[]
+      comments: { html: string }[]
+    }>(page, `/api/courses/${courseId}/submissions/${row!.submissionId}/review`)
     expect(extras.body.reviewStatus).toBe('resolved')
     expect(extras.body.scoreOverride).toBe(points)
-    expect(extras.body.gradeChanges.find((c) => c.reason === reason)).toMatchObject({ newPoints: points, changedBy: ta.displayName })
+    expect(extras.body.gradeChanges.find((c) => c.reason === reason)).toMatchObject({
+      newPoints: points,
+      changedBy: ta.displayName,
+    })
     const peak = after.body.checks.find((c) => c.key === 'peak_thrust')!
     expect(peak.pointsAwarded).toBe(0)
     expect(extras.body.comments.some((c) => c.html.includes(`<strong>${comment}</strong>`))).toBe(true)
@@ -161,7 +172,16 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     await page.getByRole('link', { name: 'Review queue' }).click()
     await page.getByRole('heading', { level: 1, name: 'Review queue' }).waitFor()
     await choose(page, 'Review status', 'Resolved')
-    await expect.poll(() => page.getByTestId('review-table').locator('tbody tr').filter({ hasText: GROUP_NAME }).filter({ hasText: 'resolved' }).count()).toBeGreaterThan(0)
+    await expect
+      .poll(() =>
+        page
+          .getByTestId('review-table')
+          .locator('tbody tr')
+          .filter({ hasText: GROUP_NAME })
+          .filter({ hasText: 'resolved' })
+          .count(),
+      )
+      .toBeGreaterThan(0)
     await noSideways(page)
     await settled(page)
     await page.screenshot({ path: screenshotPath('review-queue-375'), fullPage: true })

@@ -19,11 +19,21 @@ beforeAll(async () => {
   const db = app.db.db
   const [inst] = await db
     .insert(users)
-    .values({ email: instructorEmail, displayName: `Roster Instructor ${tag}`, passwordHash: await hashPassword(PASSWORD) })
+    .values({
+      email: instructorEmail,
+      displayName: `Roster Instructor ${tag}`,
+      passwordHash: await hashPassword(PASSWORD),
+    })
     .$returningId()
   const [course] = await db
     .insert(courses)
-    .values({ code: `R${tag}`, title: `Nozzle lab ${tag}`, term: 'Test term', institution: 'Test University (fictional)', timeZone: 'UTC' })
+    .values({
+      code: `R${tag}`,
+      title: `Nozzle lab ${tag}`,
+      term: 'Test term',
+      institution: 'Test University (fictional)',
+      timeZone: 'UTC',
+    })
     .$returningId()
   courseId = course!.id
   await db.insert(sections).values({ courseId, name: 'Tue PM' })
@@ -53,12 +63,17 @@ describe('roster import in the browser', () => {
     await page.getByLabel('Roster rows (CSV)').fill(`email,name\nnot-an-address,Someone ${tag}\n`)
     await page.getByRole('button', { name: 'Check the file' }).click()
     await page.getByTestId('import-problems').getByText('Row 2').waitFor()
-    await page.getByTestId('import-problems').getByText('email: "not-an-address" is not a valid e-mail address').waitFor()
+    await page
+      .getByTestId('import-problems')
+      .getByText('email: "not-an-address" is not a valid e-mail address')
+      .waitFor()
     expect(await page.getByTestId('confirm-import').isDisabled()).toBe(true)
     await noSideways(page)
     await page.screenshot({ path: screenshotPath('roster-import-problems-375'), fullPage: true })
 
-    await page.getByLabel('CSV file').setInputFiles({ name: 'roster.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) })
+    await page
+      .getByLabel('CSV file')
+      .setInputFiles({ name: 'roster.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) })
     await expect.poll(() => page.getByLabel('Roster rows (CSV)').inputValue()).toContain(mira)
     await page.getByRole('button', { name: 'Check the file' }).click()
     const table = page.getByTestId('import-table')

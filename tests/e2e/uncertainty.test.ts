@@ -21,7 +21,11 @@ const ta = DEMO_SECTIONS[0].ta
 async function apiAs(email: string) {
   const agent = request.agent(app.url)
   const s = await agent.get('/api/auth/session').expect(200)
-  await agent.post('/api/auth/sign-in').set('x-csrf-token', s.body.csrfToken).send({ email, password: DEFAULT_DEMO_PASSWORD }).expect(200)
+  await agent
+    .post('/api/auth/sign-in')
+    .set('x-csrf-token', s.body.csrfToken)
+    .send({ email, password: DEFAULT_DEMO_PASSWORD })
+    .expect(200)
   return agent
 }
 
@@ -39,13 +43,19 @@ afterAll(async () => {
 describe('the uncertainty of the expected values on the result pages', () => {
   it('the student sees which inputs dominate each uncertainty (no figures: the module hides expected values); staff see expected ± U (k = 2)', async () => {
     const studentApi = await apiAs(student.email)
-    const modules = (await studentApi.get(`/api/courses/${courseId}/modules`).expect(200)).body as { id: number; title: string }[]
+    const modules = (await studentApi.get(`/api/courses/${courseId}/modules`).expect(200)).body as {
+      id: number
+      title: string
+    }[]
     const coldFlow = modules.find((m) => /^Cold-flow characterisation/.test(m.title))!
-    const mine = (await studentApi.get(`/api/courses/${courseId}/modules/${coldFlow.id}/submissions/mine`).expect(200)).body as MySubmissions
+    const mine = (await studentApi.get(`/api/courses/${courseId}/modules/${coldFlow.id}/submissions/mine`).expect(200))
+      .body as MySubmissions
     const id = mine.submissions[0]!.id
     // What the pages should say, from the API's numbers (each side's own view).
-    const asStudent = (await studentApi.get(`/api/courses/${courseId}/submissions/${id}`).expect(200)).body as SubmissionDetail
-    const asTa = (await (await apiAs(ta.email)).get(`/api/courses/${courseId}/submissions/${id}`).expect(200)).body as SubmissionDetail
+    const asStudent = (await studentApi.get(`/api/courses/${courseId}/submissions/${id}`).expect(200))
+      .body as SubmissionDetail
+    const asTa = (await (await apiAs(ta.email)).get(`/api/courses/${courseId}/submissions/${id}`).expect(200))
+      .body as SubmissionDetail
     const worded = asStudent.checks.filter((c) => c.uncertainty && dominantInputsText(c.uncertainty.contributions))
     expect(worded.length).toBeGreaterThan(0)
 
@@ -59,7 +69,9 @@ describe('the uncertainty of the expected values on the result pages', () => {
     expect(await sources.getByRole('heading', { name: 'Where the uncertainty comes from' }).count()).toBe(1)
     for (const c of worded) {
       const item = sources.locator(`li[data-check="${c.key}"]`)
-      expect(squash(await item.innerText())).toBe(squash(`${c.label}: ${dominantInputsText(c.uncertainty!.contributions)}`))
+      expect(squash(await item.innerText())).toBe(
+        squash(`${c.label}: ${dominantInputsText(c.uncertainty!.contributions)}`),
+      )
     }
     // Nothing that gives the expected value away: no expected column, no ± U, no k.
     expect(await page.getByTestId('checks').locator('thead th').allInnerTexts()).not.toContain('Expected')
@@ -81,7 +93,12 @@ describe('the uncertainty of the expected values on the result pages', () => {
     let withU = 0
     for (const c of asTa.checks) {
       const cell = checks.locator(`tr[data-check="${c.key}"] td[data-label="Expected"]`)
-      const text = expectedWithUncertaintyText(c.expected, c.uncertainty?.expanded ?? null, c.uncertainty?.coverage ?? null, c.unit)
+      const text = expectedWithUncertaintyText(
+        c.expected,
+        c.uncertainty?.expanded ?? null,
+        c.uncertainty?.coverage ?? null,
+        c.unit,
+      )
       expect(squash(await cell.innerText()), c.key).toBe(squash(text))
       if (text.includes('(k = 2)')) withU++
     }
@@ -89,7 +106,9 @@ describe('the uncertainty of the expected values on the result pages', () => {
     const staffSources = review.getByTestId('uncertainty-sources')
     expect(await staffSources.innerText()).toContain('± U')
     for (const c of worded) {
-      expect(squash(await staffSources.locator(`li[data-check="${c.key}"]`).innerText())).toBe(squash(`${c.label}: ${dominantInputsText(c.uncertainty!.contributions)}`))
+      expect(squash(await staffSources.locator(`li[data-check="${c.key}"]`).innerText())).toBe(
+        squash(`${c.label}: ${dominantInputsText(c.uncertainty!.contributions)}`),
+      )
     }
     await review.screenshot({ path: screenshotPath('uncertainty-review-desktop'), fullPage: true })
     await staff.close()

@@ -94,7 +94,10 @@ const mariadbPid = () => Number(readFileSync(path.join(DATA, dbName, 'run', 'mar
 async function signIn(email: string): Promise<Person> {
   const agent = request.agent(url)
   const s = await agent.get('/api/auth/session').expect(200)
-  const res = await agent.post('/api/auth/sign-in').set('x-csrf-token', s.body.csrfToken).send({ email, password: PASSWORD })
+  const res = await agent
+    .post('/api/auth/sign-in')
+    .set('x-csrf-token', s.body.csrfToken)
+    .send({ email, password: PASSWORD })
   if (res.status !== 200) throw new Error(`sign-in as ${email}: ${res.status} ${JSON.stringify(res.body)}`)
   return { email, agent, csrf: res.body.csrfToken }
 }
@@ -111,7 +114,11 @@ function burst(who: Person[]): Promise<{ status: number; id?: number; code?: str
         // A hang fails the test instead of stalling it: a stalled database must answer 503 quickly.
         .timeout(30_000)
         .then(
-          (r) => ({ status: r.status, id: r.status === 201 ? (r.body.id as number) : undefined, code: r.body?.error?.code as string | undefined }),
+          (r) => ({
+            status: r.status,
+            id: r.status === 201 ? (r.body.id as number) : undefined,
+            code: r.body?.error?.code as string | undefined,
+          }),
           (err: unknown) => ({ status: -1, code: String((err as Error).message) }),
         ),
     ),
@@ -136,7 +143,14 @@ async function allSettled(): Promise<boolean> {
 beforeAll(async () => {
   dbPort = await freePort()
   dbName = `fault-test-${dbPort}`
-  mdb = await startMariaDb({ name: dbName, port: dbPort, database: 'isentrope_fault', user: 'isentrope_fault', password: DB_PASSWORD, fresh: true })
+  mdb = await startMariaDb({
+    name: dbName,
+    port: dbPort,
+    database: 'isentrope_fault',
+    user: 'isentrope_fault',
+    password: DB_PASSWORD,
+    fresh: true,
+  })
   const env: NodeJS.ProcessEnv = { ...process.env, ...dbEnv(mdb) }
   delete env.DATABASE_URL
   const tsx = nodeBin('tsx/dist/cli.mjs')
@@ -164,14 +178,31 @@ beforeAll(async () => {
   })
   handle = createDb(appDbOptions(config))
   const logger = createLogger('silent')
-  outbox = startOutboxWorker(handle.db, createSmtpSender(config), logger, { pollMs: 300, batchSize: 20, maxAttempts: 30, baseBackoffMs: 300, maxBackoffMs: 1500 })
-  grader = createGrader({ timeoutMs: 20_000, memoryMb: 512, threads: 1 })
-  gradingWorker = startGradingWorker(handle.db, gradingContext(handle.db, { grader, logger, appUrl: url, onMailQueued: () => outbox.kick() }), {
+  outbox = startOutboxWorker(handle.db, createSmtpSender(config), logger, {
     pollMs: 300,
-    batchSize: 4,
-    staleMs: 8000,
+    batchSize: 20,
+    maxAttempts: 30,
+    baseBackoffMs: 300,
+    maxBackoffMs: 1500,
   })
-  created = createApp({ config, db: handle.db, logger, grader, onMailQueued: () => outbox.kick(), onHandInStored: () => gradingWorker.kick() })
+  grader = createGrader({ timeoutMs: 20_000, memoryMb: 512, threads: 1 })
+  gradingWorker = startGradingWorker(
+    handle.db,
+    gradingContext(handle.db, { grader, logger, appUrl: url, onMailQueued: () => outbox.kick() }),
+    {
+      pollMs: 300,
+      batchSize: 4,
+      staleMs: 8000,
+    },
+  )
+  created = createApp({
+    config,
+    db: handle.db,
+    logger,
+    grader,
+    onMailQueued: () => outbox.kick(),
+    onHandInStored: () => gradingWorker.kick(),
+  })
   server.on('request', created.app)
 
   // A course of our own: an instructor and 50 students in one section, an individual hand-in.
@@ -179,22 +210,41 @@ beforeAll(async () => {
   const db = handle.db
   const [c] = await db
     .insert(courses)
-    .values({ code: 'FLT1', title: 'Fault suite lab', term: 'Test term', institution: 'Test University (fictional)', timeZone: 'UTC' })
+    .values({
+      code: 'FLT1',
+      title: 'Fault suite lab',
+      term: 'Test term',
+      institution: 'Test University (fictional)',
+      timeZone: 'UTC',
+    })
     .$returningId()
   courseId = c!.id
   const [sec] = await db.insert(sections).values({ courseId, name: 'A' }).$returningId()
-  const people = [{ email: 'instructor@fault.example', role: 'instructor' as const }, ...Array.from({ length: STUDENTS }, (_, i) => ({ email: `student${i}@fault.example`, role: 'student' as const }))]
+  const people = [
+    { email: 'instructor@fault.example', role: 'instructor' as const },
+    ...Array.from({ length: STUDENTS }, (_, i) => ({ email: `student${i}@fault.example`, role: 'student' as const })),
+  ]
   for (const p of people) {
-    const [u] = await db.insert(users).values({ email: p.email, displayName: p.email.split('@')[0]!, passwordHash: hash }).$returningId()
-    await db.insert(enrollments).values({ userId: u!.id, courseId, role: p.role, sectionId: p.role === 'student' ? sec!.id : null })
+    const [u] = await db
+      .insert(users)
+      .values({ email: p.email, displayName: p.email.split('@')[0]!, passwordHash: hash })
+      .$returningId()
+    await db
+      .insert(enrollments)
+      .values({ userId: u!.id, courseId, role: p.role, sectionId: p.role === 'student' ? sec!.id : null })
   }
   instructor = await signIn('instructor@fault.example')
   for (let i = 0; i < STUDENTS; i++) students.push(await signIn(`student${i}@fault.example`))
 
-  const source = currentDueDates(readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'))
+  const source = currentDueDates(
+    readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
+  )
     .replace(/^groupSubmission: true$/m, 'groupSubmission: false')
     .replace(/^attempts: 3$/m, 'attempts: 10')
-  const made = await instructor.agent.post(`/api/courses/${courseId}/modules`).set('x-csrf-token', instructor.csrf).send({ source })
+  const made = await instructor.agent
+    .post(`/api/courses/${courseId}/modules`)
+    .set('x-csrf-token', instructor.csrf)
+    .send({ source })
   if (made.status !== 201) throw new Error(`module: ${made.status} ${JSON.stringify(made.body)}`)
   moduleId = made.body.id
   await instructor.agent
@@ -230,17 +280,28 @@ describe('a deadline burst', () => {
     expect(results.map((r) => r.status)).toEqual(results.map(() => 201))
     const ids = results.map((r) => r.id!)
     await waitUntil('every hand-in graded', allSettled)
-    const rows = await handle.db.select({ id: submissions.id, s: submissions.status }).from(submissions).where(inArray(submissions.id, ids))
+    const rows = await handle.db
+      .select({ id: submissions.id, s: submissions.status })
+      .from(submissions)
+      .where(inArray(submissions.id, ids))
     expect(rows.filter((r) => r.s === 'graded')).toHaveLength(STUDENTS)
     const receipts = await handle.db
       .select({ k: mailOutbox.dedupeKey })
       .from(mailOutbox)
-      .where(inArray(mailOutbox.dedupeKey, ids.map((i) => `submission-receipt:${i}`)))
+      .where(
+        inArray(
+          mailOutbox.dedupeKey,
+          ids.map((i) => `submission-receipt:${i}`),
+        ),
+      )
     expect(receipts).toHaveLength(STUDENTS)
   }, 120_000)
 
   it('MariaDB paused for 10 s in the middle of a burst: every answer is 201 or a quick 503, and every acknowledged hand-in is graded after it resumes', async () => {
-    const before = await handle.db.select({ id: submissions.id }).from(submissions).where(eq(submissions.moduleId, moduleId))
+    const before = await handle.db
+      .select({ id: submissions.id })
+      .from(submissions)
+      .where(eq(submissions.moduleId, moduleId))
     const pid = mariadbPid()
     const sending = burst(students.slice(0, 30))
     await sleep(150)
@@ -250,12 +311,16 @@ describe('a deadline burst', () => {
     const probe = await students[40]!.agent
       .get(`/api/courses/${courseId}/modules/${moduleId}/submissions/mine`)
       .timeout(15_000)
-      .then((r) => r.status, () => -1)
+      .then(
+        (r) => r.status,
+        () => -1,
+      )
     expect(probe).toBe(503)
     await sleep(Math.max(0, 10_000 - (Date.now() - paused)))
     process.kill(pid, 'SIGCONT')
     const results = await sending
-    if (process.env.FAULT_DEBUG) console.log('burst statuses', JSON.stringify(results.map((r) => r.status)), await statusCounts())
+    if (process.env.FAULT_DEBUG)
+      console.log('burst statuses', JSON.stringify(results.map((r) => r.status)), await statusCounts())
     expect(results.filter((r) => r.status !== 201 && r.status !== 503)).toEqual([])
     const acknowledged = results.filter((r) => r.status === 201).map((r) => r.id!)
     await waitUntil('every stored hand-in graded after the pause', allSettled)
@@ -272,14 +337,24 @@ describe('a deadline burst', () => {
   }, 120_000)
 
   it('MariaDB killed in the middle of a burst and started again: no hand-in is left waiting, none is graded twice', async () => {
-    const before = await handle.db.select({ id: submissions.id }).from(submissions).where(eq(submissions.moduleId, moduleId))
+    const before = await handle.db
+      .select({ id: submissions.id })
+      .from(submissions)
+      .where(eq(submissions.moduleId, moduleId))
     const sending = burst(students.slice(10, 40))
     await sleep(200)
     process.kill(mariadbPid(), 'SIGKILL')
     await sleep(1000)
-    mdb = await startMariaDb({ name: dbName, port: dbPort, database: 'isentrope_fault', user: 'isentrope_fault', password: DB_PASSWORD })
+    mdb = await startMariaDb({
+      name: dbName,
+      port: dbPort,
+      database: 'isentrope_fault',
+      user: 'isentrope_fault',
+      password: DB_PASSWORD,
+    })
     const results = await sending
-    if (process.env.FAULT_DEBUG) console.log('burst statuses', JSON.stringify(results.map((r) => r.status)), await statusCounts())
+    if (process.env.FAULT_DEBUG)
+      console.log('burst statuses', JSON.stringify(results.map((r) => r.status)), await statusCounts())
     expect(results.filter((r) => r.status !== 201 && r.status !== 503)).toEqual([])
     const acknowledged = results.filter((r) => r.status === 201).map((r) => r.id!)
     gradingWorker.kick()
@@ -300,7 +375,9 @@ describe('a deadline burst', () => {
   }, 150_000)
 
   it('the mail server down while grades are released: every student gets the release e-mail exactly once after it returns', async () => {
-    const [{ maxId }] = (await handle.db.select({ maxId: sql<number>`COALESCE(MAX(${mailOutbox.id}), 0)`.mapWith(Number) }).from(mailOutbox)) as [{ maxId: number }]
+    const [{ maxId }] = (await handle.db
+      .select({ maxId: sql<number>`COALESCE(MAX(${mailOutbox.id}), 0)`.mapWith(Number) })
+      .from(mailOutbox)) as [{ maxId: number }]
     mail.child.kill('SIGTERM')
     await new Promise((r) => (mail.child.exitCode !== null ? r(null) : mail.child.once('exit', r)))
     const released = await instructor.agent
@@ -311,13 +388,18 @@ describe('a deadline burst', () => {
     // The worker tries, fails (nothing listens), and keeps the messages for later.
     await waitUntil('send attempts failing while the mail server is down', async () => {
       const rows = await queued()
-      return rows.length >= STUDENTS && rows.every((m) => m.attempts >= 1 && m.status === 'pending' && m.lastError !== null)
+      return (
+        rows.length >= STUDENTS && rows.every((m) => m.attempts >= 1 && m.status === 'pending' && m.lastError !== null)
+      )
     })
     const subjects = new Set((await queued()).map((m) => m.subject))
     mail = startMaildev({ smtpPort, webPort, dir: `mail-fault-${webPort}-after` })
     await waitForHttp(`http://127.0.0.1:${webPort}/api/email`)
     await waitUntil('every queued message sent', async () => (await queued()).every((m) => m.status === 'sent'), 60_000)
-    const inbox = (await (await fetch(`http://127.0.0.1:${webPort}/api/email`)).json()) as { subject: string; to: { address: string }[] }[]
+    const inbox = (await (await fetch(`http://127.0.0.1:${webPort}/api/email`)).json()) as {
+      subject: string
+      to: { address: string }[]
+    }[]
     const releaseMail = inbox.filter((m) => subjects.has(m.subject))
     const perStudent = new Map<string, number>()
     for (const m of releaseMail) for (const t of m.to) perStudent.set(t.address, (perStudent.get(t.address) ?? 0) + 1)

@@ -84,7 +84,10 @@ export async function seedFixture(ctx: TestContext): Promise<Fixture> {
   const tag = uniq()
   const mk = async (role: string, isSiteAdmin = false) => {
     const email = `${role}.${tag}@test.example`
-    const [row] = await db.insert(users).values({ email, displayName: `${role} ${tag}`, passwordHash: hash, isSiteAdmin }).$returningId()
+    const [row] = await db
+      .insert(users)
+      .values({ email, displayName: `${role} ${tag}`, passwordHash: hash, isSiteAdmin })
+      .$returningId()
     return { id: row!.id, email }
   }
   const instructor = await mk('instructor')
@@ -95,11 +98,23 @@ export async function seedFixture(ctx: TestContext): Promise<Fixture> {
   const admin = await mk('admin', true)
   const [course] = await db
     .insert(courses)
-    .values({ code: `T${tag}`, title: 'Test propulsion lab', term: 'Test term', institution: 'Test University (fictional)', timeZone: 'UTC' })
+    .values({
+      code: `T${tag}`,
+      title: 'Test propulsion lab',
+      term: 'Test term',
+      institution: 'Test University (fictional)',
+      timeZone: 'UTC',
+    })
     .$returningId()
   const [other] = await db
     .insert(courses)
-    .values({ code: `O${tag}`, title: 'Another course', term: 'Test term', institution: 'Test University (fictional)', timeZone: 'UTC' })
+    .values({
+      code: `O${tag}`,
+      title: 'Another course',
+      term: 'Test term',
+      institution: 'Test University (fictional)',
+      timeZone: 'UTC',
+    })
     .$returningId()
   const courseId = course!.id
   const [sa] = await db.insert(sections).values({ courseId, name: 'A' }).$returningId()
@@ -112,7 +127,18 @@ export async function seedFixture(ctx: TestContext): Promise<Fixture> {
     { userId: student2.id, courseId, role: 'student', sectionId: sb!.id },
     { userId: outsider.id, courseId: other!.id, role: 'student' },
   ])
-  return { courseId, otherCourseId: other!.id, sectionA: sa!.id, sectionB: sb!.id, instructor, ta, student, student2, outsider, admin }
+  return {
+    courseId,
+    otherCourseId: other!.id,
+    sectionA: sa!.id,
+    sectionB: sb!.id,
+    instructor,
+    ta,
+    student,
+    student2,
+    outsider,
+    admin,
+  }
 }
 
 export interface Client {

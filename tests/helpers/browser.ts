@@ -39,7 +39,11 @@ export async function launchBrowser(): Promise<{ browser: Browser; close: () => 
 }
 
 /** The real app (API + built client) on 127.0.0.1 and a free port, with its mail worker running. */
-export async function serveApp(): Promise<{ url: string; db: ReturnType<typeof createDb>; close: () => Promise<void> }> {
+export async function serveApp(): Promise<{
+  url: string
+  db: ReturnType<typeof createDb>
+  close: () => Promise<void>
+}> {
   // Listen first so the app's public URL (used in e-mail links) has the real port.
   const server: Server = createServer()
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', () => resolve()))
@@ -49,14 +53,28 @@ export async function serveApp(): Promise<{ url: string; db: ReturnType<typeof c
   const handle = createDb(appDbOptions(config))
   const logger = createLogger(config.LOG_LEVEL)
   // The real outbox worker, polling fast so journeys see their e-mail within a second or two.
-  const worker = startOutboxWorker(handle.db, createSmtpSender(config), logger, { ...DEFAULT_OUTBOX_OPTIONS, pollMs: 300 })
+  const worker = startOutboxWorker(handle.db, createSmtpSender(config), logger, {
+    ...DEFAULT_OUTBOX_OPTIONS,
+    pollMs: 300,
+  })
   // The real background grader too, as `npm start` runs it.
   const grader = createGrader(gradingBudget(config))
-  const grading = startGradingWorker(handle.db, gradingContext(handle.db, { grader, logger, appUrl: url, onMailQueued: () => worker.kick() }), {
-    ...DEFAULT_GRADING_WORKER_OPTIONS,
-    pollMs: 500,
+  const grading = startGradingWorker(
+    handle.db,
+    gradingContext(handle.db, { grader, logger, appUrl: url, onMailQueued: () => worker.kick() }),
+    {
+      ...DEFAULT_GRADING_WORKER_OPTIONS,
+      pollMs: 500,
+    },
+  )
+  const created = createApp({
+    config,
+    db: handle.db,
+    logger,
+    grader,
+    onMailQueued: () => worker.kick(),
+    onHandInStored: () => grading.kick(),
   })
-  const created = createApp({ config, db: handle.db, logger, grader, onMailQueued: () => worker.kick(), onHandInStored: () => grading.kick() })
   server.on('request', created.app)
   return {
     url,
@@ -80,7 +98,12 @@ export function screenshotPath(name: string): string {
 }
 
 /** Signs in through the sign-in form and waits for the course list. */
-export async function signIn(page: Page, baseUrl: string, email: string, password = DEFAULT_DEMO_PASSWORD): Promise<void> {
+export async function signIn(
+  page: Page,
+  baseUrl: string,
+  email: string,
+  password = DEFAULT_DEMO_PASSWORD,
+): Promise<void> {
   await page.goto(`${baseUrl}/sign-in`)
   await page.getByLabel('E-mail address').fill(email)
   await page.getByLabel('Password', { exact: true }).fill(password)
@@ -100,5 +123,7 @@ export async function choose(page: Page, name: string, option: string): Promise<
 
 /** No sideways scrolling, once charts have followed a viewport change (chart.js resizes on the next frames). */
 export async function noSideways(page: Page): Promise<void> {
-  await expect.poll(() => page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0)
+  await expect
+    .poll(() => page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth))
+    .toBeLessThanOrEqual(0)
 }

@@ -37,7 +37,12 @@ function seededGaussian(seed: number): () => number {
  * @param opts.noise - a seed: when given, the logger adds Gaussian noise (0.05 N on the thrust,
  *   0.3 kPa on the pressures), so two seeds are two runs and no two logs are alike by chance
  */
-export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; step?: number; noise?: number } = {}): { csv: string; t: number[]; thrust: number[]; finalKPaGauge: number } {
+export function coldFlowCsv(opts: { thrustScale?: number; duration?: number; step?: number; noise?: number } = {}): {
+  csv: string
+  t: number[]
+  thrust: number[]
+  finalKPaGauge: number
+} {
   const noise = opts.noise === undefined ? () => 0 : seededGaussian(opts.noise)
   const pa = COLD_FLOW.ambientKPa * 1000
   const step = opts.step ?? 0.02
@@ -131,7 +136,10 @@ const MAPPING = {
  * independently here (the log's zero is 0 N, so the tared impulse is the plain trapezoid sum), the
  * other results deliberately wrong unless overridden.
  */
-export function coldFlowPayload(log: ReturnType<typeof coldFlowCsv>, overrides: Record<string, { value: number; unit: string }> = {}) {
+export function coldFlowPayload(
+  log: ReturnType<typeof coldFlowCsv>,
+  overrides: Record<string, { value: number; unit: string }> = {},
+) {
   return {
     mappings: MAPPING,
     measurements: {
@@ -141,7 +149,11 @@ export function coldFlowPayload(log: ReturnType<typeof coldFlowCsv>, overrides: 
       v_receiver: { value: COLD_FLOW.volumeL, unit: 'L' },
       // 700 kPa typed in psi: 700 / 6.894757293168 psi (exact psi definition).
       p_initial: { value: 700 / 6.894757293168, unit: 'psi', pressure: 'gauge' as const },
-      p_final: { value: log.finalKPaGauge, unit: 'kPa', pressure: 'gauge' as const } as { value: number; unit: string; pressure?: 'gauge' | 'absolute' },
+      p_final: { value: log.finalKPaGauge, unit: 'kPa', pressure: 'gauge' as const } as {
+        value: number
+        unit: string
+        pressure?: 'gauge' | 'absolute'
+      },
       t_air: { value: COLD_FLOW.airC, unit: 'degC' },
     } as Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>,
     reported: {

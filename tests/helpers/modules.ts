@@ -17,6 +17,9 @@ export async function createModuleAs(c: Client, courseId: number, source: string
 }
 
 export async function publishAs(c: Client, courseId: number, m: CreatedModule): Promise<void> {
-  const res = await c.agent.post(`/api/courses/${courseId}/modules/${m.id}/publish`).set('x-csrf-token', c.csrf).send({ versionId: m.versionId })
+  const res = await c.agent
+    .post(`/api/courses/${courseId}/modules/${m.id}/publish`)
+    .set('x-csrf-token', c.csrf)
+    .send({ versionId: m.versionId })
   if (res.status !== 200) throw new Error(`publish failed: ${res.status} ${JSON.stringify(res.body)}`)
 }

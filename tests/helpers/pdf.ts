@@ -29,7 +29,12 @@ const OP_NAMES = new Map(Object.entries(pdfjs.OPS).map(([name, code]) => [code a
 
 /** Reads a PDF with pdf.js (the legacy build, which runs in Node): text and drawing operators of every page. */
 export async function readPdf(bytes: Buffer): Promise<PdfRead> {
-  const task = pdfjs.getDocument({ data: new Uint8Array(bytes), useSystemFonts: false, disableFontFace: true, verbosity: 0 })
+  const task = pdfjs.getDocument({
+    data: new Uint8Array(bytes),
+    useSystemFonts: false,
+    disableFontFace: true,
+    verbosity: 0,
+  })
   const doc = await task.promise
   const pageTexts: string[] = []
   const operators: Record<string, number>[] = []

@@ -79,26 +79,36 @@ function runNpm(script: string, args: string[] = []): Promise<Ran> {
 /** SQL as the server's root over its socket, the way an operator wipes a database. */
 function rootSql(sql: string): string {
   const socket = path.join(DATA, name, 'run', 'mariadb.sock')
-  const r = spawnSync('mariadb', ['--no-defaults', `--socket=${socket}`, '-uroot', '-N', '-B', '-e', sql], { encoding: 'utf8' })
+  const r = spawnSync('mariadb', ['--no-defaults', `--socket=${socket}`, '-uroot', '-N', '-B', '-e', sql], {
+    encoding: 'utf8',
+  })
   if (r.status !== 0) throw new Error(`root SQL failed: ${r.stderr}`)
   return r.stdout
 }
 
 function tableNames(): string[] {
-  return rootSql(`SELECT table_name FROM information_schema.tables WHERE table_schema = '${server.database}' ORDER BY table_name`)
+  return rootSql(
+    `SELECT table_name FROM information_schema.tables WHERE table_schema = '${server.database}' ORDER BY table_name`,
+  )
     .split('\n')
     .filter((l) => l !== '')
 }
 
 function wipe(): void {
-  rootSql(`DROP DATABASE \`${server.database}\`; CREATE DATABASE \`${server.database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`)
+  rootSql(
+    `DROP DATABASE \`${server.database}\`; CREATE DATABASE \`${server.database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`,
+  )
 }
 
 async function readHandIn() {
   const file = await findFileBytes(handle.db, submissionId, fileId)
   const [fileRow] = await handle.db.select().from(submissionFiles).where(eq(submissionFiles.id, fileId))
   const [subRow] = await handle.db.select().from(submissions).where(eq(submissions.id, submissionId))
-  const [sessionRow] = (await handle.pool.query('SELECT session_id, expires, data FROM sessions'))[0] as { session_id: string; expires: number; data: string }[]
+  const [sessionRow] = (await handle.pool.query('SELECT session_id, expires, data FROM sessions'))[0] as {
+    session_id: string
+    expires: number
+    data: string
+  }[]
   return { file, fileRow, subRow, sessionRow }
 }
 
@@ -111,10 +121,18 @@ function theBackup(): string {
 beforeAll(async () => {
   const port = await freePort()
   name = `backup-test-${port}`
-  server = await startMariaDb({ name, port, database: 'isentrope_backup', user: 'isentrope_backup', password, fresh: true })
+  server = await startMariaDb({
+    name,
+    port,
+    database: 'isentrope_backup',
+    user: 'isentrope_backup',
+    password,
+    fresh: true,
+  })
   // Only this server: the shared test database's variables from `npm test` must not leak in.
   const rest = { ...process.env }
-  for (const key of ['DATABASE_URL', 'DB_HOST', 'DB_PORT', 'DB_NAME', 'DB_USER', 'DB_PASSWORD', 'npm_config_force']) delete rest[key]
+  for (const key of ['DATABASE_URL', 'DB_HOST', 'DB_PORT', 'DB_NAME', 'DB_USER', 'DB_PASSWORD', 'npm_config_force'])
+    delete rest[key]
   workDir = mkdtempSync(path.join(tmpdir(), 'isentrope-backup-test-'))
   backupDir = path.join(workDir, 'backups')
   childEnv = { ...rest, ...dbEnv(server), BACKUP_DIR: backupDir }
@@ -125,15 +143,35 @@ beforeAll(async () => {
 
   handle = createDb({ host: server.host, port: server.port, user: server.user, password, database: server.database })
   const db = handle.db
-  const [user] = await db.insert(users).values({ email: 'student@backup.example', displayName: 'Student B', passwordHash: null }).$returningId()
+  const [user] = await db
+    .insert(users)
+    .values({ email: 'student@backup.example', displayName: 'Student B', passwordHash: null })
+    .$returningId()
   const [course] = await db
     .insert(courses)
-    .values({ code: 'BK1', title: 'Backup course', term: 'Test term', institution: 'Test University (fictional)', timeZone: 'UTC' })
+    .values({
+      code: 'BK1',
+      title: 'Backup course',
+      term: 'Test term',
+      institution: 'Test University (fictional)',
+      timeZone: 'UTC',
+    })
     .$returningId()
-  const [mod] = await db.insert(modules).values({ courseId: course!.id, slug: 'cold-flow', status: 'published' }).$returningId()
+  const [mod] = await db
+    .insert(modules)
+    .values({ courseId: course!.id, slug: 'cold-flow', status: 'published' })
+    .$returningId()
   const [version] = await db
     .insert(moduleVersions)
-    .values({ moduleId: mod!.id, number: 1, status: 'published', source: '# Cold flow', html: '<h1>Cold flow</h1>', title: 'Cold flow', valid: true })
+    .values({
+      moduleId: mod!.id,
+      number: 1,
+      status: 'published',
+      source: '# Cold flow',
+      html: '<h1>Cold flow</h1>',
+      title: 'Cold flow',
+      valid: true,
+    })
     .$returningId()
   submissionId = await insertSubmission(db, {
     courseId: course!.id,
@@ -142,7 +180,10 @@ beforeAll(async () => {
     userId: user!.id,
     labGroupId: null,
     attempt: 1,
-    inputs: { measurements: { throatDiameter: { value: 6.35, unit: 'mm' } }, reported: { peakThrust: { value: 41.2, unit: 'N' } } },
+    inputs: {
+      measurements: { throatDiameter: { value: 6.35, unit: 'mm' } },
+      reported: { peakThrust: { value: 41.2, unit: 'N' } },
+    },
     isLate: false,
     daysLate: 0,
     latePenalty: 0,
@@ -270,7 +311,10 @@ describe('npm run backup and npm run restore', () => {
   }, 60_000)
 
   it('restore --force drops what is there and leaves the database as the dump has it', async () => {
-    await handle.db.update(submissionFiles).set({ bytes: Buffer.from('overwritten'), size: 11 }).where(eq(submissionFiles.id, fileId))
+    await handle.db
+      .update(submissionFiles)
+      .set({ bytes: Buffer.from('overwritten'), size: 11 })
+      .where(eq(submissionFiles.id, fileId))
     await handle.pool.query('CREATE TABLE added_later (id INT PRIMARY KEY)')
     const r = await runNpm('restore', [theBackup(), '--force'])
     expect(r.code).toBe(0)

@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest'
-import { DEMO_GROUPS, DEMO_REPORTING_MISTAKES, DEMO_WRONG_RUNS, coldFlowAssignment, demoRuns } from '../../scripts/demo/demo-runs'
+import {
+  DEMO_GROUPS,
+  DEMO_REPORTING_MISTAKES,
+  DEMO_WRONG_RUNS,
+  coldFlowAssignment,
+  demoRuns,
+} from '../../scripts/demo/demo-runs'
 import type { DemoRun } from '../../scripts/demo/demo-runs'
 import { parseLog } from '../../shared/grading/csv'
 import { gradeSubmission } from '../../shared/grading/grade'
@@ -14,7 +20,9 @@ const runs = demoRuns(assignment)
 function graded(run: DemoRun): GradeResult {
   const parsed = parseLog(run.csv, table, run.mapping)
   if (!parsed.ok) throw new Error(`${run.group}: ${JSON.stringify(parsed.errors)}`)
-  const measurements = Object.fromEntries(assignment.measurements.map((m) => [m.key, valueToSI(run.measurements[m.key] as number, m.unit)]))
+  const measurements = Object.fromEntries(
+    assignment.measurements.map((m) => [m.key, valueToSI(run.measurements[m.key] as number, m.unit)]),
+  )
   return gradeSubmission({
     assignment,
     data: { tables: { [table.key]: parsed.columns }, measurements, pressures: parsed.pressures },
@@ -70,7 +78,11 @@ describe('the demo runs', () => {
   it('carry what a real load cell adds: a zero offset of 0.15–0.4 N, a zero that creeps, and a ring at valve opening', () => {
     const drifts: number[] = []
     for (const run of runs) {
-      const rows = run.csv.trim().split('\n').slice(1).map((l) => l.split(',').map(Number))
+      const rows = run.csv
+        .trim()
+        .split('\n')
+        .slice(1)
+        .map((l) => l.split(',').map(Number))
       const thrust = rows.map((r) => r[1] as number)
       const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[xs.length >> 1] as number
       // The first second (the valve opens at 2 s) and the last second (2 s after the flow stops).
@@ -125,7 +137,10 @@ describe('grading the demo runs', () => {
     )
     for (const group of careful) {
       const r = results.get(group)
-      expect(r?.checks.map((c) => [c.key, c.outcome]), group).toEqual(assignment.results.map((s) => [s.key, 'pass']))
+      expect(
+        r?.checks.map((c) => [c.key, c.outcome]),
+        group,
+      ).toEqual(assignment.results.map((s) => [s.key, 'pass']))
       expect(r?.score).toBe(r?.maxScore)
     }
   })

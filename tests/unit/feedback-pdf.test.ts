@@ -11,7 +11,13 @@ import { pdfFonts, readPdf } from '../helpers/pdf'
 function report(over: Partial<FeedbackReportData> = {}): FeedbackReportData {
   const time = Array.from({ length: 120 }, (_, i) => i * 0.05)
   return {
-    course: { code: 'PRL 341', title: 'Test lab', term: 'Winter 2027', institution: 'Test University (fictional)', timeZone: 'UTC' },
+    course: {
+      code: 'PRL 341',
+      title: 'Test lab',
+      term: 'Winter 2027',
+      institution: 'Test University (fictional)',
+      timeZone: 'UTC',
+    },
     module: { title: 'Cold-flow run', version: 3 },
     owner: { kind: 'student', name: 'Dalia Dunmere' },
     attempt: 1,
@@ -44,7 +50,14 @@ describe('the feedback report layout', () => {
       adjusted: false,
     }))
     const words = Array.from({ length: 900 }, (_, i) => `word${i}`).join(' ')
-    const pdf = await readPdf(await feedbackPdfBuffer(report({ checks, comments: [{ author: 'Ines Vallory', at: new Date(), paragraphs: [words, 'Last paragraph.'] }] })))
+    const pdf = await readPdf(
+      await feedbackPdfBuffer(
+        report({
+          checks,
+          comments: [{ author: 'Ines Vallory', at: new Date(), paragraphs: [words, 'Last paragraph.'] }],
+        }),
+      ),
+    )
     expect(pdf.pages).toBeGreaterThanOrEqual(4)
     pdf.pageTexts.forEach((t, i) => expect(t).toContain(`Page ${i + 1} of ${pdf.pages}`))
     // Every row is printed once, and the header opens each page the table runs onto.
@@ -64,22 +77,27 @@ describe('the feedback report layout', () => {
     expect(runs[0]!.font).toBe('noto-serif-latin-400')
     // Superscript digits come from Noto Serif's math file, even in the mono role.
     expect(fontRuns('10⁻⁵', 'mono').map((r) => r.font)).toEqual(['jetbrains-mono-latin-400', 'noto-serif-math-400'])
-    const bytes = await feedbackPdfBuffer(report({ owner: { kind: 'group', name: 'Group Ø', members: ['Anežka Dvořák', 'Łukasz Żmuda'] } }))
+    const bytes = await feedbackPdfBuffer(
+      report({ owner: { kind: 'group', name: 'Group Ø', members: ['Anežka Dvořák', 'Łukasz Żmuda'] } }),
+    )
     const pdf = await readPdf(bytes)
     expect(pdf.text).toContain('Anežka Dvořák, Łukasz Żmuda')
-    expect(pdfFonts(bytes).baseFonts.every((f) => /^[A-Z]{6}\+(NotoSerif|SourceSans3|JetBrainsMono)-/.test(f))).toBe(true)
+    expect(pdfFonts(bytes).baseFonts.every((f) => /^[A-Z]{6}\+(NotoSerif|SourceSans3|JetBrainsMono)-/.test(f))).toBe(
+      true,
+    )
   })
 })
 
 describe('staff comments as plain text', () => {
   it('keeps the words, drops the markup, and leaves typed HTML as literal text', () => {
-    expect(markdownToParagraphs('**Good run.** Check the [log](https://x.example/l).\n\n1. one\n2. two\n\n<script>alert(1)</script>')).toEqual([
-      'Good run. Check the log (https://x.example/l).',
-      '1. one',
-      '2. two',
-      '<script>alert(1)</script>',
+    expect(
+      markdownToParagraphs(
+        '**Good run.** Check the [log](https://x.example/l).\n\n1. one\n2. two\n\n<script>alert(1)</script>',
+      ),
+    ).toEqual(['Good run. Check the log (https://x.example/l).', '1. one', '2. two', '<script>alert(1)</script>'])
+    expect(markdownToParagraphs('A bare link https://x.example/a and `code`.')).toEqual([
+      'A bare link https://x.example/a and code.',
     ])
-    expect(markdownToParagraphs('A bare link https://x.example/a and `code`.')).toEqual(['A bare link https://x.example/a and code.'])
   })
 })
 
@@ -105,7 +123,9 @@ describe('report helpers', () => {
       postscriptName: string
       glyphForCodePoint(cp: number): { advanceWidth: number }
     }
-    const fontkit = require(require.resolve('fontkit', { paths: [require.resolve('pdfkit')] })) as { create(b: Buffer): Font }
+    const fontkit = require(require.resolve('fontkit', { paths: [require.resolve('pdfkit')] })) as {
+      create(b: Buffer): Font
+    }
     const woff = readFileSync(require.resolve('@fontsource/noto-serif/files/noto-serif-latin-ext-400-normal.woff'))
     const sfnt = woffToSfnt(woff)
     expect(sfnt.readUInt32BE(0)).toBe(woff.readUInt32BE(4))
@@ -113,6 +133,9 @@ describe('report helpers', () => {
     const b = fontkit.create(sfnt)
     expect(b.numGlyphs).toBe(a.numGlyphs)
     expect(b.postscriptName).toBe(a.postscriptName)
-    for (const ch of 'Dvořák ŁŽ') expect(b.glyphForCodePoint(ch.codePointAt(0)!).advanceWidth).toBe(a.glyphForCodePoint(ch.codePointAt(0)!).advanceWidth)
+    for (const ch of 'Dvořák ŁŽ')
+      expect(b.glyphForCodePoint(ch.codePointAt(0)!).advanceWidth).toBe(
+        a.glyphForCodePoint(ch.codePointAt(0)!).advanceWidth,
+      )
   })
 })

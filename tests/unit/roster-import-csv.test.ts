@@ -15,7 +15,13 @@ describe('roster CSV reader', () => {
 
   it('drops a byte-order mark, trims cells and lower-cases e-mail addresses', () => {
     const [r] = rowsOf('\uFEFFEmail , Name\n  Ana.Ruiz@X.Example ,  Ana   Ruiz \n')
-    expect(r).toMatchObject({ email: 'ana.ruiz@x.example', displayName: 'Ana Ruiz', role: 'student', section: null, group: null })
+    expect(r).toMatchObject({
+      email: 'ana.ruiz@x.example',
+      displayName: 'Ana Ruiz',
+      role: 'student',
+      section: null,
+      group: null,
+    })
   })
 
   it('reads tab-separated rows pasted from a spreadsheet, and quoted names with commas', () => {

@@ -24,7 +24,10 @@ describe('sign-in slow-down schedule', () => {
   })
 
   it('counts the time already waited since the last failure', () => {
-    const wait = waitBeforeAttempt({ accountAddress: { failures: 6, sinceLastMs: 1500 }, address: idle, account: idle }, policy)
+    const wait = waitBeforeAttempt(
+      { accountAddress: { failures: 6, sinceLastMs: 1500 }, address: idle, account: idle },
+      policy,
+    )
     expect(wait).toBe(500)
   })
 
@@ -40,8 +43,12 @@ describe('sign-in slow-down schedule', () => {
 
   it('gives an address that already failed on an account under attack only one free failure', () => {
     const once = { failures: 1, sinceLastMs: 0 }
-    expect(waitBeforeAttempt({ accountAddress: once, address: once, account: { failures: 19, sinceLastMs: 0 } }, policy)).toBe(0)
-    expect(waitBeforeAttempt({ accountAddress: once, address: once, account: { failures: 20, sinceLastMs: 0 } }, policy)).toBe(1000)
+    expect(
+      waitBeforeAttempt({ accountAddress: once, address: once, account: { failures: 19, sinceLastMs: 0 } }, policy),
+    ).toBe(0)
+    expect(
+      waitBeforeAttempt({ accountAddress: once, address: once, account: { failures: 20, sinceLastMs: 0 } }, policy),
+    ).toBe(1000)
   })
 
   it('slows an address down for every account once it has failed too often overall', () => {
@@ -87,8 +94,12 @@ describe('sign-in configuration', () => {
   })
 
   it('refuses a cap below the first delay or beyond the window, naming the variable', () => {
-    expect(() => loadConfig({ ...BASE, SIGNIN_FIRST_DELAY_SECONDS: '10', SIGNIN_MAX_DELAY_SECONDS: '5' })).toThrow(/SIGNIN_MAX_DELAY_SECONDS/)
-    expect(() => loadConfig({ ...BASE, SIGNIN_MAX_DELAY_SECONDS: '3600', SIGNIN_WINDOW_MINUTES: '60' })).toThrow(/SIGNIN_MAX_DELAY_SECONDS/)
+    expect(() => loadConfig({ ...BASE, SIGNIN_FIRST_DELAY_SECONDS: '10', SIGNIN_MAX_DELAY_SECONDS: '5' })).toThrow(
+      /SIGNIN_MAX_DELAY_SECONDS/,
+    )
+    expect(() => loadConfig({ ...BASE, SIGNIN_MAX_DELAY_SECONDS: '3600', SIGNIN_WINDOW_MINUTES: '60' })).toThrow(
+      /SIGNIN_MAX_DELAY_SECONDS/,
+    )
     expect(() => loadConfig({ ...BASE, SIGNIN_FREE_FAILURES: 'five' })).toThrow(/SIGNIN_FREE_FAILURES/)
   })
 })

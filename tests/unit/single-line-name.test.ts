@@ -6,18 +6,31 @@ import { CreateCourseSchema } from '../../shared/schemas/courses'
 import { singleLineName, singleLineProblem } from '../../shared/schemas/names'
 
 const Title = singleLineName({ field: 'title', min: 3, max: 200 })
-const messagesOf = (r: { success: boolean; error?: { issues: { message: string }[] } }) => (r.success ? [] : r.error!.issues.map((i) => i.message))
+const messagesOf = (r: { success: boolean; error?: { issues: { message: string }[] } }) =>
+  r.success ? [] : r.error!.issues.map((i) => i.message)
 
 describe('singleLineName: one line of ordinary text', () => {
   it('accepts names in any script, with accents, emoji and joiners, and trims the ends', () => {
-    for (const name of ['Düsentrieb-Müller', 'Øster Ålund', '東京工業大学 推進研究室', 'Ελένη Παπαδοπούλου', 'محمد عبد الله', 'नमस्ते', '👩‍🚀 Lab crew', 'O’Brien, “Ace”', 'Section A/B – 10:00']) {
+    for (const name of [
+      'Düsentrieb-Müller',
+      'Øster Ålund',
+      '東京工業大学 推進研究室',
+      'Ελένη Παπαδοπούλου',
+      'محمد عبد الله',
+      'नमस्ते',
+      '👩‍🚀 Lab crew',
+      'O’Brien, “Ace”',
+      'Section A/B – 10:00',
+    ]) {
       expect(Title.safeParse(name).success, name).toBe(true)
     }
     expect(Title.parse('  Nozzle flow \n')).toBe('Nozzle flow')
   })
 
   it('refuses a line feed and a carriage return inside, naming the field and where', () => {
-    expect(messagesOf(Title.safeParse('Nozzle\nflow'))).toEqual(['The title must be one line of plain text, but it contains a line break at character 7.'])
+    expect(messagesOf(Title.safeParse('Nozzle\nflow'))).toEqual([
+      'The title must be one line of plain text, but it contains a line break at character 7.',
+    ])
     expect(messagesOf(Title.safeParse('Nozzle\r\nflow'))[0]).toContain('carriage return')
   })
 
@@ -52,7 +65,13 @@ describe('singleLineName: one line of ordinary text', () => {
 })
 
 describe('every title and name field uses it', () => {
-  const course = { code: 'AE 4410', title: 'Propulsion lab', term: 'Spring', institution: 'Test University', timeZone: 'UTC' }
+  const course = {
+    code: 'AE 4410',
+    title: 'Propulsion lab',
+    term: 'Spring',
+    institution: 'Test University',
+    timeZone: 'UTC',
+  }
 
   it('course code, title, term and institution', () => {
     for (const field of ['code', 'title', 'term', 'institution'] as const) {
@@ -73,23 +92,39 @@ describe('every title and name field uses it', () => {
 
   it('module titles and labels in the front matter', () => {
     const parsed = parseModuleSource(
-      ['---', 'title: "Nozzle\\nflow"', 'assignment:', '  tables:', '    - key: run', '      label: "Run\\tlog"', '      columns:', '        - { key: t, label: Time, unit: s }', '---', 'Body'].join('\n'),
+      [
+        '---',
+        'title: "Nozzle\\nflow"',
+        'assignment:',
+        '  tables:',
+        '    - key: run',
+        '      label: "Run\\tlog"',
+        '      columns:',
+        '        - { key: t, label: Time, unit: s }',
+        '---',
+        'Body',
+      ].join('\n'),
       'nozzle',
     )
     expect(parsed.ok).toBe(false)
     if (parsed.ok) return
     expect(parsed.errors.map((e) => e.path)).toEqual(['title', 'assignment.tables[0].label'])
-    expect(parsed.errors[0]!.message).toContain('The title must be one line of plain text, but it contains a line break')
+    expect(parsed.errors[0]!.message).toContain(
+      'The title must be one line of plain text, but it contains a line break',
+    )
     expect(parsed.errors[1]!.message).toContain('The label must be one line of plain text, but it contains a tab')
   })
 
   it('display names, sections and groups of a roster import', () => {
-    const csv = 'email,name,section,group\na@x.example,Ada\u001b[2J Lovelace,A,G1\nb@x.example,Bo Li,A\u0000,G1\nc@x.example,Cy Ng,A,"G\n1"\nd@x.example,"Di\nNg",A,G1\n'
+    const csv =
+      'email,name,section,group\na@x.example,Ada\u001b[2J Lovelace,A,G1\nb@x.example,Bo Li,A\u0000,G1\nc@x.example,Cy Ng,A,"G\n1"\nd@x.example,"Di\nNg",A,G1\n'
     const parsed = parseRosterCsv(csv)
     expect(parsed.ok).toBe(true)
     if (!parsed.ok) return
     const problems = parsed.rows.map((r) => r.problems.map((p) => `${p.column}: ${p.message}`))
-    expect(problems[0]!.join(' ')).toMatch(/^name: name: a display name is one line of plain text; this one contains the control character U\+001B/)
+    expect(problems[0]!.join(' ')).toMatch(
+      /^name: name: a display name is one line of plain text; this one contains the control character U\+001B/,
+    )
     expect(problems[1]!.join(' ')).toMatch(/^section: section: .*U\+0000/)
     expect(problems[2]!.join(' ')).toMatch(/^group: group: .*a line break/)
     // A line break inside a quoted name cell has always been read as a space.

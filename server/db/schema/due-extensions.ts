@@ -23,5 +23,8 @@ export const dueExtensions = mysqlTable(
     grantedBy: ref('granted_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },
-  (t) => [uniqueIndex('due_extensions_module_user_uq').on(t.moduleId, t.userId), index('due_extensions_user_idx').on(t.userId)],
+  (t) => [
+    uniqueIndex('due_extensions_module_user_uq').on(t.moduleId, t.userId),
+    index('due_extensions_user_idx').on(t.userId),
+  ],
 )

@@ -1,5 +1,16 @@
 import { sql } from 'drizzle-orm'
-import { boolean, customType, index, int, json, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import {
+  boolean,
+  customType,
+  index,
+  int,
+  json,
+  mysqlEnum,
+  mysqlTable,
+  timestamp,
+  uniqueIndex,
+  varchar,
+} from 'drizzle-orm/mysql-core'
 import { id, ref, timestamps } from './columns'
 import type { ModuleIssueRow } from './modules'
 import { modules } from './modules'
@@ -31,7 +42,10 @@ export const moduleVersions = mysqlTable(
     /** Due instant in UTC (the front matter states it in the course's zone). */
     dueAt: timestamp('due_at', { fsp: 3, mode: 'date' }),
     /** Validation problems; a version with any cannot be published. */
-    issues: json('issues').$type<ModuleIssueRow[]>().notNull().default(sql`('[]')`),
+    issues: json('issues')
+      .$type<ModuleIssueRow[]>()
+      .notNull()
+      .default(sql`('[]')`),
     valid: boolean('valid').notNull().default(false),
     createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
     updatedBy: ref('updated_by').references(() => users.id, { onDelete: 'set null' }),
@@ -39,5 +53,8 @@ export const moduleVersions = mysqlTable(
     publishedBy: ref('published_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },
-  (t) => [uniqueIndex('module_versions_module_number_uq').on(t.moduleId, t.number), index('module_versions_module_idx').on(t.moduleId)],
+  (t) => [
+    uniqueIndex('module_versions_module_number_uq').on(t.moduleId, t.number),
+    index('module_versions_module_idx').on(t.moduleId),
+  ],
 )

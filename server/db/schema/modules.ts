@@ -30,7 +30,10 @@ export const modules = mysqlTable(
     createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },
-  (t) => [uniqueIndex('modules_course_slug_uq').on(t.courseId, t.slug), index('modules_course_status_idx').on(t.courseId, t.status)],
+  (t) => [
+    uniqueIndex('modules_course_slug_uq').on(t.courseId, t.slug),
+    index('modules_course_status_idx').on(t.courseId, t.status),
+  ],
 )
 
 export type ModuleIssueRow = { path: string; message: string; line?: number }

@@ -29,5 +29,8 @@ export const regradeRequests = mysqlTable(
     answeredAt: timestamp('answered_at', { fsp: 3, mode: 'date' }),
     ...timestamps,
   },
-  (t) => [index('regrade_requests_course_status_idx').on(t.courseId, t.status), index('regrade_requests_submission_idx').on(t.submissionId)],
+  (t) => [
+    index('regrade_requests_course_status_idx').on(t.courseId, t.status),
+    index('regrade_requests_submission_idx').on(t.submissionId),
+  ],
 )

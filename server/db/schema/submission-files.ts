@@ -44,5 +44,8 @@ export const submissionFiles = mysqlTable(
     fingerprint: json('fingerprint').$type<LogFingerprint>(),
     ...timestamps,
   },
-  (t) => [index('submission_files_course_sha_idx').on(t.courseId, t.sha256), index('submission_files_submission_idx').on(t.submissionId)],
+  (t) => [
+    index('submission_files_course_sha_idx').on(t.courseId, t.sha256),
+    index('submission_files_submission_idx').on(t.submissionId),
+  ],
 )

@@ -23,5 +23,8 @@ export const submissionFlags = mysqlTable(
     digestedAt: timestamp('digested_at', { fsp: 3, mode: 'date' }),
     ...timestamps,
   },
-  (t) => [index('submission_flags_submission_idx').on(t.submissionId), index('submission_flags_digested_idx').on(t.digestedAt)],
+  (t) => [
+    index('submission_flags_submission_idx').on(t.submissionId),
+    index('submission_flags_digested_idx').on(t.digestedAt),
+  ],
 )

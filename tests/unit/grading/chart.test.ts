@@ -3,7 +3,15 @@ import { CHART_MAX_POINTS, chartSeries } from '../../../shared/grading/grade'
 import type { SubmissionData } from '../../../shared/modules/scope'
 import { nozzleFlow } from '../../../shared/physics'
 import { expectClose } from '../../helpers/expect-close'
-import { EXIT_DIAMETER, STANDARD_ATMOSPHERE, THROAT_AREA, THROAT_DIAMETER, cleanLog, idealThrustCoefficientMach2, rolesAssignment } from './fixtures'
+import {
+  EXIT_DIAMETER,
+  STANDARD_ATMOSPHERE,
+  THROAT_AREA,
+  THROAT_DIAMETER,
+  cleanLog,
+  idealThrustCoefficientMach2,
+  rolesAssignment,
+} from './fixtures'
 
 const assignment = rolesAssignment()
 
@@ -18,7 +26,12 @@ function logFromChamber(chamberAbsolute: number[]): SubmissionData {
         p_chamber: chamberAbsolute.map((p) => p - STANDARD_ATMOSPHERE),
       },
     },
-    measurements: { p_ambient: STANDARD_ATMOSPHERE, d_throat: THROAT_DIAMETER, d_exit: EXIT_DIAMETER, v_receiver: 0.05 },
+    measurements: {
+      p_ambient: STANDARD_ATMOSPHERE,
+      d_throat: THROAT_DIAMETER,
+      d_exit: EXIT_DIAMETER,
+      v_receiver: 0.05,
+    },
   }
 }
 
@@ -38,7 +51,11 @@ describe('chartSeries on a short log', () => {
   })
 
   it('overlays the ideal thrust for the logged chamber pressure: C_F · p0 · At while flowing, 0 at rest', () => {
-    expectClose(chart.idealThrust?.[50] as number, idealThrustCoefficientMach2(1e6, STANDARD_ATMOSPHERE) * 1e6 * THROAT_AREA, 1e-9)
+    expectClose(
+      chart.idealThrust?.[50] as number,
+      idealThrustCoefficientMach2(1e6, STANDARD_ATMOSPHERE) * 1e6 * THROAT_AREA,
+      1e-9,
+    )
     expect(chart.idealThrust?.[0]).toBe(0)
     expect(chart.idealThrust?.[99]).toBe(0)
   })
@@ -110,10 +127,13 @@ describe('chartSeries on a long log', () => {
     expect(chart.thrust).toContain(500)
     expect(chart.thrust).toContain(-50)
     expect(chart.time).toContain(77.77)
-    expect(Math.max(...(chart.chamberPressure ?? []))).toBe(Math.max(...(run.p_chamber as number[])) + STANDARD_ATMOSPHERE)
+    expect(Math.max(...(chart.chamberPressure ?? []))).toBe(
+      Math.max(...(run.p_chamber as number[])) + STANDARD_ATMOSPHERE,
+    )
   })
 
   it('keeps time in order', () => {
-    for (let i = 1; i < chart.time.length; i++) expect(chart.time[i] as number).toBeGreaterThan(chart.time[i - 1] as number)
+    for (let i = 1; i < chart.time.length; i++)
+      expect(chart.time[i] as number).toBeGreaterThan(chart.time[i - 1] as number)
   })
 })

@@ -20,7 +20,10 @@ const assignment = standAssignment()
 const table = assignment.tables[0]!
 const PSI = 4.4482216152605 / 0.00064516
 
-function parsed(log: { csv: string; headers: readonly string[] }, override: Partial<Record<string, { unit: string }>> = {}) {
+function parsed(
+  log: { csv: string; headers: readonly string[] },
+  override: Partial<Record<string, { unit: string }>> = {},
+) {
   const suggested = suggestMapping(log.headers, table)
   const mapping: ColumnMapping = Object.fromEntries(
     Object.entries(suggested).map(([k, e]) => [k, override[k] ? { ...e, ...override[k] } : e]),
@@ -32,7 +35,11 @@ function parsed(log: { csv: string; headers: readonly string[] }, override: Part
 
 function grade(log: StandLog, override: Partial<Record<string, { unit: string }>> = {}): GradeResult {
   const { r } = parsed(log, override)
-  return gradeSubmission({ assignment, data: { tables: { run: r.columns }, measurements: log.measurements, pressures: r.pressures }, reported: {} })
+  return gradeSubmission({
+    assignment,
+    data: { tables: { run: r.columns }, measurements: log.measurements, pressures: r.pressures },
+    reported: {},
+  })
 }
 
 function trapezoid(t: readonly number[], f: readonly number[]): number {
@@ -57,15 +64,18 @@ describe('load cells logged in grams and kilogram-force, mapped as suggested', (
   it.each([
     ['grams', grams],
     ['kilogram-force', kilograms],
-  ])('%s: the thrust arrives in newtons, the impulse is the trapezoid of the true thrust, and no thrust flag is raised', (_, log) => {
-    const { r } = parsed(log)
-    const thrust = r.columns.thrust!
-    thrust.forEach((f, i) => expectClose(f, log.truth.thrustN[i]!, 1e-12, `sample ${i}`))
-    const g = grade(log)
-    expectClose(g.checks[0]!.expected!, trapezoid(log.truth.t, log.truth.thrustN), 1e-9, 'impulse')
-    expect(codes(g)).not.toContain('thrust-below-ideal')
-    expect(codes(g)).not.toContain('thrust-above-ideal')
-  })
+  ])(
+    '%s: the thrust arrives in newtons, the impulse is the trapezoid of the true thrust, and no thrust flag is raised',
+    (_, log) => {
+      const { r } = parsed(log)
+      const thrust = r.columns.thrust!
+      thrust.forEach((f, i) => expectClose(f, log.truth.thrustN[i]!, 1e-12, `sample ${i}`))
+      const g = grade(log)
+      expectClose(g.checks[0]!.expected!, trapezoid(log.truth.t, log.truth.thrustN), 1e-9, 'impulse')
+      expect(codes(g)).not.toContain('thrust-below-ideal')
+      expect(codes(g)).not.toContain('thrust-above-ideal')
+    },
+  )
 })
 
 describe('thrust well below the ideal: a force unit read wrong', () => {
@@ -115,7 +125,10 @@ describe('thrust well below the ideal: a force unit read wrong', () => {
 // ---------------------------------------------------------------------------------------------
 // Near-copies.
 
-function fingerprint(log: { csv: string; headers: readonly string[] }, override: Partial<Record<string, { unit: string }>> = {}): LogFingerprint {
+function fingerprint(
+  log: { csv: string; headers: readonly string[] },
+  override: Partial<Record<string, { unit: string }>> = {},
+): LogFingerprint {
   const fp = logFingerprint(table, parsed(log, override).r.columns)
   if (!fp) throw new Error('no fingerprint')
   // Stored as JSON with the file: compare what comes back.
@@ -212,10 +225,18 @@ describe('near-copies of another group’s log', () => {
 
   it('twelve honest runs, some with a quieter load cell and transducer, give no near-copy among their 66 pairs', () => {
     const runs = Array.from({ length: 12 }, (_, i) =>
-      fingerprint(standLog({ seed: 200 + i, noise: i % 3 === 0 ? 0.01 : 0.08, pressureNoise: i % 3 === 0 ? 50 : 300, startPressure: 8.8e5 + 4e3 * i })),
+      fingerprint(
+        standLog({
+          seed: 200 + i,
+          noise: i % 3 === 0 ? 0.01 : 0.08,
+          pressureNoise: i % 3 === 0 ? 50 : 300,
+          startPressure: 8.8e5 + 4e3 * i,
+        }),
+      ),
     )
     const pairs: string[] = []
-    for (let i = 0; i < runs.length; i++) for (let j = i + 1; j < runs.length; j++) if (nearCopy(runs[i]!, runs[j]!)) pairs.push(`${i}-${j}`)
+    for (let i = 0; i < runs.length; i++)
+      for (let j = i + 1; j < runs.length; j++) if (nearCopy(runs[i]!, runs[j]!)) pairs.push(`${i}-${j}`)
     expect(pairs).toEqual([])
   })
 })
@@ -231,7 +252,8 @@ describe('the demo course’s runs (demo data)', () => {
     })
     const found: string[] = []
     for (let i = 0; i < prints.length; i++) {
-      for (let j = i + 1; j < prints.length; j++) if (nearCopy(prints[i]!.fp, prints[j]!.fp)) found.push([prints[i]!.group, prints[j]!.group].sort().join('~'))
+      for (let j = i + 1; j < prints.length; j++)
+        if (nearCopy(prints[i]!.fp, prints[j]!.fp)) found.push([prints[i]!.group, prints[j]!.group].sort().join('~'))
     }
     const made = DEMO_WRONG_RUNS.flatMap((w) => (w.copiesGroup ? [[w.group, w.copiesGroup].sort().join('~')] : []))
     expect(made.length).toBeGreaterThan(0)

@@ -62,12 +62,16 @@ describe('a log is refused early when it passes a limit, and the message names t
 
   it('19 MB of blank lines before the header, with Windows line endings, the same', () => {
     const text = `${'\r\n'.repeat(MB19 / 2)}${[HEADER, ...rows(6)].join('\r\n')}`
-    expect(only(parseLog(text, table, mapping)).message).toMatch(/^The file has more than 200,001 rows, most of them blank;/)
+    expect(only(parseLog(text, table, mapping)).message).toMatch(
+      /^The file has more than 200,001 rows, most of them blank;/,
+    )
   })
 
   it('19 MB of rows of empty cells (",,") count as blank rows too', () => {
     const text = `${[HEADER, ...rows(6)].join('\n')}\n${',,\n'.repeat(MB19 / 3)}`
-    expect(only(parseLog(text, table, mapping)).message).toMatch(/^The file has more than 200,001 rows, most of them blank;/)
+    expect(only(parseLog(text, table, mapping)).message).toMatch(
+      /^The file has more than 200,001 rows, most of them blank;/,
+    )
   })
 
   it('a line of 5 KB', () => {
@@ -75,7 +79,9 @@ describe('a log is refused early when it passes a limit, and the message names t
     lines[4] = `${'x'.repeat(5000)},${rows(4)[3]}`
     const issue = only(parseLog(lines.join('\n'), table, mapping))
     expect(issue.row).toBe(5)
-    expect(issue.message).toMatch(/^Row 5 is 5,010 characters long; a line of a log may have at most 4,096 characters\./)
+    expect(issue.message).toMatch(
+      /^Row 5 is 5,010 characters long; a line of a log may have at most 4,096 characters\./,
+    )
   })
 
   it('a line of exactly 4,096 characters is read', () => {
@@ -114,7 +120,9 @@ describe('a log is refused early when it passes a limit, and the message names t
 
   it('a column name of 201 characters, after blank lines (the row is the line of the header)', () => {
     const name = 'n'.repeat(201)
-    const issue = only(parseLog(['', '', `${HEADER},${name}`, ...rows(6).map((r) => `${r},0`)].join('\n'), table, mapping))
+    const issue = only(
+      parseLog(['', '', `${HEADER},${name}`, ...rows(6).map((r) => `${r},0`)].join('\n'), table, mapping),
+    )
     expect(issue.row).toBe(3)
     expect(issue.message).toBe(
       `Row 3, the header: the name of column 4, "${'n'.repeat(37)}…", is 201 characters long; a column name may have at most 200. Give the column a short name.`,
@@ -122,7 +130,9 @@ describe('a log is refused early when it passes a limit, and the message names t
   })
 
   it('a column name of 200 characters is read', () => {
-    expect(parseLog([`${HEADER},${'n'.repeat(200)}`, ...rows(6).map((r) => `${r},0`)].join('\n'), table, mapping).ok).toBe(true)
+    expect(
+      parseLog([`${HEADER},${'n'.repeat(200)}`, ...rows(6).map((r) => `${r},0`)].join('\n'), table, mapping).ok,
+    ).toBe(true)
   })
 
   it('a row of 65 values under a header of 3, with and without quote marks in the file', () => {
@@ -134,13 +144,19 @@ describe('a log is refused early when it passes a limit, and the message names t
     const quoted = ['note,t,thrust,p_chamber', ...rows(6).map((r) => `a,${r}`)]
     quoted[1] = `"two\nlines",${rows(1)[0]}`
     quoted[4] = `b,${rows(4)[3]}${',0'.repeat(61)}`
-    expect(only(parseLog(quoted.join('\n'), table, mapping))).toEqual({ row: 6, message: 'Row 6 has 65 values; a log may have at most 64 columns.' })
+    expect(only(parseLog(quoted.join('\n'), table, mapping))).toEqual({
+      row: 6,
+      message: 'Row 6 has 65 values; a log may have at most 64 columns.',
+    })
   })
 
   it('19 MB of commas in rows of 4 KB: the first wide row is named', () => {
     const wide = `0${','.repeat(4000)}`
     const text = `${[HEADER, ...rows(6)].join('\n')}\n${`${wide}\n`.repeat(Math.ceil(MB19 / 4002))}`
-    expect(only(parseLog(text, table, mapping))).toEqual({ row: 8, message: 'Row 8 has 4,001 values; a log may have at most 64 columns.' })
+    expect(only(parseLog(text, table, mapping))).toEqual({
+      row: 8,
+      message: 'Row 8 has 4,001 values; a log may have at most 64 columns.',
+    })
   })
 
   it('reads a file with lone carriage returns (an old Mac export) by its lines', () => {
@@ -159,7 +175,16 @@ describe('messages list at most 10 names and say how many more', () => {
 
   it('a missing column, in a file of 64 columns with long names', () => {
     const names = Array.from({ length: 62 }, (_, i) => `c${i}_${'x'.repeat(50)}`)
-    const issue = only(parseLog([['t', 'thrust', ...names].join(','), ...rows(6).map((r) => `${r.split(',').slice(0, 2).join(',')}${',0'.repeat(62)}`)].join('\n'), table, mapping))
+    const issue = only(
+      parseLog(
+        [
+          ['t', 'thrust', ...names].join(','),
+          ...rows(6).map((r) => `${r.split(',').slice(0, 2).join(',')}${',0'.repeat(62)}`),
+        ].join('\n'),
+        table,
+        mapping,
+      ),
+    )
     expect(issue.column).toBe('p_chamber')
     expect(issue.message).toBe(
       `The file has no column "p_chamber" (chosen for Chamber pressure). Its columns are: "t", "thrust", ${names
@@ -179,9 +204,13 @@ describe('messages list at most 10 names and say how many more', () => {
 
   it('a header from the form of 1 MB is cut in the message and in the column it names', () => {
     const huge = 'h'.repeat(1024 * 1024)
-    const issue = only(parseLog([HEADER, ...rows(6)].join('\n'), table, { ...mapping, thrust: { header: huge, unit: 'N' } }))
+    const issue = only(
+      parseLog([HEADER, ...rows(6)].join('\n'), table, { ...mapping, thrust: { header: huge, unit: 'N' } }),
+    )
     expect(issue.column).toHaveLength(200)
-    expect(issue.message).toMatch(/^The file has no column "h{37}…" \(chosen for Thrust\)\. Its columns are: "t", "thrust", "p_chamber"\.$/)
+    expect(issue.message).toMatch(
+      /^The file has no column "h{37}…" \(chosen for Thrust\)\. Its columns are: "t", "thrust", "p_chamber"\.$/,
+    )
   })
 })
 
@@ -229,7 +258,10 @@ describe('spreadsheet formulas are named as such, once, at their own row', () =>
     lines[5] = '0.004,"4"x,4'
     const list = errors(parseLog(lines.join('\n'), table, mapping))
     expect(list.filter((e) => /quote mark/.test(e.message))).toEqual([
-      { row: 6, message: 'Row 6: a quoted cell is not closed or has a stray quote mark (") in it; check the quote marks.' },
+      {
+        row: 6,
+        message: 'Row 6: a quoted cell is not closed or has a stray quote mark (") in it; check the quote marks.',
+      },
     ])
   })
 })
@@ -242,7 +274,8 @@ describe('values that are not finite once converted to SI', () => {
     expect(issue).toEqual({
       row: 4,
       column: 'p_chamber',
-      message: 'Row 4, column "p_chamber": "1e308" is too large: it is not a finite number once converted to Pa; check the value and the column\'s unit.',
+      message:
+        'Row 4, column "p_chamber": "1e308" is too large: it is not a finite number once converted to Pa; check the value and the column\'s unit.',
     })
   })
 
@@ -250,7 +283,9 @@ describe('values that are not finite once converted to SI', () => {
     const lines = [HEADER, ...rows(6)]
     lines[3] = '0.002,1e308,2'
     const lbf = { ...mapping, thrust: { header: 'thrust', unit: 'lbf' } }
-    expect(only(parseLog(lines.join('\n'), table, lbf)).message).toMatch(/^Row 4, column "thrust": "1e308" is too large: it is not a finite number once converted to N;/)
+    expect(only(parseLog(lines.join('\n'), table, lbf)).message).toMatch(
+      /^Row 4, column "thrust": "1e308" is too large: it is not a finite number once converted to N;/,
+    )
     lines[3] = '0.002,1e300,2'
     expect(parseLog(lines.join('\n'), table, lbf).ok).toBe(true)
   })

@@ -71,19 +71,30 @@ describe('parseLog: a good log', () => {
   })
 
   it('ignores columns of the file that are not mapped, and takes them in any order', () => {
-    const r = parseLog(csv('note,p_chamber,thrust,t', ...GOOD_ROWS.map((row, i) => `x${i},${row.split(',').reverse().join(',')}`)), table, mapping)
+    const r = parseLog(
+      csv('note,p_chamber,thrust,t', ...GOOD_ROWS.map((row, i) => `x${i},${row.split(',').reverse().join(',')}`)),
+      table,
+      mapping,
+    )
     expect(r.ok ? r.columns.t : errors(r)).toEqual([0, 0.1, 0.2, 0.3, 0.4, 0.5])
   })
 
   it('reads a tab-separated export too', () => {
-    const r = parseLog(csv(HEADER.replaceAll(',', '\t'), ...GOOD_ROWS.map((row) => row.replaceAll(',', '\t'))), table, mapping)
+    const r = parseLog(
+      csv(HEADER.replaceAll(',', '\t'), ...GOOD_ROWS.map((row) => row.replaceAll(',', '\t'))),
+      table,
+      mapping,
+    )
     expect(r.ok).toBe(true)
   })
 })
 
 describe('parseLog: units of the file', () => {
   it('converts a psi column for a kPa spec column with 1 psi = 6894.757293168 Pa (exact definition)', () => {
-    const r = parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, p_chamber: { header: 'p_chamber', unit: 'psi' } })
+    const r = parseLog(csv(HEADER, ...GOOD_ROWS), table, {
+      ...mapping,
+      p_chamber: { header: 'p_chamber', unit: 'psi' },
+    })
     if (!r.ok) throw new Error(JSON.stringify(r.errors))
     expectClose(r.columns.p_chamber?.[1] as number, 10 * 6894.757293168, 1e-12)
     expectClose(r.columns.p_chamber?.[5] as number, 50 * PSI, 1e-15)
@@ -102,18 +113,27 @@ describe('parseLog: units of the file', () => {
   })
 
   it('says how each pressure column was read: the spec by default, the mapping when it says otherwise', () => {
-    const r = parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, p_chamber: { header: 'p_chamber', unit: 'kPa', pressure: 'absolute' } })
+    const r = parseLog(csv(HEADER, ...GOOD_ROWS), table, {
+      ...mapping,
+      p_chamber: { header: 'p_chamber', unit: 'kPa', pressure: 'absolute' },
+    })
     expect(r.ok ? r.pressures : {}).toEqual({ p_chamber: 'absolute' })
   })
 
   it('refuses a unit of the wrong kind, naming the column', () => {
-    const issue = only(parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, thrust: { header: 'thrust', unit: 'psi' } }))
+    const issue = only(
+      parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, thrust: { header: 'thrust', unit: 'psi' } }),
+    )
     expect(issue.column).toBe('thrust')
-    expect(issue.message).toBe('Column "thrust" (Thrust): psi measures a pressure, but this column holds a force; choose one of N, kN, kgf, gf, lbf.')
+    expect(issue.message).toBe(
+      'Column "thrust" (Thrust): psi measures a pressure, but this column holds a force; choose one of N, kN, kgf, gf, lbf.',
+    )
   })
 
   it('refuses a unit it does not know', () => {
-    const issue = only(parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, t: { header: 't', unit: 'fortnight' } }))
+    const issue = only(
+      parseLog(csv(HEADER, ...GOOD_ROWS), table, { ...mapping, t: { header: 't', unit: 'fortnight' } }),
+    )
     expect(issue.message).toMatch(/"fortnight" is not a unit Isentrope knows; choose one of s, ms/)
   })
 })
@@ -133,12 +153,16 @@ describe('parseLog: problems with the whole file', () => {
   it('a mapped column missing from the file, listing the columns it has', () => {
     const issue = only(parseLog(csv('t,thrust', '0,0'), table, mapping))
     expect(issue.column).toBe('p_chamber')
-    expect(issue.message).toBe('The file has no column "p_chamber" (chosen for Chamber pressure). Its columns are: "t", "thrust".')
+    expect(issue.message).toBe(
+      'The file has no column "p_chamber" (chosen for Chamber pressure). Its columns are: "t", "thrust".',
+    )
   })
 
   it('a spec column with no file column chosen', () => {
     const { p_chamber: _omitted, ...partial } = mapping
-    expect(only(parseLog(csv(HEADER, ...GOOD_ROWS), table, partial)).message).toMatch(/No column of the file is chosen for Chamber pressure \(p_chamber\)/)
+    expect(only(parseLog(csv(HEADER, ...GOOD_ROWS), table, partial)).message).toMatch(
+      /No column of the file is chosen for Chamber pressure \(p_chamber\)/,
+    )
   })
 
   it('two columns with the chosen name', () => {
@@ -149,11 +173,15 @@ describe('parseLog: problems with the whole file', () => {
   it('a units row right under the header: say so and tell them to delete it', () => {
     const issue = only(parseLog(csv(HEADER, 's,N,kPa', ...GOOD_ROWS), table, mapping))
     expect(issue.row).toBe(2)
-    expect(issue.message).toBe('Row 2 holds units (s, N, kPa), not numbers. Delete that row and upload again; the units are chosen in the column mapping.')
+    expect(issue.message).toBe(
+      'Row 2 holds units (s, N, kPa), not numbers. Delete that row and upload again; the units are chosen in the column mapping.',
+    )
   })
 
   it('a units row in brackets is recognised too', () => {
-    expect(only(parseLog(csv(HEADER, '[s],[N],(kPa)', ...GOOD_ROWS), table, mapping)).message).toMatch(/^Row 2 holds units/)
+    expect(only(parseLog(csv(HEADER, '[s],[N],(kPa)', ...GOOD_ROWS), table, mapping)).message).toMatch(
+      /^Row 2 holds units/,
+    )
   })
 
   it("semicolons between values and ',' as the decimal mark", () => {
@@ -179,7 +207,9 @@ describe('parseLog: problems with the whole file', () => {
   })
 
   it('fewer rows than the table needs', () => {
-    expect(only(parseLog(csv(HEADER, ...GOOD_ROWS.slice(0, 3)), table, mapping)).message).toBe('The log has 3 data rows; Run log needs at least 5.')
+    expect(only(parseLog(csv(HEADER, ...GOOD_ROWS.slice(0, 3)), table, mapping)).message).toBe(
+      'The log has 3 data rows; Run log needs at least 5.',
+    )
   })
 })
 
@@ -205,9 +235,15 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
       [6, 'p_chamber'],
       [7, 'thrust'],
     ])
-    expect(list[0]?.message).toBe('Row 3, column "thrust": "NaN" is not a number; remove the rows where the logger had no reading.')
-    expect(list[1]?.message).toBe('Row 4, column "p_chamber": "Infinity" is not a finite number; remove the rows where the logger had no reading.')
-    expect(list[2]?.message).toBe('Row 5, column "thrust": the cell is empty; every row needs a number in each column used.')
+    expect(list[0]?.message).toBe(
+      'Row 3, column "thrust": "NaN" is not a number; remove the rows where the logger had no reading.',
+    )
+    expect(list[1]?.message).toBe(
+      'Row 4, column "p_chamber": "Infinity" is not a finite number; remove the rows where the logger had no reading.',
+    )
+    expect(list[2]?.message).toBe(
+      'Row 5, column "thrust": the cell is empty; every row needs a number in each column used.',
+    )
     expect(list[4]?.message).toMatch(/"1e999" is not a finite number/)
   })
 
@@ -226,10 +262,30 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
       seed = (seed * 1103515245 + 12345) % 2147483648
       return seed / 2147483648
     }
-    const cells: string[] = ['0', '-0', '0.1', '0.3', '.5', '5.', '+7', '1e22', '1e23', '9007199254740993', '123456789012345', '1234567890123456', '1.7976931348623157e308', '4.9e-324', '0.000001', '1E-22', '1e-23', '  42.5\t']
+    const cells: string[] = [
+      '0',
+      '-0',
+      '0.1',
+      '0.3',
+      '.5',
+      '5.',
+      '+7',
+      '1e22',
+      '1e23',
+      '9007199254740993',
+      '123456789012345',
+      '1234567890123456',
+      '1.7976931348623157e308',
+      '4.9e-324',
+      '0.000001',
+      '1E-22',
+      '1e-23',
+      '  42.5\t',
+    ]
     for (let k = 0; k < 5000; k++) {
       const intPart = String(Math.floor(random() * 10 ** Math.floor(random() * 9)))
-      const frac = random() < 0.8 ? `.${String(Math.floor(random() * 10 ** Math.floor(1 + random() * 9))).padStart(3, '0')}` : ''
+      const frac =
+        random() < 0.8 ? `.${String(Math.floor(random() * 10 ** Math.floor(1 + random() * 9))).padStart(3, '0')}` : ''
       const exp = random() < 0.2 ? `e${random() < 0.5 ? '-' : '+'}${Math.floor(random() * 30)}` : ''
       cells.push(`${random() < 0.3 ? '-' : ''}${intPart}${frac}${exp}`)
     }
@@ -237,7 +293,15 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
   })
 
   it('cells that start like spreadsheet formulas are kept as text and refused, never calculated', () => {
-    const text = csv(HEADER, '0.0,0,0', '0.1,=1+2,10', '0.2,+SUM(A1:A3),20', '0.3,@cmd,30', `0.4,"-2+3",40`, '0.5,=HYPERLINK("x"),50')
+    const text = csv(
+      HEADER,
+      '0.0,0,0',
+      '0.1,=1+2,10',
+      '0.2,+SUM(A1:A3),20',
+      '0.3,@cmd,30',
+      `0.4,"-2+3",40`,
+      '0.5,=HYPERLINK("x"),50',
+    )
     const list = errors(parseLog(text, table, mapping))
     expect(list.map((e) => e.row)).toEqual([3, 4, 5, 6, 7])
     expect(list[0]?.message).toBe(
@@ -247,7 +311,9 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
   })
 
   it('a sign on a number is fine', () => {
-    expect(parseLog(csv(HEADER, '0.0,-0.5,+0', '0.1,+1,10', '0.2,2,20', '0.3,3,30', '0.4,-4,40'), table, mapping).ok).toBe(true)
+    expect(
+      parseLog(csv(HEADER, '0.0,-0.5,+0', '0.1,+1,10', '0.2,2,20', '0.3,3,30', '0.4,-4,40'), table, mapping).ok,
+    ).toBe(true)
   })
 
   it('time not strictly increasing: a repeated and a decreasing time, by row', () => {
@@ -257,18 +323,22 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
       {
         row: 4,
         column: 't',
-        message: 'Row 4, column "t": the time "0.1" does not increase from the row before ("0.1"); times must strictly increase.',
+        message:
+          'Row 4, column "t": the time "0.1" does not increase from the row before ("0.1"); times must strictly increase.',
       },
       {
         row: 6,
         column: 't',
-        message: 'Row 6, column "t": the time "0.25" does not increase from the row before ("0.3"); times must strictly increase.',
+        message:
+          'Row 6, column "t": the time "0.25" does not increase from the row before ("0.3"); times must strictly increase.',
       },
     ])
   })
 
   it('a row with too few or too many values', () => {
-    const list = errors(parseLog(csv(HEADER, '0.0,0,0', '0.1,1', '0.2,2,20,7', '0.3,3,30', '0.4,4,40', '0.5,5,50'), table, mapping))
+    const list = errors(
+      parseLog(csv(HEADER, '0.0,0,0', '0.1,1', '0.2,2,20,7', '0.3,3,30', '0.4,4,40', '0.5,5,50'), table, mapping),
+    )
     expect(list.map((e) => e.message)).toEqual([
       'Row 3 has 2 values, but the header names 3 columns.',
       'Row 4 has 4 values, but the header names 3 columns.',
@@ -276,7 +346,16 @@ describe('parseLog: problems in a row, each naming the row and the column', () =
   })
 
   it('counts rows as a spreadsheet does: blank lines and lines inside a quoted cell count', () => {
-    const text = csv('note,t,thrust,p_chamber', 'a,0.0,0,0', '', 'b,0.1,1,10', '"two', 'lines",0.2,2,20', 'c,0.3,x,30', 'd,0.4,4,40')
+    const text = csv(
+      'note,t,thrust,p_chamber',
+      'a,0.0,0,0',
+      '',
+      'b,0.1,1,10',
+      '"two',
+      'lines",0.2,2,20',
+      'c,0.3,x,30',
+      'd,0.4,4,40',
+    )
     const issue = only(parseLog(text, table, mapping))
     // Line 1 header, 2 a, 3 blank, 4 b, 5–6 the quoted note, 7 the bad row.
     expect(issue.row).toBe(7)
@@ -309,8 +388,16 @@ describe('suggestMapping', () => {
       thrust: { header: 'force_N', unit: 'N' },
       p_chamber: { header: 'pc (psig)', unit: 'psi', pressure: 'gauge' },
     })
-    expect(suggestMapping(['t', 'F', 'p_chamber_kPa'], table).p_chamber).toEqual({ header: 'p_chamber_kPa', unit: 'kPa', pressure: 'gauge' })
-    expect(suggestMapping(['t', 'F', 'P0 [bar a]'], table).p_chamber).toEqual({ header: 'P0 [bar a]', unit: 'bar', pressure: 'absolute' })
+    expect(suggestMapping(['t', 'F', 'p_chamber_kPa'], table).p_chamber).toEqual({
+      header: 'p_chamber_kPa',
+      unit: 'kPa',
+      pressure: 'gauge',
+    })
+    expect(suggestMapping(['t', 'F', 'P0 [bar a]'], table).p_chamber).toEqual({
+      header: 'P0 [bar a]',
+      unit: 'bar',
+      pressure: 'absolute',
+    })
   })
 
   it("proposes the spec's unit when the header has none or one of the wrong kind, and leaves out what it cannot find", () => {
@@ -335,10 +422,14 @@ describe('suggestMapping', () => {
   })
 
   it('a load cell logged in grams, mapped as suggested, gives newtons by 1 gf = 0.00980665 N (exact, from g0)', () => {
-    const r = parseLog(csv('t,load [g],pc', '0,0,0', '0.1,1000,1', '0.2,2500,2'), { ...table, minRows: 2 }, {
-      ...suggestMapping(['t', 'load [g]', 'pc'], table),
-      p_chamber: { header: 'pc', unit: 'kPa', pressure: 'gauge' },
-    })
+    const r = parseLog(
+      csv('t,load [g],pc', '0,0,0', '0.1,1000,1', '0.2,2500,2'),
+      { ...table, minRows: 2 },
+      {
+        ...suggestMapping(['t', 'load [g]', 'pc'], table),
+        p_chamber: { header: 'pc', unit: 'kPa', pressure: 'gauge' },
+      },
+    )
     expect(r.ok).toBe(true)
     if (!r.ok) return
     // 1000 g-force = 1 kgf = 9.80665 N; 2500 gf = 24.516625 N (NIST SP 811: 1 kgf = 9.80665 N).
@@ -381,7 +472,14 @@ describe('sniffBinary', () => {
       const s = sniffBinary(b)
       return s.binary ? s.kind : 'text'
     })
-    expect(kinds).toEqual(['a PDF document', 'a ZIP archive', 'an Office 97–2003 file', 'a gzip archive', 'a JPEG image', 'a GIF image'])
+    expect(kinds).toEqual([
+      'a PDF document',
+      'a ZIP archive',
+      'an Office 97–2003 file',
+      'a gzip archive',
+      'a JPEG image',
+      'a GIF image',
+    ])
   })
 
   it('treats NUL bytes and UTF-16 as not CSV text', () => {

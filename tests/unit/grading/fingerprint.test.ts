@@ -1,5 +1,10 @@
 import { describe, expect, it } from 'vitest'
-import { FINGERPRINT_SAMPLES, NEAR_COPY_MIN_OVERLAP, logFingerprint, nearCopy } from '../../../shared/grading/fingerprint'
+import {
+  FINGERPRINT_SAMPLES,
+  NEAR_COPY_MIN_OVERLAP,
+  logFingerprint,
+  nearCopy,
+} from '../../../shared/grading/fingerprint'
 import { standAssignment } from './stand-logs'
 
 const table = standAssignment().tables[0]!
@@ -18,14 +23,21 @@ function lcg(seed: number): (i: number) => number {
   let x = seed
   for (let i = 0; i < 2000; i++) {
     x = (x * 1103515245 + 12345) % 2147483648
-    values.push(Math.round(((x / 2147483648) - 0.5) * 200) / 1000)
+    values.push(Math.round((x / 2147483648 - 0.5) * 200) / 1000)
   }
   return (i) => values[i] as number
 }
 
 describe('logFingerprint', () => {
   it('takes a window of consecutive samples just after the run starts, with times relative to the start', () => {
-    const fp = logFingerprint(table, log(1000, () => 0, () => 0))!
+    const fp = logFingerprint(
+      table,
+      log(
+        1000,
+        () => 0,
+        () => 0,
+      ),
+    )!
     // The step from 0 to 20 at sample 100 (t = 1.00 s): the median crosses 10 between samples 99 and 100.
     expect(fp.reference).toBeCloseTo(0.995, 9)
     expect(fp.times).toHaveLength(FINGERPRINT_SAMPLES)
@@ -36,29 +48,51 @@ describe('logFingerprint', () => {
 
   it('is null for a log without a time column or shorter than the smallest overlap', () => {
     expect(logFingerprint(table, { thrust: [1, 2, 3] })).toBeNull()
-    const short = log(NEAR_COPY_MIN_OVERLAP - 1, () => 0, () => 0)
+    const short = log(
+      NEAR_COPY_MIN_OVERLAP - 1,
+      () => 0,
+      () => 0,
+    )
     expect(logFingerprint(table, short)).toBeNull()
   })
 })
 
 describe('nearCopy', () => {
   it('two runs whose chamber column is flat (all 0) do not match on it, and do not match at all', () => {
-    const a = logFingerprint(table, log(1000, lcg(1), () => 0))!
-    const b = logFingerprint(table, log(1000, lcg(2), () => 0))!
+    const a = logFingerprint(
+      table,
+      log(1000, lcg(1), () => 0),
+    )!
+    const b = logFingerprint(
+      table,
+      log(1000, lcg(2), () => 0),
+    )!
     expect(nearCopy(a, b)).toBeNull()
   })
 
   it('a smooth, noise-free column logged with many decimals is judged by rounding only: a different smooth curve is not a copy', () => {
-    const a = logFingerprint(table, log(1000, lcg(3), (i) => Math.exp(-i / 500) * 1e5))!
-    const b = logFingerprint(table, log(1000, lcg(4), (i) => Math.exp(-i / 510) * 1.02e5))!
+    const a = logFingerprint(
+      table,
+      log(1000, lcg(3), (i) => Math.exp(-i / 500) * 1e5),
+    )!
+    const b = logFingerprint(
+      table,
+      log(1000, lcg(4), (i) => Math.exp(-i / 510) * 1.02e5),
+    )!
     expect(nearCopy(a, b)).toBeNull()
     // The same noise in the thrust is a copy, whatever the chamber does.
-    const c = logFingerprint(table, log(1000, lcg(3), (i) => Math.exp(-i / 510) * 1.02e5))!
+    const c = logFingerprint(
+      table,
+      log(1000, lcg(3), (i) => Math.exp(-i / 510) * 1.02e5),
+    )!
     expect(nearCopy(a, c)?.columns.map((m) => m.key)).toEqual(['thrust'])
   })
 
   it('pairs samples on the common time base only: the same values at relative times 100 s apart are not a copy', () => {
-    const a = logFingerprint(table, log(1000, lcg(5), () => 0))!
+    const a = logFingerprint(
+      table,
+      log(1000, lcg(5), () => 0),
+    )!
     // b's samples are a's from the middle of the window on, placed 100 s later: paired by position
     // alone they would be identical.
     const half = a.times.length >> 1

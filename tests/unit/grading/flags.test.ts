@@ -3,7 +3,14 @@ import { CHAMBER_ABOVE_RECEIVER_FLOOR, gradeSubmission } from '../../../shared/g
 import type { GradeFlag } from '../../../shared/grading/grade'
 import type { SubmissionData } from '../../../shared/modules/scope'
 import { expectClose } from '../../helpers/expect-close'
-import { STANDARD_ATMOSPHERE, THROAT_AREA, cleanLog, idealThrustCoefficientMach2, rolesAssignment, withColumn } from './fixtures'
+import {
+  STANDARD_ATMOSPHERE,
+  THROAT_AREA,
+  cleanLog,
+  idealThrustCoefficientMach2,
+  rolesAssignment,
+  withColumn,
+} from './fixtures'
 
 const assignment = rolesAssignment()
 
@@ -54,7 +61,9 @@ describe('thrust-above-ideal', () => {
       thrust[i] = IDEAL_AT_1MPA
       chamber[i] = 5e5 - STANDARD_ATMOSPHERE
     }
-    const flag = flagsOf(withColumn(withColumn(clean, 'thrust', thrust), 'p_chamber', chamber)).find((f) => f.code === 'thrust-above-ideal')
+    const flag = flagsOf(withColumn(withColumn(clean, 'thrust', thrust), 'p_chamber', chamber)).find(
+      (f) => f.code === 'thrust-above-ideal',
+    )
     expect(flag?.detail?.sample).toBe(49)
     expect(flag?.detail?.time).toBe(0.48)
     expect(flag?.detail?.chamberPressure).toBe(5e5)
@@ -63,9 +72,17 @@ describe('thrust-above-ideal', () => {
 
   it('fires on thrust logged while the chamber is not above ambient, where the ideal thrust is 0', () => {
     const clean = cleanLog()
-    const flag = flagsOf(withColumn(clean, 'p_chamber', column(clean, 'p_chamber').map(() => 0))).find((f) => f.code === 'thrust-above-ideal')
+    const flag = flagsOf(
+      withColumn(
+        clean,
+        'p_chamber',
+        column(clean, 'p_chamber').map(() => 0),
+      ),
+    ).find((f) => f.code === 'thrust-above-ideal')
     expect(flag?.detail?.idealThrust).toBe(0)
-    expect(flag?.message).toMatch(/was logged while the chamber pressure \(101 kPa absolute\) was not above the ambient pressure/)
+    expect(flag?.message).toMatch(
+      /was logged while the chamber pressure \(101 kPa absolute\) was not above the ambient pressure/,
+    )
   })
 
   it('does not fire within the 10 % margin (1.09 × ideal) and fires just beyond it (1.11 × ideal)', () => {
@@ -83,7 +100,9 @@ describe('pressure-looks-gauge and pressure-looks-absolute', () => {
   })
 
   it('a receiver declared absolute that reads 0 once emptied looks gauge', () => {
-    const flag = flagsOf({ ...cleanLog(), pressures: { p_receiver: 'absolute' } }).find((f) => f.code === 'pressure-looks-gauge')
+    const flag = flagsOf({ ...cleanLog(), pressures: { p_receiver: 'absolute' } }).find(
+      (f) => f.code === 'pressure-looks-gauge',
+    )
     expect(flag?.detail?.column).toBe('p_receiver')
   })
 
@@ -111,7 +130,11 @@ describe('pressure-looks-gauge and pressure-looks-absolute', () => {
 describe('chamber-above-receiver', () => {
   it('fires when the chamber and receiver columns are swapped', () => {
     const clean = cleanLog()
-    const swapped = withColumn(withColumn(clean, 'p_chamber', column(clean, 'p_receiver')), 'p_receiver', column(clean, 'p_chamber'))
+    const swapped = withColumn(
+      withColumn(clean, 'p_chamber', column(clean, 'p_receiver')),
+      'p_receiver',
+      column(clean, 'p_chamber'),
+    )
     const flag = flagsOf(swapped).find((f) => f.code === 'chamber-above-receiver')
     // The largest excess is before the run: chamber column now holds the full receiver, 1.1 MPa.
     expect(flag?.detail?.sample).toBe(1)
@@ -122,7 +145,8 @@ describe('chamber-above-receiver', () => {
   it('without a declared full scale, allows 1 % of each transducer’s peak reading: 1.1 MPa and about 1.07 MPa give about 21.7 kPa, so 21 kPa above passes and 23 kPa is flagged', () => {
     const clean = cleanLog()
     const receiver = column(clean, 'p_receiver')
-    const above = (excess: number) => column(clean, 'p_chamber').map((p, i) => (i >= 10 && i < 90 ? (receiver[i] as number) + excess : p))
+    const above = (excess: number) =>
+      column(clean, 'p_chamber').map((p, i) => (i >= 10 && i < 90 ? (receiver[i] as number) + excess : p))
     expect(codesOf(withColumn(clean, 'p_chamber', above(21_000)))).not.toContain('chamber-above-receiver')
     expect(codesOf(withColumn(clean, 'p_chamber', above(23_000)))).toContain('chamber-above-receiver')
   })
@@ -137,7 +161,9 @@ describe('chamber-above-receiver', () => {
 describe('time-gap', () => {
   function withoutSamples(data: SubmissionData, from: number, count: number): SubmissionData {
     const run = data.tables.run as Record<string, readonly number[]>
-    const cut = Object.fromEntries(Object.entries(run).map(([k, v]) => [k, v.filter((_, i) => i < from || i >= from + count)]))
+    const cut = Object.fromEntries(
+      Object.entries(run).map(([k, v]) => [k, v.filter((_, i) => i < from || i >= from + count)]),
+    )
     return { ...data, tables: { run: cut } }
   }
 
@@ -164,7 +190,8 @@ describe('time-gap', () => {
       for (const s of steps) t.push((t[t.length - 1] as number) + s)
       const sorted = [...steps].sort((x, y) => x - y)
       const n = sorted.length
-      const expected = n % 2 === 1 ? (sorted[n >> 1] as number) : ((sorted[(n >> 1) - 1] as number) + (sorted[n >> 1] as number)) / 2
+      const expected =
+        n % 2 === 1 ? (sorted[n >> 1] as number) : ((sorted[(n >> 1) - 1] as number) + (sorted[n >> 1] as number)) / 2
       const data: SubmissionData = {
         tables: { run: { t, thrust: t.map(() => 0), p_receiver: t.map(() => 0), p_chamber: t.map(() => 0) } },
         measurements: cleanLog().measurements,

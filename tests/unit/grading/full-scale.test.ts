@@ -6,7 +6,10 @@ import type { SubmissionData } from '../../../shared/modules/scope'
 import { cleanLog, rolesAssignment, withColumn } from './fixtures'
 
 /** The roles assignment with full scales (and errors) declared on the two pressure columns. */
-function withFullScale(chamber: Record<string, number | string>, receiver: Record<string, number | string>): Assignment {
+function withFullScale(
+  chamber: Record<string, number | string>,
+  receiver: Record<string, number | string>,
+): Assignment {
   const base = rolesAssignment()
   const table = base.tables[0]!
   return AssignmentSchema.parse({
@@ -14,7 +17,9 @@ function withFullScale(chamber: Record<string, number | string>, receiver: Recor
     tables: [
       {
         ...table,
-        columns: table.columns.map((c) => (c.key === 'p_chamber' ? { ...c, ...chamber } : c.key === 'p_receiver' ? { ...c, ...receiver } : c)),
+        columns: table.columns.map((c) =>
+          c.key === 'p_chamber' ? { ...c, ...chamber } : c.key === 'p_receiver' ? { ...c, ...receiver } : c,
+        ),
       },
     ],
   })
@@ -28,7 +33,11 @@ function column(data: SubmissionData, key: string): number[] {
 function chamberAbove(excess: number): SubmissionData {
   const clean = cleanLog()
   const receiver = column(clean, 'p_receiver')
-  return withColumn(clean, 'p_chamber', column(clean, 'p_chamber').map((p, i) => (i >= 10 && i < 90 ? (receiver[i] as number) + excess : p)))
+  return withColumn(
+    clean,
+    'p_chamber',
+    column(clean, 'p_chamber').map((p, i) => (i >= 10 && i < 90 ? (receiver[i] as number) + excess : p)),
+  )
 }
 
 function flag(assignment: Assignment, data: SubmissionData) {
@@ -66,7 +75,11 @@ describe('chamber-above-receiver: the margin from the transducers’ declared fu
     const col = { key: 'p_c', label: 'Chamber', unit: 'kPa', pressure: 'gauge' }
     expect(ColumnSchema.safeParse({ ...col, fullScale: 1000, fullScaleError: 0.005 }).success).toBe(true)
     expect(ColumnSchema.safeParse({ ...col, fullScale: 0 }).error?.issues[0]?.message).toMatch(/span of the instrument/)
-    expect(ColumnSchema.safeParse({ ...col, fullScale: 1000, fullScaleError: 0.5 }).error?.issues[0]?.message).toMatch(/fraction from 0 to 0.2/)
-    expect(ColumnSchema.safeParse({ ...col, fullScaleError: 0.01 }).error?.issues[0]?.message).toMatch(/needs the full scale too/)
+    expect(ColumnSchema.safeParse({ ...col, fullScale: 1000, fullScaleError: 0.5 }).error?.issues[0]?.message).toMatch(
+      /fraction from 0 to 0.2/,
+    )
+    expect(ColumnSchema.safeParse({ ...col, fullScaleError: 0.01 }).error?.issues[0]?.message).toMatch(
+      /needs the full scale too/,
+    )
   })
 })

@@ -33,10 +33,38 @@ const assignment = AssignmentSchema.parse({
       points: 2,
       partial: { within: 2, fraction: 0.5 },
     },
-    { key: 'first', label: 'Force at the first sample', unit: 'N', expected: 'at(force, 1)', tolerance: { absolute: 0.1 }, points: 1 },
-    { key: 'impulse', label: 'Impulse', unit: 'lbf*s', expected: 'totalImpulse(t, force)', tolerance: { relative: 0.01 }, points: 1 },
-    { key: 'pc_peak', label: 'Peak chamber pressure', unit: 'kPa', expected: 'max(pc)', tolerance: { relative: 0.02, absolute: 5 }, points: 1 },
-    { key: 'sample99', label: 'Force at sample 99', unit: 'N', expected: 'at(force, 99)', tolerance: { relative: 0.05 }, points: 1 },
+    {
+      key: 'first',
+      label: 'Force at the first sample',
+      unit: 'N',
+      expected: 'at(force, 1)',
+      tolerance: { absolute: 0.1 },
+      points: 1,
+    },
+    {
+      key: 'impulse',
+      label: 'Impulse',
+      unit: 'lbf*s',
+      expected: 'totalImpulse(t, force)',
+      tolerance: { relative: 0.01 },
+      points: 1,
+    },
+    {
+      key: 'pc_peak',
+      label: 'Peak chamber pressure',
+      unit: 'kPa',
+      expected: 'max(pc)',
+      tolerance: { relative: 0.02, absolute: 5 },
+      points: 1,
+    },
+    {
+      key: 'sample99',
+      label: 'Force at sample 99',
+      unit: 'N',
+      expected: 'at(force, 99)',
+      tolerance: { relative: 0.05 },
+      points: 1,
+    },
   ],
 })
 
@@ -135,9 +163,22 @@ describe('gradeSubmission: within tolerance, partial credit and failure', () => 
     const small = AssignmentSchema.parse({
       tables: [],
       measurements: [{ key: 'x', label: 'X', unit: '1' }],
-      results: [{ key: 'twice', label: 'Twice x', unit: '1', expected: '2 * x', tolerance: { relative: 0.1, absolute: 0.5 }, points: 1 }],
+      results: [
+        {
+          key: 'twice',
+          label: 'Twice x',
+          unit: '1',
+          expected: '2 * x',
+          tolerance: { relative: 0.1, absolute: 0.5 },
+          points: 1,
+        },
+      ],
     })
-    const result = gradeSubmission({ assignment: small, data: { tables: {}, measurements: { x: 1 } }, reported: { twice: 2.5 } })
+    const result = gradeSubmission({
+      assignment: small,
+      data: { tables: {}, measurements: { x: 1 } },
+      reported: { twice: 2.5 },
+    })
     expect(check(result, 'twice').tolerance).toBe(0.5)
     expect(check(result, 'twice').outcome).toBe('pass')
   })
@@ -200,8 +241,12 @@ describe('gradeSubmission: score and late penalty', () => {
   })
 
   it('throws a ScopeError naming what is missing when the data do not fit the assignment', () => {
-    expect(() => gradeSubmission({ assignment, data: { ...data, measurements: {} }, reported: correct })).toThrow(ScopeError)
-    expect(() => gradeSubmission({ assignment, data: { ...data, measurements: {} }, reported: correct })).toThrow(/"pa" is missing/)
+    expect(() => gradeSubmission({ assignment, data: { ...data, measurements: {} }, reported: correct })).toThrow(
+      ScopeError,
+    )
+    expect(() => gradeSubmission({ assignment, data: { ...data, measurements: {} }, reported: correct })).toThrow(
+      /"pa" is missing/,
+    )
   })
 })
 
@@ -228,7 +273,9 @@ describe('gradeSubmission: review rules', () => {
 
   it('a rule that throws, or gives a number, is an expression-failed flag naming the rule', () => {
     const result = gradeSubmission({ assignment: ruled, data, reported: correct })
-    const failed = result.flags.filter((f) => f.code === 'expression-failed').map((f) => f.detail?.rule ?? f.detail?.result)
+    const failed = result.flags
+      .filter((f) => f.code === 'expression-failed')
+      .map((f) => f.detail?.rule ?? f.detail?.result)
     expect(failed).toEqual(['sample99', 'broken', 'not_boolean'])
   })
 

@@ -15,7 +15,12 @@ describe('gradebook arithmetic', () => {
   })
 
   it('weight 0 leaves a module out, and nothing that counts gives no total', () => {
-    expect(weightedTotal([{ weight: 0, percent: 10, pastDue: true }, { weight: 1, percent: 90, pastDue: false }])).toBe(90)
+    expect(
+      weightedTotal([
+        { weight: 0, percent: 10, pastDue: true },
+        { weight: 1, percent: 90, pastDue: false },
+      ]),
+    ).toBe(90)
     expect(weightedTotal([{ weight: 1, percent: null, pastDue: false }])).toBeNull()
     expect(weightedTotal([{ weight: 0, percent: null, pastDue: true }])).toBeNull()
     expect(weightedTotal([])).toBeNull()

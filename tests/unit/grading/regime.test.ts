@@ -1,6 +1,11 @@
 import { describe, expect, it } from 'vitest'
 import { gradeSubmission } from '../../../shared/grading/grade'
-import { REGIME_CHOICES, acceptsNeighbourRegime, regimeBoundaries, regimeCodeProblem } from '../../../shared/grading/regime'
+import {
+  REGIME_CHOICES,
+  acceptsNeighbourRegime,
+  regimeBoundaries,
+  regimeCodeProblem,
+} from '../../../shared/grading/regime'
 import { validateAssignmentExpressions } from '../../../shared/modules/expressions'
 import { DEFAULT_REGIME_MARGIN, ResultSpecSchema } from '../../../shared/modules/schema'
 import { nozzlePressureRatios } from '../../../shared/physics'
@@ -70,7 +75,9 @@ describe('regime boundaries and the neighbour rule', () => {
       [5, 'Under-expanded'],
     ])
     expect(regimeCodeProblem('Regime', 3)).toBeNull()
-    expect(regimeCodeProblem('Regime', 6)).toMatch(/^Regime: choose one of the regimes \(1 subsonic, 2 shock in the nozzle/)
+    expect(regimeCodeProblem('Regime', 6)).toMatch(
+      /^Regime: choose one of the regimes \(1 subsonic, 2 shock in the nozzle/,
+    )
     expect(regimeCodeProblem('Regime', 2.5)).not.toBeNull()
   })
 })
@@ -124,7 +131,13 @@ describe('a regime result in the grading engine', () => {
 })
 
 describe('the regime block of a result, as a module declares it', () => {
-  const base = { key: 'regime', label: 'Regime', expected: 'regimeCode("ideal")', tolerance: { absolute: 0 }, points: 1 }
+  const base = {
+    key: 'regime',
+    label: 'Regime',
+    expected: 'regimeCode("ideal")',
+    tolerance: { absolute: 0 },
+    points: 1,
+  }
 
   it('needs a pure-number result and a margin from 0 to 0.2', () => {
     expect(ResultSpecSchema.safeParse({ ...base, unit: '1', regime: REGIME }).success).toBe(true)

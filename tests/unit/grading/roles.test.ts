@@ -51,7 +51,11 @@ describe('column and measurement roles in the assignment schema', () => {
         {
           key: 'run',
           label: 'Run',
-          columns: [time, { key: 'f1', label: 'Thrust 1', unit: 'N', role: 'thrust' }, { key: 'f2', label: 'Thrust 2', unit: 'N', role: 'thrust' }],
+          columns: [
+            time,
+            { key: 'f1', label: 'Thrust 1', unit: 'N', role: 'thrust' },
+            { key: 'f2', label: 'Thrust 2', unit: 'N', role: 'thrust' },
+          ],
         },
       ],
     })
@@ -72,14 +76,19 @@ describe('column and measurement roles in the assignment schema', () => {
       ],
     })
     expect(found).toEqual([
-      { path: 'measurements.2.role', message: 'only one measurement can have role: throat-diameter; assignment.measurements[0] (d1) already has it' },
+      {
+        path: 'measurements.2.role',
+        message: 'only one measurement can have role: throat-diameter; assignment.measurements[0] (d1) already has it',
+      },
     ])
   })
 
   it('refuses a second ambient pressure as before', () => {
     const found = issues({ measurements: [barometer, { ...barometer, key: 'p_ambient2' }] })
     expect(found.map((f) => f.path)).toEqual(['measurements.1.role'])
-    expect(found[0]?.message).toMatch(/only one measurement can have role: ambient-pressure; assignment.measurements\[0\] \(p_ambient\)/)
+    expect(found[0]?.message).toMatch(
+      /only one measurement can have role: ambient-pressure; assignment.measurements\[0\] \(p_ambient\)/,
+    )
   })
 
   it('needs a unit of the right kind for each role', () => {
@@ -101,7 +110,10 @@ describe('column and measurement roles in the assignment schema', () => {
       ],
     })
     expect(found).toEqual([
-      { path: 'tables.0.columns.1.unit', message: 'the thrust column must be in a force unit (N, kN, kgf, lbf), not kPa' },
+      {
+        path: 'tables.0.columns.1.unit',
+        message: 'the thrust column must be in a force unit (N, kN, kgf, lbf), not kPa',
+      },
       { path: 'tables.0.columns.2.unit', message: 'the chamber pressure must be in a pressure unit, not N' },
       { path: 'measurements.0.unit', message: 'the throat diameter must be in a length unit (m, mm, cm, in), not mm2' },
       { path: 'measurements.1.unit', message: 'the receiver volume must be in a volume unit (m3, L, gal), not kg' },
@@ -109,7 +121,18 @@ describe('column and measurement roles in the assignment schema', () => {
   })
 
   it('keeps the time column to s or ms, at most one per table', () => {
-    const found = issues({ tables: [{ key: 'run', label: 'Run', columns: [{ ...time, unit: 'N' }, { ...time, key: 't2', unit: 's' }] }] })
+    const found = issues({
+      tables: [
+        {
+          key: 'run',
+          label: 'Run',
+          columns: [
+            { ...time, unit: 'N' },
+            { ...time, key: 't2', unit: 's' },
+          ],
+        },
+      ],
+    })
     expect(found).toEqual([
       { path: 'tables.0.columns.0.unit', message: 'the time column must be in s or ms, not N' },
       { path: 'tables.0.columns.1.role', message: 'a table has at most one column with role: time' },
@@ -120,24 +143,37 @@ describe('column and measurement roles in the assignment schema', () => {
     const split = issues({
       tables: [
         { key: 'a', label: 'A', columns: [time, { key: 'thrust', label: 'Thrust', unit: 'N', role: 'thrust' }] },
-        { key: 'b', label: 'B', columns: [{ key: 'pc', label: 'Chamber', unit: 'kPa', pressure: 'absolute', role: 'chamber-pressure' }] },
+        {
+          key: 'b',
+          label: 'B',
+          columns: [{ key: 'pc', label: 'Chamber', unit: 'kPa', pressure: 'absolute', role: 'chamber-pressure' }],
+        },
       ],
     })
     expect(split).toEqual([
       {
         path: 'tables.1.columns.0.role',
-        message: 'the columns with roles thrust, chamber-pressure and receiver-pressure must be in one table; role: thrust is in assignment.tables[0]',
+        message:
+          'the columns with roles thrust, chamber-pressure and receiver-pressure must be in one table; role: thrust is in assignment.tables[0]',
       },
     ])
-    const untimed = issues({ tables: [{ key: 'a', label: 'A', columns: [{ key: 'thrust', label: 'Thrust', unit: 'N', role: 'thrust' }] }] })
+    const untimed = issues({
+      tables: [{ key: 'a', label: 'A', columns: [{ key: 'thrust', label: 'Thrust', unit: 'N', role: 'thrust' }] }],
+    })
     expect(untimed).toEqual([
-      { path: 'tables.0.columns.0.role', message: 'a column with role: thrust needs a column with role: time in the same table, so its samples have times' },
+      {
+        path: 'tables.0.columns.0.role',
+        message:
+          'a column with role: thrust needs a column with role: time in the same table, so its samples have times',
+      },
     ])
   })
 
   it('refuses a role it does not know', () => {
     const found = issues({ measurements: [{ key: 'x', label: 'X', unit: 'mm', role: 'nozzle-length' }] })
-    expect(found[0]?.message).toBe('a measurement role is one of ambient-pressure, throat-diameter, exit-diameter, receiver-volume')
+    expect(found[0]?.message).toBe(
+      'a measurement role is one of ambient-pressure, throat-diameter, exit-diameter, receiver-volume',
+    )
   })
 })
 

@@ -50,7 +50,11 @@ describe("buildExpressionScope with units: 'si'", () => {
   })
 
   it('follows the sense the submission declares where it differs from the spec', () => {
-    const declared = buildExpressionScope(assignment, { ...si, pressures: { pc: 'absolute', p_initial: 'absolute' } }, { units: 'si' })
+    const declared = buildExpressionScope(
+      assignment,
+      { ...si, pressures: { pc: 'absolute', p_initial: 'absolute' } },
+      { units: 'si' },
+    )
     expect(declared.pc).toBe(pc)
     expect(declared.p_initial).toBe(600_000)
     expect(declared.pr).toEqual([584_000, 484_000, 84_000])
@@ -68,14 +72,14 @@ describe("buildExpressionScope with units: 'si'", () => {
   })
 
   it('refuses an ambient pressure declared gauge, a non-finite sample and a gauge pressure below vacuum', () => {
-    expect(() => buildExpressionScope(assignment, { ...si, pressures: { p_ambient: 'gauge' } }, { units: 'si' })).toThrow(
-      /ambient pressure "p_ambient" must be an absolute \(barometric\) reading/,
-    )
-    expect(() => buildExpressionScope(assignment, { ...si, tables: { run: { t, pc: [0, Number.NaN, 1], pr } } }, { units: 'si' })).toThrow(
-      ScopeError,
-    )
-    expect(() => buildExpressionScope(assignment, { ...si, tables: { run: { t, pc: [0, -90_000, 1], pr } } }, { units: 'si' })).toThrow(
-      /pc\[row 2\]: a gauge pressure of -90000 Pa is below vacuum/,
-    )
+    expect(() =>
+      buildExpressionScope(assignment, { ...si, pressures: { p_ambient: 'gauge' } }, { units: 'si' }),
+    ).toThrow(/ambient pressure "p_ambient" must be an absolute \(barometric\) reading/)
+    expect(() =>
+      buildExpressionScope(assignment, { ...si, tables: { run: { t, pc: [0, Number.NaN, 1], pr } } }, { units: 'si' }),
+    ).toThrow(ScopeError)
+    expect(() =>
+      buildExpressionScope(assignment, { ...si, tables: { run: { t, pc: [0, -90_000, 1], pr } } }, { units: 'si' }),
+    ).toThrow(/pc\[row 2\]: a gauge pressure of -90000 Pa is below vacuum/)
   })
 })

@@ -9,7 +9,15 @@ import type { GradeFlag } from '../../../shared/grading/grade'
 import type { SubmissionData } from '../../../shared/modules/scope'
 import { expectClose } from '../../helpers/expect-close'
 import { expectPrinted } from '../../helpers/printed'
-import { GAMMA, STANDARD_ATMOSPHERE, THROAT_AREA, THROAT_DIAMETER, cleanLog, rolesAssignment, withColumn } from './fixtures'
+import {
+  GAMMA,
+  STANDARD_ATMOSPHERE,
+  THROAT_AREA,
+  THROAT_DIAMETER,
+  cleanLog,
+  rolesAssignment,
+  withColumn,
+} from './fixtures'
 
 const assignment = rolesAssignment()
 const flagOf = (data: SubmissionData): GradeFlag | undefined =>
@@ -21,7 +29,9 @@ const pOverP0 = (m: number) => Math.pow(1 + ((g - 1) / 2) * m * m, -g / (g - 1))
 const machOfPressureRatio = (p: number) => Math.sqrt((2 / (g - 1)) * (Math.pow(p, -(g - 1) / g) - 1))
 const areaRatioOf = (m: number) => Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
 function thrustCoefficient(p2OverP1: number, p3OverP1: number, areaRatio: number): number {
-  const momentum = Math.sqrt(((2 * g * g) / (g - 1)) * Math.pow(2 / (g + 1), (g + 1) / (g - 1)) * (1 - Math.pow(p2OverP1, (g - 1) / g)))
+  const momentum = Math.sqrt(
+    ((2 * g * g) / (g - 1)) * Math.pow(2 / (g + 1), (g + 1) / (g - 1)) * (1 - Math.pow(p2OverP1, (g - 1) / g)),
+  )
   return momentum + (p2OverP1 - p3OverP1) * areaRatio
 }
 function designMach(areaRatio: number): number {

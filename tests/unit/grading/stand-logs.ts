@@ -128,7 +128,10 @@ export function standLog(options: StandLogOptions = {}): StandLog {
 
 /** The log's rows as cells (header first), for making edited copies. */
 export function rowsOf(csv: string): string[][] {
-  return csv.trim().split('\n').map((l) => l.split(','))
+  return csv
+    .trim()
+    .split('\n')
+    .map((l) => l.split(','))
 }
 
 export function csvOf(rows: readonly (readonly string[])[]): string {
@@ -155,6 +158,15 @@ export function standAssignment(): Assignment {
       { key: 'd_throat', label: 'Throat diameter', unit: 'mm', role: 'throat-diameter' },
       { key: 'd_exit', label: 'Exit diameter', unit: 'mm', role: 'exit-diameter' },
     ],
-    results: [{ key: 'impulse', label: 'Total impulse', unit: 'N*s', expected: 'totalImpulse(t, thrust)', tolerance: { relative: 0.03 }, points: 1 }],
+    results: [
+      {
+        key: 'impulse',
+        label: 'Total impulse',
+        unit: 'N*s',
+        expected: 'totalImpulse(t, thrust)',
+        tolerance: { relative: 0.03 },
+        points: 1,
+      },
+    ],
   })
 }

@@ -84,7 +84,8 @@ function truthOf(log: StandLog) {
   const g = (u: number) => (u - log.t0) / log.D
   const start = log.t0 + (log.D * A) / Math.PI
   const end = log.t0 + log.D - (log.D * A) / Math.PI
-  const gWindow = (end - start) / 2 - (log.D / (4 * Math.PI)) * (Math.sin(2 * Math.PI * g(end)) - Math.sin(2 * Math.PI * g(start)))
+  const gWindow =
+    (end - start) / 2 - (log.D / (4 * Math.PI)) * (Math.sin(2 * Math.PI * g(end)) - Math.sin(2 * Math.PI * g(start)))
   const h = 1 / log.rate
   // Each ring sample adds its height × one sample period to the trapezoid sum.
   const ringImpulse = Object.values(log.ring).reduce((sum, f) => sum + f * h, 0)
@@ -109,19 +110,34 @@ function generate(log: StandLog) {
   const t = Array.from({ length: n }, (_, i) => i / log.rate)
   const g = (u: number) => (u >= log.t0 && u <= log.t0 + log.D ? Math.sin((Math.PI * (u - log.t0)) / log.D) ** 2 : 0)
   const zero = (u: number) =>
-    u <= truth.start ? log.zeroBefore : u >= truth.end ? log.zeroAfter : log.zeroBefore + ((log.zeroAfter - log.zeroBefore) * (u - truth.start)) / (truth.end - truth.start)
+    u <= truth.start
+      ? log.zeroBefore
+      : u >= truth.end
+        ? log.zeroAfter
+        : log.zeroBefore + ((log.zeroAfter - log.zeroBefore) * (u - truth.start)) / (truth.end - truth.start)
   const thrust = t.map((u, i) => zero(u) + log.P * g(u) + (log.ring[i] ?? 0) + log.thrustNoise * noise())
   const chamber = t.map((u) => log.chamberZero + CHAMBER_PEAK * g(u) + log.pressureNoise * noise())
   // The receiver: 800 kPa gauge, falling to 120 kPa across the burn.
-  const receiver = t.map((u) => 800_000 - 680_000 * Math.min(1, Math.max(0, (u - log.t0) / log.D)) + log.pressureNoise * noise())
+  const receiver = t.map(
+    (u) => 800_000 - 680_000 * Math.min(1, Math.max(0, (u - log.t0) / log.D)) + log.pressureNoise * noise(),
+  )
   return { t, thrust, chamber, receiver }
 }
 
-function grade(log: StandLog): { result: GradeResult; expected: Record<string, number>; columns: ReturnType<typeof generate> } {
+function grade(log: StandLog): {
+  result: GradeResult
+  expected: Record<string, number>
+  columns: ReturnType<typeof generate>
+} {
   const columns = generate(log)
   const result = gradeSubmission({
     assignment,
-    data: { tables: { run: { t: columns.t, thrust: columns.thrust, p_receiver: columns.receiver, p_chamber: columns.chamber } }, measurements },
+    data: {
+      tables: {
+        run: { t: columns.t, thrust: columns.thrust, p_receiver: columns.receiver, p_chamber: columns.chamber },
+      },
+      measurements,
+    },
     reported: {},
   })
   const expected: Record<string, number> = {}
@@ -148,7 +164,11 @@ const base: StandLog = {
 }
 
 /** Checks every result of the module that the run reduction feeds, against the closed forms. */
-function expectReduction(expected: Record<string, number>, log: StandLog, tol: { impulse: number; peak: number; window: number; cf: number }) {
+function expectReduction(
+  expected: Record<string, number>,
+  log: StandLog,
+  tol: { impulse: number; peak: number; window: number; cf: number },
+) {
   const truth = truthOf(log)
   expectClose(expected.impulse as number, truth.impulse, tol.impulse, 'impulse')
   expectClose(expected.peak_thrust as number, truth.peak, tol.peak, 'peak thrust')
@@ -193,20 +213,66 @@ describe('the cold-flow module on generated stand logs (truth in closed form)', 
   })
 
   it('a 1 kHz short burn (0.3 s) with noise, logged from 0.2 s before to 0.3 s after', () => {
-    const log = { ...base, P: 12, t0: 0.2, D: 0.3, rate: 1000, span: 0.8, zeroBefore: 0.45, zeroAfter: 0.4, chamberZero: -800, thrustNoise: 0.02, pressureNoise: 200, seed: 7 }
+    const log = {
+      ...base,
+      P: 12,
+      t0: 0.2,
+      D: 0.3,
+      rate: 1000,
+      span: 0.8,
+      zeroBefore: 0.45,
+      zeroAfter: 0.4,
+      chamberZero: -800,
+      thrustNoise: 0.02,
+      pressureNoise: 200,
+      seed: 7,
+    }
     const { expected } = grade(log)
     expectReduction(expected, log, { impulse: 3e-3, peak: 5e-3, window: 5e-3, cf: 5e-3 })
   })
 
   it('zero offset, drift, ring and noise together on a 100 Hz log stay well inside every tolerance', () => {
-    const log = { ...base, zeroBefore: 0.25, zeroAfter: 0.33, chamberZero: 1200, ring: { 155: 18, 156: -6, 157: 2 }, thrustNoise: 0.03, pressureNoise: 300, seed: 99 }
+    const log = {
+      ...base,
+      zeroBefore: 0.25,
+      zeroAfter: 0.33,
+      chamberZero: 1200,
+      ring: { 155: 18, 156: -6, 157: 2 },
+      thrustNoise: 0.03,
+      pressureNoise: 300,
+      seed: 99,
+    }
     const { result, expected } = grade(log)
     // A fifth of each result's tolerance at most: 3 % impulse, 2 % peak, 3 % run time and mean, 5 % C_F.
     expectReduction(expected, log, { impulse: 0.006, peak: 0.004, window: 0.006, cf: 0.01 })
     // Reporting the truth gets every point the reduction feeds.
     const truth = truthOf(log)
-    const reported = { impulse: truth.impulse, peak_thrust: truth.peak, burn_time: truth.burnTime, mean_thrust: truth.meanThrust, cf_mean: truth.cf, air_mass: AIR_MASS, isp: truth.isp, exit_mach: 2, regime: 3 }
-    const graded = gradeSubmission({ assignment, data: { tables: { run: { t: generate(log).t, thrust: generate(log).thrust, p_receiver: generate(log).receiver, p_chamber: generate(log).chamber } }, measurements }, reported })
+    const reported = {
+      impulse: truth.impulse,
+      peak_thrust: truth.peak,
+      burn_time: truth.burnTime,
+      mean_thrust: truth.meanThrust,
+      cf_mean: truth.cf,
+      air_mass: AIR_MASS,
+      isp: truth.isp,
+      exit_mach: 2,
+      regime: 3,
+    }
+    const graded = gradeSubmission({
+      assignment,
+      data: {
+        tables: {
+          run: {
+            t: generate(log).t,
+            thrust: generate(log).thrust,
+            p_receiver: generate(log).receiver,
+            p_chamber: generate(log).chamber,
+          },
+        },
+        measurements,
+      },
+      reported,
+    })
     expect(graded.checks.map((c) => [c.key, c.outcome])).toEqual(assignment.results.map((r) => [r.key, 'pass']))
     expect(result.flags.map((f) => f.code)).not.toContain('expression-failed')
   })

@@ -34,7 +34,9 @@ describe('thrust-below-ideal on hand-made plateaus', () => {
 
   it('too short a choked stretch (9 samples) is not judged', () => {
     const clean = cleanLog({ thrustRatio: 0.1 })
-    const chamber = ((clean.tables.run as Record<string, number[]>).p_chamber as number[]).map((p, i) => (i >= 10 && i < 19 ? p : 0))
+    const chamber = ((clean.tables.run as Record<string, number[]>).p_chamber as number[]).map((p, i) =>
+      i >= 10 && i < 19 ? p : 0,
+    )
     expect(belowFlag(withColumn(clean, 'p_chamber', chamber))).toBeUndefined()
   })
 })

@@ -18,9 +18,15 @@ describe('the uncertainty in words and figures', () => {
         { key: 'thrust', part: 'gain', label: 'Thrust', share: 0.24 },
       ]),
     ).toBe("mostly the thrust column's offset (76 %) and gain (24 %)")
-    expect(dominantInputsText([{ key: 'd_throat', part: 'value', label: 'Throat diameter', share: 1 }])).toBe('all from the throat diameter')
-    expect(dominantInputsText([{ key: 'd_throat', part: 'value', label: 'Throat diameter', share: 0.97 }])).toBe('mostly the throat diameter (97 %)')
-    expect(dominantInputsText([{ key: 'co2', part: 'value', label: 'CO2 flow', share: 1 }])).toBe('all from the CO2 flow')
+    expect(dominantInputsText([{ key: 'd_throat', part: 'value', label: 'Throat diameter', share: 1 }])).toBe(
+      'all from the throat diameter',
+    )
+    expect(dominantInputsText([{ key: 'd_throat', part: 'value', label: 'Throat diameter', share: 0.97 }])).toBe(
+      'mostly the throat diameter (97 %)',
+    )
+    expect(dominantInputsText([{ key: 'co2', part: 'value', label: 'CO2 flow', share: 1 }])).toBe(
+      'all from the CO2 flow',
+    )
     expect(dominantInputsText([])).toBeNull()
   })
 

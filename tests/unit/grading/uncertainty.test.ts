@@ -23,7 +23,11 @@ function check(result: GradeResult, key: string): CheckResult {
 }
 
 /** Two measurements, a and b, in N and m, and results over them. */
-function scalarAssignment(results: unknown[], a: unknown = { relative: 0.01 }, b: unknown = { relative: 0.02 }): Assignment {
+function scalarAssignment(
+  results: unknown[],
+  a: unknown = { relative: 0.01 },
+  b: unknown = { relative: 0.02 },
+): Assignment {
   return AssignmentSchema.parse({
     measurements: [
       { key: 'a', label: 'Force', unit: 'N', uncertainty: a },
@@ -38,7 +42,9 @@ const scalarData: SubmissionData = { tables: {}, measurements: { a: 40, b: 0.25,
 
 describe('first-order propagation against closed forms', () => {
   it('a product of two measurements: relative uncertainties add in quadrature', () => {
-    const assignment = scalarAssignment([{ key: 'moment', label: 'Moment', unit: '1', expected: 'a * b', tolerance: { relative: 0.05 }, points: 1 }])
+    const assignment = scalarAssignment([
+      { key: 'moment', label: 'Moment', unit: '1', expected: 'a * b', tolerance: { relative: 0.05 }, points: 1 },
+    ])
     const c = check(gradeSubmission({ assignment, data: scalarData, reported: {} }), 'moment')
     // y = 40 × 0.25 = 10; u/y = √(0.01² + 0.02²).
     expectClose(c.expected as number, 10, 1e-12)
@@ -54,7 +60,9 @@ describe('first-order propagation against closed forms', () => {
   })
 
   it('a quotient of two measurements: relative uncertainties add in quadrature (to first order)', () => {
-    const assignment = scalarAssignment([{ key: 'q', label: 'Quotient', unit: '1', expected: 'a / b', tolerance: { relative: 0.05 }, points: 1 }])
+    const assignment = scalarAssignment([
+      { key: 'q', label: 'Quotient', unit: '1', expected: 'a / b', tolerance: { relative: 0.05 }, points: 1 },
+    ])
     const c = check(gradeSubmission({ assignment, data: scalarData, reported: {} }), 'q')
     // y = 160; u/y = √(0.01² + 0.02²) to first order. The central difference over ±u(b) gives
     // y·(u/b)/(1 − (u/b)²) for b's term: 4 parts in 10⁴ above first order, hence the tolerance.
@@ -64,7 +72,14 @@ describe('first-order propagation against closed forms', () => {
 
   it('the area of a measured diameter: u(A)/A = 2·u(d)/d', () => {
     const assignment = scalarAssignment([
-      { key: 'area', label: 'Throat area', unit: 'mm2', expected: 'areaFromDiameter(d)', tolerance: { relative: 0.01 }, points: 1 },
+      {
+        key: 'area',
+        label: 'Throat area',
+        unit: 'mm2',
+        expected: 'areaFromDiameter(d)',
+        tolerance: { relative: 0.01 },
+        points: 1,
+      },
     ])
     const c = check(gradeSubmission({ assignment, data: scalarData, reported: {} }), 'area')
     // A = π·(6 mm)²/4 = 28.274… mm²; u(d) = 0.01 mm, so u(A) = A·2·0.01/6 (the central difference
@@ -76,7 +91,9 @@ describe('first-order propagation against closed forms', () => {
   })
 
   it('a result that reads no uncertain input has no uncertainty; a module that declares none has no field at all', () => {
-    const assignment = scalarAssignment([{ key: 'plain', label: 'Plain', unit: '1', expected: 'c * 2', tolerance: { relative: 0.05 }, points: 1 }])
+    const assignment = scalarAssignment([
+      { key: 'plain', label: 'Plain', unit: '1', expected: 'c * 2', tolerance: { relative: 0.05 }, points: 1 },
+    ])
     const c = check(gradeSubmission({ assignment, data: scalarData, reported: {} }), 'plain')
     expect(c.uncertainty).toBeNull()
 
@@ -84,7 +101,10 @@ describe('first-order propagation against closed forms', () => {
       measurements: [{ key: 'a', label: 'Force', unit: 'N' }],
       results: [{ key: 'f', label: 'Force', unit: 'N', expected: 'a', tolerance: { relative: 0.05 }, points: 1 }],
     })
-    const plain = check(gradeSubmission({ assignment: none, data: { tables: {}, measurements: { a: 3 } }, reported: { f: 3 } }), 'f')
+    const plain = check(
+      gradeSubmission({ assignment: none, data: { tables: {}, measurements: { a: 3 } }, reported: { f: 3 } }),
+      'f',
+    )
     expect('uncertainty' in plain).toBe(false)
     expect(propagateUncertainties(none, { tables: {}, measurements: { a: 3 } }, { a: 3 })).toBeNull()
   })
@@ -101,12 +121,25 @@ function logAssignment(thrust: unknown, chamber: unknown, barometer: unknown, re
         columns: [
           { key: 't', label: 'Time', unit: 's', role: 'time' },
           { key: 'thrust', label: 'Thrust', unit: 'N', role: 'thrust', ...(thrust ? { uncertainty: thrust } : {}) },
-          { key: 'pc', label: 'Chamber pressure', unit: 'kPa', pressure: 'gauge', ...(chamber ? { uncertainty: chamber } : {}) },
+          {
+            key: 'pc',
+            label: 'Chamber pressure',
+            unit: 'kPa',
+            pressure: 'gauge',
+            ...(chamber ? { uncertainty: chamber } : {}),
+          },
         ],
       },
     ],
     measurements: [
-      { key: 'pa', label: 'Barometric pressure', unit: 'kPa', pressure: 'absolute', role: 'ambient-pressure', ...(barometer ? { uncertainty: barometer } : {}) },
+      {
+        key: 'pa',
+        label: 'Barometric pressure',
+        unit: 'kPa',
+        pressure: 'absolute',
+        role: 'ambient-pressure',
+        ...(barometer ? { uncertainty: barometer } : {}),
+      },
       { key: 'p_before', label: 'Receiver before', unit: 'kPa', pressure: 'gauge' },
       { key: 'p_after', label: 'Receiver after', unit: 'kPa', pressure: 'gauge' },
     ],
@@ -129,7 +162,14 @@ const IMPULSE = 90
 const DURATION = 3
 
 describe('columns: an offset and a gain shared by every sample', () => {
-  const impulse = { key: 'impulse', label: 'Total impulse', unit: 'N*s', expected: 'totalImpulse(t, thrust)', tolerance: { relative: 0.03 }, points: 1 }
+  const impulse = {
+    key: 'impulse',
+    label: 'Total impulse',
+    unit: 'N*s',
+    expected: 'totalImpulse(t, thrust)',
+    tolerance: { relative: 0.03 },
+    points: 1,
+  }
 
   it('a column gain on an integral: the relative uncertainty carries through', () => {
     const assignment = logAssignment({ relative: 0.01 }, null, null, [impulse])
@@ -157,8 +197,22 @@ describe('columns: an offset and a gain shared by every sample', () => {
   })
 
   it('a gauge transducer’s gain multiplies the gauge reading, and the barometer moves every gauge reading', () => {
-    const peak = { key: 'pc_peak', label: 'Peak chamber pressure', unit: 'kPa', expected: 'max(pc)', tolerance: { relative: 0.02 }, points: 1 }
-    const used = { key: 'used', label: 'Pressure drop', unit: 'kPa', expected: 'p_before - p_after', tolerance: { relative: 0.02 }, points: 1 }
+    const peak = {
+      key: 'pc_peak',
+      label: 'Peak chamber pressure',
+      unit: 'kPa',
+      expected: 'max(pc)',
+      tolerance: { relative: 0.02 },
+      points: 1,
+    }
+    const used = {
+      key: 'used',
+      label: 'Pressure drop',
+      unit: 'kPa',
+      expected: 'p_before - p_after',
+      tolerance: { relative: 0.02 },
+      points: 1,
+    }
     const assignment = logAssignment(null, { relative: 0.01, absolute: 2 }, { absolute: 0.1 }, [peak, used])
     const result = gradeSubmission({ assignment, data: logData, reported: {} })
     const c = check(result, 'pc_peak')
@@ -177,19 +231,41 @@ describe('columns: an offset and a gain shared by every sample', () => {
     // A nonlinear result over a gauge column, the barometer and the thrust: the engine moves scope
     // entries in place; here the data themselves are moved and the scope built again from them.
     const expr = 'totalImpulse(t, thrust) / (mean(pc) * 0.0001) + pa / max(pc)'
-    const assignment = logAssignment({ absolute: 0.05, relative: 0.01 }, { absolute: 2, relative: 0.01 }, { absolute: 0.1 }, [
-      { key: 'x', label: 'Mixed', unit: '1', expected: expr, tolerance: { relative: 0.02 }, points: 1 },
-    ])
+    const assignment = logAssignment(
+      { absolute: 0.05, relative: 0.01 },
+      { absolute: 2, relative: 0.01 },
+      { absolute: 0.1 },
+      [{ key: 'x', label: 'Mixed', unit: '1', expected: expr, tolerance: { relative: 0.02 }, points: 1 }],
+    )
     const run = logData.tables.run!
-    const f = (data: SubmissionData) => evaluateExpression(expr, buildExpressionScope(assignment, data, { units: 'si' })) as number
-    const moveColumn = (key: string, g: (v: number) => number): SubmissionData => ({ ...logData, tables: { run: { ...run, [key]: run[key]!.map(g) } } })
+    const f = (data: SubmissionData) =>
+      evaluateExpression(expr, buildExpressionScope(assignment, data, { units: 'si' })) as number
+    const moveColumn = (key: string, g: (v: number) => number): SubmissionData => ({
+      ...logData,
+      tables: { run: { ...run, [key]: run[key]!.map(g) } },
+    })
     const z = (up: SubmissionData, down: SubmissionData) => (f(up) - f(down)) / 2
     const expected = [
-      z(moveColumn('thrust', (v) => v + 0.05), moveColumn('thrust', (v) => v - 0.05)),
-      z(moveColumn('thrust', (v) => v * 1.01), moveColumn('thrust', (v) => v * 0.99)),
-      z(moveColumn('pc', (v) => v + 2000), moveColumn('pc', (v) => v - 2000)),
-      z(moveColumn('pc', (v) => v * 1.01), moveColumn('pc', (v) => v * 0.99)),
-      z({ ...logData, measurements: { ...logData.measurements, pa: 84e3 + 100 } }, { ...logData, measurements: { ...logData.measurements, pa: 84e3 - 100 } }),
+      z(
+        moveColumn('thrust', (v) => v + 0.05),
+        moveColumn('thrust', (v) => v - 0.05),
+      ),
+      z(
+        moveColumn('thrust', (v) => v * 1.01),
+        moveColumn('thrust', (v) => v * 0.99),
+      ),
+      z(
+        moveColumn('pc', (v) => v + 2000),
+        moveColumn('pc', (v) => v - 2000),
+      ),
+      z(
+        moveColumn('pc', (v) => v * 1.01),
+        moveColumn('pc', (v) => v * 0.99),
+      ),
+      z(
+        { ...logData, measurements: { ...logData.measurements, pa: 84e3 + 100 } },
+        { ...logData, measurements: { ...logData.measurements, pa: 84e3 - 100 } },
+      ),
     ]
     const c = check(gradeSubmission({ assignment, data: logData, reported: {} }), 'x')
     expectClose(c.uncertainty!.standard, Math.sqrt(expected.reduce((s, v) => s + v * v, 0)), 1e-9)
@@ -201,10 +277,25 @@ describe('coverage tolerances: k × u_c with the relative and absolute tolerance
   const area = (Math.PI * 36) / 4
   const u = area * 2 * (0.01 / 6)
   const assignment = scalarAssignment([
-    { key: 'area', label: 'Throat area', unit: 'mm2', expected: 'areaFromDiameter(d)', tolerance: { relative: 0.001, coverage: 2 }, points: 2 },
-    { key: 'wide', label: 'Throat area, wide floor', unit: 'mm2', expected: 'areaFromDiameter(d)', tolerance: { relative: 0.05, coverage: 2 }, points: 1 },
+    {
+      key: 'area',
+      label: 'Throat area',
+      unit: 'mm2',
+      expected: 'areaFromDiameter(d)',
+      tolerance: { relative: 0.001, coverage: 2 },
+      points: 2,
+    },
+    {
+      key: 'wide',
+      label: 'Throat area, wide floor',
+      unit: 'mm2',
+      expected: 'areaFromDiameter(d)',
+      tolerance: { relative: 0.05, coverage: 2 },
+      points: 1,
+    },
   ])
-  const grade = (reported: number) => gradeSubmission({ assignment, data: scalarData, reported: { area: reported, wide: reported } })
+  const grade = (reported: number) =>
+    gradeSubmission({ assignment, data: scalarData, reported: { area: reported, wide: reported } })
 
   it('passes at 1.9 U and fails at 2.1 U (k = 2; U = u_c here)', () => {
     const pass = check(grade(area + 1.9 * u), 'area')
@@ -248,7 +339,9 @@ describe('expression parts: reuse never changes a value', () => {
   it('a perturbation that leaves the expression’s domain on one side uses the other side', () => {
     // sqrt(b − 0.25) is 0 at b = 0.25 and NaN (not finite) below: the upward side alone gives the
     // slope, (√u − 0)·(u/u) with u = 0.02 × 0.25 = 0.005 (a one-sided difference).
-    const assignment = scalarAssignment([{ key: 's', label: 'Root', unit: '1', expected: 'sqrt(b - 0.25)', tolerance: { absolute: 1 }, points: 1 }])
+    const assignment = scalarAssignment([
+      { key: 's', label: 'Root', unit: '1', expected: 'sqrt(b - 0.25)', tolerance: { absolute: 1 }, points: 1 },
+    ])
     const c = check(gradeSubmission({ assignment, data: scalarData, reported: { s: 0 } }), 's')
     expect(c.outcome).toBe('pass')
     expectClose(c.uncertainty!.standard, Math.sqrt(0.005), 1e-9)

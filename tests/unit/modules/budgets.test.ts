@@ -12,7 +12,11 @@ import { MAX_EXPRESSION_LENGTH, MAX_LIST_VALUES, MAX_RESULTS, MAX_REVIEW_RULES }
 
 const module = (frontMatter: string[]) => ['---', ...frontMatter, '---', '# Lab'].join('\n')
 
-function spec(opts: { minRows?: number; results?: { key: string; expected: string }[]; rules?: { key: string; when: string }[] }): string[] {
+function spec(opts: {
+  minRows?: number
+  results?: { key: string; expected: string }[]
+  rules?: { key: string; when: string }[]
+}): string[] {
   const lines = [
     'title: Budget lab',
     'assignment:',
@@ -26,11 +30,19 @@ function spec(opts: { minRows?: number; results?: { key: string; expected: strin
     '  results:',
   ]
   for (const r of opts.results ?? [{ key: 'impulse', expected: 'totalImpulse(t, thrust)' }]) {
-    lines.push(`    - key: ${r.key}`, '      label: A result', '      unit: N', `      expected: "${r.expected}"`, '      tolerance: { relative: 0.05 }', '      points: 1')
+    lines.push(
+      `    - key: ${r.key}`,
+      '      label: A result',
+      '      unit: N',
+      `      expected: "${r.expected}"`,
+      '      tolerance: { relative: 0.05 }',
+      '      points: 1',
+    )
   }
   if (opts.rules) {
     lines.push('  reviewRules:')
-    for (const r of opts.rules) lines.push(`    - key: ${r.key}`, `      when: "${r.when}"`, '      reason: Looks wrong.')
+    for (const r of opts.rules)
+      lines.push(`    - key: ${r.key}`, `      when: "${r.when}"`, '      reason: Looks wrong.')
   }
   return lines
 }
@@ -51,7 +63,9 @@ describe('expression length', () => {
   // 1 + 1 + … + 1: 2001 characters.
   const long = `${'1 + '.repeat(500)}1`
   it('an expected-value expression over 2000 characters is refused, naming the result and the limit', () => {
-    const [issue, ...rest] = issuesOf({ results: [{ key: 'impulse', expected: `totalImpulse(t, thrust) + ${'0 + '.repeat(500)}0` }] })
+    const [issue, ...rest] = issuesOf({
+      results: [{ key: 'impulse', expected: `totalImpulse(t, thrust) + ${'0 + '.repeat(500)}0` }],
+    })
     expect(rest).toEqual([])
     expect(issue!.path).toBe('assignment.results[0].expected')
     expect(issue!.message).toMatch(/result "impulse": the expression has 2\d{3} characters; at most 2000 are allowed/)
@@ -75,11 +89,16 @@ describe('values written out in one list', () => {
     const issues = issuesOf({ results: [{ key: 'weighted', expected: `sum(${list(65)}) * max(thrust)` }] })
     expect(issues).toHaveLength(1)
     expect(issues[0]!.path).toBe('assignment.results[0].expected')
-    expect(issues[0]!.message).toContain('result "weighted": a list written out in the expression has 65 values; at most 64')
+    expect(issues[0]!.message).toContain(
+      'result "weighted": a list written out in the expression has 65 values; at most 64',
+    )
   })
 
   it('a 200-row column matrix times a logged column is refused before anything runs it', () => {
-    const issues = issuesOf({ results: [{ key: 'blowup', expected: `sum(${columnMatrix(200)} * [thrust])` }], rules: [{ key: 'nested', when: `sum([${list(40)}, ${list(40)}]) > 0` }] })
+    const issues = issuesOf({
+      results: [{ key: 'blowup', expected: `sum(${columnMatrix(200)} * [thrust])` }],
+      rules: [{ key: 'nested', when: `sum([${list(40)}, ${list(40)}]) > 0` }],
+    })
     expect(issues.map((i) => i.path)).toEqual(['assignment.results[0].expected', 'assignment.reviewRules[0].when'])
     expect(issues[0]!.message).toContain('has 200 values; at most 64')
     // The entries of nested lists count together: 2 × 40 = 80.
@@ -120,7 +139,9 @@ describe('how many results and review rules', () => {
     const issues = issuesOf({ rules: rules(41) })
     expect(issues).toHaveLength(1)
     expect(issues[0]!.path).toBe('assignment.reviewRules')
-    expect(issues[0]!.message).toContain('at most 40 review rules; this one has 41; the first over the limit is "rule41"')
+    expect(issues[0]!.message).toContain(
+      'at most 40 review rules; this one has 41; the first over the limit is "rule41"',
+    )
   })
 })
 
@@ -128,7 +149,9 @@ describe('the trial run at save time uses small made-up tables', () => {
   // sum(thrust ./ thrust) is the number of rows: this is finite on a small table and infinite on
   // one of exactly 2000 rows, so it shows which one the trial ran on.
   it('with minRows: 2000 the expressions are not run on a 2000-row table', () => {
-    expect(issuesOf({ minRows: 2000, results: [{ key: 'rows', expected: '1 / (sum(thrust ./ thrust) - 2000)' }] })).toEqual([])
+    expect(
+      issuesOf({ minRows: 2000, results: [{ key: 'rows', expected: '1 / (sum(thrust ./ thrust) - 2000)' }] }),
+    ).toEqual([])
   })
 
   it('an expression that counts on the rows minRows promises is still accepted', () => {

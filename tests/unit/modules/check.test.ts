@@ -26,11 +26,17 @@ const SPEC = [
 ]
 
 describe('checkModule', () => {
-  const checked = checkModule(module(SPEC, ['# Lab', '', '```calculator warp', '```', '', 'Text $x$.']), 'small-lab', 'America/Denver')
+  const checked = checkModule(
+    module(SPEC, ['# Lab', '', '```calculator warp', '```', '', 'Text $x$.']),
+    'small-lab',
+    'America/Denver',
+  )
 
   it('reports an expression problem with the module name, the path and the line of the expression', () => {
     const issue = checked.issues.find((i) => i.path === 'assignment.results[0].expected')
-    expect(issue?.message).toContain('small-lab: assignment.results[0].expected: unknown name "thust" — did you mean thrust?')
+    expect(issue?.message).toContain(
+      'small-lab: assignment.results[0].expected: unknown name "thust" — did you mean thrust?',
+    )
     // Line 1 is ---, so the expected line (YAML line 13) is source line 14.
     expect(issue?.line).toBe(14)
   })
@@ -59,7 +65,11 @@ describe('checkModule', () => {
     expect(c.issues).toEqual([])
     // 09:30 MST (UTC−7) is 16:30 UTC.
     expect(c.dueAt?.toISOString()).toBe('2027-01-15T16:30:00.000Z')
-    const zoned = checkModule(module(['title: Due', 'due: { at: 2027-01-15T09:30, timeZone: Europe/Berlin }'], ['Body']), 'due', 'America/Denver')
+    const zoned = checkModule(
+      module(['title: Due', 'due: { at: 2027-01-15T09:30, timeZone: Europe/Berlin }'], ['Body']),
+      'due',
+      'America/Denver',
+    )
     // 09:30 CET (UTC+1) is 08:30 UTC.
     expect(zoned.dueAt?.toISOString()).toBe('2027-01-15T08:30:00.000Z')
   })

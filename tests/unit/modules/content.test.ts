@@ -12,7 +12,9 @@ import { expectClose } from '../../helpers/expect-close'
 import { scanTags } from './html-scan'
 
 const CONTENT = join(import.meta.dirname, '../../../content')
-const files = readdirSync(CONTENT).filter((f) => f.endsWith('.md')).sort()
+const files = readdirSync(CONTENT)
+  .filter((f) => f.endsWith('.md'))
+  .sort()
 
 function load(file: string): { frontMatter: ModuleFrontMatter; body: string } {
   const parsed = parseModuleSource(readFileSync(join(CONTENT, file), 'utf8'), file)
@@ -66,9 +68,19 @@ describe('the demo modules in content/', () => {
     const { frontMatter, body } = load('01-nozzle-flow-fundamentals.md')
     expect(frontMatter.assignment).toBeUndefined()
     const calculators = scanTags(renderModule(body)).filter((t) => t.attributes.class === 'isentrope-calculator')
-    expect(calculators.map((c) => c.attributes['data-kind'])).toEqual(['isentropic', 'blowdown', 'nozzle', 'normal-shock'])
+    expect(calculators.map((c) => c.attributes['data-kind'])).toEqual([
+      'isentropic',
+      'blowdown',
+      'nozzle',
+      'normal-shock',
+    ])
     const nozzle = JSON.parse(calculators[2]?.attributes['data-defaults'] ?? '{}') as Record<string, unknown>
-    expect(nozzle).toMatchObject({ chamberPressure: 500, chamberPressureReading: 'gauge', throatDiameter: 4, exitDiameter: 4.9 })
+    expect(nozzle).toMatchObject({
+      chamberPressure: 500,
+      chamberPressureReading: 'gauge',
+      throatDiameter: 4,
+      exitDiameter: 4.9,
+    })
   })
 
   it('the due dates are early 2027 in Denver: 17:00 MST is 00:00 UTC the next day, 17:00 MDT is 23:00 UTC', () => {
@@ -132,7 +144,13 @@ function coldRun(thrustN: number): SubmissionData {
 // - inside the window: 0.19 s from 0.05F to F twice, 0.19·1.05F/2 each, plus 8·F: 8.1995·F N·s;
 // - chamber: zero 2 kPa taken, so 84 kPa absolute at rest and 484 kPa in the run; inside the window
 //   0.19·(104 + 484)/2 twice (104 kPa = 84 + 0.05·400 at the window's ends) plus 8·484 = 3983.72 kPa·s.
-const hand = (F: number) => ({ impulse: 8.2 * F, peak: F, runTime: 8.38, window: 8.1995 * F, chamberIntegral: 3_983_720 })
+const hand = (F: number) => ({
+  impulse: 8.2 * F,
+  peak: F,
+  runTime: 8.38,
+  window: 8.1995 * F,
+  chamberIntegral: 3_983_720,
+})
 
 describe('the cold-flow module grades a run worked out by hand', () => {
   const assignment = assignmentOf('02-cold-flow-characterisation.md')
@@ -180,7 +198,17 @@ describe('the cold-flow module grades a run worked out by hand', () => {
     expect(expected('regime', run)).toBe(3)
   })
 
-  const results = { impulse: 82, peak_thrust: 10, burn_time: 8.38, mean_thrust: 9.78, cf_mean: 1.64, air_mass: 0.297, isp: 28.1, exit_mach: 2, regime: 3 }
+  const results = {
+    impulse: 82,
+    peak_thrust: 10,
+    burn_time: 8.38,
+    mean_thrust: 9.78,
+    cf_mean: 1.64,
+    air_mass: 0.297,
+    isp: 28.1,
+    exit_mach: 2,
+    regime: 3,
+  }
 
   it('flags a tared peak thrust above 1.1 × the ideal thrust and passes one below it', () => {
     // Ideal C_F at Mach 2, pe/p0 = 0.1278, pa/p0 = 84/484:
@@ -201,10 +229,16 @@ describe('the cold-flow module grades a run worked out by hand', () => {
 
   it('review rules on the data alone', () => {
     expect(rule('chamber_above_receiver', { ...run, results })).toBe(false)
-    const swapped = { ...run, results, tables: { run: { ...run.tables.run!, p_receiver: logged(2, 400), p_chamber: T.map(() => 500) } } }
+    const swapped = {
+      ...run,
+      results,
+      tables: { run: { ...run.tables.run!, p_receiver: logged(2, 400), p_chamber: T.map(() => 500) } },
+    }
     expect(rule('chamber_above_receiver', swapped)).toBe(true)
     expect(rule('receiver_not_emptied', { ...run, results })).toBe(false)
-    expect(rule('receiver_not_emptied', { ...run, results, measurements: { ...run.measurements, p_final: 600 } })).toBe(true)
+    expect(rule('receiver_not_emptied', { ...run, results, measurements: { ...run.measurements, p_final: 600 } })).toBe(
+      true,
+    )
   })
 })
 
@@ -225,7 +259,8 @@ describe('the hot-fire module grades a run worked out by hand', () => {
     },
   }
   const scope = buildExpressionScope(assignment, data)
-  const expected = (key: string) => evaluateExpression(assignment.results.find((r) => r.key === key)?.expected ?? '', scope)
+  const expected = (key: string) =>
+    evaluateExpression(assignment.results.find((r) => r.key === key)?.expected ?? '', scope)
 
   // The same run as the cold-flow one with 15 N of tared thrust: impulse 8.2 · 15 = 123 N·s. Fuel 20 g.
   const h = hand(15)
@@ -251,7 +286,18 @@ describe('the hot-fire module grades a run worked out by hand', () => {
   })
 
   it('flags a hot run no better than cold flow, and a very rich mixture', () => {
-    const reported = { impulse: h.impulse, peak_thrust: 15, burn_time: 8.38, mean_thrust: 14.7, cf: 2.5, air_mass: airMass, mixture_ratio: 14.9, isp_hot: ispHot, isp_ratio: 1.18, t_effective: 410 }
+    const reported = {
+      impulse: h.impulse,
+      peak_thrust: 15,
+      burn_time: 8.38,
+      mean_thrust: 14.7,
+      cf: 2.5,
+      air_mass: airMass,
+      mixture_ratio: 14.9,
+      isp_hot: ispHot,
+      isp_ratio: 1.18,
+      t_effective: 410,
+    }
     const withResults = (results: Record<string, number>) =>
       buildExpressionScope(assignment, { ...data, results }, { withResults: true })
     const when = (key: string) => assignment.reviewRules.find((r) => r.key === key)?.when ?? ''

@@ -31,7 +31,10 @@ const dataContext: ExpressionContext = {
 }
 const ruleContext: ExpressionContext = { ...dataContext, produces: 'boolean' }
 
-function evaluationError(expr: string, values: Record<string, number | boolean | readonly number[]> = scope): ExpressionError {
+function evaluationError(
+  expr: string,
+  values: Record<string, number | boolean | readonly number[]> = scope,
+): ExpressionError {
   try {
     evaluateExpression(expr, values)
   } catch (error) {
@@ -125,7 +128,11 @@ describe('evaluateExpression: results it will not return', () => {
   it('refuses a whole column, a result object and text', () => {
     expect(evaluationError('thrust').message).toContain('list of 4 values')
     expect(evaluationError('isentropic(2, 1.4)').message).toContain('group of values')
-    expect(evaluationError('nozzleFlow({chamberPressure: 1e6, chamberTemperature: 300, ambientPressure: 1e5, throatArea: 1e-4, exitArea: 2e-4, gamma: 1.4, gasConstant: 287}).regime').message).toContain('text')
+    expect(
+      evaluationError(
+        'nozzleFlow({chamberPressure: 1e6, chamberTemperature: 300, ambientPressure: 1e5, throatArea: 1e-4, exitArea: 2e-4, gamma: 1.4, gasConstant: 287}).regime',
+      ).message,
+    ).toContain('text')
   })
 
   it('names the data an expression needs that the scope does not have', () => {

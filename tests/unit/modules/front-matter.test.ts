@@ -196,7 +196,12 @@ describe('parseModuleSource: front-matter fields', () => {
 
   it('refuses an ambient pressure that is not an absolute pressure', () => {
     const parsed = parseModuleSource(
-      source(['title: Lab', 'assignment:', '  measurements:', '    - { key: pa, label: Barometer, unit: kPa, pressure: gauge, role: ambient-pressure }']),
+      source([
+        'title: Lab',
+        'assignment:',
+        '  measurements:',
+        '    - { key: pa, label: Barometer, unit: kPa, pressure: gauge, role: ambient-pressure }',
+      ]),
       'a',
     )
     expect(issueAt(parsed, 'assignment.measurements[0].role').message).toContain('absolute')
@@ -302,14 +307,20 @@ describe('parseModuleSource: front-matter fields', () => {
 
 describe('parseModuleSource: dates', () => {
   it('accepts a due date with an IANA zone, and one without (the course zone applies later)', () => {
-    const withZone = parseModuleSource(source(['title: Lab', 'due: { at: 2027-02-09T17:00, timeZone: America/Denver }']), 'd')
+    const withZone = parseModuleSource(
+      source(['title: Lab', 'due: { at: 2027-02-09T17:00, timeZone: America/Denver }']),
+      'd',
+    )
     expect(withZone.ok && withZone.frontMatter.due).toEqual({ at: '2027-02-09T17:00', timeZone: 'America/Denver' })
     const withoutZone = parseModuleSource(source(['title: Lab', 'due: { at: 2027-02-09T17:00 }']), 'd')
     expect(withoutZone.ok).toBe(true)
   })
 
   it('refuses a date that does not exist and a zone that does not exist', () => {
-    const parsed = parseModuleSource(source(['title: Lab', 'due: { at: 2027-02-29T17:00, timeZone: Mars/Olympus_Mons }']), 'd')
+    const parsed = parseModuleSource(
+      source(['title: Lab', 'due: { at: 2027-02-29T17:00, timeZone: Mars/Olympus_Mons }']),
+      'd',
+    )
     expect(issueAt(parsed, 'due.at').message).toContain('2027-02-09T17:00')
     expect(issueAt(parsed, 'due.timeZone').message).toContain('IANA')
   })
@@ -318,13 +329,19 @@ describe('parseModuleSource: dates', () => {
     const noDue = parseModuleSource(source(['title: Lab', 'late: { penaltyPerDay: 0.1 }']), 'late')
     expect(issueAt(noDue, 'late').message).toContain('due date')
     const early = parseModuleSource(
-      source(['title: Lab', 'due: { at: 2027-02-09T17:00 }', 'late: { acceptUntil: 2027-02-09T16:59, penaltyPerDay: 0.1 }']),
+      source([
+        'title: Lab',
+        'due: { at: 2027-02-09T17:00 }',
+        'late: { acceptUntil: 2027-02-09T16:59, penaltyPerDay: 0.1 }',
+      ]),
       'late',
     )
     expect(issueAt(early, 'late.acceptUntil').message).toContain('after the due date')
   })
 
   it('refuses results shown after the due date when there is none', () => {
-    expect(issueAt(parseModuleSource(source(['title: Lab', 'results: after-due']), 'r'), 'results').message).toContain('due date')
+    expect(issueAt(parseModuleSource(source(['title: Lab', 'results: after-due']), 'r'), 'results').message).toContain(
+      'due date',
+    )
   })
 })

@@ -41,8 +41,10 @@ export function scanTags(html: string): ScannedTag[] {
 
 /** The scheme a browser would see in a URL attribute, after decoding and dropping blanks and controls. */
 export function urlScheme(value: string): string | null {
-  // eslint-disable-next-line no-control-regex
-  const compact = decodeEntities(value).replace(/[\u0000-\u0020\u007f-\u009f]/g, '').toLowerCase()
+  const compact = decodeEntities(value)
+    // eslint-disable-next-line no-control-regex -- a browser drops these before reading a scheme
+    .replace(/[\u0000-\u0020\u007f-\u009f]/g, '')
+    .toLowerCase()
   const m = /^([a-z][a-z0-9+.-]*):/.exec(compact)
   return m ? (m[1] as string) : null
 }

@@ -14,12 +14,18 @@ const table = assignment.tables[0]!
 const run = demoRuns(assignment).find((r) => r.group === 'A1')!
 const parsed = parseLog(run.csv, table, run.mapping)
 if (!parsed.ok) throw new Error('demo run A1 does not parse')
-const measurements = Object.fromEntries(assignment.measurements.map((m) => [m.key, valueToSI(run.measurements[m.key]!, m.unit)]))
+const measurements = Object.fromEntries(
+  assignment.measurements.map((m) => [m.key, valueToSI(run.measurements[m.key]!, m.unit)]),
+)
 
 function ruleFires(isp: number): boolean {
   const graded = gradeSubmission({
     assignment,
-    data: { tables: { [table.key]: parsed.ok ? parsed.columns : {} }, measurements, pressures: parsed.ok ? parsed.pressures : {} },
+    data: {
+      tables: { [table.key]: parsed.ok ? parsed.columns : {} },
+      measurements,
+      pressures: parsed.ok ? parsed.pressures : {},
+    },
     reported: { ...run.reported, isp },
   })
   return graded.flags.some((f) => f.code === 'rule:isp_above_limit')

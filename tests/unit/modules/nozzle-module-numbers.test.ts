@@ -35,7 +35,8 @@ function machOfAreaRatio(x: number, supersonic: boolean): number {
   return 0.5 * (lo + hi)
 }
 const thrustCoefficient = (p2: number, p3: number, eps: number) =>
-  Math.sqrt(((2 * g * g) / (g - 1)) * Math.pow(2 / (g + 1), (g + 1) / (g - 1)) * (1 - Math.pow(p2, (g - 1) / g))) + (p2 - p3) * eps
+  Math.sqrt(((2 * g * g) / (g - 1)) * Math.pow(2 / (g + 1), (g + 1) / (g - 1)) * (1 - Math.pow(p2, (g - 1) / g))) +
+  (p2 - p3) * eps
 
 // The stand: 4.0 mm throat, 4.9 mm exit, 84 kPa barometer, 50 L receiver at 700 kPa gauge, 20 °C, Cd 0.98.
 const EPSILON = (4.9 / 4.0) ** 2
@@ -46,7 +47,12 @@ const design = pOverP0(machOfAreaRatio(EPSILON, true))
 
 /** Adiabatic choked blow-down, p = p_i·(1 + (γ−1)/2·t/τ)^(−2γ/(γ−1)), solved for the time p reaches `until` (kPa). */
 function chokedFor(until: number): number {
-  const tau = 0.05 / (0.98 * ((Math.PI * 0.004 ** 2) / 4) * Math.sqrt(g * 287.05 * 293.15) * Math.pow(2 / (g + 1), (g + 1) / (2 * (g - 1))))
+  const tau =
+    0.05 /
+    (0.98 *
+      ((Math.PI * 0.004 ** 2) / 4) *
+      Math.sqrt(g * 287.05 * 293.15) *
+      Math.pow(2 / (g + 1), (g + 1) / (2 * (g - 1))))
   return ((2 * tau) / (g - 1)) * (Math.pow(784 / until, (g - 1) / (2 * g)) - 1)
 }
 
@@ -56,16 +62,22 @@ describe('module 01 states the choking and blow-down figures of the stand correc
     expect((PA / chokeLimit).toFixed(0)).toBe('95')
     expect((PA / chokeLimit - PA).toFixed(0)).toBe('11')
     expect((PA / critical).toFixed(0)).toBe('159')
-    expect(text).toContain('$p_a/p_0 \\approx 0.88$: at 84 kPa ambient, down to a chamber pressure of about 95 kPa absolute (11 kPa gauge), far below the 159 kPa of a plain orifice')
+    expect(text).toContain(
+      '$p_a/p_0 \\approx 0.88$: at 84 kPa ambient, down to a chamber pressure of about 95 kPa absolute (11 kPa gauge), far below the 159 kPa of a plain orifice',
+    )
     expectClose(nozzlePressureRatios(EPSILON, g).chokeLimit, chokeLimit, 1e-12)
   })
 
   it('the 50 L receiver at 700 kPa gauge keeps the nozzle choked about 36 s, an orifice about 26 s, as the embedded calculator shows', () => {
     expect(chokedFor(PA / chokeLimit).toFixed(0)).toBe('36')
     expect(chokedFor(PA / critical).toFixed(0)).toBe('26')
-    expect(text).toContain('keeps the nozzle choked for about 36 s, where a plain orifice with the same throat would unchoke after about 26 s')
+    expect(text).toContain(
+      'keeps the nozzle choked for about 36 s, where a plain orifice with the same throat would unchoke after about 26 s',
+    )
     // The embedded blow-down calculator starts from that receiver and nozzle.
-    const calculators = scanTags(renderModule(parsed.ok ? parsed.body : '')).filter((t) => t.attributes.class === 'isentrope-calculator')
+    const calculators = scanTags(renderModule(parsed.ok ? parsed.body : '')).filter(
+      (t) => t.attributes.class === 'isentrope-calculator',
+    )
     const blowdown = calculators.find((c) => c.attributes['data-kind'] === 'blowdown')
     expect(JSON.parse(blowdown?.attributes['data-defaults'] ?? '{}')).toMatchObject({
       volume: 50,
@@ -106,7 +118,9 @@ describe('module 01 states the separation figures correctly', () => {
     expect(separated.toFixed(2)).toBe('1.04')
     expect(full.toFixed(2)).toBe('0.76')
     expect(((separated / full - 1) * 100).toFixed(0)).toBe('36')
-    expect(text).toContain('the flow separates at $A/A^* \\approx 2.19$, and $C_F$ is about 1.04 instead of the 0.76 of the nozzle running full: some 36 % more thrust')
+    expect(text).toContain(
+      'the flow separates at $A/A^* \\approx 2.19$, and $C_F$ is about 1.04 instead of the 0.76 of the nozzle running full: some 36 % more thrust',
+    )
   })
 
   it('the stand nozzle separates once the chamber is below about 126 kPa gauge, and does at the 100 kPa gauge the text suggests', () => {

@@ -4,8 +4,28 @@ import { MAX_FORMULAS, lintModuleBody, renderModule } from '../../../shared/modu
 import { decodeEntities, scanTags, urlScheme } from './html-scan'
 
 const FORBIDDEN_TAGS = new Set([
-  'script', 'style', 'iframe', 'frame', 'object', 'embed', 'form', 'input', 'button', 'textarea', 'select',
-  'link', 'meta', 'base', 'foreignobject', 'use', 'animate', 'set', 'maction', 'image', 'video', 'audio',
+  'script',
+  'style',
+  'iframe',
+  'frame',
+  'object',
+  'embed',
+  'form',
+  'input',
+  'button',
+  'textarea',
+  'select',
+  'link',
+  'meta',
+  'base',
+  'foreignobject',
+  'use',
+  'animate',
+  'set',
+  'maction',
+  'image',
+  'video',
+  'audio',
 ])
 const URL_ATTRIBUTES = new Set(['href', 'src', 'xlink:href', 'action', 'formaction', 'cite', 'background', 'poster'])
 
@@ -69,7 +89,7 @@ describe('renderModule: XSS payloads', () => {
     ['TeX includegraphics', '$\\includegraphics{javascript:alert(1)}$'],
     ['display TeX href', '$$\\href{javascript:alert(1)}{x}$$'],
     ['TeX colour injection', '$\\color{red;position:fixed}{x}$'],
-    ['calculator defaults with markup', '```calculator nozzle\nlabel: \'"><script>alert(1)</script>\'\n```'],
+    ['calculator defaults with markup', "```calculator nozzle\nlabel: '\"><script>alert(1)</script>'\n```"],
     ['calculator kind with markup', '```calculator <img src=x onerror=alert(1)>\n```'],
     ['code fence language with quotes', '```js" onmouseover="alert(1)\nx\n```'],
   ]
@@ -98,7 +118,9 @@ describe('renderModule: XSS payloads', () => {
 
 describe('renderModule: links', () => {
   it('keeps http, https, mailto and relative links, and marks external ones nofollow', () => {
-    const html = renderModule('[a](https://example.org/x) [b](mailto:lab@example.edu) [c](/courses/1/modules/2) [d](#top)')
+    const html = renderModule(
+      '[a](https://example.org/x) [b](mailto:lab@example.edu) [c](/courses/1/modules/2) [d](#top)',
+    )
     const links = scanTags(html).filter((t) => t.name === 'a')
     expect(links.map((l) => l.attributes.href)).toEqual([
       'https://example.org/x',
@@ -118,7 +140,9 @@ describe('renderModule: links', () => {
 
 describe('renderModule: equations', () => {
   it('renders inline and display TeX with KaTeX, as HTML and MathML', () => {
-    const html = renderModule('Inline $M = u/a$ and display:\n\n$$\\frac{p_0}{p} = \\left(1 + \\frac{\\gamma-1}{2}M^2\\right)^{\\frac{\\gamma}{\\gamma-1}}$$')
+    const html = renderModule(
+      'Inline $M = u/a$ and display:\n\n$$\\frac{p_0}{p} = \\left(1 + \\frac{\\gamma-1}{2}M^2\\right)^{\\frac{\\gamma}{\\gamma-1}}$$',
+    )
     expect(html).toContain('class="katex"')
     expect(html).toContain('class="katex-display"')
     expect(html).toContain('<math xmlns="http://www.w3.org/1998/Math/MathML"')
@@ -128,7 +152,13 @@ describe('renderModule: equations', () => {
 
   it('keeps all of KaTeX’s markup for roots, stretchy arrows, matrices, colour and boxes', () => {
     const tex = String.raw`\sqrt[3]{x} + \overrightarrow{AB} + \widehat{abc} + \begin{pmatrix}1&2\\3&4\end{pmatrix} + \color{blue}{y} + \fcolorbox{red}{yellow}{z} + \cancel{w} + \underbrace{a+b}_{c} + \xrightarrow{k}`
-    const direct = katex.renderToString(tex, { displayMode: true, output: 'htmlAndMathml', throwOnError: false, trust: false, strict: 'ignore' })
+    const direct = katex.renderToString(tex, {
+      displayMode: true,
+      output: 'htmlAndMathml',
+      throwOnError: false,
+      trust: false,
+      strict: 'ignore',
+    })
     const rendered = renderModule(`$$${tex}$$`)
     const count = (html: string, pattern: RegExp) => (html.match(pattern) ?? []).length
     for (const pattern of [/<span/g, /<svg/g, /<path/g, /<line/g, /<math/g, /<mtable/g, /<menclose/g, / style="/g]) {
@@ -165,7 +195,9 @@ describe('renderModule: calculator blocks', () => {
   }
 
   it('turns a calculator block into the placeholder with its kind and its defaults as JSON', () => {
-    const html = renderModule('```calculator nozzle\nchamberPressure: 500\nchamberPressureUnit: kPa\nlabel: "a \\"quoted\\" <b>"\nshowChart: true\n```')
+    const html = renderModule(
+      '```calculator nozzle\nchamberPressure: 500\nchamberPressureUnit: kPa\nlabel: "a \\"quoted\\" <b>"\nshowChart: true\n```',
+    )
     const [div] = calculatorDivs(html)
     expect(div?.attributes['data-kind']).toBe('nozzle')
     expect(JSON.parse(div?.attributes['data-defaults'] ?? '')).toEqual({
@@ -206,7 +238,8 @@ describe('renderModule: calculator blocks', () => {
 })
 
 describe('renderModule: determinism and plain Markdown', () => {
-  const sample = '# Nozzle\n\n"Quotes" -- and $p_0$.\n\n| a | b |\n|--:|:-:|\n| 1 | 2 |\n\n```calculator isentropic\nmach: 2\n```\n'
+  const sample =
+    '# Nozzle\n\n"Quotes" -- and $p_0$.\n\n| a | b |\n|--:|:-:|\n| 1 | 2 |\n\n```calculator isentropic\nmach: 2\n```\n'
 
   it('gives identical output for identical input, also after rendering something else', () => {
     const first = renderModule(sample)
@@ -223,7 +256,19 @@ describe('renderModule: determinism and plain Markdown', () => {
 
 describe('lintModuleBody', () => {
   it('reports a bad calculator block and TeX errors with their lines', () => {
-    const body = ['# Title', '', 'Fine $x$.', '', '```calculator warp', 'x: 1', '```', '', 'Broken $\\frac{1}{$.', '', '$$\\nosuchmacro$$'].join('\n')
+    const body = [
+      '# Title',
+      '',
+      'Fine $x$.',
+      '',
+      '```calculator warp',
+      'x: 1',
+      '```',
+      '',
+      'Broken $\\frac{1}{$.',
+      '',
+      '$$\\nosuchmacro$$',
+    ].join('\n')
     const issues = lintModuleBody(body)
     expect(issues.map((i) => i.line)).toEqual([5, 9, 11])
     expect(issues[0]?.message).toContain('no calculator "warp"')

@@ -1,6 +1,11 @@
 import { describe, expect, it } from 'vitest'
 import { gradeSubmission } from '../../../shared/grading/grade'
-import { ExpressionError, evaluateExpression, validateAssignmentExpressions, validateExpression } from '../../../shared/modules/expressions'
+import {
+  ExpressionError,
+  evaluateExpression,
+  validateAssignmentExpressions,
+  validateExpression,
+} from '../../../shared/modules/expressions'
 import type { ExpressionContext } from '../../../shared/modules/expressions'
 import { AssignmentSchema } from '../../../shared/modules/schema'
 import { MAX_TARE_ZERO, buildExpressionScope, syntheticSubmission, taredScope } from '../../../shared/modules/scope'
@@ -41,7 +46,16 @@ const messages = (expr: string) =>
 describe('reduceThrustRun, windowMean and windowIntegral in module expressions', () => {
   it('every field of the reduced run can be read, and equals the library function', () => {
     const library = reduceThrustRun(T, THRUST)
-    for (const field of ['zeroBefore', 'zeroAfter', 'start', 'end', 'burnTime', 'totalImpulse', 'peakThrust', 'meanThrust'] as const) {
+    for (const field of [
+      'zeroBefore',
+      'zeroAfter',
+      'start',
+      'end',
+      'burnTime',
+      'totalImpulse',
+      'peakThrust',
+      'meanThrust',
+    ] as const) {
       expect(evaluateExpression(`reduceThrustRun(t, thrust).${field}`, scope), field).toBe(library[field])
     }
     // By hand: 10 intervals of 0.1 s at 20 N and two edge intervals of 0.1·20/2: 22 N·s.
@@ -66,8 +80,12 @@ describe('reduceThrustRun, windowMean and windowIntegral in module expressions',
   })
 
   it('refuses unknown fields and options, a missing field, and explains a failed reduction', () => {
-    expect(messages('reduceThrustRun(t, thrust).impulse')).toContain('there is no field "impulse"; its fields are zeroBefore, zeroAfter, start, end')
-    expect(messages('reduceThrustRun(t, thrust, {level: 0.1}).start')).toContain('has no option named level; its options are threshold')
+    expect(messages('reduceThrustRun(t, thrust).impulse')).toContain(
+      'there is no field "impulse"; its fields are zeroBefore, zeroAfter, start, end',
+    )
+    expect(messages('reduceThrustRun(t, thrust, {level: 0.1}).start')).toContain(
+      'has no option named level; its options are threshold',
+    )
     expect(messages('reduceThrustRun(t, thrust)')).toContain('a group of values')
     expect(messages('reduceThrustRun(t)')).toContain('reduceThrustRun takes 2 to 3 arguments, but 1 is given')
     expect(messages('windowMean(t, pc, 1)')).toContain('windowMean takes 4 arguments')
@@ -83,8 +101,13 @@ describe('reduceThrustRun, windowMean and windowIntegral in module expressions',
   })
 
   it('gives the same answer however often a module reads the run, and a new answer for new data', () => {
-    const first = evaluateExpression('reduceThrustRun(t, thrust).peakThrust + reduceThrustRun(t, thrust).meanThrust', scope) as number
-    expect(evaluateExpression('reduceThrustRun(t, thrust).peakThrust + reduceThrustRun(t, thrust).meanThrust', scope)).toBe(first)
+    const first = evaluateExpression(
+      'reduceThrustRun(t, thrust).peakThrust + reduceThrustRun(t, thrust).meanThrust',
+      scope,
+    ) as number
+    expect(
+      evaluateExpression('reduceThrustRun(t, thrust).peakThrust + reduceThrustRun(t, thrust).meanThrust', scope),
+    ).toBe(first)
     const doubled = { ...scope, thrust: THRUST.map((f) => 2 * f) }
     expectClose(evaluateExpression('reduceThrustRun(t, thrust).peakThrust', doubled) as number, 40, 1e-12)
   })
@@ -117,16 +140,22 @@ describe('tare: true in the assignment schema', () => {
     expect(absolute.success).toBe(false)
     expect(absolute.error?.issues[0]?.path).toEqual(['tables', 0, 'columns', 2, 'tare'])
     expect(absolute.error?.issues[0]?.message).toContain('needs a pressure column with "pressure: gauge"')
-    const force = AssignmentSchema.safeParse(tareSpec({}, [{ key: 'side', label: 'Side force', unit: 'N', tare: true }]))
+    const force = AssignmentSchema.safeParse(
+      tareSpec({}, [{ key: 'side', label: 'Side force', unit: 'N', tare: true }]),
+    )
     expect(force.error?.issues[0]?.message).toContain('needs a pressure column')
   })
 
   it('is refused in a table without a thrust column', () => {
     const spec = tareSpec({ tare: true })
-    const columns = spec.tables[0]!.columns.map((c) => (c.key === 'thrust' ? { key: 'thrust', label: 'Thrust', unit: 'N' } : c))
+    const columns = spec.tables[0]!.columns.map((c) =>
+      c.key === 'thrust' ? { key: 'thrust', label: 'Thrust', unit: 'N' } : c,
+    )
     const result = AssignmentSchema.safeParse({ ...spec, tables: [{ ...spec.tables[0], columns }] })
     expect(result.success).toBe(false)
-    expect(result.error?.issues.map((i) => i.message).join(' ')).toContain('needs a column with role: thrust and one with role: time')
+    expect(result.error?.issues.map((i) => i.message).join(' ')).toContain(
+      'needs a column with role: thrust and one with role: time',
+    )
   })
 })
 
@@ -143,7 +172,10 @@ describe('tare: true when the scope is built', () => {
   })
 
   it('the same from SI data, and taredScope gives what tare: true gives', () => {
-    const si: SubmissionData = { tables: { run: { t: T, thrust: THRUST, pc: CHAMBER_KPA.map((p) => 1000 * p) } }, measurements: { pa: 84_000 } }
+    const si: SubmissionData = {
+      tables: { run: { t: T, thrust: THRUST, pc: CHAMBER_KPA.map((p) => 1000 * p) } },
+      measurements: { pa: 84_000 },
+    }
     const direct = buildExpressionScope(assignment, si, { units: 'si' })
     const later = taredScope(assignment, si, buildExpressionScope(assignment, si, { units: 'si', tare: false }))
     expect(later.pc).toEqual(direct.pc)
@@ -155,9 +187,15 @@ describe('tare: true when the scope is built', () => {
     expect(absolute[0]).toBe(2000)
     expect(MAX_TARE_ZERO).toBe(0.1)
     // A receiver swapped in: 500 kPa at rest is no transducer zero.
-    const swapped = buildExpressionScope(assignment, { ...data, tables: { run: { t: T, thrust: THRUST, pc: T.map(() => 500) } } }).pc as number[]
+    const swapped = buildExpressionScope(assignment, {
+      ...data,
+      tables: { run: { t: T, thrust: THRUST, pc: T.map(() => 500) } },
+    }).pc as number[]
     expectClose(swapped[0] as number, 584_000, 1e-12)
-    const noRun = buildExpressionScope(assignment, { ...data, tables: { run: { t: T, thrust: T.map(() => 0.4), pc: CHAMBER_KPA } } }).pc as number[]
+    const noRun = buildExpressionScope(assignment, {
+      ...data,
+      tables: { run: { t: T, thrust: T.map(() => 0.4), pc: CHAMBER_KPA } },
+    }).pc as number[]
     expectClose(noRun[0] as number, 86_000, 1e-12)
   })
 
@@ -170,7 +208,14 @@ describe('tare: true when the scope is built', () => {
     const graded = gradeSubmission({ assignment, data: absoluteLogged, reported: { cf: 1 } })
     expect(graded.flags.map((f) => f.code)).toContain('pressure-looks-absolute')
     // With the right reading, the expected value is the tared peak: 84 + 300 kPa.
-    const right = gradeSubmission({ assignment, data: { tables: { run: { t: T, thrust: THRUST, pc: CHAMBER_KPA.map((p) => 1000 * p) } }, measurements: { pa: 84_000 } }, reported: { cf: 1 } })
+    const right = gradeSubmission({
+      assignment,
+      data: {
+        tables: { run: { t: T, thrust: THRUST, pc: CHAMBER_KPA.map((p) => 1000 * p) } },
+        measurements: { pa: 84_000 },
+      },
+      reported: { cf: 1 },
+    })
     expectClose(right.checks[0]?.expected as number, 384_000, 1e-12)
   })
 
@@ -186,7 +231,17 @@ describe('tare: true when the scope is built', () => {
     expect((s.pc as number[])[0]).toBe(101_325)
     const withReduction = AssignmentSchema.parse({
       ...tareSpec({ tare: true }),
-      results: [{ key: 'cf', label: 'C_F', unit: '1', expected: 'reduceThrustRun(t, thrust).meanThrust / windowMean(t, pc, reduceThrustRun(t, thrust).start, reduceThrustRun(t, thrust).end)', tolerance: { relative: 0.05 }, points: 1 }],
+      results: [
+        {
+          key: 'cf',
+          label: 'C_F',
+          unit: '1',
+          expected:
+            'reduceThrustRun(t, thrust).meanThrust / windowMean(t, pc, reduceThrustRun(t, thrust).start, reduceThrustRun(t, thrust).end)',
+          tolerance: { relative: 0.05 },
+          points: 1,
+        },
+      ],
     })
     expect(validateAssignmentExpressions(withReduction)).toEqual([])
   })

@@ -28,7 +28,14 @@ const assignment = AssignmentSchema.parse({
     { key: 't_air', label: 'Air', unit: 'degC' },
   ],
   results: [
-    { key: 'impulse', label: 'I', unit: 'lbf*s', expected: 'totalImpulse(t, thrust)', tolerance: { relative: 0.03 }, points: 1 },
+    {
+      key: 'impulse',
+      label: 'I',
+      unit: 'lbf*s',
+      expected: 'totalImpulse(t, thrust)',
+      tolerance: { relative: 0.03 },
+      points: 1,
+    },
     { key: 'angle', label: 'Angle', unit: 'deg', expected: '1', tolerance: { absolute: 1 }, points: 1 },
   ],
 })
@@ -65,19 +72,37 @@ describe('buildExpressionScope', () => {
     expectClose(scope.angle as number, Math.PI, 1e-15)
     const dataOnly = buildExpressionScope(assignment, data)
     expect('impulse' in dataOnly).toBe(false)
-    expect(Object.keys(dataOnly).sort()).toEqual(['d_throat', 'p_ambient', 'p_initial', 'pc', 'pr', 't', 't_air', 'thrust', 'volume'])
+    expect(Object.keys(dataOnly).sort()).toEqual([
+      'd_throat',
+      'p_ambient',
+      'p_initial',
+      'pc',
+      'pr',
+      't',
+      't_air',
+      'thrust',
+      'volume',
+    ])
   })
 
   it('names what is missing or unusable', () => {
-    const without = (key: string) => ({ ...data, measurements: Object.fromEntries(Object.entries(data.measurements).filter(([k]) => k !== key)) })
+    const without = (key: string) => ({
+      ...data,
+      measurements: Object.fromEntries(Object.entries(data.measurements).filter(([k]) => k !== key)),
+    })
     expect(() => buildExpressionScope(assignment, without('d_throat'))).toThrow(/measurement "d_throat" is missing/)
-    expect(() => buildExpressionScope(assignment, without('p_ambient'))).toThrow(/ambient pressure "p_ambient" is missing/)
+    expect(() => buildExpressionScope(assignment, without('p_ambient'))).toThrow(
+      /ambient pressure "p_ambient" is missing/,
+    )
     expect(() => buildExpressionScope(assignment, { ...data, tables: {} })).toThrow(/table "run" is missing/)
     expect(() =>
       buildExpressionScope(assignment, { ...data, tables: { run: { ...data.tables.run, pc: [0, 1] } } }),
     ).toThrow(/different lengths/)
     expect(() =>
-      buildExpressionScope(assignment, { ...data, tables: { run: { ...data.tables.run, thrust: [0, Number.NaN, 1] } } }),
+      buildExpressionScope(assignment, {
+        ...data,
+        tables: { run: { ...data.tables.run, thrust: [0, Number.NaN, 1] } },
+      }),
     ).toThrow(/thrust\[row 2\] is not a finite number/)
     // −20 psi gauge is below vacuum at 84 kPa ambient.
     expect(() =>

@@ -4,7 +4,14 @@ import { parseModuleSource } from '../../../shared/modules/front-matter'
 import { AssignmentSchema } from '../../../shared/modules/schema'
 
 const measurement = (extra: Record<string, unknown>) => ({ key: 'd', label: 'Throat diameter', unit: 'mm', ...extra })
-const result = (tolerance: Record<string, unknown>) => ({ key: 'area', label: 'Area', unit: 'mm2', expected: 'areaFromDiameter(d)', tolerance, points: 1 })
+const result = (tolerance: Record<string, unknown>) => ({
+  key: 'area',
+  label: 'Area',
+  unit: 'mm2',
+  expected: 'areaFromDiameter(d)',
+  tolerance,
+  points: 1,
+})
 
 /** The issues of an assignment, as "path: message". */
 function issues(input: unknown): string[] {
@@ -26,7 +33,10 @@ describe('declaring uncertainties and coverage tolerances', () => {
             ],
           },
         ],
-        measurements: [measurement({ uncertainty: { absolute: 0.01 } }), { key: 'v', label: 'Volume', unit: 'L', uncertainty: { relative: 0.01 } }],
+        measurements: [
+          measurement({ uncertainty: { absolute: 0.01 } }),
+          { key: 'v', label: 'Volume', unit: 'L', uncertainty: { relative: 0.01 } },
+        ],
         results: [result({ relative: 0.01, coverage: 2 })],
       }),
     ).toEqual([])
@@ -39,12 +49,17 @@ describe('declaring uncertainties and coverage tolerances', () => {
   })
 
   it('refuses a coverage tolerance without a relative or absolute floor, and a coverage factor outside 1–5', () => {
-    expect(issues({ measurements: [measurement({ uncertainty: { absolute: 0.01 } })], results: [result({ coverage: 2 })] })).toEqual([
+    expect(
+      issues({ measurements: [measurement({ uncertainty: { absolute: 0.01 } })], results: [result({ coverage: 2 })] }),
+    ).toEqual([
       'results.0.tolerance: a coverage tolerance needs a relative or absolute tolerance as its floor, for example { relative: 0.01, coverage: 2 }',
     ])
-    expect(issues({ measurements: [measurement({ uncertainty: { absolute: 0.01 } })], results: [result({ relative: 0.01, coverage: 0.5 })] })).toEqual([
-      'results.0.tolerance.coverage: a coverage factor is from 1 to 5 (2 covers about 95 %)',
-    ])
+    expect(
+      issues({
+        measurements: [measurement({ uncertainty: { absolute: 0.01 } })],
+        results: [result({ relative: 0.01, coverage: 0.5 })],
+      }),
+    ).toEqual(['results.0.tolerance.coverage: a coverage factor is from 1 to 5 (2 covers about 95 %)'])
   })
 
   it('refuses an empty or negative uncertainty, a relative one above 1, and a relative one on a Celsius reading', () => {
@@ -57,10 +72,18 @@ describe('declaring uncertainties and coverage tolerances', () => {
     expect(issues({ measurements: [measurement({ uncertainty: { relative: 2 } })] })).toEqual([
       'measurements.0.uncertainty.relative: a relative uncertainty is a fraction from 0 to 1 (0.01 = 1 %); write 0.01 for 1 %',
     ])
-    expect(issues({ measurements: [{ key: 't_air', label: 'Air temperature', unit: 'degC', uncertainty: { relative: 0.01 } }] })).toEqual([
+    expect(
+      issues({
+        measurements: [{ key: 't_air', label: 'Air temperature', unit: 'degC', uncertainty: { relative: 0.01 } }],
+      }),
+    ).toEqual([
       'measurements.0.uncertainty.relative: a relative uncertainty of a temperature in degC depends on the zero of the scale; give an absolute one in degC',
     ])
-    expect(issues({ measurements: [{ key: 't_air', label: 'Air temperature', unit: 'K', uncertainty: { relative: 0.01 } }] })).toEqual([])
+    expect(
+      issues({
+        measurements: [{ key: 't_air', label: 'Air temperature', unit: 'K', uncertainty: { relative: 0.01 } }],
+      }),
+    ).toEqual([])
   })
 
   it('the demo cold-flow module declares its instruments’ uncertainties and grades one result with a coverage tolerance', () => {

@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest'
-import { blowdownTimeConstant, chokedMassFlow, dischargeMassFlow, nozzleFlow, nozzlePressureRatios, tankBlowdown } from '../../../shared/physics/index'
+import {
+  blowdownTimeConstant,
+  chokedMassFlow,
+  dischargeMassFlow,
+  nozzleFlow,
+  nozzlePressureRatios,
+  tankBlowdown,
+} from '../../../shared/physics/index'
 import type { BlowdownInput } from '../../../shared/physics/index'
 import { expectClose } from '../../helpers/expect-close'
 import { expectRangeError } from '../../helpers/expect-range-error'
@@ -29,7 +36,13 @@ const base: BlowdownInput = {
 function tau(input: BlowdownInput): number {
   const g = input.gamma
   const flowFunction = Math.pow(2 / (g + 1), (g + 1) / (2 * (g - 1)))
-  return input.volume / (input.dischargeCoefficient * input.throatArea * Math.sqrt(g * input.gasConstant * input.initialTemperature) * flowFunction)
+  return (
+    input.volume /
+    (input.dischargeCoefficient *
+      input.throatArea *
+      Math.sqrt(g * input.gasConstant * input.initialTemperature) *
+      flowFunction)
+  )
 }
 const criticalRatio = (g: number) => Math.pow(2 / (g + 1), g / (g - 1))
 const isothermalPressure = (input: BlowdownInput, t: number) => input.initialPressure * Math.exp(-t / tau(input))
@@ -48,7 +61,8 @@ describe('tankBlowdown against the closed-form choked blow-down', () => {
     const run = tankBlowdown(base)
     const indices = chokedSamples(base, run)
     expect(indices.length).toBeGreaterThan(500)
-    for (const i of indices) expectClose(run.pressure[i]!, isothermalPressure(base, run.time[i]!), 1e-8, `t=${run.time[i]}`)
+    for (const i of indices)
+      expectClose(run.pressure[i]!, isothermalPressure(base, run.time[i]!), 1e-8, `t=${run.time[i]}`)
     for (const i of indices) expect(run.temperature[i]).toBe(base.initialTemperature)
   })
 
@@ -60,7 +74,12 @@ describe('tankBlowdown against the closed-form choked blow-down', () => {
     for (const i of indices) {
       const p = adiabaticPressure(input, run.time[i]!)
       expectClose(run.pressure[i]!, p, 1e-8, `p at t=${run.time[i]}`)
-      expectClose(run.temperature[i]!, input.initialTemperature * Math.pow(p / input.initialPressure, 0.4 / 1.4), 1e-8, 'T')
+      expectClose(
+        run.temperature[i]!,
+        input.initialTemperature * Math.pow(p / input.initialPressure, 0.4 / 1.4),
+        1e-8,
+        'T',
+      )
     }
   })
 
@@ -71,7 +90,8 @@ describe('tankBlowdown against the closed-form choked blow-down', () => {
       const closed = process === 'isothermal' ? isothermalPressure : adiabaticPressure
       const indices = chokedSamples(input, run)
       expect(indices.length).toBeGreaterThan(10)
-      for (const i of indices) expectClose(run.pressure[i]!, closed(input, run.time[i]!), 1e-4, `${process} t=${run.time[i]}`)
+      for (const i of indices)
+        expectClose(run.pressure[i]!, closed(input, run.time[i]!), 1e-4, `${process} t=${run.time[i]}`)
     }
   })
 
@@ -92,7 +112,11 @@ describe('tankBlowdown after the throat unchokes', () => {
         expect(run.pressure[i]!).toBeLessThanOrEqual(run.pressure[i - 1]!)
         expect(run.time[i]!).toBeGreaterThan(run.time[i - 1]!)
       }
-      expect([run.time.length, run.pressure.length, run.temperature.length, run.massFlow.length].every((n) => n === run.time.length)).toBe(true)
+      expect(
+        [run.time.length, run.pressure.length, run.temperature.length, run.massFlow.length].every(
+          (n) => n === run.time.length,
+        ),
+      ).toBe(true)
     })
 
     it(`(${process}) conserves mass: the integrated outflow equals the mass the tank lost`, () => {
@@ -110,7 +134,8 @@ describe('tankBlowdown after the throat unchokes', () => {
   it('has no jump in mass flow where the flow unchokes (the two flow laws meet with equal slope)', () => {
     const run = tankBlowdown({ ...base, step: 0.01 })
     let largest = 0
-    for (let i = 1; i < run.time.length - 1; i++) largest = Math.max(largest, Math.abs(run.massFlow[i]! - run.massFlow[i - 1]!))
+    for (let i = 1; i < run.time.length - 1; i++)
+      largest = Math.max(largest, Math.abs(run.massFlow[i]! - run.massFlow[i - 1]!))
     // A smooth decay over ~60 s changes by about ṁ0·0.01/τ per 0.01 s step; a jump would be far larger.
     expect(largest).toBeLessThan(run.massFlow[0]! * (0.01 / tau(base)) * 1.01)
   })
@@ -129,26 +154,47 @@ describe('dischargeMassFlow', () => {
   const R = 287.05
   it('is the choked flow times Cd at or below the critical pressure ratio', () => {
     for (const pb of [0, 1e5, 1e6 * criticalRatio(g)]) {
-      expectClose(dischargeMassFlow(1e6, 300, pb, 1e-4, 0.9, g, R), 0.9 * chokedMassFlow(1e6, 300, 1e-4, g, R), 1e-14, `pb=${pb}`)
+      expectClose(
+        dischargeMassFlow(1e6, 300, pb, 1e-4, 0.9, g, R),
+        0.9 * chokedMassFlow(1e6, 300, 1e-4, g, R),
+        1e-14,
+        `pb=${pb}`,
+      )
     }
   })
 
   it('follows the compressible-orifice equation above the critical ratio (independent evaluation)', () => {
     for (const ratio of [0.6, 0.8, 0.95, 0.999]) {
-      const expected = 1e-4 * 1e6 * Math.sqrt(((2 * g) / ((g - 1) * R * 300)) * (Math.pow(ratio, 2 / g) - Math.pow(ratio, (g + 1) / g)))
+      const expected =
+        1e-4 *
+        1e6 *
+        Math.sqrt(((2 * g) / ((g - 1) * R * 300)) * (Math.pow(ratio, 2 / g) - Math.pow(ratio, (g + 1) / g)))
       expectClose(dischargeMassFlow(1e6, 300, ratio * 1e6, 1e-4, 1, g, R), expected, 1e-10, `pb/p0=${ratio}`)
     }
   })
 
   it('is continuous at the critical ratio and zero with no pressure difference', () => {
     const critical = 1e6 * criticalRatio(g)
-    expectClose(dischargeMassFlow(1e6, 300, critical * (1 + 1e-9), 1e-4, 1, g, R), dischargeMassFlow(1e6, 300, critical, 1e-4, 1, g, R), 1e-9)
+    expectClose(
+      dischargeMassFlow(1e6, 300, critical * (1 + 1e-9), 1e-4, 1, g, R),
+      dischargeMassFlow(1e6, 300, critical, 1e-4, 1, g, R),
+      1e-9,
+    )
     expect(dischargeMassFlow(1e6, 300, 1e6, 1e-4, 1, g, R)).toBe(0)
   })
 
   it('rejects a back pressure above upstream, and Cd outside (0, 1]', () => {
-    expectRangeError(() => dischargeMassFlow(1e5, 300, 2e5, 1e-4, 1, g, R), 'downstreamPressure', 'at most upstreamPressure')
-    expectRangeError(() => dischargeMassFlow(1e5, 300, 5e4, 1e-4, 0, g, R), 'dischargeCoefficient', 'greater than 0', 'at most 1')
+    expectRangeError(
+      () => dischargeMassFlow(1e5, 300, 2e5, 1e-4, 1, g, R),
+      'downstreamPressure',
+      'at most upstreamPressure',
+    )
+    expectRangeError(
+      () => dischargeMassFlow(1e5, 300, 5e4, 1e-4, 0, g, R),
+      'dischargeCoefficient',
+      'greater than 0',
+      'at most 1',
+    )
     expectRangeError(() => dischargeMassFlow(1e5, 300, 5e4, 1e-4, 1.2, g, R), 'dischargeCoefficient')
   })
 })
@@ -158,13 +204,22 @@ describe('tankBlowdown argument checks', () => {
     expectRangeError(() => tankBlowdown({ ...base, volume: 0 }), 'volume', 'greater than 0')
     expectRangeError(() => tankBlowdown({ ...base, volume: -1 }), 'volume')
     expectRangeError(() => tankBlowdown({ ...base, initialPressure: Number.NaN }), 'initialPressure', 'NaN')
-    expectRangeError(() => tankBlowdown({ ...base, ambientPressure: 2e6 }), 'ambientPressure', 'less than initialPressure')
+    expectRangeError(
+      () => tankBlowdown({ ...base, ambientPressure: 2e6 }),
+      'ambientPressure',
+      'less than initialPressure',
+    )
     expectRangeError(() => tankBlowdown({ ...base, initialTemperature: 0 }), 'initialTemperature')
     expectRangeError(() => tankBlowdown({ ...base, throatArea: Infinity }), 'throatArea', 'Infinity')
     expectRangeError(() => tankBlowdown({ ...base, dischargeCoefficient: 0 }), 'dischargeCoefficient')
     expectRangeError(() => tankBlowdown({ ...base, gamma: 1 }), 'gamma must be a finite number greater than 1 (got 1)')
     expectRangeError(() => tankBlowdown({ ...base, gasConstant: -287 }), 'gasConstant')
-    expectRangeError(() => tankBlowdown({ ...base, process: 'polytropic' as 'adiabatic' }), 'process', "'isothermal'", "'adiabatic'")
+    expectRangeError(
+      () => tankBlowdown({ ...base, process: 'polytropic' as 'adiabatic' }),
+      'process',
+      "'isothermal'",
+      "'adiabatic'",
+    )
     expectRangeError(() => tankBlowdown({ ...base, duration: 0 }), 'duration')
     expectRangeError(() => tankBlowdown({ ...base, step: 0 }), 'step')
     expectRangeError(() => tankBlowdown({ ...base, step: 300 }), 'step', 'at most duration')
@@ -177,7 +232,8 @@ describe('tankBlowdown argument checks', () => {
 // ---- A converging–diverging outlet: choking judged by the nozzle's own limit ----
 
 /** The area–Mach relation, NACA Report 1135 eq. 80 (from memory), written out here. */
-const areaRatioOf = (m: number, g: number) => Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
+const areaRatioOf = (m: number, g: number) =>
+  Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
 /** p/p0 = (1 + (γ−1)/2·M²)^(−γ/(γ−1)), NACA Report 1135 eq. 44 (from memory). */
 const pOverP0 = (m: number, g: number) => Math.pow(1 + ((g - 1) / 2) * m * m, -g / (g - 1))
 /**
@@ -247,7 +303,8 @@ describe('tankBlowdown through a converging–diverging nozzle (exitArea given)'
     const g = 1.4
     // Closed forms, from the header of this file: adiabatic p = p_i·(1 + (γ−1)/2·t/τ)^(−2γ/(γ−1)),
     // isothermal p = p_i·exp(−t/τ); solved for the time p reaches unchokeAt.
-    const adiabatic = ((2 * tau(stand)) / (g - 1)) * (Math.pow(stand.initialPressure / unchokeAt, (g - 1) / (2 * g)) - 1)
+    const adiabatic =
+      ((2 * tau(stand)) / (g - 1)) * (Math.pow(stand.initialPressure / unchokeAt, (g - 1) / (2 * g)) - 1)
     const isothermal = tau(stand) * Math.log(stand.initialPressure / unchokeAt)
     expectClose(crossing(tankBlowdown(stand), unchokeAt), adiabatic, 1e-4, 'adiabatic')
     expectClose(crossing(tankBlowdown({ ...stand, process: 'isothermal' }), unchokeAt), isothermal, 1e-4, 'isothermal')
@@ -259,7 +316,8 @@ describe('tankBlowdown through a converging–diverging nozzle (exitArea given)'
     delete orifice.exitArea
     const criticalAt = stand.ambientPressure / Math.pow(2 / 2.4, 3.5)
     const g = 1.4
-    const expected = ((2 * tau(stand)) / (g - 1)) * (Math.pow(stand.initialPressure / criticalAt, (g - 1) / (2 * g)) - 1)
+    const expected =
+      ((2 * tau(stand)) / (g - 1)) * (Math.pow(stand.initialPressure / criticalAt, (g - 1) / (2 * g)) - 1)
     expectClose(crossing(tankBlowdown(orifice), criticalAt), expected, 1e-4, 'orifice')
     expectPrinted(expected, '26.2', 'orifice choked for, s (hand computation)')
     // Up to that time both runs are the same choked discharge.
@@ -282,9 +340,18 @@ describe('tankBlowdown through a converging–diverging nozzle (exitArea given)'
         continue
       }
       // Isentropic from the receiver to the exit at pa: ṁ = Ae·p·√(2γ/((γ−1)RT)·(r^(2/γ) − r^((γ+1)/γ))).
-      const orificeWithAe = exitArea * p * Math.sqrt(((2 * g) / ((g - 1) * R * t)) * (Math.pow(r, 2 / g) - Math.pow(r, (g + 1) / g)))
+      const orificeWithAe =
+        exitArea * p * Math.sqrt(((2 * g) / ((g - 1) * R * t)) * (Math.pow(r, 2 / g) - Math.pow(r, (g + 1) / g)))
       expectClose(run.massFlow[i]!, 0.98 * orificeWithAe, 1e-9, `unchoked, t=${run.time[i]}`)
-      const viaNozzle = nozzleFlow({ chamberPressure: p, chamberTemperature: t, ambientPressure: stand.ambientPressure, throatArea, exitArea, gamma: g, gasConstant: R })
+      const viaNozzle = nozzleFlow({
+        chamberPressure: p,
+        chamberTemperature: t,
+        ambientPressure: stand.ambientPressure,
+        throatArea,
+        exitArea,
+        gamma: g,
+        gasConstant: R,
+      })
       expectClose(run.massFlow[i]!, 0.98 * viaNozzle.massFlow, 1e-12)
       checked++
     }
@@ -294,12 +361,14 @@ describe('tankBlowdown through a converging–diverging nozzle (exitArea given)'
   it('has no jump in mass flow where the throat unchokes, conserves mass, and ends at ambient pressure', () => {
     const run = tankBlowdown(stand)
     let largest = 0
-    for (let i = 1; i < run.time.length - 1; i++) largest = Math.max(largest, Math.abs(run.massFlow[i]! - run.massFlow[i - 1]!))
+    for (let i = 1; i < run.time.length - 1; i++)
+      largest = Math.max(largest, Math.abs(run.massFlow[i]! - run.massFlow[i - 1]!))
     // The steepest change of the smooth decay is at the start: ṁ ∝ p/√T ∝ P^((γ+1)/(2γ)) and
     // dP/dt = −(γ/τ)·P^((3γ−1)/(2γ)), so |dṁ/dt| = ṁ0·(γ+1)/(2τ) at P = 1. A jump would be far larger.
     expect(largest).toBeLessThan(run.massFlow[0]! * (0.01 / tau(stand)) * 1.2 * 1.05)
     let outflow = 0
-    for (let i = 1; i < run.time.length; i++) outflow += 0.5 * (run.time[i]! - run.time[i - 1]!) * (run.massFlow[i]! + run.massFlow[i - 1]!)
+    for (let i = 1; i < run.time.length; i++)
+      outflow += 0.5 * (run.time[i]! - run.time[i - 1]!) * (run.massFlow[i]! + run.massFlow[i - 1]!)
     const last = run.time.length - 1
     const mass = (i: number) => (run.pressure[i]! * stand.volume) / (stand.gasConstant * run.temperature[i]!)
     expectClose(outflow, mass(0) - mass(last), 1e-4, 'outflow vs mass lost')
@@ -311,6 +380,7 @@ describe('tankBlowdown through a converging–diverging nozzle (exitArea given)'
     const same = tankBlowdown({ ...base, exitArea: base.throatArea })
     const plain = tankBlowdown(base)
     expect(same.time.length).toBe(plain.time.length)
-    for (let i = 0; i < plain.time.length; i += 50) expectClose(same.pressure[i]!, plain.pressure[i]!, 1e-12, `t=${plain.time[i]}`)
+    for (let i = 0; i < plain.time.length; i += 50)
+      expectClose(same.pressure[i]!, plain.pressure[i]!, 1e-12, `t=${plain.time[i]}`)
   })
 })

@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest'
-import { idealExhaustVelocity, idealSpecificImpulse, isentropic, machFromPressureRatio, nozzleFlow } from '../../../shared/physics'
+import {
+  idealExhaustVelocity,
+  idealSpecificImpulse,
+  isentropic,
+  machFromPressureRatio,
+  nozzleFlow,
+} from '../../../shared/physics'
 import { expectClose } from '../../helpers/expect-close'
 import { expectRangeError } from '../../helpers/expect-range-error'
 
@@ -45,8 +51,17 @@ describe('idealSpecificImpulse: optimum expansion to the ambient pressure', () =
     const pa = 84e3
     const ceiling = idealSpecificImpulse(p0, pa, T0, GAMMA, R)
     const flow = (exitArea: number) =>
-      nozzleFlow({ chamberPressure: p0, chamberTemperature: T0, ambientPressure: pa, throatArea: 1e-5, exitArea, gamma: GAMMA, gasConstant: R })
-    for (let eps = 1.2; eps <= 6; eps += 0.1) expect(flow(eps * 1e-5).specificImpulse, `ε = ${eps.toFixed(1)}`).toBeLessThanOrEqual(ceiling * (1 + 1e-12))
+      nozzleFlow({
+        chamberPressure: p0,
+        chamberTemperature: T0,
+        ambientPressure: pa,
+        throatArea: 1e-5,
+        exitArea,
+        gamma: GAMMA,
+        gasConstant: R,
+      })
+    for (let eps = 1.2; eps <= 6; eps += 0.1)
+      expect(flow(eps * 1e-5).specificImpulse, `ε = ${eps.toFixed(1)}`).toBeLessThanOrEqual(ceiling * (1 + 1e-12))
     // Design area ratio for pe = pa: the area ratio of the Mach number whose p/p0 is pa/p0.
     const design = isentropic(machFromPressureRatio(pa / p0, GAMMA), GAMMA).areaRatio
     expectClose(flow(design * 1e-5).specificImpulse, ceiling, 1e-9)

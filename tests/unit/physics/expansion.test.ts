@@ -53,7 +53,8 @@ describe('prandtlMeyer', () => {
   })
 
   it('agrees with the closed form for other gammas', () => {
-    for (const g of [1.1, 1.3, 5 / 3]) for (const m of [1.2, 2, 4, 10]) expectClose(prandtlMeyer(m, g), refNu(m, g), 1e-13)
+    for (const g of [1.1, 1.3, 5 / 3])
+      for (const m of [1.2, 2, 4, 10]) expectClose(prandtlMeyer(m, g), refNu(m, g), 1e-13)
   })
 
   it('rejects subsonic and non-finite Mach numbers and bad gamma', () => {

@@ -38,7 +38,11 @@ describe('the formula library barrel', () => {
   })
 
   it('throws RangeErrors with the argument name and allowed range, in one format', () => {
-    expect(() => physics.isentropic(2, 1)).toThrowError(new RangeError('gamma must be a finite number greater than 1 (got 1)'))
-    expect(() => physics.normalShock(0.5, 1.4)).toThrowError(new RangeError('mach1 must be a finite number of at least 1 (got 0.5)'))
+    expect(() => physics.isentropic(2, 1)).toThrowError(
+      new RangeError('gamma must be a finite number greater than 1 (got 1)'),
+    )
+    expect(() => physics.normalShock(0.5, 1.4)).toThrowError(
+      new RangeError('mach1 must be a finite number of at least 1 (got 0.5)'),
+    )
   })
 })

@@ -1,5 +1,10 @@
 import { describe, expect, it } from 'vitest'
-import { criticalPressureRatio, isentropic, machFromAreaRatio, machFromPressureRatio } from '../../../shared/physics/index'
+import {
+  criticalPressureRatio,
+  isentropic,
+  machFromAreaRatio,
+  machFromPressureRatio,
+} from '../../../shared/physics/index'
 import type { FlowBranch } from '../../../shared/physics/index'
 import { solveMachFromAreaRatio } from '../../../shared/physics/isentropic'
 import { expectClose } from '../../helpers/expect-close'
@@ -170,7 +175,10 @@ describe('machFromAreaRatio', () => {
     expectRangeError(() => machFromAreaRatio(0, 1.4, 'subsonic'), 'areaRatio')
     expectRangeError(() => machFromAreaRatio(Number.NaN, 1.4, 'subsonic'), 'areaRatio', 'NaN')
     expectRangeError(() => machFromAreaRatio(Infinity, 1.4, 'supersonic'), 'areaRatio', 'Infinity')
-    expectRangeError(() => machFromAreaRatio(2, 1, 'supersonic'), 'gamma must be a finite number greater than 1 (got 1)')
+    expectRangeError(
+      () => machFromAreaRatio(2, 1, 'supersonic'),
+      'gamma must be a finite number greater than 1 (got 1)',
+    )
     expectRangeError(() => machFromAreaRatio(2, Number.NaN, 'supersonic'), 'gamma', 'NaN')
     expectRangeError(() => machFromAreaRatio(2, 1.4, 'sideways' as FlowBranch), 'branch', "'subsonic'", "'supersonic'")
   })
@@ -224,7 +232,8 @@ describe('criticalPressureRatio', () => {
   })
 
   it('matches (2/(γ+1))^(γ/(γ−1)) for other gases', () => {
-    for (const g of [1.1, 1.2, 1.3, 5 / 3]) expectClose(criticalPressureRatio(g), Math.pow(2 / (g + 1), g / (g - 1)), 1e-14)
+    for (const g of [1.1, 1.2, 1.3, 5 / 3])
+      expectClose(criticalPressureRatio(g), Math.pow(2 / (g + 1), g / (g - 1)), 1e-14)
   })
 })
 

@@ -19,7 +19,8 @@ import { expectRangeError } from '../../helpers/expect-range-error'
 
 // ---- Independent reference formulas, written here from the textbooks (not the library) ----
 const pOverP0 = (m: number, g: number) => Math.pow(1 + ((g - 1) / 2) * m * m, -g / (g - 1))
-const areaRatioOf = (m: number, g: number) => Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
+const areaRatioOf = (m: number, g: number) =>
+  Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
 function machOfAreaRatio(x: number, g: number, supersonic: boolean): number {
   let lo = supersonic ? 1 : 1e-9
   let hi = supersonic ? 100 : 1
@@ -31,17 +32,21 @@ function machOfAreaRatio(x: number, g: number, supersonic: boolean): number {
   return 0.5 * (lo + hi)
 }
 const normalShockP0Ratio = (m: number, g: number) =>
-  Math.pow(((g + 1) * m * m) / ((g - 1) * m * m + 2), g / (g - 1)) * Math.pow((g + 1) / (2 * g * m * m - (g - 1)), 1 / (g - 1))
+  Math.pow(((g + 1) * m * m) / ((g - 1) * m * m + 2), g / (g - 1)) *
+  Math.pow((g + 1) / (2 * g * m * m - (g - 1)), 1 / (g - 1))
 const normalShockPRatio = (m: number, g: number) => 1 + ((2 * g) / (g + 1)) * (m * m - 1)
 
 // Sutton & Biblarz, Rocket Propulsion Elements (8th ed.), chapter 3, equations as recalled from memory:
 /** eq. 3-30: ideal thrust coefficient. */
 function suttonThrustCoefficient(k: number, p2OverP1: number, p3OverP1: number, areaRatio: number): number {
-  const momentum = Math.sqrt(((2 * k * k) / (k - 1)) * Math.pow(2 / (k + 1), (k + 1) / (k - 1)) * (1 - Math.pow(p2OverP1, (k - 1) / k)))
+  const momentum = Math.sqrt(
+    ((2 * k * k) / (k - 1)) * Math.pow(2 / (k + 1), (k + 1) / (k - 1)) * (1 - Math.pow(p2OverP1, (k - 1) / k)),
+  )
   return momentum + (p2OverP1 - p3OverP1) * areaRatio
 }
 /** eq. 3-32: characteristic velocity. */
-const suttonCStar = (k: number, r: number, t1: number) => Math.sqrt(k * r * t1) / (k * Math.sqrt(Math.pow(2 / (k + 1), (k + 1) / (k - 1))))
+const suttonCStar = (k: number, r: number, t1: number) =>
+  Math.sqrt(k * r * t1) / (k * Math.sqrt(Math.pow(2 / (k + 1), (k + 1) / (k - 1))))
 /** eq. 3-16: exit velocity. */
 const suttonExitVelocity = (k: number, r: number, t1: number, p2OverP1: number) =>
   Math.sqrt(((2 * k) / (k - 1)) * r * t1 * (1 - Math.pow(p2OverP1, (k - 1) / k)))
@@ -95,7 +100,7 @@ describe('nozzleFlow, a worked rocket-nozzle example (Sutton & Biblarz, ch. 3)',
     expectPrinted(flow.exitTemperature, '599', 'T2 in K (hand computation)')
   })
 
-  it('has the throat temperature Tt = T1·2/(k+1) = 2435 K (the book\'s figure from memory; equation number not recalled)', () => {
+  it("has the throat temperature Tt = T1·2/(k+1) = 2435 K (the book's figure from memory; equation number not recalled)", () => {
     expectPrinted(t1 * isentropic(1, k).temperatureRatio, '2435', 'Tt in K')
   })
 
@@ -147,7 +152,12 @@ describe('nozzlePressureRatios', () => {
       const r = nozzlePressureRatios(eps, 1.4)
       expectClose(r.chokeLimit, pOverP0(subsonic, 1.4), 1e-12, `chokeLimit ε=${eps}`)
       expectClose(r.design, pOverP0(supersonic, 1.4), 1e-11, `design ε=${eps}`)
-      expectClose(r.shockAtExit, pOverP0(supersonic, 1.4) * normalShockPRatio(supersonic, 1.4), 1e-11, `shockAtExit ε=${eps}`)
+      expectClose(
+        r.shockAtExit,
+        pOverP0(supersonic, 1.4) * normalShockPRatio(supersonic, 1.4),
+        1e-11,
+        `shockAtExit ε=${eps}`,
+      )
       expect(r.chokeLimit).toBeGreaterThan(r.shockAtExit)
       expect(r.shockAtExit).toBeGreaterThan(r.design)
     }
@@ -293,7 +303,14 @@ describe('nozzleFlow regimes as the back pressure falls', () => {
 
 describe('converging nozzle (exit area = throat area)', () => {
   const flowAt = (ratio: number) =>
-    nozzleFlow({ chamberPressure: 1.88e5 * (ratio / 1.88), chamberTemperature: 293, ambientPressure: 1e5, throatArea: 1e-5, exitArea: 1e-5, ...AIR })
+    nozzleFlow({
+      chamberPressure: 1.88e5 * (ratio / 1.88),
+      chamberTemperature: 293,
+      ambientPressure: 1e5,
+      throatArea: 1e-5,
+      exitArea: 1e-5,
+      ...AIR,
+    })
 
   it('is not choked at p0/pa = 1.88 and is choked at 1.90: the critical ratio of air is 0.528, i.e. about 1.89 (common practice, no published source)', () => {
     expect(flowAt(1.88).throatChoked).toBe(false)
@@ -328,7 +345,15 @@ describe('idealThrust', () => {
         [3000, 400],
         [77, 297],
       ] as const) {
-        const flow = nozzleFlow({ chamberPressure: 1e6, chamberTemperature: t0, ambientPressure: pa, throatArea: 1e-4, exitArea: 3e-4, gamma: 1.4, gasConstant: r })
+        const flow = nozzleFlow({
+          chamberPressure: 1e6,
+          chamberTemperature: t0,
+          ambientPressure: pa,
+          throatArea: 1e-4,
+          exitArea: 3e-4,
+          gamma: 1.4,
+          gasConstant: r,
+        })
         expectClose(flow.thrust, reference, 1e-12, `pa=${pa} T0=${t0} R=${r}`)
       }
     }
@@ -336,7 +361,11 @@ describe('idealThrust', () => {
 
   it('equals CF·p0·At with CF from eq. 3-30 when the exit is supersonic', () => {
     const pe = pOverP0(machOfAreaRatio(3, 1.4, true), 1.4)
-    expectClose(idealThrust(1e6, 101325, 1e-4, 3e-4, 1.4), suttonThrustCoefficient(1.4, pe, 0.101325, 3) * 1e6 * 1e-4, 1e-10)
+    expectClose(
+      idealThrust(1e6, 101325, 1e-4, 3e-4, 1.4),
+      suttonThrustCoefficient(1.4, pe, 0.101325, 3) * 1e6 * 1e-4,
+      1e-10,
+    )
   })
 })
 
@@ -356,7 +385,14 @@ describe('machDiskDistance', () => {
 
   it('refuses an over-expanded or ideally expanded jet when given the exit pressure, and accepts an under-expanded one', () => {
     // ε = 4 from 100 psi gauge at 98.6 kPa: pe = 0.0298·p0 ≈ 23.5 kPa, well below ambient (over-expanded).
-    const over = nozzleFlow({ chamberPressure: 788e3, chamberTemperature: 293, ambientPressure: 98.6e3, throatArea: 1e-4, exitArea: 4e-4, ...AIR })
+    const over = nozzleFlow({
+      chamberPressure: 788e3,
+      chamberTemperature: 293,
+      ambientPressure: 98.6e3,
+      throatArea: 1e-4,
+      exitArea: 4e-4,
+      ...AIR,
+    })
     expect(over.regime).toBe('overexpanded')
     expectRangeError(() => machDiskDistance(0.01, 788e3, 98.6e3, over.exitPressure), 'exitPressure', 'over-expanded')
     // Within the 1 % ideal band: no Mach disk either.
@@ -378,7 +414,11 @@ describe('machDiskDistance', () => {
 describe('machDiskDistanceLewisCarlson', () => {
   it('is 0.69·De·Me·√(γ·pe/pa) (Lewis & Carlson, AIAA J. 1964; coefficient and form from memory)', () => {
     expect(LEWIS_CARLSON_COEFFICIENT).toBe(0.69)
-    expectClose(machDiskDistanceLewisCarlson(0.008, 2.94, 2 * 98.6e3, 98.6e3, 1.4), 0.69 * 0.008 * 2.94 * Math.sqrt(1.4 * 2), 1e-15)
+    expectClose(
+      machDiskDistanceLewisCarlson(0.008, 2.94, 2 * 98.6e3, 98.6e3, 1.4),
+      0.69 * 0.008 * 2.94 * Math.sqrt(1.4 * 2),
+      1e-15,
+    )
     expectClose(machDiskDistanceLewisCarlson(0.01, 1, 5e5, 1e5, 1.3), 0.69 * 0.01 * Math.sqrt(1.3 * 5), 1e-15)
   })
 
@@ -388,7 +428,11 @@ describe('machDiskDistanceLewisCarlson', () => {
     const pe = 20e5 * Math.pow(2 / 2.4, 3.5)
     const x = machDiskDistanceLewisCarlson(0.01, 1, pe, 1e5, 1.4) / 0.01
     expectClose(x, 3.0, 0.15)
-    expectClose(x / (machDiskDistance(0.01, 20e5, 1e5) / 0.01), (0.69 * Math.sqrt(1.4 * Math.pow(2 / 2.4, 3.5))) / 0.67, 1e-12)
+    expectClose(
+      x / (machDiskDistance(0.01, 20e5, 1e5) / 0.01),
+      (0.69 * Math.sqrt(1.4 * Math.pow(2 / 2.4, 3.5))) / 0.67,
+      1e-12,
+    )
   })
 
   it('refuses an over-expanded or ideally expanded exit, a subsonic exit Mach number and a bad gamma, by name', () => {
@@ -402,9 +446,20 @@ describe('machDiskDistanceLewisCarlson', () => {
 })
 
 describe('nozzleFlow argument checks', () => {
-  const good: NozzleInput = { chamberPressure: 1e6, chamberTemperature: 300, ambientPressure: 1e5, throatArea: 1e-4, exitArea: 2e-4, ...AIR }
+  const good: NozzleInput = {
+    chamberPressure: 1e6,
+    chamberTemperature: 300,
+    ambientPressure: 1e5,
+    throatArea: 1e-4,
+    exitArea: 2e-4,
+    ...AIR,
+  }
   it('names the argument and its range in every RangeError', () => {
-    expectRangeError(() => nozzleFlow({ ...good, ambientPressure: 1e6 }), 'ambientPressure', 'less than chamberPressure')
+    expectRangeError(
+      () => nozzleFlow({ ...good, ambientPressure: 1e6 }),
+      'ambientPressure',
+      'less than chamberPressure',
+    )
     expectRangeError(() => nozzleFlow({ ...good, ambientPressure: -1 }), 'ambientPressure', 'at least 0')
     expectRangeError(() => nozzleFlow({ ...good, exitArea: 0.5e-4 }), 'exitArea', 'at least throatArea')
     expectRangeError(() => nozzleFlow({ ...good, throatArea: 0 }), 'throatArea', 'greater than 0')

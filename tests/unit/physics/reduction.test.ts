@@ -32,7 +32,9 @@ describe('totalImpulse', () => {
     const f = (t: number) => 50 * Math.sin((Math.PI * t) / 2)
     const exact = 200 / Math.PI
     expectClose(totalImpulse(fine, fine.map(f)), exact, 1e-6)
-    expect(Math.abs(totalImpulse(coarse, coarse.map(f)) - exact)).toBeGreaterThan(Math.abs(totalImpulse(fine, fine.map(f)) - exact))
+    expect(Math.abs(totalImpulse(coarse, coarse.map(f)) - exact)).toBeGreaterThan(
+      Math.abs(totalImpulse(fine, fine.map(f)) - exact),
+    )
   })
 
   it('accepts repeated time stamps (zero-width intervals add nothing)', () => {

@@ -9,7 +9,8 @@ const pOverP0 = (m: number, g: number) => Math.pow(1 + ((g - 1) / 2) * m * m, -g
 /** NACA Report 1135, eq. 44 solved for M (from memory). */
 const machOfPressureRatio = (p: number, g: number) => Math.sqrt((2 / (g - 1)) * (Math.pow(p, -(g - 1) / g) - 1))
 /** NACA Report 1135, eq. 80 (from memory). */
-const areaRatioOf = (m: number, g: number) => Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
+const areaRatioOf = (m: number, g: number) =>
+  Math.pow((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m), (g + 1) / (2 * (g - 1))) / m
 function supersonicMachOfAreaRatio(x: number, g: number): number {
   let lo = 1
   let hi = 100
@@ -25,7 +26,9 @@ function supersonicMachOfAreaRatio(x: number, g: number): number {
  * a nozzle of area ratio ε whose exit pressure is p2 = p2OverP1·p1, into ambient p3.
  */
 function suttonThrustCoefficient(k: number, p2OverP1: number, p3OverP1: number, areaRatio: number): number {
-  const momentum = Math.sqrt(((2 * k * k) / (k - 1)) * Math.pow(2 / (k + 1), (k + 1) / (k - 1)) * (1 - Math.pow(p2OverP1, (k - 1) / k)))
+  const momentum = Math.sqrt(
+    ((2 * k * k) / (k - 1)) * Math.pow(2 / (k + 1), (k + 1) / (k - 1)) * (1 - Math.pow(p2OverP1, (k - 1) / k)),
+  )
   return momentum + (p2OverP1 - p3OverP1) * areaRatio
 }
 
@@ -102,7 +105,12 @@ describe('flow separation by the Summerfield criterion', () => {
         integral += (i === 0 || i === n ? 1 : i % 2 === 1 ? 4 : 2) * deficit
       }
       integral *= (h / 3) * P0 * AT
-      expectClose((flow.separatedThrust ?? Number.NaN) - flow.thrust, integral, 1e-7, `ε = ${areaRatio}, pa/p0 = ${ambient}`)
+      expectClose(
+        (flow.separatedThrust ?? Number.NaN) - flow.thrust,
+        integral,
+        1e-7,
+        `ε = ${areaRatio}, pa/p0 = ${ambient}`,
+      )
     }
   })
 
@@ -167,7 +175,12 @@ describe('flow separation by the Summerfield criterion', () => {
       [77, 297],
       [1, 1],
     ] as const) {
-      expectClose(flowAt(4, 0.2, { chamberTemperature: t0, gasConstant: r }).separatedThrust ?? Number.NaN, reference, 1e-12, `T0=${t0} R=${r}`)
+      expectClose(
+        flowAt(4, 0.2, { chamberTemperature: t0, gasConstant: r }).separatedThrust ?? Number.NaN,
+        reference,
+        1e-12,
+        `T0=${t0} R=${r}`,
+      )
     }
     // And idealThrust, the full-flowing value, is unchanged by the new fields.
     expectClose(idealThrust(P0, 0.2 * P0, AT, 4 * AT, G), flowAt(4, 0.2).thrust, 1e-12)

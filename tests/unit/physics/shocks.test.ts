@@ -196,7 +196,16 @@ describe('obliqueShock', () => {
   })
 
   it('throws a RangeError naming the maximum deflection in degrees and radians when the shock would detach', () => {
-    expectRangeError(() => obliqueShock(2, 25 * DEG, 1.4, 'weak'), 'deflection', 'maximum deflection', '22.97', '0.4009', 'rad', '°', 'detach')
+    expectRangeError(
+      () => obliqueShock(2, 25 * DEG, 1.4, 'weak'),
+      'deflection',
+      'maximum deflection',
+      '22.97',
+      '0.4009',
+      'rad',
+      '°',
+      'detach',
+    )
     expectRangeError(() => obliqueShock(3, 35 * DEG, 1.4, 'strong'), 'deflection', '34.07', '0.59469')
   })
 

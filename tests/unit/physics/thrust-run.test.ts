@@ -36,13 +36,16 @@ interface Burn {
   D: number
 }
 
-const burnAt = (b: Burn, t: number) => (t >= b.t0 && t <= b.t0 + b.D ? b.P * Math.sin((Math.PI * (t - b.t0)) / b.D) ** 2 : 0)
+const burnAt = (b: Burn, t: number) =>
+  t >= b.t0 && t <= b.t0 + b.D ? b.P * Math.sin((Math.PI * (t - b.t0)) / b.D) ** 2 : 0
 const crossingsOf = (b: Burn, theta: number) => {
   const lead = (b.D * Math.asin(Math.sqrt(theta))) / Math.PI
   return { start: b.t0 + lead, end: b.t0 + b.D - lead }
 }
 const integralBetween = (b: Burn, a: number, c: number) =>
-  b.P * ((c - a) / 2 - (b.D / (4 * Math.PI)) * (Math.sin((2 * Math.PI * (c - b.t0)) / b.D) - Math.sin((2 * Math.PI * (a - b.t0)) / b.D)))
+  b.P *
+  ((c - a) / 2 -
+    (b.D / (4 * Math.PI)) * (Math.sin((2 * Math.PI * (c - b.t0)) / b.D) - Math.sin((2 * Math.PI * (a - b.t0)) / b.D)))
 
 /** Sample times from 0 to `span` s at `rate` Hz (computed as i/rate, so they do not drift). */
 const timesOf = (rate: number, span: number) => Array.from({ length: Math.round(span * rate) + 1 }, (_, i) => i / rate)
@@ -99,22 +102,63 @@ describe('reduceThrustRun: the contract', () => {
     const backwards = [...t]
     backwards[10] = 0.05
     expectRangeError(() => reduceThrustRun(backwards, F), 'time must increase strictly', 'time[10] = 0.05')
-    expectRangeError(() => reduceThrustRun(t, F.map((v, i) => (i === 42 ? Number.NaN : v))), 'thrust[42]', 'NaN')
-    expectRangeError(() => reduceThrustRun(t.map((v, i) => (i === 7 ? Infinity : v)), F), 'time[7]', 'Infinity')
+    expectRangeError(
+      () =>
+        reduceThrustRun(
+          t,
+          F.map((v, i) => (i === 42 ? Number.NaN : v)),
+        ),
+      'thrust[42]',
+      'NaN',
+    )
+    expectRangeError(
+      () =>
+        reduceThrustRun(
+          t.map((v, i) => (i === 7 ? Infinity : v)),
+          F,
+        ),
+      'time[7]',
+      'Infinity',
+    )
     expectRangeError(() => reduceThrustRun(t, F.slice(1)), 'time and thrust must have the same length')
-    expectRangeError(() => reduceThrustRun(t, F, { threshold: 0 }), 'options.threshold', 'greater than 0 and less than 1')
+    expectRangeError(
+      () => reduceThrustRun(t, F, { threshold: 0 }),
+      'options.threshold',
+      'greater than 0 and less than 1',
+    )
     expectRangeError(() => reduceThrustRun(t, F, { threshold: 1 }), 'options.threshold')
   })
 
   it('refuses a log with no run above the noise: a flat log, pure noise, a single spike', () => {
-    expectRangeError(() => reduceThrustRun(t, t.map(() => 0.25)), 'no run above the noise')
+    expectRangeError(
+      () =>
+        reduceThrustRun(
+          t,
+          t.map(() => 0.25),
+        ),
+      'no run above the noise',
+    )
     const noise = normal(11)
     for (const rate of [100, 1000]) {
       const tt = timesOf(rate, 20)
-      expectRangeError(() => reduceThrustRun(tt, tt.map(() => 0.25 + 0.05 * noise())), 'no run above the noise')
+      expectRangeError(
+        () =>
+          reduceThrustRun(
+            tt,
+            tt.map(() => 0.25 + 0.05 * noise()),
+          ),
+        'no run above the noise',
+      )
     }
     // One sample of 30 N on a 0.2 N zero is a glitch, not a run: the moving median removes it.
-    expectRangeError(() => reduceThrustRun(t, t.map((_, i) => (i === 120 ? 30 : 0.2))), 'no run above the noise')
+    expectRangeError(
+      () =>
+        reduceThrustRun(
+          t,
+          t.map((_, i) => (i === 120 ? 30 : 0.2)),
+        ),
+      'no run above the noise',
+    )
   })
 
   it('refuses a log that starts inside the run (no zero to take)', () => {
@@ -149,9 +193,13 @@ describe('reduceThrustRun on generated stand logs (truth in closed form)', () =>
     const burn: Burn = { P: 25, t0: 2, D: 4 }
     const { start, end } = crossingsOf(burn, RUN_THRESHOLD)
     // The load cell's zero slides from 0.30 N to 0.12 N between the run's crossings (a thermal creep).
-    const zero = (x: number) => (x <= start ? 0.3 : x >= end ? 0.12 : 0.3 + ((0.12 - 0.3) * (x - start)) / (end - start))
+    const zero = (x: number) =>
+      x <= start ? 0.3 : x >= end ? 0.12 : 0.3 + ((0.12 - 0.3) * (x - start)) / (end - start)
     const t = timesOf(100, 9)
-    const r = reduceThrustRun(t, t.map((x) => zero(x) + burnAt(burn, x)))
+    const r = reduceThrustRun(
+      t,
+      t.map((x) => zero(x) + burnAt(burn, x)),
+    )
     const truth = truthOf(burn)
     expectClose(r.zeroBefore, 0.3, 1e-12)
     expectClose(r.zeroAfter as number, 0.12, 1e-12)
@@ -168,7 +216,8 @@ describe('reduceThrustRun on generated stand logs (truth in closed form)', () =>
     // fall between 10 s and the next one, so the drop is a clean step in the log).
     const P = 30
     const tau = 3
-    const thrust = (x: number) => (x < 1 ? 0 : x < 1.05 ? (P * (x - 1)) / 0.05 : x <= 10 ? P * Math.exp(-(x - 1.05) / tau) : 0)
+    const thrust = (x: number) =>
+      x < 1 ? 0 : x < 1.05 ? (P * (x - 1)) / 0.05 : x <= 10 ? P * Math.exp(-(x - 1.05) / tau) : 0
     const t = timesOf(100, 13)
     // The stand rings when the valve hits its stop: +9 N at the sample at 1.05 s, −4 N at the next.
     // And a knock as the valve is unlatched, at 0.96 s: +8 N while the thrust is still 0.
@@ -192,7 +241,8 @@ describe('reduceThrustRun on generated stand logs (truth in closed form)', () =>
     const h = 0.01
     const q = Math.exp(-h / tau)
     const decay = ((h / 2) * P * (1 + q) * (1 - q ** 895)) / (1 - q) // samples 1.05 … 10.00 s: 895 intervals
-    const ramp = (h / 2) * (0 + 6) + (h / 2) * (6 + 12) + (h / 2) * (12 + 18) + (h / 2) * (18 + 24) + (h / 2) * (24 + 30)
+    const ramp =
+      (h / 2) * (0 + 6) + (h / 2) * (6 + 12) + (h / 2) * (12 + 18) + (h / 2) * (18 + 24) + (h / 2) * (24 + 30)
     const step = (h / 2) * atClose
     expectClose(r.totalImpulse, ramp + decay + step + (9 - 4 + 8) * h, 1e-9)
   })
@@ -234,7 +284,10 @@ describe('reduceThrustRun on generated stand logs (truth in closed form)', () =>
   it('a log that ends inside the run has no zero after it: zeroAfter is null and the window ends at the last sample', () => {
     const burn: Burn = { P: 40, t0: 1, D: 4 }
     const t = timesOf(100, 3.5) // stops while the burn still gives 40·sin²(π·2.5/4) = 20 N
-    const r = reduceThrustRun(t, t.map((x) => 0.4 + burnAt(burn, x)))
+    const r = reduceThrustRun(
+      t,
+      t.map((x) => 0.4 + burnAt(burn, x)),
+    )
     expect(r.zeroAfter).toBeNull()
     expect(r.zeroBefore).toBe(0.4)
     expect(r.end).toBe(3.5)
@@ -246,7 +299,11 @@ describe('reduceThrustRun on generated stand logs (truth in closed form)', () =>
   it('a threshold of 10 % crosses at t0 + D·asin(√0.1)/π', () => {
     const burn: Burn = { P: 50, t0: 1, D: 3 }
     const t = timesOf(200, 5)
-    const r = reduceThrustRun(t, t.map((x) => 0.1 + burnAt(burn, x)), { threshold: 0.1 })
+    const r = reduceThrustRun(
+      t,
+      t.map((x) => 0.1 + burnAt(burn, x)),
+      { threshold: 0.1 },
+    )
     const truth = truthOf(burn, 0.1)
     expectClose(r.start, truth.start, 1e-4)
     expectClose(r.end, truth.end, 1e-4)
@@ -264,12 +321,22 @@ describe('tareAlongRun', () => {
     // The chamber follows the burn: 400 kPa gauge at its peak.
     const chamber = t.map((x) => zero(x) + (400e3 / 30) * burnAt(burn, x))
     const tared = tareAlongRun(t, chamber, thrust)
-    tared.forEach((p, i) => expect(Math.abs(p - (400e3 / 30) * burnAt(burn, t[i] as number)), `sample ${i}`).toBeLessThan(0.5))
+    tared.forEach((p, i) =>
+      expect(Math.abs(p - (400e3 / 30) * burnAt(burn, t[i] as number)), `sample ${i}`).toBeLessThan(0.5),
+    )
   })
 
   it('refuses a signal of another length', () => {
     const t = timesOf(100, 3)
-    expectRangeError(() => tareAlongRun(t, t.slice(1), t.map((x) => (x > 1 && x < 2 ? 10 : 0))), 'time and values must have the same length')
+    expectRangeError(
+      () =>
+        tareAlongRun(
+          t,
+          t.slice(1),
+          t.map((x) => (x > 1 && x < 2 ? 10 : 0)),
+        ),
+      'time and values must have the same length',
+    )
   })
 })
 
