@@ -2,10 +2,12 @@
 import { fileURLToPath, URL } from 'node:url'
 import { defineConfig } from 'vite'
 import vue from '@vitejs/plugin-vue'
+import { precompress } from './scripts/lib/vite-precompress'
 
 // https://vite.dev/config/
 export default defineConfig({
-  plugins: [vue()],
+  // precompress: .br and .gz beside each built file, served as they are by server/app.ts.
+  plugins: [vue(), precompress()],
   resolve: {
     alias: [
       { find: '@', replacement: fileURLToPath(new URL('./src', import.meta.url)) },

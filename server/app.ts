@@ -1,7 +1,9 @@
 import { existsSync } from 'node:fs'
 import path from 'node:path'
+import compression from 'compression'
 import cookieParser from 'cookie-parser'
 import express from 'express'
+import expressStaticGzip from 'express-static-gzip'
 import session from 'express-session'
 import MySQLStoreFactory from 'express-mysql-session'
 import mysql from 'mysql2/promise'
@@ -103,6 +105,12 @@ export function createApp({
     }),
   )
 
+  // JSON, CSV and the single-page app's index.html compressed per request (brotli when the browser
+  // offers it). The built assets have their .br/.gz files already; compression skips a response that
+  // already carries a Content-Encoding, so those go out as they are.
+  // https://github.com/expressjs/compression#readme
+  app.use(compression())
+
   // Every API reply is about one signed-in person (JSON, CSV, PDF, their files): no shared or
   // browser cache may keep it. Set first, so a route that needs its own policy simply replaces it.
   // https://developer.mozilla.org/en-US/docs/Web/HTTP/Reference/Headers/Cache-Control#no-store
@@ -193,10 +201,11 @@ export function createApp({
 
   const dist = path.resolve(config.CLIENT_DIST)
   if (config.CLIENT_DIST && existsSync(path.join(dist, 'index.html'))) {
-    app.use(express.static(dist, { index: false, maxAge: '1h' }))
+    app.use(clientAssets(dist))
     // Client-side routes: every other GET gets the single-page app.
     app.use((req, res, next) => {
       if (req.method !== 'GET' && req.method !== 'HEAD') return next()
+      res.set('Cache-Control', 'no-cache')
       res.sendFile(path.join(dist, 'index.html'))
     })
   }
@@ -211,6 +220,33 @@ export function createApp({
       if (!givenGrader) await grader.close()
     },
   }
+}
+
+/**
+ * The client build: the .br or .gz file written beside each asset at build time when the browser
+ * accepts it (with `Vary: Accept-Encoding`). Files under /assets carry a content hash in their names,
+ * so a browser may keep them for a year without asking again; index.html names those files, so it
+ * is checked with the server on every load (`no-cache` still lets the browser reuse it after a 304).
+ * https://github.com/tkoenig89/express-static-gzip#readme
+ * https://developer.mozilla.org/en-US/docs/Web/HTTP/Reference/Headers/Cache-Control#caching_static_assets
+ */
+function clientAssets(dist: string): express.RequestHandler {
+  const assets = path.join(dist, 'assets') + path.sep
+  return expressStaticGzip(dist, {
+    enableBrotli: true,
+    orderPreference: ['br', 'gzip'],
+    index: false,
+    serveStatic: {
+      index: false,
+      // Set below per file; serve-static's own max-age would otherwise replace it.
+      cacheControl: false,
+      setHeaders: (res, file) => {
+        if (file.startsWith(assets)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable')
+        else if (path.basename(file).startsWith('index.html')) res.setHeader('Cache-Control', 'no-cache')
+        else res.setHeader('Cache-Control', 'public, max-age=3600')
+      },
+    },
+  })
 }
 
 /** How hand-ins are graded in this process: the threads, the log, and the receipt once graded. */

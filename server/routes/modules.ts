@@ -3,6 +3,7 @@ import {
   CreateModuleSchema,
   DiffQuerySchema,
   ModuleParamsSchema,
+  PreviewModuleSchema,
   PublishModuleSchema,
   SaveModuleSchema,
   VersionParamsSchema,
@@ -18,6 +19,7 @@ import {
   listModules,
   moduleVersionSource,
   moduleVersions,
+  previewModule,
   publishModule,
   readModule,
   saveModule,
@@ -31,6 +33,7 @@ import {
  * - GET    /:moduleId                         enrolled (students: the published version; drafts are 404)
  * - GET    /:moduleId/edit                    staff (current version's source and issues)
  * - PUT    /:moduleId                         instructor (save draft)
+ * - POST   /:moduleId/preview                 staff (check and render unsaved text; stores nothing)
  * - POST   /:moduleId/publish                 instructor
  * - POST   /:moduleId/unpublish               instructor
  * - GET    /:moduleId/versions                staff
@@ -67,6 +70,17 @@ export function moduleRoutes(db: Database, opts: { appUrl: string; onPublished: 
     const { moduleId } = valid(res, 'params', ModuleParamsSchema)
     res.json(await saveModule(db, enrollmentOf(res), moduleId, valid(res, 'body', SaveModuleSchema)))
   })
+
+  r.post(
+    '/:moduleId/preview',
+    courseMember(db, STAFF),
+    params,
+    validate('body', PreviewModuleSchema),
+    async (_req, res) => {
+      const { moduleId } = valid(res, 'params', ModuleParamsSchema)
+      res.json(await previewModule(db, enrollmentOf(res), moduleId, valid(res, 'body', PreviewModuleSchema).source))
+    },
+  )
 
   r.post(
     '/:moduleId/publish',

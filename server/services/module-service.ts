@@ -4,6 +4,7 @@ import type {
   ModuleDiff,
   ModuleEditing,
   ModuleListItem,
+  ModulePreview,
   ModuleReading,
   PublishResult,
   VersionSummary,
@@ -178,6 +179,24 @@ async function editing(db: Database, courseId: number, moduleId: number): Promis
 
 export function editModule(db: Database, e: CourseEnrollment, moduleId: number): Promise<ModuleEditing> {
   return editing(db, e.courseId, moduleId)
+}
+
+/**
+ * The editor's live preview: the module's text checked and rendered as a save would store it, with
+ * nothing stored. Rendered here rather than in the browser so the editor page does not download
+ * the Markdown parser, KaTeX, the YAML parser and the expression engine.
+ */
+export async function previewModule(
+  db: Database,
+  e: CourseEnrollment,
+  moduleId: number,
+  source: string,
+): Promise<ModulePreview> {
+  const m = await findModule(db, e.courseId, moduleId)
+  if (!m) throw notFound('That module')
+  const { timeZone } = await courseTimeZone(db, e.courseId)
+  const c = checkModule(source, m.slug, timeZone)
+  return { title: c.title, html: c.html, dueAt: c.dueAt?.toISOString() ?? null, issues: c.issues }
 }
 
 export async function createModule(db: Database, e: CourseEnrollment, source: string): Promise<ModuleEditing> {

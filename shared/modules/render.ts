@@ -1,6 +1,6 @@
 /**
- * Module Markdown → sanitised HTML, the same function for the editor's preview in the browser and
- * for the stored HTML on the server.
+ * Module Markdown → sanitised HTML, the same function for the stored HTML and for the editor's
+ * preview (both rendered on the server, so the browser never downloads KaTeX or the Markdown parser).
  *
  * - markdown-it with raw HTML off (any HTML in the Markdown is shown as text), links turned on for
  *   bare URLs, and typographic quotes and dashes.
@@ -11,8 +11,9 @@
  *   mounts a live calculator on: `<div class="isentrope-calculator" data-kind="nozzle"
  *   data-defaults="{…json…}"></div>`. Its YAML body holds the calculator's starting inputs as
  *   `name: value` lines (numbers, text or true/false).
- * - The result is passed through sanitize-html with an allowlist (Markdown's tags, KaTeX's HTML,
- *   MathML and SVG, the calculator placeholder); links may only be http, https, mailto or relative.
+ * - The result is passed through sanitize-html with the allow-list in ./html-allow-list.ts (Markdown's
+ *   tags, KaTeX's HTML, MathML and SVG, the calculator placeholder); links may only be http, https,
+ *   mailto or relative. The browser runs DOMPurify with the same list over every module it shows.
  */
 import katex from 'katex'
 import MarkdownIt from 'markdown-it'
@@ -20,6 +21,7 @@ import type { Env } from 'markdown-it'
 import texmath from 'markdown-it-texmath'
 import sanitizeHtml from 'sanitize-html'
 import { parseDocument } from 'yaml'
+import { EXTERNAL_LINK_REL, MODULE_HTML, isExternalLink } from './html-allow-list'
 import type { ModuleIssue } from './front-matter'
 
 /** The live calculators a module can embed. */
@@ -153,203 +155,27 @@ function createMarkdown() {
 
 const markdown = createMarkdown()
 
-// CSS values KaTeX writes into style attributes: lengths, colours, and a few keywords.
-const NUMBER = String.raw`-?(?:\d+(?:\.\d+)?|\.\d+)`
-const LENGTH = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt|mu|%)?$`)
-const LENGTHS = new RegExp(String.raw`^${NUMBER}(?:em|ex|px|pt|mu|%)?(?:\s+${NUMBER}(?:em|ex|px|pt|mu|%)?){0,3}$`)
-const WIDTH = new RegExp(String.raw`^(?:${NUMBER}(?:em|ex|px|pt|mu|%)?|calc\(100% - ${NUMBER}em\))$`)
-const COLOR =
-  /^(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}|rgba?\(\s*[\d.]+%?\s*,\s*[\d.]+%?\s*,\s*[\d.]+%?\s*(?:,\s*[\d.]+\s*)?\))$/
-const BORDER_STYLE = /^(?:solid|dashed|dotted|none)$/
-const BORDER = new RegExp(
-  String.raw`^${NUMBER}(?:em|ex|px|pt)?\s+(?:solid|dashed|dotted)(?:\s+(?:#[0-9a-fA-F]{3,8}|[a-zA-Z]{1,30}))?$`,
-)
-
-const KATEX_STYLES: Record<string, RegExp[]> = {
-  'background-color': [COLOR],
-  border: [BORDER],
-  'border-bottom-width': [LENGTH],
-  'border-color': [COLOR],
-  'border-right-style': [BORDER_STYLE],
-  'border-right-width': [LENGTH],
-  'border-style': [BORDER_STYLE],
-  'border-top-width': [LENGTH],
-  'border-width': [LENGTH],
-  bottom: [LENGTH],
-  color: [COLOR],
-  height: [LENGTH],
-  left: [LENGTH],
-  margin: [LENGTHS],
-  'margin-left': [LENGTH],
-  'margin-right': [LENGTH],
-  'margin-top': [LENGTH],
-  'min-width': [LENGTH],
-  'padding-left': [LENGTH],
-  position: [/^relative$/],
-  'text-shadow': [LENGTHS],
-  top: [LENGTH],
-  'vertical-align': [LENGTH],
-  width: [WIDTH],
-}
-
-const MATHML_TAGS = [
-  'math',
-  'semantics',
-  'annotation',
-  'mrow',
-  'mi',
-  'mo',
-  'mn',
-  'ms',
-  'mtext',
-  'mspace',
-  'msup',
-  'msub',
-  'msubsup',
-  'mfrac',
-  'msqrt',
-  'mroot',
-  'mover',
-  'munder',
-  'munderover',
-  'mtable',
-  'mtr',
-  'mtd',
-  'mlabeledtr',
-  'mpadded',
-  'mphantom',
-  'mstyle',
-  'menclose',
-]
-
-// Presentation attributes only; no href (a link on any MathML element in some browsers).
-const MATHML_ATTRIBUTES = [
-  'mathvariant',
-  'mathcolor',
-  'mathbackground',
-  'mathsize',
-  'displaystyle',
-  'scriptlevel',
-  'stretchy',
-  'fence',
-  'separator',
-  'lspace',
-  'rspace',
-  'minsize',
-  'maxsize',
-  'symmetric',
-  'largeop',
-  'movablelimits',
-  'form',
-  'accent',
-  'accentunder',
-  'linethickness',
-  'columnalign',
-  'rowalign',
-  'columnspacing',
-  'rowspacing',
-  'columnlines',
-  'rowlines',
-  'frame',
-  'framespacing',
-  'equalrows',
-  'equalcolumns',
-  'width',
-  'height',
-  'depth',
-  'voffset',
-  'notation',
-  'linebreak',
-]
-
+// sanitize-html's options, built from the one allow-list the browser's sanitiser is built from too.
+// https://github.com/apostrophecms/sanitize-html#readme
 const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
-  allowedTags: [
-    // Markdown
-    'p',
-    'h1',
-    'h2',
-    'h3',
-    'h4',
-    'h5',
-    'h6',
-    'blockquote',
-    'ul',
-    'ol',
-    'li',
-    'strong',
-    'em',
-    's',
-    'del',
-    'code',
-    'pre',
-    'hr',
-    'br',
-    'a',
-    'img',
-    'table',
-    'thead',
-    'tbody',
-    'tr',
-    'th',
-    'td',
-    // markdown-it-texmath's wrappers and KaTeX's HTML
-    'section',
-    'eqn',
-    'eq',
-    'span',
-    // KaTeX's SVG (square roots, stretchy arrows and accents)
-    'svg',
-    'path',
-    'line',
-    // the calculator placeholder and inline error boxes
-    'div',
-    ...MATHML_TAGS,
-  ],
-  allowedAttributes: {
-    a: ['href', 'title', 'rel'],
-    img: ['src', 'alt', 'title'],
-    ol: ['start'],
-    th: ['style'],
-    td: ['style'],
-    code: ['class'],
-    span: ['class', 'style', 'aria-hidden', 'title'],
-    section: ['class'],
-    div: ['class', 'role', 'data-kind', 'data-defaults'],
-    svg: ['xmlns', 'width', 'height', 'viewbox', 'preserveaspectratio', 'style'],
-    path: ['d'],
-    line: ['x1', 'y1', 'x2', 'y2', 'stroke-width'],
-    math: ['xmlns', 'display', ...MATHML_ATTRIBUTES],
-    annotation: ['encoding'],
-    ...Object.fromEntries(
-      MATHML_TAGS.filter((t) => t !== 'math' && t !== 'annotation').map((t) => [t, MATHML_ATTRIBUTES]),
-    ),
-    mpadded: [...MATHML_ATTRIBUTES, 'style'],
-  },
-  allowedClasses: {
-    code: ['language-*'],
-    div: ['isentrope-calculator', 'isentrope-module-error'],
-    section: ['eqno'],
-  },
-  allowedStyles: {
-    span: KATEX_STYLES,
-    svg: { width: [WIDTH], height: [LENGTH], 'min-width': [LENGTH] },
-    // \fcolorbox draws its frame with a style on <mpadded>.
-    mpadded: { border: [BORDER], 'background-color': [COLOR] },
-    th: { 'text-align': [/^(?:left|right|center)$/] },
-    td: { 'text-align': [/^(?:left|right|center)$/] },
-  },
-  allowedSchemes: ['http', 'https', 'mailto'],
-  allowedSchemesByTag: { img: ['http', 'https'] },
-  allowedSchemesAppliedToAttributes: ['href', 'src', 'cite'],
+  allowedTags: [...MODULE_HTML.tags],
+  allowedAttributes: Object.fromEntries(Object.entries(MODULE_HTML.attributes).map(([t, a]) => [t, [...a]])),
+  allowedClasses: Object.fromEntries(Object.entries(MODULE_HTML.classes).map(([t, c]) => [t, [...c]])),
+  allowedStyles: Object.fromEntries(
+    Object.entries(MODULE_HTML.styles).map(([t, s]) => [
+      t,
+      Object.fromEntries(Object.entries(s).map(([p, v]) => [p, [...v]])),
+    ]),
+  ),
+  allowedSchemes: [...MODULE_HTML.schemes],
+  allowedSchemesByTag: Object.fromEntries(Object.entries(MODULE_HTML.schemesByTag).map(([t, s]) => [t, [...s]])),
+  allowedSchemesAppliedToAttributes: [...MODULE_HTML.urlAttributes],
   allowProtocolRelative: false,
   disallowedTagsMode: 'discard',
   transformTags: {
-    // External links: no referrer, no ranking credit for whatever a module links to.
     a: (tagName, attribs) => {
-      const href = attribs.href ?? ''
-      const external = /^https?:/i.test(href)
       const { rel: _rel, ...rest } = attribs
-      return { tagName, attribs: external ? { ...rest, rel: 'nofollow noopener noreferrer' } : rest }
+      return { tagName, attribs: isExternalLink(attribs.href ?? '') ? { ...rest, rel: EXTERNAL_LINK_REL } : rest }
     },
   },
 }

@@ -17,6 +17,8 @@ export const SaveModuleSchema = z.object({
   /** The version the editor started from; a different current version means someone else saved. */
   baseVersionId: z.number().int().positive(),
 })
+/** The editor's unsaved text, to preview. */
+export const PreviewModuleSchema = z.object({ source: ModuleSourceSchema })
 export const PublishModuleSchema = z.object({ versionId: z.number().int().positive() })
 
 export const ModuleParamsSchema = z.object({
@@ -83,6 +85,14 @@ export interface ModuleReading {
 }
 
 /** What staff edit: the current version's source with its validation issues. */
+/** What saving the editor's text would store (title, HTML, due date, problems), without storing it. */
+export interface ModulePreview {
+  title: string
+  html: string
+  dueAt: string | null
+  issues: ModuleIssue[]
+}
+
 export interface ModuleEditing {
   id: number
   courseId: number

@@ -2,6 +2,7 @@ import type {
   ModuleDiff,
   ModuleEditing,
   ModuleListItem,
+  ModulePreview,
   ModuleReading,
   PublishResult,
   VersionStatus,
@@ -20,6 +21,8 @@ export const createModule = (courseId: number, source: string) =>
   http<ModuleEditing>('POST', base(courseId), { source })
 export const saveModule = (courseId: number, moduleId: number, source: string, baseVersionId: number) =>
   http<ModuleEditing>('PUT', `${base(courseId)}/${moduleId}`, { source, baseVersionId })
+export const previewModule = (courseId: number, moduleId: number, source: string) =>
+  http<ModulePreview>('POST', `${base(courseId)}/${moduleId}/preview`, { source })
 export const publishModule = (courseId: number, moduleId: number, versionId: number) =>
   http<PublishResult>('POST', `${base(courseId)}/${moduleId}/publish`, { versionId })
 export const unpublishModule = (courseId: number, moduleId: number) =>

@@ -1,4 +1,7 @@
+import { onScopeDispose, ref, watch } from 'vue'
 import type { Ref } from 'vue'
+import type { ModuleEditing, ModuleIssue } from '@shared/schemas/modules'
+import { ApiError } from '@/api/http'
 import {
   createModule,
   exportUrl,
@@ -7,6 +10,7 @@ import {
   fetchModuleForEditing,
   fetchModules,
   fetchVersions,
+  previewModule,
   publishModule,
   saveModule,
   unpublishModule,
@@ -56,4 +60,73 @@ export function useModuleWrites(courseId: Ref<number>, moduleId: Ref<number>) {
     unpublish: () => unpublishModule(courseId.value, moduleId.value),
     exportHref: () => exportUrl(courseId.value, moduleId.value),
   }
+}
+
+export interface EditorPreview {
+  title: string
+  html: string
+  dueAt: Date | null
+  issues: ModuleIssue[]
+}
+
+/**
+ * The editor's live preview of its text. The saved text shows what the server stored with it; other
+ * text is checked and rendered by the server (the same check a save runs) a moment after typing
+ * stops, and the newest answer wins. `error` says why a preview could not be made (the last good one
+ * stays on screen).
+ */
+export function useModulePreview(
+  courseId: Ref<number>,
+  moduleId: Ref<number>,
+  source: Ref<string>,
+  saved: Ref<ModuleEditing | null>,
+  delayMs = 250,
+) {
+  const preview = ref<EditorPreview>({ title: '', html: '', dueAt: null, issues: [] })
+  const error = ref('')
+  let timer: ReturnType<typeof setTimeout> | undefined
+  let asked = 0
+
+  async function ask(text: string) {
+    const mine = ++asked
+    try {
+      const p = await previewModule(courseId.value, moduleId.value, text)
+      if (mine !== asked) return
+      preview.value = { title: p.title, html: p.html, dueAt: p.dueAt ? new Date(p.dueAt) : null, issues: p.issues }
+      error.value = ''
+    } catch (err) {
+      if (mine !== asked) return
+      error.value = `The preview could not be updated: ${err instanceof ApiError ? err.message : String(err)}`
+    }
+  }
+
+  watch(
+    [source, saved],
+    ([text, m]) => {
+      clearTimeout(timer)
+      if (!m) return
+      if (text === m.current.source) {
+        asked++
+        const c = m.current
+        preview.value = { title: c.title, html: c.html, dueAt: c.dueAt ? new Date(c.dueAt) : null, issues: c.issues }
+        error.value = ''
+        return
+      }
+      if (text.trim() === '') {
+        asked++
+        preview.value = {
+          title: '',
+          html: '',
+          dueAt: null,
+          issues: [{ path: '', message: 'The module text is empty.' }],
+        }
+        error.value = ''
+        return
+      }
+      timer = setTimeout(() => void ask(text), delayMs)
+    },
+    { immediate: true },
+  )
+  onScopeDispose(() => clearTimeout(timer))
+  return { preview, error }
 }

@@ -309,6 +309,15 @@ const CASES: Case[] = [
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   {
+    route: 'POST /api/courses/:courseId/modules/:moduleId/preview',
+    call: (c, fx) =>
+      c.agent
+        .post(`${M(fx)}/${pub()}/preview`)
+        .set('x-csrf-token', c.csrf)
+        .send({ source: moduleSource('Previewed for the matrix') }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
     route: 'POST /api/courses/:courseId/modules/:moduleId/publish',
     call: async (c, fx) => {
       // The instructor publishes a fresh module of their own; others try the same on the published one.
