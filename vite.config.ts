@@ -2,7 +2,7 @@
 import { fileURLToPath, URL } from 'node:url'
 import { defineConfig } from 'vite'
 import vue from '@vitejs/plugin-vue'
-import { precompress } from './scripts/lib/vite-precompress'
+import { precompress } from './scripts/lib/vite-precompress.ts'
 
 // https://vite.dev/config/
 export default defineConfig({

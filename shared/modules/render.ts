@@ -186,7 +186,12 @@ const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
  */
 export function renderModule(markdownText: string): string {
   const env: RenderEnv = {}
-  return sanitizeHtml(markdown.render(markdownText, env), SANITIZE_OPTIONS)
+  return sanitizeModuleHtml(markdown.render(markdownText, env))
+}
+
+/** HTML → what the module allow-list keeps of it (the server's sanitiser; the browser's is DOMPurify). */
+export function sanitizeModuleHtml(html: string): string {
+  return sanitizeHtml(html, SANITIZE_OPTIONS)
 }
 
 /**

@@ -2,6 +2,7 @@ import katex from 'katex'
 import { describe, expect, it } from 'vitest'
 import { MAX_FORMULAS, lintModuleBody, renderModule } from '../../../shared/modules/render'
 import { decodeEntities, scanTags, urlScheme } from './html-scan'
+import { MARKDOWN_PAYLOADS } from './xss-payloads'
 
 const FORBIDDEN_TAGS = new Set([
   'script',
@@ -50,51 +51,7 @@ function expectHarmless(html: string): void {
 }
 
 describe('renderModule: XSS payloads', () => {
-  const payloads: [string, string][] = [
-    ['script tag', '<script>alert(1)</script>'],
-    ['script tag split over lines', '<scr\nipt>alert(1)</script>'],
-    ['img onerror', '<img src=x onerror=alert(1)>'],
-    ['svg onload', '<svg onload=alert(1)><circle r=1 /></svg>'],
-    ['raw javascript link', '<a href="javascript:alert(1)">x</a>'],
-    ['style expression', '<p style="width: expression(alert(1))">x</p>'],
-    ['style url', '<div style="background:url(javascript:alert(1))">x</div>'],
-    ['iframe', '<iframe src="https://example.org"></iframe>'],
-    ['object and embed', '<object data="x.swf"></object><embed src="x.swf">'],
-    ['form', '<form action="https://example.org"><input name=a><button>go</button></form>'],
-    ['style element', '<style>body { display: none }</style>'],
-    ['MathML action link', '<math><maction actiontype="statusline" href="javascript:alert(1)">x</maction></math>'],
-    ['Markdown javascript link', '[x](javascript:alert(1))'],
-    ['mixed-case scheme', '[x](JaVaScRiPt:alert(1))'],
-    ['scheme in angle brackets', '[x](<javascript:alert(1)>)'],
-    ['entity-encoded scheme', '[x](java&#x73;cript:alert(1))'],
-    ['entity colon', '[x](javascript&colon;alert(1))'],
-    ['tab inside the scheme', '[x](java\tscript:alert(1))'],
-    ['vbscript', '[x](vbscript:msgbox(1))'],
-    ['data HTML', '[x](data:text/html;base64,PHNjcmlwdD5hbGVydCgxKTwvc2NyaXB0Pg==)'],
-    ['data image', '![x](data:image/png;base64,iVBORw0KGgo=)'],
-    ['data SVG image', '![x](data:image/svg+xml;base64,PHN2ZyBvbmxvYWQ9YWxlcnQoMSk+)'],
-    ['file URL', '[x](file:///etc/passwd)'],
-    ['autolink', '<javascript:alert(1)>'],
-    ['reference link', '[x][r]\n\n[r]: javascript:alert(1)'],
-    ['title breaking out', '[x](https://example.org "a\\" onmouseover=\\"alert(1)")'],
-    ['autolink breaking out', '<https://example.org" onmouseover="alert(1)>'],
-    ['linkified text with HTML', 'www.example.org/<script>alert(1)</script>'],
-    ['escaped entities', '&lt;script&gt;alert(1)&lt;/script&gt;'],
-    ['numeric entities', '&#60;script&#62;alert(1)&#60;/script&#62;'],
-    ['TeX href', '$\\href{javascript:alert(1)}{x}$'],
-    ['TeX url', '$\\url{javascript:alert(1)}$'],
-    ['TeX htmlStyle', '$\\htmlStyle{position:fixed;top:0;left:0;width:100%;height:100%}{x}$'],
-    ['TeX htmlId and htmlClass', '$\\htmlId{login}{x}\\htmlClass{isentrope-calculator}{y}$'],
-    ['TeX htmlData', '$\\htmlData{onclick=alert(1)}{y}$'],
-    ['TeX includegraphics', '$\\includegraphics{javascript:alert(1)}$'],
-    ['display TeX href', '$$\\href{javascript:alert(1)}{x}$$'],
-    ['TeX colour injection', '$\\color{red;position:fixed}{x}$'],
-    ['calculator defaults with markup', "```calculator nozzle\nlabel: '\"><script>alert(1)</script>'\n```"],
-    ['calculator kind with markup', '```calculator <img src=x onerror=alert(1)>\n```'],
-    ['code fence language with quotes', '```js" onmouseover="alert(1)\nx\n```'],
-  ]
-
-  it.each(payloads)('%s leaves nothing that runs', (_name, markdown) => {
+  it.each(MARKDOWN_PAYLOADS)('%s leaves nothing that runs', (_name, markdown) => {
     expectHarmless(renderModule(markdown))
   })
 
