@@ -111,6 +111,13 @@ export function createApp({
   // https://github.com/expressjs/compression#readme
   app.use(compression())
 
+  const dist = path.resolve(config.CLIENT_DIST)
+  const serveClient = Boolean(config.CLIENT_DIST) && existsSync(path.join(dist, 'index.html'))
+  // The built client's files before sessions and body parsing: a script or stylesheet needs neither,
+  // and a rolling session would otherwise write to the session store and send its cookie again with
+  // every one of them.
+  if (serveClient) app.use(clientAssets(dist))
+
   // Every API reply is about one signed-in person (JSON, CSV, PDF, their files): no shared or
   // browser cache may keep it. Set first, so a route that needs its own policy simply replaces it.
   // https://developer.mozilla.org/en-US/docs/Web/HTTP/Reference/Headers/Cache-Control#no-store
@@ -199,9 +206,7 @@ export function createApp({
   api.use(apiNotFound)
   app.use('/api', api)
 
-  const dist = path.resolve(config.CLIENT_DIST)
-  if (config.CLIENT_DIST && existsSync(path.join(dist, 'index.html'))) {
-    app.use(clientAssets(dist))
+  if (serveClient) {
     // Client-side routes: every other GET gets the single-page app.
     app.use((req, res, next) => {
       if (req.method !== 'GET' && req.method !== 'HEAD') return next()

@@ -1,6 +1,7 @@
-// `npm run bench`: the formula library, the grading step, the feedback report PDF, and hand-in throughput over HTTP on
-// loopback (against a project-owned bench database, started and stopped here). Prints figures;
-// speed goals are read from these, never asserted in tests.
+// `npm run bench`: the formula library, the grading step, the feedback report PDF, hand-in throughput over HTTP on
+// loopback (against a project-owned bench database, started and stopped here), and the bytes of JavaScript three
+// pages download in Chromium (after a fresh client build). Prints figures; speed goals are read from these, never
+// asserted in tests.
 import { existsSync } from 'node:fs'
 import path from 'node:path'
 import { spawnSync } from 'node:child_process'
@@ -21,9 +22,14 @@ const tsx = nodeBin('tsx/dist/cli.mjs')
 const runTs = (file, env = process.env) =>
   spawnSync(tsx[0], [tsx[1], file], { cwd: ROOT, stdio: 'inherit', env }).status === 0
 
-let ok = runTs('scripts/bench/physics.ts')
-if (existsSync(path.join(ROOT, 'scripts/bench/grading.ts'))) ok = runTs('scripts/bench/grading.ts') && ok
-ok = runTs('scripts/bench/report.ts') && ok
+// `npm run bench -- pages` runs only the page-weight part.
+const onlyPages = process.argv[2] === 'pages'
+let ok = true
+if (!onlyPages) {
+  ok = runTs('scripts/bench/physics.ts')
+  if (existsSync(path.join(ROOT, 'scripts/bench/grading.ts'))) ok = runTs('scripts/bench/grading.ts') && ok
+  ok = runTs('scripts/bench/report.ts') && ok
+}
 
 let db = null
 try {
@@ -42,7 +48,11 @@ try {
     Object.assign(env, dbEnv(db))
   }
   ok = runTs('scripts/migrate.ts', env) && ok
-  ok = runTs('scripts/bench/submit-http.ts', env) && ok
+  if (!onlyPages) ok = runTs('scripts/bench/submit-http.ts', env) && ok
+  ensureDebianPackages([{ bin: 'chromium', pkg: 'chromium' }])
+  const vite = nodeBin('vite/bin/vite.js')
+  const built = spawnSync(vite[0], [vite[1], 'build', '--logLevel', 'warn'], { cwd: ROOT, stdio: 'inherit', env })
+  ok = built.status === 0 && runTs('scripts/bench/page-weight.ts', env) && ok
 } finally {
   if (db) await db.stop()
 }

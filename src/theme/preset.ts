@@ -1,5 +1,66 @@
 import { definePreset } from '@primeuix/themes'
-import Aura from '@primeuix/themes/aura'
+import type { ExtendedCSS } from '@primeuix/themes/types'
+import base from '@primeuix/themes/aura/base'
+import auraCss from '@primeuix/themes/aura/css'
+import badge from '@primeuix/themes/aura/badge'
+import button from '@primeuix/themes/aura/button'
+import checkbox from '@primeuix/themes/aura/checkbox'
+import confirmdialog from '@primeuix/themes/aura/confirmdialog'
+import datatable from '@primeuix/themes/aura/datatable'
+import dialog from '@primeuix/themes/aura/dialog'
+import iconfield from '@primeuix/themes/aura/iconfield'
+import inputnumber from '@primeuix/themes/aura/inputnumber'
+import inputtext from '@primeuix/themes/aura/inputtext'
+import message from '@primeuix/themes/aura/message'
+import paginator from '@primeuix/themes/aura/paginator'
+import password from '@primeuix/themes/aura/password'
+import progressbar from '@primeuix/themes/aura/progressbar'
+import progressspinner from '@primeuix/themes/aura/progressspinner'
+import radiobutton from '@primeuix/themes/aura/radiobutton'
+import ripple from '@primeuix/themes/aura/ripple'
+import select from '@primeuix/themes/aura/select'
+import selectbutton from '@primeuix/themes/aura/selectbutton'
+import textarea from '@primeuix/themes/aura/textarea'
+import toast from '@primeuix/themes/aura/toast'
+import togglebutton from '@primeuix/themes/aura/togglebutton'
+import virtualscroller from '@primeuix/themes/aura/virtualscroller'
+
+/**
+ * Aura's design tokens for the PrimeVue components Isentrope uses and the ones they draw inside them
+ * (a select inside the paginator, a toggle button inside the select button, …), not for all ninety:
+ * the whole Aura preset is about 100 KB of script on every page. A component missing here renders
+ * without its colours and sizes; tests/unit/theme-components.test.ts fails when a view imports a
+ * PrimeVue component that has Aura tokens and is not listed.
+ * https://primevue.org/theming/styled/#presets
+ */
+export const THEMED_COMPONENTS = {
+  badge,
+  button,
+  checkbox,
+  confirmdialog,
+  datatable,
+  dialog,
+  iconfield,
+  inputnumber,
+  inputtext,
+  message,
+  paginator,
+  password,
+  progressbar,
+  progressspinner,
+  radiobutton,
+  ripple,
+  select,
+  selectbutton,
+  textarea,
+  toast,
+  togglebutton,
+  virtualscroller,
+}
+
+// The module's default export is Aura's extra CSS (a string); its type file names a `css` export instead.
+const css = auraCss as unknown as ExtendedCSS
+const Aura = { ...base, components: THEMED_COMPONENTS, css }
 
 /**
  * Isentrope's own look on PrimeVue's token system: a deep "ink" blue for structure, a burnt
