@@ -19,29 +19,20 @@ import { compatibleUnits, isCompatibleUnit, toSpecSense, toSpecUnit } from '@sha
 import { UNITS, isUnitSymbol } from '@shared/units'
 import { ApiError } from '@/api/http'
 import { fetchModule } from '@/api/modules'
-import { fetchMySubmissions, fetchSubmission, submitHandIn } from '@/api/submissions'
+import { fetchSubmission, submitHandIn } from '@/api/submissions'
 import type { HandInFile } from '@/api/submissions'
 import type { ChartSeries } from '@/components/calculators/chart-series'
 import { formatCompact, formatScore, percentText, unitText, valueText, withUnit } from '@shared/format'
 import { useResource } from './use-resource'
+import { useMySubmissions } from './use-my-submissions'
 
 // The shared wording of values, units and scores, for the hand-in and result pages.
 export { formatScore, percentText, unitText, valueText, withUnit }
+// Here too for the views that already import it from this file.
+export { useMySubmissions }
 
 // ---------------------------------------------------------------------------------------------
 // Loading.
-
-/** My (or my lab group's) attempts at a module; nothing is loaded while `enabled` is false. */
-export function useMySubmissions(
-  courseId: Ref<number>,
-  moduleId: Ref<number | null>,
-  enabled: Ref<boolean> = ref(true),
-) {
-  return useResource(
-    async () => (enabled.value && moduleId.value !== null ? fetchMySubmissions(courseId.value, moduleId.value) : null),
-    () => [courseId.value, moduleId.value, enabled.value],
-  )
-}
 
 /** Looks again at 1 s, 2 s, 3 s … up to every 5 s, for at most this long. */
 const GRADE_WAIT_MS = 5 * 60_000
