@@ -8,6 +8,7 @@ import type { ComputedRef, Ref, ShallowRef } from 'vue'
 import { logFileProblem } from '@shared/grading/check-hand-in'
 import type { HandInLog } from '@shared/grading/check-hand-in'
 import { parseLog, suggestMapping } from '@shared/grading/csv'
+import { checkLines } from '@shared/grading/csv-limits'
 import type { ColumnMappingEntry, LogParseResult } from '@shared/grading/csv'
 import { unitText } from '@shared/format'
 import { dataUnitKind, valueFromSI } from '@shared/modules/quantities'
@@ -53,9 +54,11 @@ export interface PreviewRow {
 /**
  * The header and first rows of a text, for the preview (papaparse guesses the separator). Line
  * numbers count blank lines, as parseLog's do; a quoted cell spanning lines is rare enough in a
- * logger's export that the preview does not follow it.
+ * logger's export that the preview does not follow it. A text past the log's size limits
+ * (csv-limits) gets no preview: papaparse never sees it, and parseLog names the limit.
  */
 function previewOf(text: string): { headers: string[]; rows: PreviewRow[] } {
+  if (text.trim() === '' || !checkLines(text).ok) return { headers: [], rows: [] }
   let end = 0
   // Enough lines for the header, a few blank lines and the preview rows.
   for (let lines = 0; lines < PREVIEW_ROWS + 12 && end >= 0; lines++) end = text.indexOf('\n', end + 1)

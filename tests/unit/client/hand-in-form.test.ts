@@ -98,6 +98,20 @@ describe('the hand-in form shows what the shared hand-in check says', () => {
   })
 })
 
+describe('the preview of a log past the size limits', () => {
+  it('shows no preview of a file with an over-long line; the check names the row', async () => {
+    const form = useHandInForm(assignment)
+    const long = `time,thrust\n0,0\n${'1'.repeat(5000)},1\n0.02,6\n`
+    await form.uploads[0]!.setFile(new File([long], 'long.csv'))
+    expect(form.uploads[0]!.headers.value).toEqual([])
+    expect(form.uploads[0]!.previewRows.value).toEqual([])
+    const issues = form.check.value.issues.filter((i) => i.field === 'table:run')
+    expect(issues).toEqual([
+      expect.objectContaining({ row: 3, message: expect.stringMatching(/^Row 3 is 5,002 characters long/) }),
+    ])
+  })
+})
+
 describe('the preview plot of a log', () => {
   it('keeps the first and the last sample when it thins the log', () => {
     // 1000 samples thinned to every 2nd: the last one (index 999) is not on the step.
