@@ -392,6 +392,11 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     // From the keyboard: Tab reaches the file control, its focus is visible, and Enter opens the chooser.
     await page.goto(handInUrl)
     await page.getByRole('heading', { level: 1, name: `Hand in: ${MODULE_TITLE}` }).waitFor()
+    // Every request of the page answered, so nothing re-renders the form under the keyboard's focus.
+    await page.waitForLoadState('networkidle')
+    // Listening before the key is pressed: playwright turns on its catching of the browser's file
+    // dialog when the first listener is added, and a dialog opened before that is never reported.
+    const chooser = page.waitForEvent('filechooser')
     const inputId = await input.getAttribute('id')
     let reached = false
     for (let i = 0; i < 60 && !reached; i++) {
@@ -400,7 +405,7 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     }
     expect(reached).toBe(true)
     expect(await input.evaluate((el) => getComputedStyle(el).outlineStyle)).not.toBe('none')
-    const chooser = page.waitForEvent('filechooser')
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe(inputId)
     await page.keyboard.press('Enter')
     await (await chooser).setFiles(logFile)
     await page.getByTestId('log-preview').waitFor()
