@@ -10,6 +10,7 @@ import type {
   VersionSummary,
 } from '../../shared/schemas/modules'
 import { formatInZone } from '../../shared/time'
+import { StudentModuleSpecSchema } from '../../shared/schemas/student-module-spec'
 import type { Database } from '../db/client'
 import { AppError, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
@@ -103,22 +104,15 @@ export async function listModules(db: Database, e: CourseEnrollment): Promise<Mo
 }
 
 /**
- * Strips what students must not see from the front matter: the grading expressions (a regime
- * result keeps only its margin, so the form still knows to offer the regimes) and review rules.
+ * The front matter as a student may see it: only what StudentModuleSpecSchema names (the grading
+ * expressions, tolerances, uncertainties and review rules are dropped with every other key).
  */
 function studentFrontMatter(fm: Record<string, unknown> | null): Record<string, unknown> | null {
   if (!fm) return null
-  const assignment = fm.assignment as Record<string, unknown> | undefined
-  if (!assignment) return fm
-  const results = Array.isArray(assignment.results)
-    ? (assignment.results as Record<string, unknown>[]).map(({ expected: _e, regime, ...rest }) =>
-        regime && typeof regime === 'object'
-          ? { ...rest, regime: { margin: (regime as { margin?: unknown }).margin } }
-          : rest,
-      )
-    : assignment.results
-  const { reviewRules: _r, ...restAssignment } = assignment
-  return { ...fm, assignment: { ...restAssignment, results } }
+  const parsed = StudentModuleSpecSchema.safeParse(fm)
+  // The stored front matter passed the full schema when it was saved; failing here is a server fault.
+  if (!parsed.success) throw new Error(`stored front matter does not fit the student's view: ${parsed.error.message}`)
+  return parsed.data
 }
 
 export async function readModule(db: Database, e: CourseEnrollment, moduleId: number): Promise<ModuleReading> {

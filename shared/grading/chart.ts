@@ -25,7 +25,10 @@ export interface ChartSeries {
   supersonicSpans: [number, number][]
 }
 
-/** Per bucket of consecutive samples, the samples holding each series' minimum and maximum, in time order. */
+/**
+ * Per bucket of consecutive samples, the samples holding each series' minimum and maximum, in time
+ * order; the log's first and last samples always, so the plot spans the whole log.
+ */
 function bucketExtremes(n: number, series: readonly (readonly number[])[], buckets: number): number[] {
   const size = n / buckets
   const out: number[] = []
@@ -35,6 +38,8 @@ function bucketExtremes(n: number, series: readonly (readonly number[])[], bucke
     const to = b === buckets - 1 ? n : Math.floor((b + 1) * size)
     if (to <= from) continue
     chosen.clear()
+    if (b === 0) chosen.add(0)
+    if (b === buckets - 1) chosen.add(n - 1)
     if (series.length === 0) {
       chosen.add(from)
       chosen.add(to - 1)
@@ -56,14 +61,15 @@ function bucketExtremes(n: number, series: readonly (readonly number[])[], bucke
 }
 
 /**
- * Indices to plot: all when there are few; otherwise each bucket's minimum and maximum of every
- * series, so peaks survive. Series often share their extremes (smooth pressures), so the number of
+ * Indices to plot: all when there are few; otherwise the first and last samples and each bucket's
+ * minimum and maximum of every series, so the time axis spans the whole log and peaks survive. Series often share their extremes (smooth pressures), so the number of
  * buckets is raised from the one that is sure to fit (maxPoints / (2 × series)) towards filling
  * maxPoints, in a few passes.
  */
 function decimate(n: number, series: readonly (readonly number[])[], maxPoints: number): number[] {
   if (n <= maxPoints) return Array.from({ length: n }, (_, i) => i)
-  const safe = Math.max(1, Math.floor(maxPoints / (2 * Math.max(1, series.length))))
+  // Two points are kept for the log's first and last samples.
+  const safe = Math.max(1, Math.floor((maxPoints - 2) / (2 * Math.max(1, series.length))))
   let best = bucketExtremes(n, series, safe)
   let buckets = safe
   for (let pass = 0; pass < 4 && best.length < 0.9 * maxPoints; pass++) {

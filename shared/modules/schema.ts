@@ -448,15 +448,6 @@ export const ResultSpecSchema = ResultSpecFields.superRefine((r, ctx) => {
   }
 })
 
-/**
- * A result as a student's browser receives it: without the grading expressions (the expected
- * value, the regime's ratios); the regime keeps only its margin.
- */
-export const StudentResultSpecSchema = ResultSpecFields.extend({
-  expected: ExpressionTextSchema.optional(),
-  regime: z.object({ margin: z.number().optional() }).optional(),
-})
-
 export const ReviewRuleSchema = z
   .strictObject({
     key: KeySchema,

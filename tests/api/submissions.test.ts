@@ -152,6 +152,39 @@ describe('the module as a student reads it', () => {
     const full = asStaff.body.frontMatter.assignment.results.find((r: { key: string }) => r.key === 'regime')
     expect(full.regime.pressureRatio).toBe('p_ambient / max(p_chamber)')
   })
+
+  it('carries none of the staff-only fields of the spec: tolerances, partial credit, uncertainties, zeroing, review rules', async () => {
+    const STAFF_ONLY = [
+      'expected',
+      'tolerance',
+      'partial',
+      'uncertainty',
+      'tare',
+      'reviewRules',
+      'pressureRatio',
+      'areaRatio',
+    ]
+    /** Every key anywhere in a JSON value. */
+    const keysOf = (v: unknown): string[] =>
+      Array.isArray(v)
+        ? v.flatMap(keysOf)
+        : v !== null && typeof v === 'object'
+          ? Object.entries(v).flatMap(([k, x]) => [k, ...keysOf(x)])
+          : []
+    const asStaff = await inst.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}`).expect(200)
+    // The module declares each of them, so their absence below is the stripping, not an empty spec.
+    for (const k of STAFF_ONLY) expect(keysOf(asStaff.body.frontMatter), k).toContain(k)
+    const asStudent = await student.agent.get(`/api/courses/${fx.courseId}/modules/${mod.id}`).expect(200)
+    const seen = keysOf(asStudent.body.frontMatter)
+    for (const k of STAFF_ONLY) expect(seen, k).not.toContain(k)
+    // What the hand-in form needs is still there.
+    const a = asStudent.body.frontMatter.assignment
+    expect(a.tables[0].columns.map((c: { key: string }) => c.key)).toEqual(
+      asStaff.body.frontMatter.assignment.tables[0].columns.map((c: { key: string }) => c.key),
+    )
+    expect(a.results.every((r: { points: unknown }) => typeof r.points === 'number')).toBe(true)
+    expect(asStudent.body.frontMatter.attempts).toBe(asStaff.body.frontMatter.attempts)
+  })
 })
 
 describe('bad hand-ins: a clear 4xx naming the field, and nothing stored', () => {

@@ -357,6 +357,63 @@ describe('journey 2: a student hands in a cold-flow run and sees the auto-check 
     await ctx.close()
   }, 120_000)
 
+  it('the log upload takes a file dropped on its zone, and one chosen from the keyboard', async () => {
+    expect(handInUrl).not.toBe('')
+    const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
+    const page = await ctx.newPage()
+    await signIn(page, app.url, student.email)
+    await page.goto(handInUrl)
+    await page.getByRole('heading', { level: 1, name: `Hand in: ${MODULE_TITLE}` }).waitFor()
+    const zone = page.getByTestId('log-drop-zone')
+    const input = page.getByLabel('Log file (CSV or text, comma-separated)')
+
+    // A file dragged over the zone: the zone says so, in words a screen reader hears too.
+    const dropped = await page.evaluateHandle((text) => {
+      const dt = new DataTransfer()
+      dt.items.add(new File([text], 'dropped-run.csv', { type: 'text/csv' }))
+      return dt
+    }, csv)
+    await zone.dispatchEvent('dragenter', { dataTransfer: dropped })
+    await zone.dispatchEvent('dragover', { dataTransfer: dropped })
+    expect(await zone.getAttribute('class')).toContain('dragging')
+    expect(await page.getByRole('status').filter({ hasText: 'Drop the file to read it' }).count()).toBe(1)
+    await zone.dispatchEvent('drop', { dataTransfer: dropped })
+
+    // Dropped: read like a chosen file (preview, mapping, row count), and the input names it.
+    const preview = page.getByTestId('log-preview')
+    await preview.waitFor()
+    expect(await preview.locator('thead th').allInnerTexts()).toEqual(['row', ...HEADERS])
+    await page.getByText(`${lines.length} data rows read`).waitFor()
+    expect(await input.evaluate((el) => (el as HTMLInputElement).files?.[0]?.name)).toBe('dropped-run.csv')
+    expect(await zone.getAttribute('class')).not.toContain('dragging')
+    await noSideways(page)
+    await page.screenshot({ path: screenshotPath('hand-in-drop-375'), fullPage: true })
+
+    // From the keyboard: Tab reaches the file control, its focus is visible, and Enter opens the chooser.
+    await page.goto(handInUrl)
+    await page.getByRole('heading', { level: 1, name: `Hand in: ${MODULE_TITLE}` }).waitFor()
+    // Every request of the page answered, so nothing re-renders the form under the keyboard's focus.
+    await page.waitForLoadState('networkidle')
+    // Listening before the key is pressed: playwright turns on its catching of the browser's file
+    // dialog when the first listener is added, and a dialog opened before that is never reported.
+    const chooser = page.waitForEvent('filechooser')
+    const inputId = await input.getAttribute('id')
+    let reached = false
+    for (let i = 0; i < 60 && !reached; i++) {
+      await page.keyboard.press('Tab')
+      reached = await page.evaluate((id) => document.activeElement?.id === id, inputId)
+    }
+    expect(reached).toBe(true)
+    expect(await input.evaluate((el) => getComputedStyle(el).outlineStyle)).not.toBe('none')
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe(inputId)
+    await page.keyboard.press('Enter')
+    await (await chooser).setFiles(logFile)
+    await page.getByTestId('log-preview').waitFor()
+    await page.getByText(`${lines.length} data rows read`).waitFor()
+    expect(await input.evaluate((el) => (el as HTMLInputElement).files?.[0]?.name)).toBe('b3-cold-flow.csv')
+    await ctx.close()
+  }, 120_000)
+
   it('staff see no hand-in panel on the module page', async () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
     await signIn(page, app.url, DEMO_INSTRUCTOR.email)

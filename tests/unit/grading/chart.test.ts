@@ -137,3 +137,37 @@ describe('chartSeries on a long log', () => {
       expect(chart.time[i] as number).toBeGreaterThan(chart.time[i - 1] as number)
   })
 })
+
+describe('chartSeries keeps the whole time span of a long log', () => {
+  // A quiet stand logged at 1 kHz from t = 0: every series flickers one step either side of its
+  // rest value and the log starts and ends at rest, so the first and last samples are neither the
+  // minimum nor the maximum of their stretch of the log.
+  const n = 20_000
+  const noise = (i: number) => (i === 0 || i === n - 1 ? 0 : i % 2 === 0 ? 1 : -1)
+  const chamber = Array.from({ length: n }, (_, i) => 3e5 + 100 * noise(i))
+  const data = logFromChamber(chamber)
+  const run = data.tables.run as Record<string, number[]>
+  const t = Array.from({ length: n }, (_, i) => i / 1000)
+  const thrust = Array.from({ length: n }, (_, i) => 0.05 * noise(i))
+  const chart = chartSeries(assignment, { ...data, tables: { run: { ...run, t, thrust } } })
+
+  it('the fixture is one where bucket extremes alone would miss both ends', () => {
+    // Within the first and the last 10 samples, the end sample is not an extreme of either series.
+    for (const series of [thrust, chamber]) {
+      const head = series.slice(0, 10)
+      const tail = series.slice(-10)
+      expect(series[0]).toBeGreaterThan(Math.min(...head))
+      expect(series[0]).toBeLessThan(Math.max(...head))
+      expect(series[n - 1]).toBeGreaterThan(Math.min(...tail))
+      expect(series[n - 1]).toBeLessThan(Math.max(...tail))
+    }
+  })
+
+  it('starts at the first sample (t = 0 s) and ends at the last (t = 19.999 s)', () => {
+    expect(chart.time.length).toBeLessThanOrEqual(CHART_MAX_POINTS)
+    expect(chart.time[0]).toBe(0)
+    expect(chart.time[chart.time.length - 1]).toBe(19.999)
+    expect(chart.thrust?.[0]).toBe(thrust[0])
+    expect(chart.thrust?.[chart.thrust.length - 1]).toBe(thrust[n - 1])
+  })
+})
