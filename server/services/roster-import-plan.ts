@@ -1,7 +1,7 @@
 import type { ParsedRosterRow } from '../../shared/roster/import-csv'
 import { parseRosterCsv } from '../../shared/roster/import-csv'
 import type { NameKind } from '../../shared/roster/match-names'
-import { matchName, nameKey } from '../../shared/roster/match-names'
+import { nameKey, nameMatcher } from '../../shared/roster/match-names'
 import type { CourseRole } from '../../shared/schemas/auth'
 import type {
   RosterImportCounts,
@@ -59,6 +59,7 @@ const ROLE_WORDS: Record<CourseRole, string> = {
   student: 'student',
 }
 const q = (s: string) => `"${s}"`
+const MAX_NEW_NAMES_COMPARED = 300
 const KIND_WORDS: Record<NameKind, string> = { section: 'section', group: 'lab group' }
 
 /** "Group A1" as it is; "G1" as "lab group G1"; "Tue PM" as "section Tue PM". */
@@ -83,14 +84,27 @@ type Resolved = { key: string | null; problem: RosterRowProblem | null }
  * for a name the course lacks, the lower-cased spelling the file first used for that name's key.
  */
 function resolver<T extends { name: string }>(kind: NameKind, existing: readonly T[], fileNames: (string | null)[]) {
-  const firstSpelling = new Map<string, string>()
-  for (const n of fileNames)
-    if (n !== null && !firstSpelling.has(nameKey(kind, n))) firstSpelling.set(nameKey(kind, n), n)
+  // Per key the file uses: the spelling it first used, and on how many rows.
+  const inFile = new Map<string, { name: string; rows: number; order: number }>()
+  for (const n of fileNames) {
+    if (n === null) continue
+    const k = nameKey(kind, n)
+    const seen = inFile.get(k)
+    if (seen) seen.rows++
+    else inFile.set(k, { name: n, rows: 1, order: inFile.size })
+  }
+  const existingKeys = new Set(existing.map((e) => nameKey(kind, e.name)))
+  const newInFile = [...inFile.entries()].filter(([k]) => !existingKeys.has(k)).map(([, v]) => v)
+  // Comparing every new name with every other grows with the square of their number; a class
+  // list names a few dozen groups, so past this many the check within the file is left out.
+  const compareWithinFile = newInFile.length <= MAX_NEW_NAMES_COMPARED
+  const matchExisting = nameMatcher(kind, existing)
+  const matchNewInFile = nameMatcher(kind, newInFile)
   const cache = new Map<string, Resolved & { spelling: string }>()
   return (raw: string): Resolved & { spelling: string } => {
     const hit = cache.get(raw)
     if (hit) return hit
-    const m = matchName(kind, raw, existing)
+    const m = matchExisting(raw)
     const column = kind
     let out: Resolved & { spelling: string }
     if (m.same.length === 1) out = { key: m.same[0]!.name.toLowerCase(), spelling: m.same[0]!.name, problem: null }
@@ -116,8 +130,21 @@ function resolver<T extends { name: string }>(kind: NameKind, existing: readonly
         },
       }
     } else {
-      const spelling = firstSpelling.get(nameKey(kind, raw)) ?? raw
-      out = { key: spelling.toLowerCase(), spelling, problem: null }
+      const own = inFile.get(nameKey(kind, raw)) ?? { name: raw, rows: 1, order: 0 }
+      // Two new names a slip apart ("Rig 3", "Rig3"): the one on fewer rows (or later) is the slip.
+      const slipOf = compareWithinFile
+        ? matchNewInFile(raw, (v) => v.rows > own.rows || (v.rows === own.rows && v.order < own.order)).close[0]
+        : undefined
+      out = slipOf
+        ? {
+            key: null,
+            spelling: raw,
+            problem: {
+              column,
+              message: `${column}: ${q(raw)} is close to ${q(slipOf.name)} elsewhere in this file; did you mean ${slipOf.name}? Write one name for one ${KIND_WORDS[kind]}.`,
+            },
+          }
+        : { key: own.name.toLowerCase(), spelling: own.name, problem: null }
     }
     cache.set(raw, out)
     return out

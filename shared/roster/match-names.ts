@@ -25,20 +25,28 @@ export function nameKey(kind: NameKind, name: string): string {
   return plain.replace(LEADING_WORD[kind], '')
 }
 
+let rows: [Int32Array, Int32Array] = [new Int32Array(64), new Int32Array(64)]
+
 /** Levenshtein distance, stopping early once it is known to exceed `max`. */
 export function editDistance(a: string, b: string, max = Infinity): number {
   if (Math.abs(a.length - b.length) > max) return max + 1
-  let prev = Array.from({ length: b.length + 1 }, (_, j) => j)
+  // Two rows of the table, reused between calls (a file asks for thousands of distances).
+  if (rows[0].length <= b.length) rows = [new Int32Array(b.length + 1), new Int32Array(b.length + 1)]
+  let [prev, cur] = rows
+  for (let j = 0; j <= b.length; j++) prev[j] = j
   for (let i = 1; i <= a.length; i++) {
-    const cur = [i]
+    cur[0] = i
     let rowMin = i
+    const ca = a.charCodeAt(i - 1)
     for (let j = 1; j <= b.length; j++) {
-      const v = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (a[i - 1] === b[j - 1] ? 0 : 1))
-      cur.push(v)
+      const v = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (ca === b.charCodeAt(j - 1) ? 0 : 1))
+      cur[j] = v
       if (v < rowMin) rowMin = v
     }
     if (rowMin > max) return max + 1
+    const done = prev
     prev = cur
+    cur = done
   }
   return prev[b.length]!
 }
@@ -69,28 +77,40 @@ export interface NameMatch<T> {
   close: T[]
 }
 
+/**
+ * A matcher over the course's entries, their keys worked out once: a file of 2,000 rows asks it
+ * for every distinct name it holds.
+ */
+export function nameMatcher<T extends { name: string }>(kind: NameKind, existing: readonly T[]) {
+  const entries = existing.map((e) => ({ e, key: nameKey(kind, e.name), plain: collapse(e.name) }))
+  /** `among` narrows the entries compared, e.g. to other names of the same file. */
+  return (name: string, among?: (e: T) => boolean): NameMatch<T> => {
+    const key = nameKey(kind, name)
+    const plain = collapse(name)
+    const pool = among ? entries.filter((x) => among(x.e)) : entries
+    const same = pool.filter((x) => x.key === key)
+    if (same.length > 0) {
+      // An exact spelling (ignoring case) wins when the course has two entries with one key.
+      const exact = same.filter((x) => x.plain === plain)
+      return { same: (exact.length > 0 ? exact : same).map((x) => x.e), close: [] }
+    }
+    const scored = pool.flatMap((x) => {
+      const byKey = editDistance(key, x.key, 2)
+      // Without a leading word the plain names are the keys: no second distance to work out.
+      const d = plain === key && x.plain === x.key ? byKey : Math.min(byKey, editDistance(plain, x.plain, 2))
+      return d >= 1 && d <= 2 && !differsOnlyByCode(key, x.key) ? [{ e: x.e, d }] : []
+    })
+    // Only the nearest are suggested: "A 1" is one edit from "A1" and two from "A2".
+    const nearest = Math.min(...scored.map((x) => x.d))
+    return { same: [], close: scored.filter((x) => x.d === nearest).map((x) => x.e) }
+  }
+}
+
 /** Matches `name` against the course's existing entries. */
 export function matchName<T extends { name: string }>(
   kind: NameKind,
   name: string,
   existing: readonly T[],
 ): NameMatch<T> {
-  const key = nameKey(kind, name)
-  const plain = collapse(name)
-  const same = existing.filter((e) => nameKey(kind, e.name) === key)
-  if (same.length > 0) {
-    // An exact spelling (ignoring case) wins when the course has two entries with one key.
-    const exact = same.filter((e) => collapse(e.name) === plain)
-    return { same: exact.length > 0 ? exact : same, close: [] }
-  }
-  const scored = existing.flatMap((e) => {
-    const k = nameKey(kind, e.name)
-    if (differsOnlyByCode(key, k)) return []
-    const d = Math.min(editDistance(key, k, 2), editDistance(plain, collapse(e.name), 2))
-    return d >= 1 && d <= 2 ? [{ e, d }] : []
-  })
-  // Only the nearest are suggested: "A 1" is one edit from "A1" and two from "A2".
-  const nearest = Math.min(...scored.map((x) => x.d))
-  const close = scored.filter((x) => x.d === nearest).map((x) => x.e)
-  return { same, close }
+  return nameMatcher(kind, existing)(name)
 }

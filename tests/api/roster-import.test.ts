@@ -590,6 +590,19 @@ describe('roster import: matching sections and groups, and moves', () => {
     expect(await tableCounts()).toEqual(before)
   })
 
+  it('two new names a slip apart in one file: the rarer one is a problem, not a second new group', async () => {
+    const csv = [
+      'email,name,group',
+      `n1.${t}@import.example,N1,Nozzle ${t}`,
+      `n2.${t}@import.example,N2,Nozle ${t}`,
+      `n3.${t}@import.example,N3,nozzle ${t}`,
+    ].join('\n')
+    const res = await post(inst, PREVIEW(), { csv }).expect(200)
+    expect(res.body.newGroups).toEqual([`Nozzle ${t}`])
+    expect(res.body.rows.map((r: { problems: unknown[] }) => r.problems.length)).toEqual([0, 1, 0])
+    expect(res.body.rows[1].problems[0].message).toContain(`did you mean Nozzle ${t}?`)
+  })
+
   it('says a move in words and counts it apart; an unticked move is left out on confirm', async () => {
     const csv = [
       'email,name,group',
