@@ -11,6 +11,10 @@ declare module 'papaparse/papaparse.min.js' {
   export interface ParseConfig {
     /** Field separator; left out, papaparse guesses it. */
     delimiter?: string
+    /** Separators papaparse may guess among when `delimiter` is left out. */
+    delimitersToGuess?: string[]
+    /** Read at most this many rows. */
+    preview?: number
     newline?: '\r' | '\n' | '\r\n'
     quoteChar?: string
     header?: boolean

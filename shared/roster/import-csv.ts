@@ -1,39 +1,31 @@
 /**
- * Reading a roster CSV (email, name, role, section, group). The same function runs in the browser
- * (a quick check before the upload) and on the server, which never trusts the browser's reading.
- * Pure: no DOM, no Node APIs.
+ * Reading a roster CSV (email, name or its two parts, role, section, group). The same function runs
+ * in the browser (a quick check before the upload) and on the server, which never trusts the
+ * browser's reading. Pure: no DOM, no Node APIs.
  *
- * Rows are numbered as a spreadsheet numbers them: the header is row 1, the next record row 2, and
- * blank lines count. Cells are text and are never evaluated.
+ * The file comes as bytes (decoded here, see decode-bytes.ts) or as text typed on the page. The
+ * separator (comma, semicolon or tab) is papaparse's guess. Rows are numbered as a spreadsheet
+ * numbers them: the header is row 1, the next record row 2, and blank lines count. Cells are text
+ * and are never evaluated.
  */
 import Papa from 'papaparse/papaparse.min.js'
 import { z } from 'zod'
-import type { ImportRole, RosterFileProblem, RosterRowProblem } from '../schemas/roster-import'
+import type {
+  ImportRole,
+  RosterEncoding,
+  RosterFileProblem,
+  RosterFileReading,
+  RosterRowProblem,
+} from '../schemas/roster-import'
 import { singleLineProblem } from '../schemas/names'
 import { ROSTER_IMPORT_MAX_BYTES, ROSTER_IMPORT_MAX_ROWS } from '../schemas/roster-import'
 import { utf8ByteLength } from '../text'
+import { decodeRosterBytes } from './decode-bytes'
+import { nameKey } from './match-names'
+import type { RosterField } from './roster-columns'
+import { normaliseHeader, readHeader } from './roster-columns'
 
-export type RosterColumn = 'email' | 'name' | 'role' | 'section' | 'group'
-
-/** Header text (lower-cased, letters and digits only) → roster column. */
-const ALIASES: Record<string, RosterColumn> = {
-  email: 'email',
-  emailaddress: 'email',
-  mail: 'email',
-  name: 'name',
-  displayname: 'name',
-  fullname: 'name',
-  studentname: 'name',
-  role: 'role',
-  courserole: 'role',
-  section: 'section',
-  sectionname: 'section',
-  group: 'group',
-  labgroup: 'group',
-  groupname: 'group',
-  labgroupname: 'group',
-}
-const REQUIRED: readonly RosterColumn[] = ['email', 'name']
+export type RosterColumn = RosterField
 
 const ROLE_WORDS: Record<string, ImportRole> = {
   student: 'student',
@@ -61,28 +53,46 @@ export interface ParsedRosterRow {
 }
 
 export type RosterParseResult =
-  { ok: true; rows: ParsedRosterRow[]; ignoredColumns: string[] } | { ok: false; problems: RosterFileProblem[] }
+  | { ok: true; rows: ParsedRosterRow[]; ignoredColumns: string[]; reading: RosterFileReading }
+  | { ok: false; problems: RosterFileProblem[] }
 
-const normalise = (header: string) => header.toLowerCase().replace(/[^a-z0-9]/g, '')
+export interface RosterParseOptions {
+  /** The file's declared language (BCP 47), for the order of split name columns. */
+  locale?: string
+}
+
+const normalise = normaliseHeader
 const isBlank = (record: readonly string[]) => record.every((c) => c.trim() === '')
 const shown = (s: string) => `"${s.length > 40 ? `${s.slice(0, 37)}…` : s}"`
 const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`
+const tooBig = (bytes: number): RosterParseResult => ({
+  ok: false,
+  problems: [
+    {
+      message: `The file is ${Math.ceil(bytes / 1024).toLocaleString('en-US')} KB; at most ${ROSTER_IMPORT_MAX_BYTES / 1024} KB can be imported at once. Split it into smaller files.`,
+    },
+  ],
+})
 
 /** Reads the file; whole-file problems refuse it, cell problems are kept on their rows. */
-export function parseRosterCsv(text: string): RosterParseResult {
-  const bytes = utf8ByteLength(text)
-  if (bytes > ROSTER_IMPORT_MAX_BYTES) {
-    return {
-      ok: false,
-      problems: [
-        {
-          message: `The file is ${Math.ceil(bytes / 1024).toLocaleString('en-US')} KB; at most ${ROSTER_IMPORT_MAX_BYTES / 1024} KB can be imported at once. Split it into smaller files.`,
-        },
-      ],
-    }
+export function parseRosterCsv(input: string | Uint8Array, opts: RosterParseOptions = {}): RosterParseResult {
+  let text: string
+  let encoding: RosterEncoding
+  if (typeof input === 'string') {
+    const bytes = utf8ByteLength(input)
+    if (bytes > ROSTER_IMPORT_MAX_BYTES) return tooBig(bytes)
+    // A byte-order mark copied along with the text would otherwise stick to the first header.
+    text = input.replace(/^\uFEFF/, '')
+    encoding = 'text'
+  } else {
+    if (input.length > ROSTER_IMPORT_MAX_BYTES) return tooBig(input.length)
+    ;({ text, encoding } = decodeRosterBytes(input))
   }
-  // A byte-order mark from spreadsheet exports would otherwise stick to the first header.
-  const parsed = Papa.parse(text.replace(/^\uFEFF/, ''), { skipEmptyLines: false })
+  // papaparse guesses the separator from the first lines; blank lines would blur its count of
+  // cells per line, so the guess skips them, and the reading itself keeps them (row numbers).
+  const guess = Papa.parse(text, { skipEmptyLines: 'greedy', preview: 10, delimitersToGuess: [',', ';', '\t'] })
+  const delimiter = guess.meta.delimiter
+  const parsed = Papa.parse(text, { skipEmptyLines: false, delimiter })
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes')
   if (quoteError) {
     const where = quoteError.row !== undefined ? `Row ${quoteError.row + 1}` : 'A row'
@@ -98,35 +108,8 @@ export function parseRosterCsv(text: string): RosterParseResult {
       ok: false,
       problems: [{ message: 'The file is empty: it needs a header row (email, name, …) and one row per person.' }],
     }
-  const header = records[headerIndex] ?? []
-
-  const columnAt = new Map<RosterColumn, number>()
-  const ignoredColumns: string[] = []
-  const problems: RosterFileProblem[] = []
-  header.forEach((cell, i) => {
-    const h = cell.trim()
-    const column = ALIASES[normalise(h)]
-    if (!column) {
-      if (h !== '') ignoredColumns.push(h)
-      return
-    }
-    const first = columnAt.get(column)
-    if (first !== undefined) {
-      problems.push({
-        message: `Two columns are both read as "${column}": ${shown((header[first] ?? '').trim())} and ${shown(h)}. Keep one of them.`,
-        columns: [column],
-      })
-      return
-    }
-    columnAt.set(column, i)
-  })
-  const missing = REQUIRED.filter((c) => !columnAt.has(c))
-  if (missing.length > 0) {
-    problems.push({
-      message: `The header row lacks the required column${missing.length === 1 ? '' : 's'} ${missing.join(' and ')}. The first row must name the columns: email, name, and optionally role, section, group.`,
-      columns: missing,
-    })
-  }
+  const header = readHeader(records[headerIndex] ?? [], opts.locale)
+  const problems: RosterFileProblem[] = [...header.problems]
 
   const dataRows: { row: number; cells: string[] }[] = []
   for (let i = headerIndex + 1; i < records.length; i++) {
@@ -143,14 +126,23 @@ export function parseRosterCsv(text: string): RosterParseResult {
   }
   if (problems.length > 0) return { ok: false, problems }
 
-  const cell = (cells: string[], c: RosterColumn) => {
-    const i = columnAt.get(c)
-    return i === undefined ? '' : (cells[i] ?? '').trim()
-  }
+  const at = (cells: string[], i: number | undefined) => (i === undefined ? '' : (cells[i] ?? '').trim())
+  const cell = (cells: string[], c: RosterColumn) =>
+    c === 'name' && header.nameParts
+      ? header.nameParts
+          .map((i) => at(cells, i))
+          .filter((part) => part !== '')
+          .join(' ')
+      : at(cells, header.at.get(c))
   const rows = dataRows.map(({ row, cells }) => readRow(row, cells, cell))
   markDuplicates(rows)
   markGroupSections(rows)
-  return { ok: true, rows, ignoredColumns }
+  return {
+    ok: true,
+    rows,
+    ignoredColumns: header.ignoredColumns,
+    reading: { encoding, delimiter, ...header.reading },
+  }
 }
 
 function readRow(row: number, cells: string[], cell: (cells: string[], c: RosterColumn) => string): ParsedRosterRow {
@@ -246,10 +238,10 @@ function markGroupSections(rows: ParsedRosterRow[]): void {
   const first = new Map<string, ParsedRosterRow>()
   for (const r of rows) {
     if (r.group === null || r.section === null) continue
-    const key = r.group.toLowerCase()
+    const key = nameKey('group', r.group)
     const f = first.get(key)
     if (!f) first.set(key, r)
-    else if (f.section!.toLowerCase() !== r.section.toLowerCase()) {
+    else if (nameKey('section', f.section!) !== nameKey('section', r.section)) {
       r.problems.push({
         column: 'group',
         message: `group: lab group ${shown(r.group)} is in section ${shown(f.section!)} in row ${f.row}, but in section ${shown(r.section)} here.`,

@@ -97,7 +97,8 @@ describe('roster import: preview', () => {
     expect(body.counts).toMatchObject({
       rows: 5,
       new: 1,
-      changed: 2,
+      changed: 1,
+      moves: 1,
       unchanged: 1,
       invalid: 1,
       invitations: 1,
@@ -107,7 +108,7 @@ describe('roster import: preview', () => {
     const byRow = new Map(body.rows.map((r: { row: number }) => [r.row, r]))
     expect(byRow.get(2)).toMatchObject({ kind: 'new', invite: true, section: 'A', group: 'G1' })
     expect(byRow.get(3)).toMatchObject({ kind: 'existing', changes: [], invite: false, notify: false })
-    expect(byRow.get(4)).toMatchObject({ kind: 'existing', changes: ['section B → A'] })
+    expect(byRow.get(4)).toMatchObject({ kind: 'existing', changes: [], moves: ['moves from section B to section A'] })
     // Enrolled in another course and has a password: enrolled here, told by e-mail, not invited.
     expect(byRow.get(5)).toMatchObject({ kind: 'existing', role: 'ta', invite: false, notify: true })
     expect((byRow.get(5) as { changes: string[] }).changes[0]).toContain('enrolled as teaching assistant')
@@ -281,6 +282,7 @@ describe('roster import: confirm, mail and invitations', () => {
       enrolled: 3,
       updated: 0,
       unchanged: 1,
+      skipped: 0,
       invitationsSent: 2,
       enrollmentMailsSent: 1,
       sectionsCreated: [`Bay ${t}`],
@@ -476,6 +478,168 @@ describe('roster import: confirm, mail and invitations', () => {
     expect(get.status).toBe(404)
     expect(get.body.error.code).toBe('invitation_not_found')
     expect((await post(anon, INVITE(token), { password: 'whatever-long-enough' })).status).toBe(404)
+  })
+})
+
+describe('roster import: files as they come', () => {
+  /** Windows-1252 bytes of text whose characters are all Latin-1 (é = 0xE9, ü = 0xFC). */
+  const cp1252 = (text: string) => Buffer.from([...text].map((c) => c.charCodeAt(0)))
+
+  it('reads the bytes of a Windows-1252 semicolon file with split names, and says how it read it', async () => {
+    const t = uniq()
+    const file = cp1252(`Surname;Given name;Student e-mail\nM\u00fcller;Ren\u00e9e;renee.${t}@import.example\n`)
+    const res = await post(inst, PREVIEW(), { file: file.toString('base64') }).expect(200)
+    expect(res.body.rows[0]).toMatchObject({ displayName: 'Renée Müller', email: `renee.${t}@import.example` })
+    expect(res.body.reading).toEqual({
+      encoding: 'windows-1252',
+      delimiter: ';',
+      columns: { email: ['Student e-mail'], name: ['Given name', 'Surname'] },
+      nameOrder: { order: 'given-first', because: 'the header words are English' },
+    })
+    // Declared Hungarian: family name first.
+    const hu = await post(inst, PREVIEW(), { file: file.toString('base64'), locale: 'hu' }).expect(200)
+    expect(hu.body.rows[0].displayName).toBe('Müller Renée')
+  })
+
+  it('refuses a file with two e-mail columns, naming both, and one that is not base64', async () => {
+    const before = await tableCounts()
+    const file = Buffer.from('Email;Student e-mail;Name\na@import.example;b@import.example;A\n').toString('base64')
+    for (const url of [PREVIEW(), IMPORT()]) {
+      const res = await post(inst, url, { file })
+      expect(res.status).toBe(422)
+      expect(res.body.error.message).toContain('"Email" and "Student e-mail"')
+    }
+    const bad = await post(inst, PREVIEW(), { file: 'not base64!' })
+    expect(bad.status).toBe(400)
+    expect(bad.body.error.message).toContain('file')
+    const both = await post(inst, PREVIEW(), { file, csv: 'email,name\n' })
+    expect(both.status).toBe(400)
+    expect(await tableCounts()).toEqual(before)
+  })
+})
+
+describe('roster import: matching sections and groups, and moves', () => {
+  const t = uniq()
+  const people = {
+    aletta: `aletta.${t}@import.example`,
+    bram: `bram.${t}@import.example`,
+    cato: `cato.${t}@import.example`,
+  }
+  const groupIds: Record<string, number> = {}
+  const userIds: Record<string, number> = {}
+
+  beforeAll(async () => {
+    const db = ctx.handle.db
+    for (const name of ['Group A1', 'Group A3']) {
+      const [g] = await db
+        .insert(labGroups)
+        .values({ courseId: fx.courseId, sectionId: fx.sectionA, name })
+        .$returningId()
+      groupIds[name] = g!.id
+    }
+    for (const [key, email] of Object.entries(people)) {
+      const [u] = await db
+        .insert(users)
+        .values({ email, displayName: `${key} ${t}`, passwordHash: 'not-a-real-hash' })
+        .$returningId()
+      userIds[key] = u!.id
+      await db.insert(enrollments).values({
+        userId: u!.id,
+        courseId: fx.courseId,
+        role: 'student',
+        sectionId: fx.sectionA,
+        labGroupId: groupIds['Group A1']!,
+      })
+    }
+  })
+
+  const groupOf = async (email: string) => {
+    const rows = await ctx.handle.db
+      .select({ group: labGroups.name })
+      .from(enrollments)
+      .innerJoin(users, eq(users.id, enrollments.userId))
+      .leftJoin(labGroups, eq(labGroups.id, enrollments.labGroupId))
+      .where(and(eq(users.email, email), eq(enrollments.courseId, fx.courseId)))
+    return rows[0]?.group ?? null
+  }
+
+  it('"a1", " A1 " and "group a1" are the course\'s Group A1: nothing is created and nobody moves', async () => {
+    const csv = [
+      'email,name,group',
+      `${people.aletta},Aletta,a1`,
+      `${people.bram},Bram, A1 `,
+      `${people.cato},Cato,group a1`,
+    ].join('\n')
+    const res = await post(inst, PREVIEW(), { csv }).expect(200)
+    expect(res.body.newGroups).toEqual([])
+    expect(res.body.counts).toMatchObject({ moves: 0, unchanged: 3, changed: 0 })
+    expect(res.body.rows.map((r: { group: string }) => r.group)).toEqual(['Group A1', 'Group A1', 'Group A1'])
+  })
+
+  it('a near miss is a problem on its row with a suggestion, not a new group, and nothing is written', async () => {
+    const csv = `email,name,section,group\nnear.${t}@import.example,Near,A,Goup A1\n`
+    const before = await tableCounts()
+    const res = await post(inst, PREVIEW(), { csv }).expect(200)
+    expect(res.body.ok).toBe(false)
+    expect(res.body.newGroups).toEqual([])
+    expect(res.body.rows[0].problems).toEqual([
+      { column: 'group', message: expect.stringContaining('did you mean Group A1?') },
+    ])
+    const confirm = await post(inst, IMPORT(), { csv })
+    expect(confirm.status).toBe(422)
+    expect(await tableCounts()).toEqual(before)
+  })
+
+  it('two new names a slip apart in one file: the rarer one is a problem, not a second new group', async () => {
+    const csv = [
+      'email,name,group',
+      `n1.${t}@import.example,N1,Nozzle ${t}`,
+      `n2.${t}@import.example,N2,Nozle ${t}`,
+      `n3.${t}@import.example,N3,nozzle ${t}`,
+    ].join('\n')
+    const res = await post(inst, PREVIEW(), { csv }).expect(200)
+    expect(res.body.newGroups).toEqual([`Nozzle ${t}`])
+    expect(res.body.rows.map((r: { problems: unknown[] }) => r.problems.length)).toEqual([0, 1, 0])
+    expect(res.body.rows[1].problems[0].message).toContain(`did you mean Nozzle ${t}?`)
+  })
+
+  it('says a move in words and counts it apart; an unticked move is left out on confirm', async () => {
+    const csv = [
+      'email,name,group',
+      `${people.aletta},Aletta,a3`,
+      `${people.bram},Bram,Group A3`,
+      `newcomer.${t}@import.example,Newcomer ${t},A1`,
+    ].join('\n')
+    const pre = await post(inst, PREVIEW(), { csv }).expect(200)
+    expect(pre.body.counts).toMatchObject({ new: 1, moves: 2, changed: 0, unchanged: 0 })
+    expect(pre.body.rows[0]).toMatchObject({ moves: ['moves from Group A1 to Group A3'], changes: [] })
+    expect(pre.body.newGroups).toEqual([])
+
+    const res = await post(inst, IMPORT(), { csv, skip: [{ row: 2, email: people.aletta }] }).expect(200)
+    expect(res.body).toMatchObject({ created: 1, updated: 1, skipped: 1, groupsCreated: [] })
+    expect(await groupOf(people.aletta)).toBe('Group A1')
+    expect(await groupOf(people.bram)).toBe('Group A3')
+    expect(await groupOf(`newcomer.${t}@import.example`)).toBe('Group A1')
+  })
+
+  it('refuses a skip that is not a move in this file, naming the row, and writes nothing', async () => {
+    const csv = ['email,name,group', `${people.cato},Cato,A3`, `other.${t}@import.example,Other,A1`].join('\n')
+    const before = await tableCounts()
+    for (const skip of [
+      [{ row: 3, email: `other.${t}@import.example` }],
+      [{ row: 2, email: people.bram }],
+      [{ row: 9, email: people.cato }],
+    ]) {
+      const res = await post(inst, IMPORT(), { csv, skip })
+      expect(res.status).toBe(422)
+      expect(res.body.error.code).toBe('roster_skip_invalid')
+      expect(res.body.error.message).toContain(`row ${skip[0]!.row}`)
+    }
+    const malformed = await post(inst, IMPORT(), { csv, skip: [{ row: 'two' }] })
+    expect(malformed.status).toBe(400)
+    expect(malformed.body.error.message).toContain('skip')
+    expect(await tableCounts()).toEqual(before)
+    expect(await groupOf(people.cato)).toBe('Group A1')
   })
 })
 
