@@ -98,6 +98,8 @@ export interface ChartData {
   chamberPressure?: number[]
   receiverPressure?: number[]
   idealThrust?: number[]
+  /** The separated nozzle's thrust estimate where the flow separates from the wall, null where it runs full. */
+  separatedThrust?: (number | null)[]
   supersonicSpans: [number, number][]
 }
 
