@@ -71,6 +71,8 @@ export interface CheckView {
   outcome: CheckOutcome
   /** The expected value's uncertainty; null when the module declares none or none reaches this result. */
   uncertainty: CheckUncertaintyView | null
+  /** The result is an expansion-regime code (1–5), shown by its name. */
+  regime: boolean
 }
 
 /** The uncertainty of a check's expected value, propagated from the module's instrument uncertainties. */
