@@ -242,13 +242,16 @@ function simulate(c: Conditions, noise: () => number, sampleRate: number = DEMO_
   // Enough decimals for the time stamps to tell samples apart: 2 at 100 Hz, 4 at 2.5 kHz.
   const timeDecimals = Math.max(2, Math.ceil(Math.log10(sampleRate) - 1e-9))
   // The receiver empties through the throat; flow is choked at the chamber pressure, a fixed
-  // fraction of the receiver's, so the receiver sees a discharge coefficient Cd × feedRatio.
+  // fraction of the receiver's, so the receiver sees a discharge coefficient Cd × feedRatio. With the
+  // nozzle's exit area the blow-down stays choked as long as the converging–diverging nozzle does
+  // (up to its choke limit, not the converging nozzle's 0.528), then flows unchoked through it.
   const tank = tankBlowdown({
     volume: s.receiverVolume,
     initialPressure,
     initialTemperature: c.roomTemperature,
     ambientPressure: c.ambient,
     throatArea,
+    exitArea,
     dischargeCoefficient: s.dischargeCoefficient * s.feedRatio,
     gamma: s.gamma,
     gasConstant: s.gasConstant,

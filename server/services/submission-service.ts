@@ -352,6 +352,7 @@ export async function submissionDetail(
     commentsFor(db, s.id),
   ])
   const showExpected = isStaff(e) || fm.showExpected
+  const regimeKeys = new Set(fm.assignment?.results.filter((r) => r.regime).map((r) => r.key) ?? [])
   const checkViews: CheckView[] = vis.visible
     ? checks.map((c) => ({
         id: c.id,
@@ -368,6 +369,7 @@ export async function submissionDetail(
         pass: c.pass,
         outcome: c.outcome,
         uncertainty: uncertaintyView(c, showExpected),
+        regime: regimeKeys.has(c.resultKey),
       }))
     : []
   let chart = null

@@ -1,12 +1,13 @@
 /**
  * The result page's chart: the log thinned to at most {@link CHART_MAX_POINTS} points per series
- * (each bucket's extremes kept), with the ideal thrust and the spans of supersonic flow.
+ * (each bucket's extremes kept), with the ideal thrust (full-flowing, and the separated-nozzle
+ * estimate where the flow separates) and the spans of supersonic flow.
  */
 import type { Assignment } from '../modules/schema'
 import { buildExpressionScope } from '../modules/scope'
 import type { SubmissionData } from '../modules/scope'
 import { nozzlePressureRatios } from '../physics'
-import { CHECK_GAMMA, idealAt, roleData } from './data-flags'
+import { CHECK_GAMMA, roleData, thrustCeilingAt } from './data-flags'
 // ---------------------------------------------------------------------------------------------
 // Chart.
 
@@ -21,6 +22,12 @@ export interface ChartSeries {
   receiverPressure?: number[]
   /** Ideal thrust for the logged chamber pressure at each plotted sample (γ = 1.4), N; 0 with no flow. */
   idealThrust?: number[]
+  /**
+   * Where the flow separates from the nozzle wall (Summerfield criterion, nozzleFlow), the thrust
+   * estimate of the separated nozzle at each plotted sample, N; null where it runs full. Present
+   * only when the flow separates somewhere in the log.
+   */
+  separatedThrust?: (number | null)[]
   /** [start, end] times, s, of each stretch of samples during which the nozzle exit is supersonic. */
   supersonicSpans: [number, number][]
 }
@@ -83,7 +90,9 @@ function decimate(n: number, series: readonly (readonly number[])[], maxPoints: 
 
 /**
  * The series for the result page's chart: logged thrust and pressures against time, the ideal
- * thrust for the logged chamber pressure, and the spans where the exit was supersonic.
+ * thrust for the logged chamber pressure (and, where the over-expanded flow separates from the wall,
+ * the separated nozzle's estimate, which the thrust-above-ideal check also allows), and the spans
+ * where the exit was supersonic.
  *
  * Supersonic at a sample means nozzleFlow's regime is over-expanded, ideal or under-expanded,
  * which happens exactly when pa/p0 ≤ the shock-at-exit ratio of the nozzle (nozzlePressureRatios,
@@ -136,9 +145,21 @@ export function chartSeries(assignment: Assignment, data: SubmissionData): Chart
   if (d.thrust && d.thrust.length === n) out.thrust = pick(d.thrust)
   if (d.chamber && d.chamber.length === n) {
     out.chamberPressure = pick(d.chamber)
-    const chamber = d.chamber
-    const ideal = idx.map((i) => idealAt(chamber[i] as number, d))
-    if (ideal.every((v): v is number => v !== undefined)) out.idealThrust = ideal
+    // One nozzleFlow per plotted sample gives both the full-flowing and the separated estimate.
+    const ideal: number[] = []
+    const separated: (number | null)[] = []
+    let separates = false
+    for (const i of idx) {
+      const ceiling = thrustCeilingAt(d.chamber[i] as number, d)
+      if (ceiling === undefined) break
+      ideal.push(ceiling.fullFlowing)
+      separated.push(ceiling.separated)
+      if (ceiling.separated !== null) separates = true
+    }
+    if (ideal.length === idx.length) {
+      out.idealThrust = ideal
+      if (separates) out.separatedThrust = separated
+    }
   }
   if (d.receiver && d.receiver.length === n) out.receiverPressure = pick(d.receiver)
   return out

@@ -242,7 +242,10 @@ function windowMedian(xs: readonly number[], i: number, sorted: Float64Array): n
  * separated estimate when the chamber is not above ambient; undefined when the library refuses the
  * inputs.
  */
-function thrustCeilingAt(p0: number, d: RoleData): { fullFlowing: number; separated: number | null } | undefined {
+export function thrustCeilingAt(
+  p0: number,
+  d: RoleData,
+): { fullFlowing: number; separated: number | null } | undefined {
   if (d.ambient === undefined || d.throatArea === undefined || d.exitArea === undefined) return undefined
   if (!(p0 > d.ambient)) return { fullFlowing: 0, separated: null }
   try {

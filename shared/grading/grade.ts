@@ -239,8 +239,9 @@ export function gradeSubmission(input: GradeInput): GradeResult {
   // Expressions see pressures with their transducer zero taken (tare: true); the data checks see them as logged.
   const logged = buildExpressionScope(assignment, data, { units: 'si', tare: false })
   const scope = taredScope(assignment, data, logged)
-  // Instrument uncertainties propagate through the same (tared) scope the expected values use.
-  const uncertainties = propagateUncertainties(assignment, data, scope)
+  // Instrument uncertainties propagate through the same (tared) scope the expected values use; the
+  // logged one says which columns were tared (their readings are moved before the tare).
+  const uncertainties = propagateUncertainties(assignment, data, scope, logged)
 
   const flags: GradeFlag[] = []
   const checks = assignment.results.map((spec) => {

@@ -12,8 +12,10 @@
  * - each column as two components, each fully correlated over the column's samples (one instrument,
  *   one calibration): an offset (the absolute uncertainty, added to every sample) and a gain (the
  *   relative uncertainty, multiplying every sample as read: a gauge transducer's gain multiplies the
- *   gauge reading, not the absolute pressure). A per-sample noise is not a component: it averages
- *   out of integrals and means, and the peak is read through a median;
+ *   gauge reading, not the absolute pressure). A column whose zero is taken (`tare: true`) is moved
+ *   as read, before the tare, and then tared: the tare removes an offset, so its offset contributes
+ *   nothing, and its gain multiplies the tared reading. A per-sample noise is not a component: it
+ *   averages out of integrals and means, and the peak is read through a median;
  * - the barometer moves every gauge reading with it (they are made absolute with it), so its
  *   component moves the gauge columns and measurements too.
  * The components of different instruments are taken as independent.
@@ -41,10 +43,14 @@
  * input are evaluated for it, a perturbed scope is the unperturbed one with the moved entries
  * replaced (not rebuilt from the data), and the evaluations reuse every part of an expression the
  * moved input does not reach, and every part it does reach across results (./expression-parts.ts).
+ * A moved column is an offset and gain of the column as held (one pass, no tare or reduction run
+ * again): the run of a moved thrust comes from the run as logged (run-cache.ts), and an offset the
+ * tare removes moves nothing at all.
  */
 import { valueFromSI, valueToSI } from '../modules/quantities'
 import type { Assignment, ResultSpec, Tolerance } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
+import { rescaledColumn } from '../modules/run-cache'
 import { PartEvaluator, expressionReads } from './expression-parts'
 
 /** The coverage factor shown with expected values when the result's tolerance names none. */
@@ -119,9 +125,10 @@ interface Component {
   /**
    * The scope with the input moved by `sign` steps. Only the entries in `read` need moving (the
    * others are read by none of the results evaluated): the barometer moves every gauge column, but
-   * a result may read only one of them.
+   * a result may read only one of them. null when the move leaves the scope as it is (an offset
+   * that the tare takes away again): the input contributes nothing.
    */
-  scope: (sign: 1 | -1, read: ReadonlySet<string>) => Record<string, ExpressionValue>
+  scope: (sign: 1 | -1, read: ReadonlySet<string>) => Record<string, ExpressionValue> | null
 }
 
 /** The SI size of one unit (a temperature difference for °C and °F, not a temperature). */
@@ -137,24 +144,6 @@ function maxAbs(xs: readonly number[]): number {
   let m = 0
   for (const x of xs) if (Math.abs(x) > m) m = Math.abs(x)
   return m
-}
-
-// The moved columns: plain loops into a preallocated array, with no callback. Array.prototype.map
-// with a closure took about seven times as long on a 50 000-sample log, and these run twice per
-// column component.
-
-/** Every sample plus `delta`. */
-function plus(samples: readonly number[], delta: number): number[] {
-  const out = new Array<number>(samples.length)
-  for (let i = 0; i < samples.length; i++) out[i] = (samples[i] as number) + delta
-  return out
-}
-
-/** Every sample plus `factor` × the same sample as read. */
-function plusScaled(samples: readonly number[], read: readonly number[], factor: number): number[] {
-  const out = new Array<number>(samples.length)
-  for (let i = 0; i < samples.length; i++) out[i] = (samples[i] as number) + factor * (read[i] as number)
-  return out
 }
 
 /** A copy of the scope (the same arrays) with some entries replaced. */
@@ -177,23 +166,39 @@ function shifted(
   for (const k of names) {
     const v = scope[k]
     if (typeof v === 'number') entries.push([k, v + delta])
-    else if (Array.isArray(v)) entries.push([k, plus(v as readonly number[], delta)])
+    else if (Array.isArray(v)) entries.push([k, rescaledColumn(v as readonly number[], delta, 1)])
   }
   return withEntries(scope, entries)
 }
 
 /**
  * The uncertain inputs of one submission. The moved scopes are worked out the way
- * buildExpressionScope turns the data into a scope (SI, gauge readings plus the barometer), entry
- * by entry; a test holds the two against each other.
+ * buildExpressionScope turns the data into a scope (SI, gauge readings plus the barometer, the
+ * zero of the `tare: true` columns taken), entry by entry; a test holds the two against each other.
+ *
+ * A moved column is the column as the scope holds it, rescaled (offset + gain × every sample,
+ * `rescaledColumn`), so the run cache can reuse the run of the thrust as logged. Each move is the
+ * column's own reading moved before the tare, then tared as the scope tares it:
+ * - an offset on a column whose zero is taken is removed by the tare itself (its medians over the
+ *   quiet samples move by the same offset): the tared column does not move, and the component
+ *   contributes nothing;
+ * - a gain multiplies the gauge reading (the column less the barometer), its zero included, and
+ *   the zero taken from it, so it multiplies the tared gauge reading: the scope's column p becomes
+ *   pa + (1 ± g)·(p − pa);
+ * - the barometer moves every gauge reading, tared or not, by its own change (the tare removes the
+ *   transducer's zero, not the barometer added to it).
+ * The thrust run the tare follows does not move with a moved thrust: an offset or gain leaves the
+ * run window and quiet stretches where they are (`runOfRescaledThrust`).
  */
 function components(
   assignment: Assignment,
   data: SubmissionData,
   scope: Readonly<Record<string, ExpressionValue>>,
+  logged: Readonly<Record<string, ExpressionValue>>,
 ): Component[] {
   const out: Component[] = []
   const ambient = assignment.measurements.find((m) => m.role === 'ambient-pressure')
+  const ambientValue = ambient === undefined ? undefined : scope[ambient.key]
   const gauge = [
     ...assignment.tables.flatMap((t) => t.columns.filter((c) => isGauge(data, c.key, c.pressure)).map((c) => c.key)),
     ...assignment.measurements.filter((m) => m !== ambient && isGauge(data, m.key, m.pressure)).map((m) => m.key),
@@ -225,10 +230,10 @@ function components(
   }
   for (const t of assignment.tables) {
     for (const c of t.columns) {
-      const raw = data.tables[t.key]?.[c.key]
       const x = scope[c.key]
-      if (!c.uncertainty || !Array.isArray(raw) || !Array.isArray(x)) continue
+      if (!c.uncertainty || !Array.isArray(x)) continue
       const samples = x as readonly number[]
+      const tared = samples !== logged[c.key]
       const moved = new Set([c.key])
       const offset = (c.uncertainty.absolute ?? 0) * unitScale(c.unit)
       if (offset > 0) {
@@ -239,20 +244,22 @@ function components(
           label: c.label,
           moved,
           ratio: offset / step,
-          scope: (sign) => withEntries(scope, [[c.key, plus(samples, sign * step)]]),
+          // The tare takes the moved zero away again: the tared column is the same.
+          scope: (sign) => (tared ? null : withEntries(scope, [[c.key, rescaledColumn(samples, sign * step, 1)]])),
         })
       }
       const gain = c.uncertainty.relative ?? 0
       if (gain > 0) {
         const step = Math.min(Math.max(gain, MIN_STEP), MAX_STEP)
+        // The gain multiplies the reading less the barometer added to a gauge one: p → pa + (1 ± g)·(p − pa).
+        const base = isGauge(data, c.key, c.pressure) && typeof ambientValue === 'number' ? ambientValue : 0
         out.push({
           key: c.key,
           part: 'gain',
           label: c.label,
           moved,
           ratio: gain / step,
-          // The gain multiplies the reading as read (raw), which the scope holds plus the barometer when gauge.
-          scope: (sign) => withEntries(scope, [[c.key, plusScaled(samples, raw, sign * step)]]),
+          scope: (sign) => withEntries(scope, [[c.key, rescaledColumn(samples, -sign * step * base, 1 + sign * step)]]),
         })
       }
     }
@@ -286,6 +293,9 @@ function readsOf(spec: ResultSpec): ReadonlySet<string> {
  * contributions; see the file comment for the method.
  *
  * @param scope - the submission's expression scope (buildExpressionScope with units 'si')
+ * @param logged - the same scope with the columns as logged, before the tare (buildExpressionScope
+ *   with tare: false); a column whose array differs between the two was tared. Defaults to scope
+ *   (no column tared).
  * @returns null when the module declares no uncertainty; otherwise, by result key, the result's
  *   uncertainty, or null when no declared uncertainty reaches it or it could not be propagated
  * @example
@@ -296,6 +306,7 @@ export function propagateUncertainties(
   assignment: Assignment,
   data: SubmissionData,
   scope: Readonly<Record<string, ExpressionValue>>,
+  logged: Readonly<Record<string, ExpressionValue>> = scope,
 ): Map<string, CheckUncertainty | null> | null {
   if (!declaresUncertainty(assignment)) return null
   const evaluator = new PartEvaluator(scope)
@@ -307,13 +318,19 @@ export function propagateUncertainties(
     failed: false,
   }))
 
-  for (const c of components(assignment, data, scope)) {
+  for (const c of components(assignment, data, scope, logged)) {
     const users = results.filter((r) => r.base !== null && [...c.moved].some((n) => r.reads.has(n)))
     if (users.length === 0) continue
     const read = new Set([...c.moved].filter((n) => users.some((r) => r.reads.has(n))))
-    evaluator.perturb({ scope: c.scope(1, read), moved: read })
+    const upScope = c.scope(1, read)
+    const downScope = c.scope(-1, read)
+    if (upScope === null || downScope === null) {
+      for (const r of users) r.terms.push({ c, z: 0 })
+      continue
+    }
+    evaluator.perturb({ scope: upScope, moved: read })
     const up = users.map((r) => valueOf(evaluator, r.spec))
-    evaluator.perturb({ scope: c.scope(-1, read), moved: read })
+    evaluator.perturb({ scope: downScope, moved: read })
     const down = users.map((r) => valueOf(evaluator, r.spec))
     users.forEach((r, i) => {
       const plus = up[i] ?? null

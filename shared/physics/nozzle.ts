@@ -76,17 +76,28 @@ interface RegimeBounds extends NozzlePressureRatios {
   supersonicExitMach: number
 }
 
-function regimeBounds(areaRatio: number, gamma: number): RegimeBounds {
+/**
+ * The bounds of the last nozzle asked about. They depend on the area ratio and γ alone, and a run is
+ * checked or plotted sample by sample on one nozzle (a chart calls nozzleFlow for 2000 chamber
+ * pressures), so the two root solves are done once per nozzle instead of once per call. Read-only:
+ * callers copy what they hand out.
+ */
+let lastBounds: { areaRatio: number; gamma: number; bounds: Readonly<RegimeBounds> } | null = null
+
+function regimeBounds(areaRatio: number, gamma: number): Readonly<RegimeBounds> {
+  if (lastBounds !== null && lastBounds.areaRatio === areaRatio && lastBounds.gamma === gamma) return lastBounds.bounds
   const subsonicExitMach = solveMachFromAreaRatio(areaRatio, gamma, false).mach
   const supersonicExitMach = solveMachFromAreaRatio(areaRatio, gamma, true).mach
   const design = pressureRatioUnchecked(supersonicExitMach, gamma)
-  return {
+  const bounds: RegimeBounds = {
     chokeLimit: pressureRatioUnchecked(subsonicExitMach, gamma),
     shockAtExit: design * normalShockUnchecked(supersonicExitMach, gamma).pressureRatio,
     design,
     subsonicExitMach,
     supersonicExitMach,
   }
+  lastBounds = { areaRatio, gamma, bounds }
+  return bounds
 }
 
 /**

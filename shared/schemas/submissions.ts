@@ -71,6 +71,8 @@ export interface CheckView {
   outcome: CheckOutcome
   /** The expected value's uncertainty; null when the module declares none or none reaches this result. */
   uncertainty: CheckUncertaintyView | null
+  /** The result is an expansion-regime code (1–5), shown by its name. */
+  regime: boolean
 }
 
 /** The uncertainty of a check's expected value, propagated from the module's instrument uncertainties. */
@@ -98,6 +100,8 @@ export interface ChartData {
   chamberPressure?: number[]
   receiverPressure?: number[]
   idealThrust?: number[]
+  /** The separated nozzle's thrust estimate where the flow separates from the wall, null where it runs full. */
+  separatedThrust?: (number | null)[]
   supersonicSpans: [number, number][]
 }
 

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { DEMO_COURSE, DEMO_SECTIONS } from '../../scripts/demo/scenario'
+import { REGIME_CHOICES } from '../../shared/grading/regime'
 import type { ReviewPage } from '../../shared/schemas/review'
 import type { SubmissionDetail } from '../../shared/schemas/submissions'
 import { choose, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
@@ -86,6 +87,16 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     const before = await api<SubmissionDetail>(page, `/api/courses/${courseId}/submissions/${row!.submissionId}`)
     const max = before.body.maxScore!
     expect(max).toBeGreaterThan(0)
+
+    // The regime the group reported is shown by its name, as on the student's page, not as a bare code.
+    const regimeChecks = before.body.checks.filter((c) => c.regime)
+    expect(regimeChecks.map((c) => c.key)).toEqual(['regime'])
+    for (const c of regimeChecks) {
+      const choice = REGIME_CHOICES.find((x) => x.code === c.reported)!
+      expect(
+        await page.getByTestId('checks').locator(`tr[data-check="${c.key}"] td[data-label="Your value"]`).innerText(),
+      ).toBe(`${choice.label} (${choice.code})`)
+    }
     // A new total the submission does not have yet, inside the allowed range.
     const points =
       before.body.score === Math.round(max * 40) / 100 ? Math.round(max * 60) / 100 : Math.round(max * 40) / 100

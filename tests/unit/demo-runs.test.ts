@@ -65,6 +65,26 @@ describe('the demo runs', () => {
     }
   })
 
+  it('log pressures inside the span of the transducers the module declares (fullScale, kPa gauge)', () => {
+    const fullScale = (key: string) => table.columns.find((c) => c.key === key)?.fullScale
+    expect(fullScale('p_receiver')).toBeDefined()
+    expect(fullScale('p_chamber')).toBeDefined()
+    for (const run of runs) {
+      const rows = run.csv
+        .trim()
+        .split('\n')
+        .slice(1)
+        .map((l) => l.split(',').map(Number))
+      const receiver = rows.map((r) => r[2] as number)
+      const chamber = rows.map((r) => r[3] as number)
+      // The span is 0 to full scale; a zero offset may read a little below 0 at rest.
+      expect(Math.max(...receiver), run.group).toBeLessThan(fullScale('p_receiver') as number)
+      expect(Math.max(...chamber), run.group).toBeLessThan(fullScale('p_chamber') as number)
+      // Used well: the receiver's charge fills most of its transducer's span.
+      expect(Math.max(...receiver) / (fullScale('p_receiver') as number), run.group).toBeGreaterThan(0.5)
+    }
+  })
+
   it('give measurements inside the ranges the module allows', () => {
     for (const run of runs) {
       for (const m of assignment.measurements) {

@@ -5,6 +5,7 @@ import { nozzleFlow } from '../../../shared/physics'
 import { expectClose } from '../../helpers/expect-close'
 import {
   EXIT_DIAMETER,
+  GAMMA,
   STANDARD_ATMOSPHERE,
   THROAT_AREA,
   THROAT_DIAMETER,
@@ -169,5 +170,51 @@ describe('chartSeries keeps the whole time span of a long log', () => {
     expect(chart.time[chart.time.length - 1]).toBe(19.999)
     expect(chart.thrust?.[0]).toBe(thrust[0])
     expect(chart.thrust?.[chart.thrust.length - 1]).toBe(thrust[n - 1])
+  })
+})
+
+describe('chartSeries draws the separated estimate where the over-expanded flow separates', () => {
+  // The Mach-2 nozzle (ε = 1.6875, pe/p0 = 1.8^−3.5 = 0.1278) at rest, then at 250 kPa absolute
+  // (pa/p0 = 0.405: supersonic, and the wall pressure falls below 0.4 × ambient = 0.162 p0 inside the
+  // nozzle, so the flow separates by the Summerfield criterion; Summerfield, Foster & Swan 1954, ratio
+  // from memory), then at 1 MPa (0.4 × pa/p0 = 0.041 stays below 0.1278: it runs full), then at rest.
+  const g = GAMMA
+  const chamber = [
+    ...Array<number>(10).fill(STANDARD_ATMOSPHERE),
+    ...Array<number>(20).fill(250e3),
+    ...Array<number>(20).fill(1e6),
+    ...Array<number>(10).fill(STANDARD_ATMOSPHERE),
+  ]
+  const chart = chartSeries(assignment, logFromChamber(chamber))
+
+  // Closed forms (NACA Report 1135 eqs. 44 and 80; Sutton & Biblarz eq. 3-30; from memory): the
+  // separated nozzle is the nozzle cut off where p/p0 = 0.4 × pa/p0, running full to that point.
+  const r = STANDARD_ATMOSPHERE / 250e3
+  const ps = 0.4 * r
+  const machOfPressureRatio = (p: number) => Math.sqrt((2 / (g - 1)) * (p ** (-(g - 1) / g) - 1))
+  const areaRatioOf = (m: number) => ((2 / (g + 1)) * (1 + ((g - 1) / 2) * m * m)) ** ((g + 1) / (2 * (g - 1))) / m
+  const separationAreaRatio = areaRatioOf(machOfPressureRatio(ps))
+  const momentum = Math.sqrt(((2 * g * g) / (g - 1)) * (2 / (g + 1)) ** ((g + 1) / (g - 1)) * (1 - ps ** ((g - 1) / g)))
+  const separatedThrust = (momentum + (ps - r) * separationAreaRatio) * 250e3 * THROAT_AREA
+
+  it('gives the separated nozzle’s thrust at 250 kPa, above the full-flowing ideal there', () => {
+    expect(chart.separatedThrust).toHaveLength(chart.time.length)
+    expectClose(chart.separatedThrust?.[15] as number, separatedThrust, 1e-9)
+    expectClose(
+      chart.idealThrust?.[15] as number,
+      idealThrustCoefficientMach2(250e3, STANDARD_ATMOSPHERE) * 250e3 * THROAT_AREA,
+      1e-9,
+    )
+    expect(chart.separatedThrust?.[15] as number).toBeGreaterThan(chart.idealThrust?.[15] as number)
+  })
+
+  it('leaves it out (null) where the nozzle runs full and at rest', () => {
+    expect(chart.separatedThrust?.[40]).toBeNull()
+    expect(chart.separatedThrust?.[0]).toBeNull()
+    expect(chart.separatedThrust?.[59]).toBeNull()
+  })
+
+  it('has no separated series at all when the flow never separates', () => {
+    expect(chartSeries(assignment, cleanLog()).separatedThrust).toBeUndefined()
   })
 })

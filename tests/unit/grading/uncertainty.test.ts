@@ -347,3 +347,166 @@ describe('expression parts: reuse never changes a value', () => {
     expectClose(c.uncertainty!.standard, Math.sqrt(0.005), 1e-9)
   })
 })
+
+describe('a column whose zero is taken (tare: true) is moved as read, before the tare', () => {
+  // 3 s at 100 Hz: the load cell reads a 0.2 N zero and 20 N more from t = 1 s to 2 s; the chamber
+  // transducer reads a 1.5 kPa zero (gauge) and 300 kPa more over the same second. Tared, the
+  // chamber reads 0 gauge at rest and 300 kPa during the run. By the trapezoid rule over samples
+  // 0.01 s apart, a step held from sample 100 to sample 200 integrates to height × 1.01 s.
+  const t = Array.from({ length: 301 }, (_, i) => i / 100)
+  const running = (i: number) => i >= 100 && i <= 200
+  const data: SubmissionData = {
+    tables: {
+      run: {
+        t,
+        thrust: t.map((_, i) => 0.2 + (running(i) ? 20 : 0)),
+        pc: t.map((_, i) => 1500 + (running(i) ? 300e3 : 0)),
+      },
+    },
+    measurements: { pa: 84e3 },
+  }
+  const PRESSURE_IMPULSE = 300e3 * 1.01 // Pa·s, gauge
+  const THRUST_IMPULSE = 20 * 1.01 // N·s, tared
+
+  function taredAssignment(thrust: unknown, chamber: unknown, barometer: unknown): Assignment {
+    return AssignmentSchema.parse({
+      tables: [
+        {
+          key: 'run',
+          label: 'Run',
+          minRows: 2,
+          columns: [
+            { key: 't', label: 'Time', unit: 's', role: 'time' },
+            { key: 'thrust', label: 'Thrust', unit: 'N', role: 'thrust', ...(thrust ? { uncertainty: thrust } : {}) },
+            {
+              key: 'pc',
+              label: 'Chamber pressure',
+              unit: 'kPa',
+              pressure: 'gauge',
+              role: 'chamber-pressure',
+              tare: true,
+              ...(chamber ? { uncertainty: chamber } : {}),
+            },
+          ],
+        },
+      ],
+      measurements: [
+        {
+          key: 'pa',
+          label: 'Barometric pressure',
+          unit: 'kPa',
+          pressure: 'absolute',
+          role: 'ambient-pressure',
+          ...(barometer ? { uncertainty: barometer } : {}),
+        },
+      ],
+      results: [
+        {
+          key: 'pressure_impulse',
+          label: 'Chamber pressure integral (gauge)',
+          unit: '1',
+          expected: 'totalImpulse(t, pc) - pa * 3',
+          tolerance: { relative: 0.03 },
+          points: 1,
+        },
+        {
+          key: 'impulse',
+          label: 'Total impulse',
+          unit: 'N*s',
+          expected: 'reduceThrustRun(t, thrust).totalImpulse',
+          tolerance: { relative: 0.03 },
+          points: 1,
+        },
+      ],
+    })
+  }
+
+  it('the tared values are the closed forms above', () => {
+    const result = gradeSubmission({ assignment: taredAssignment(null, { absolute: 1 }, null), data, reported: {} })
+    expectClose(check(result, 'pressure_impulse').expected as number, PRESSURE_IMPULSE, 1e-9)
+    expectClose(check(result, 'impulse').expected as number, THRUST_IMPULSE, 1e-9)
+  })
+
+  it('an offset on a tared column contributes nothing: the tare takes it out again', () => {
+    const result = gradeSubmission({
+      assignment: taredAssignment({ absolute: 0.05 }, { absolute: 2 }, null),
+      data,
+      reported: {},
+    })
+    // Moving the tared column itself would give 2 kPa × 3 s = 6000 Pa·s here.
+    for (const key of ['pressure_impulse', 'impulse']) {
+      const u = check(result, key).uncertainty!
+      expect(u.standard, key).toBeLessThan(1e-9 * (key === 'impulse' ? THRUST_IMPULSE : PRESSURE_IMPULSE))
+      expect(u.contributions, key).toEqual([])
+    }
+  })
+
+  it('a gain on a tared column contributes u_rel × the tared integral (its zero is not multiplied)', () => {
+    const result = gradeSubmission({
+      assignment: taredAssignment({ relative: 0.005 }, { relative: 0.01 }, null),
+      data,
+      reported: {},
+    })
+    // Moving the tared column by 1 % of the reading as logged would give 1 % of (303 000 + 1500 × 3) Pa·s.
+    expectClose(check(result, 'pressure_impulse').uncertainty!.standard, 0.01 * PRESSURE_IMPULSE, 1e-9)
+    expectClose(check(result, 'impulse').uncertainty!.standard, 0.005 * THRUST_IMPULSE, 1e-9)
+    expect(check(result, 'pressure_impulse').uncertainty!.contributions).toEqual([
+      { key: 'pc', part: 'gain', label: 'Chamber pressure', share: 1 },
+    ])
+  })
+
+  it('the barometer moves the tared column with it (a gauge integral less pa × the span has none of it)', () => {
+    const result = gradeSubmission({ assignment: taredAssignment(null, null, { absolute: 0.1 }), data, reported: {} })
+    expect(check(result, 'pressure_impulse').uncertainty!.standard).toBeLessThan(1e-6)
+  })
+
+  it('each contribution equals the central difference over a scope rebuilt (and tared) from the moved data', () => {
+    // A noisy log with a drifting chamber zero, and a result mixing the chamber reading, the barometer
+    // and the reduced run; the data themselves are moved and the scope built and tared again.
+    const noise = (i: number) => Math.sin(i * 12.9898) * 0.5
+    const moving: SubmissionData = {
+      tables: {
+        run: {
+          t,
+          thrust: t.map((x, i) => 0.2 + 0.02 * noise(i) + (running(i) ? 20 * (1 - 0.3 * (x - 1)) : 0)),
+          pc: t.map((x, i) => 1500 + 300 * x + 50 * noise(i + 7) + (running(i) ? 300e3 * (1 - 0.3 * (x - 1)) : 0)),
+        },
+      },
+      measurements: { pa: 84e3 },
+    }
+    const expr = 'reduceThrustRun(t, thrust).totalImpulse / (1e-5 * totalImpulse(t, pc)) + max(pc) / pa'
+    const assignment = AssignmentSchema.parse({
+      ...taredAssignment({ absolute: 0.05, relative: 0.005 }, { absolute: 2, relative: 0.01 }, { absolute: 0.1 }),
+      results: [{ key: 'x', label: 'Mixed', unit: '1', expected: expr, tolerance: { relative: 0.02 }, points: 1 }],
+    })
+    const run = moving.tables.run!
+    const f = (d: SubmissionData) =>
+      evaluateExpression(expr, buildExpressionScope(assignment, d, { units: 'si' })) as number
+    const moveColumn = (key: string, g: (v: number) => number): SubmissionData => ({
+      ...moving,
+      tables: { run: { ...run, [key]: run[key]!.map(g) } },
+    })
+    const z = (up: SubmissionData, down: SubmissionData) => (f(up) - f(down)) / 2
+    const expected = [
+      z(
+        moveColumn('thrust', (v) => v + 0.05),
+        moveColumn('thrust', (v) => v - 0.05),
+      ),
+      z(
+        moveColumn('thrust', (v) => v * 1.005),
+        moveColumn('thrust', (v) => v * 0.995),
+      ),
+      z(
+        moveColumn('pc', (v) => v + 2000),
+        moveColumn('pc', (v) => v - 2000),
+      ),
+      z(
+        moveColumn('pc', (v) => v * 1.01),
+        moveColumn('pc', (v) => v * 0.99),
+      ),
+      z({ ...moving, measurements: { pa: 84e3 + 100 } }, { ...moving, measurements: { pa: 84e3 - 100 } }),
+    ]
+    const c = check(gradeSubmission({ assignment, data: moving, reported: {} }), 'x')
+    expectClose(c.uncertainty!.standard, Math.sqrt(expected.reduce((s, v) => s + v * v, 0)), 1e-7)
+  })
+})

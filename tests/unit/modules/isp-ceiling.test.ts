@@ -2,10 +2,13 @@
  * The cold-flow module's specific-impulse ceiling (content/02, review rule isp_above_limit): ideal
  * expansion from the peak chamber pressure to the logged barometric pressure, not to vacuum.
  */
+import { readFileSync } from 'node:fs'
+import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
 import { coldFlowAssignment, demoRuns } from '../../../scripts/demo/demo-runs'
 import { parseLog } from '../../../shared/grading/csv'
 import { gradeSubmission } from '../../../shared/grading/grade'
+import { parseModuleSource } from '../../../shared/modules/front-matter'
 import { valueToSI } from '../../../shared/modules/quantities'
 
 const assignment = coldFlowAssignment()
@@ -51,5 +54,29 @@ describe('the cold-flow module’s specific-impulse ceiling', () => {
     expect(ruleFires(ceiling * 1.002)).toBe(true)
     expect(ruleFires(ceiling * 0.998)).toBe(false)
     expect(ruleFires(run.reported.isp!)).toBe(false)
+  })
+})
+
+describe('the hot-fire module’s range for the cold-flow specific impulse', () => {
+  const file = '03-hot-fire.md'
+  const parsed = parseModuleSource(readFileSync(join(import.meta.dirname, '../../../content', file), 'utf8'), file)
+  if (!parsed.ok) throw new Error(`content/${file} does not parse`)
+  const ispCold = parsed.frontMatter.assignment?.measurements.find((m) => m.key === 'isp_cold')
+
+  // The ceiling of every demo group's run, written out as above (demo data, invented).
+  const ceilings = demoRuns(assignment).map((r) => {
+    const p = parseLog(r.csv, table, r.mapping)
+    if (!p.ok) throw new Error(`demo run ${r.group} does not parse`)
+    const ambient = valueToSI(r.measurements.p_ambient!, 'kPa')
+    const chamber = Math.max(...(p.columns.p_chamber as number[])) + ambient
+    const air = valueToSI(r.measurements.t_air!, 'degC')
+    return Math.sqrt(((2 * 1.4) / 0.4) * 287.05 * air * (1 - (ambient / chamber) ** (0.4 / 1.4))) / 9.80665
+  })
+
+  it('tops out a little above the stand’s ideal ceiling to ambient, well below expansion to vacuum', () => {
+    const highest = Math.max(...ceilings)
+    expect(ispCold?.max).toBeGreaterThan(highest)
+    expect(ispCold?.max).toBeLessThan(1.15 * highest)
+    expect(ispCold?.max).toBeLessThan(vacuum)
   })
 })

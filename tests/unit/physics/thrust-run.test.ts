@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { RUN_THRESHOLD, reduceThrustRun, tareAlongRun, windowIntegral, windowMean } from '../../../shared/physics/index'
+import { analyseThrustRun, runOfRescaledThrust } from '../../../shared/physics/thrust-run'
 import { expectClose } from '../../helpers/expect-close'
 import { expectRangeError } from '../../helpers/expect-range-error'
 
@@ -308,6 +309,69 @@ describe('reduceThrustRun on generated stand logs (truth in closed form)', () =>
     expectClose(r.start, truth.start, 1e-4)
     expectClose(r.end, truth.end, 1e-4)
     expectClose(r.meanThrust, truth.meanThrust, 1e-4)
+  })
+})
+
+describe('runOfRescaledThrust: the same log read with another zero and calibration', () => {
+  // Logs with everything the reduction decides on: noise, a drifting zero, a ringing spike, and one
+  // that ends inside the run. The rescaled analysis must agree with reducing the rescaled log.
+  const logs: [string, number[], number[]][] = []
+  {
+    const burn: Burn = { P: 28, t0: 2, D: 10 }
+    const noise = normal(7)
+    const t = timesOf(100, 16)
+    const drift = (x: number) => 0.25 - 0.01 * x
+    logs.push([
+      'noisy, drifting, ringing',
+      t,
+      t.map((x, i) => drift(x) + burnAt(burn, x) + 0.08 * noise() + (i === 201 ? 9 : 0)),
+    ])
+  }
+  {
+    const burn: Burn = { P: 40, t0: 1, D: 4 }
+    const t = timesOf(100, 3.5)
+    const noise = normal(11)
+    logs.push(['ends inside the run', t, t.map((x) => 0.4 + burnAt(burn, x) + 0.02 * noise())])
+  }
+  const moves: [number, number][] = [
+    [0.05, 1],
+    [-0.05, 1],
+    [0, 1.005],
+    [0, 0.995],
+    [-3.2, 9.80665],
+    [120, 0.25],
+  ]
+
+  for (const [name, t, F] of logs) {
+    for (const [offset, gain] of moves) {
+      it(`${name}: offset ${offset} N, gain ${gain}`, () => {
+        const direct = analyseThrustRun(
+          t,
+          F.map((f) => offset + gain * f),
+        )
+        const derived = runOfRescaledThrust(analyseThrustRun(t, F), offset, gain)
+        expect(derived.quietBeforeEnd).toBe(direct.quietBeforeEnd)
+        expect(derived.quietAfterStart).toBe(direct.quietAfterStart)
+        expect(derived.zeroAfter === null).toBe(direct.zeroAfter === null)
+        // Rounding only: the moved samples are rounded once, the interpolated crossings differ in the last bits.
+        expectClose(derived.zeroBefore, direct.zeroBefore, 1e-12)
+        if (direct.zeroAfter !== null) expectClose(derived.zeroAfter as number, direct.zeroAfter, 1e-12)
+        for (const key of ['start', 'end', 'burnTime', 'totalImpulse', 'peakThrust', 'meanThrust'] as const) {
+          expectClose(derived[key], direct[key], 1e-10)
+        }
+      })
+    }
+  }
+
+  it('refuses a gain that is not positive (a reversed load cell changes which samples are the peak)', () => {
+    const t = timesOf(100, 4)
+    const run = analyseThrustRun(
+      t,
+      t.map((x) => burnAt({ P: 10, t0: 1, D: 2 }, x)),
+    )
+    expectRangeError(() => runOfRescaledThrust(run, 0, 0), 'gain must be a positive finite number')
+    expectRangeError(() => runOfRescaledThrust(run, 0, -1), 'gain must be a positive finite number')
+    expectRangeError(() => runOfRescaledThrust(run, Number.NaN, 1), 'offset must be a finite number')
   })
 })
 
