@@ -34,7 +34,7 @@ render()
 </script></body></html>`
 
 beforeAll(async () => {
-  server = createServer((req, res) => {
+  server = createServer((_req, res) => {
     res.writeHead(200, { 'Content-Type': 'text/html; charset=utf-8' })
     res.end(PAGE)
   })

@@ -69,7 +69,11 @@ export function recordNavigations(ctx: BrowserContext, recorder: A11yRecorder): 
       const url = frame.url()
       if (!/^https?:/.test(url)) return
       // The cookies at this moment say who saw the page (signed out on the sign-in page, signed in later).
-      const cookies = ctx.cookies().then(
+      // A context closed right after the navigation answers with the cookies last seen.
+      const cookies = Promise.race([
+        ctx.cookies(),
+        new Promise<never>((_, reject) => setTimeout(() => reject(new Error('no answer')), 5_000)),
+      ]).then(
         (c) => (lastCookies = c),
         () => lastCookies,
       )
@@ -86,8 +90,8 @@ async function settle(page: Page): Promise<void> {
   await page
     .waitForFunction((sel) => document.querySelectorAll(sel).length === 0, LOADING, { timeout: 10_000 })
     .catch(() => undefined)
-  // Let transitions and chart resizes finish their frames.
-  await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))))
+  // Let transitions and chart resizes finish.
+  await page.waitForTimeout(300)
 }
 
 /** Runs axe-core (WCAG 2 A and AA rules) on the page as it is and returns its serious and critical findings. */
@@ -122,8 +126,14 @@ export async function axeFindings(page: Page, width: number, label = page.url())
 }
 
 /** Opens one recorded page at each width in a fresh context carrying the recorded cookies. */
-async function auditVisit(open: OpenContext, url: string, cookies: Cookie[]): Promise<A11yFinding[]> {
-  const ctx = await open({ viewport: { width: AUDIT_WIDTHS[0], height: 900 } })
+async function auditVisit(
+  open: OpenContext,
+  url: string,
+  cookies: Cookie[],
+  firstLook: (landedOn: string) => boolean,
+): Promise<A11yFinding[]> {
+  // The app's Content-Security-Policy allows no inline script; axe is injected as one.
+  const ctx = await open({ viewport: { width: AUDIT_WIDTHS[0], height: 900 }, bypassCSP: true })
   try {
     await ctx.addCookies(cookies)
     const page = await ctx.newPage()
@@ -133,7 +143,11 @@ async function auditVisit(open: OpenContext, url: string, cookies: Cookie[]): Pr
       const res = await page.goto(url)
       // Downloads and API answers are not pages.
       if (!res || !(res.headers()['content-type'] ?? '').includes('text/html')) return []
+      // A page that sends the visitor elsewhere (sign-in) is checked where it lands, once.
+      if (width === AUDIT_WIDTHS[0] && !firstLook(page.url())) return []
+      debug('loaded', width)
       await settle(page)
+      debug('settled', width)
       findings.push(...(await axeFindings(page, width, new URL(page.url()).pathname)))
     }
     return findings
@@ -161,24 +175,45 @@ async function whoIs(recorder: A11yRecorder, origin: string, cookies: Cookie[]):
   }
 }
 
+const debug = (...args: unknown[]) => {
+  if (process.env.A11Y_DEBUG) console.error('[a11y]', new Date().toISOString(), ...args)
+}
+
 export function formatFindings(findings: A11yFinding[]): string {
   const lines = findings.map(
-    (f) => `- ${f.rule} (${f.impact}) on ${f.page} at ${f.width} px: ${f.help}\n    ${f.targets.join('\n    ')}`,
+    (f) =>
+      `- ${f.rule} (${f.impact}) on ${f.page} at ${f.width} px: ${f.help}\n    ${f.targets.slice(0, 5).join('\n    ')}` +
+      (f.targets.length > 5 ? `\n    … and ${f.targets.length - 5} more` : ''),
   )
   return `Accessibility check: ${findings.length} serious or critical problem(s)\n${lines.join('\n')}`
 }
 
 /** Checks the recorded pages not yet checked in this file; throws a readable list on a serious finding. */
 export async function auditRecorded(recorder: A11yRecorder): Promise<void> {
+  const findings = await collectFindings(recorder)
+  if (findings.length > 0) throw new Error(formatFindings(findings))
+}
+
+async function collectFindings(recorder: A11yRecorder): Promise<A11yFinding[]> {
   const visits = recorder.pending.splice(0)
   const findings: A11yFinding[] = []
   for (const visit of visits) {
+    debug('visit', visit.url)
     const cookies = await visit.cookies
+    debug('cookies', cookies.length)
     const who = await whoIs(recorder, new URL(visit.url).origin, cookies)
     const key = `${who}|${routePattern(visit.url)}`
     if (recorder.checked.has(key)) continue
     recorder.checked.add(key)
-    findings.push(...(await auditVisit(recorder.open, visit.url, cookies)))
+    debug('audit', key)
+    const firstLook = (landedOn: string) => {
+      const landed = `${who}|${routePattern(landedOn)}`
+      if (landed === key) return true
+      if (recorder.checked.has(landed)) return false
+      recorder.checked.add(landed)
+      return true
+    }
+    findings.push(...(await auditVisit(recorder.open, visit.url, cookies, firstLook)))
   }
-  if (findings.length > 0) throw new Error(formatFindings(findings))
+  return findings
 }
