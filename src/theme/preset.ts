@@ -116,6 +116,10 @@ export const IsentropePreset = definePreset(Aura, {
         },
       },
     },
+    // An unchosen option's words in the stock surface.500 give 4:1 on its grey; surface.700 gives 8:1.
+    togglebutton: {
+      colorScheme: { light: { root: { color: '{surface.700}' }, icon: { color: '{surface.700}' } } },
+    },
     // A toast fits a phone: the stock 25rem is wider than a 375 px screen.
     toast: { root: { width: 'min(25rem, calc(100vw - 2.5rem))' } },
   },
