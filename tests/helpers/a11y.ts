@@ -140,14 +140,18 @@ async function auditVisit(
     const findings: A11yFinding[] = []
     for (const width of AUDIT_WIDTHS) {
       await page.setViewportSize({ width, height: 900 })
-      const res = await page.goto(url)
+      const res = await page.goto(url).catch((e: Error) => {
+        // A file the browser downloads is not a page.
+        if (/download|ERR_ABORTED/i.test(e.message)) return null
+        throw e
+      })
       // Downloads and API answers are not pages.
       if (!res || !(res.headers()['content-type'] ?? '').includes('text/html')) return []
-      // A page that sends the visitor elsewhere (sign-in) is checked where it lands, once.
-      if (width === AUDIT_WIDTHS[0] && !firstLook(page.url())) return []
       debug('loaded', width)
       await settle(page)
       debug('settled', width)
+      // A page that sends the visitor elsewhere (sign-in) is checked where it lands, once.
+      if (width === AUDIT_WIDTHS[0] && !firstLook(page.url())) return []
       findings.push(...(await axeFindings(page, width, new URL(page.url()).pathname)))
     }
     return findings
