@@ -267,15 +267,45 @@ interface Column {
   colour?: (c: ReportCheck) => string
 }
 
+const CELL_PAD_X = 4
+/** The result's name keeps at least this much room, pt; it wraps within it. */
+const RESULT_MIN_WIDTH = 96
+/** Columns that may wrap when the table is too wide, in this order: values with their uncertainty and unit. */
+const MAY_WRAP = ['Expected', 'Tolerance', 'Your value']
+
+/**
+ * Each column as wide as its widest cell or title (measured in its own fonts), so a short cell
+ * such as "< 0.01 %" or "Partial credit" never wraps. When they need more than `room`, the value
+ * columns in MAY_WRAP give way, in that order, down to their titles' width, and wrap.
+ */
+function sizeToContent(doc: Doc, cols: Column[], checks: readonly ReportCheck[], room: number): void {
+  for (const c of cols) {
+    const widest = Math.max(
+      widthOf(doc, 'sans-semibold', 8.5, c.title),
+      ...checks.map((check) => widthOf(doc, c.role, c.size, c.cell(check))),
+    )
+    // A point to spare: pdfkit wraps a line whose width equals the box's to the last decimal.
+    c.width = Math.ceil(widest + 2 * CELL_PAD_X + 1)
+  }
+  let over = cols.reduce((s, c) => s + c.width, 0) - room
+  for (const title of MAY_WRAP) {
+    const c = cols.find((col) => col.title === title)
+    if (!c || over <= 0) continue
+    const floor = Math.ceil(widthOf(doc, 'sans-semibold', 8.5, c.title) + 2 * CELL_PAD_X + 1)
+    const give = Math.min(over, c.width - floor)
+    c.width -= give
+    over -= give
+  }
+}
+
 function checksTable(doc: Doc, d: FeedbackReportData): void {
   const showExpected = d.checks.some((c) => c.expected !== null)
-  // "109.09 ± 2.4 N·s (k = 2)" needs a wider column than the value alone.
   const withU = d.checks.some((c) => c.expected !== null && (c.uncertainty?.expanded ?? 0) > 0)
   const w = contentWidth(doc)
   const fixed: Column[] = [
     {
       title: 'Your value',
-      width: 74,
+      width: 0,
       role: 'mono',
       size: 8,
       align: 'right',
@@ -285,7 +315,7 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
       ? [
           {
             title: 'Expected',
-            width: withU ? 104 : 74,
+            width: 0,
             role: 'mono' as const,
             size: 8,
             align: 'right' as const,
@@ -299,10 +329,10 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
           },
         ]
       : []),
-    { title: 'Error', width: 42, role: 'mono', size: 8, align: 'right', cell: (c) => percentText(c.relError) },
+    { title: 'Error', width: 0, role: 'mono', size: 8, align: 'right', cell: (c) => percentText(c.relError) },
     {
       title: 'Tolerance',
-      width: 80,
+      width: 0,
       role: 'mono',
       size: 8,
       align: 'right',
@@ -310,7 +340,7 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
     },
     {
       title: 'Points',
-      width: 50,
+      width: 0,
       role: 'mono',
       size: 8,
       align: 'right',
@@ -318,7 +348,7 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
     },
     {
       title: 'Outcome',
-      width: 62,
+      width: 0,
       role: 'sans-semibold',
       size: 9,
       align: 'left',
@@ -326,12 +356,13 @@ function checksTable(doc: Doc, d: FeedbackReportData): void {
       colour: (c) => OUTCOME[c.outcome].colour,
     },
   ]
+  sizeToContent(doc, fixed, d.checks, w - RESULT_MIN_WIDTH)
   const used = fixed.reduce((s, c) => s + c.width, 0)
   const cols: Column[] = [
     { title: 'Result', width: w - used, role: 'sans-semibold', size: 9, align: 'left', cell: (c) => c.label },
     ...fixed,
   ]
-  const padX = 4
+  const padX = CELL_PAD_X
   const padY = 4
   const x0 = doc.page.margins.left
 

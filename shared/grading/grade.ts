@@ -256,12 +256,34 @@ export function gradeSubmission(input: GradeInput): GradeResult {
     return check
   })
 
-  flags.push(...dataFlags(assignment, data, logged))
-  flags.push(...ruleFlags(assignment, scope, reported))
+  flags.push(...oneFlagPerCause(dataFlags(assignment, data, logged), ruleFlags(assignment, scope, reported)))
 
   const rawScore = round6(checks.reduce((sum, c) => sum + c.pointsAwarded, 0))
   const maxScore = round6(checks.reduce((sum, c) => sum + c.pointsPossible, 0))
   return { checks, rawScore, score: round6(rawScore * (1 - latePenalty)), maxScore, latePenalty, flags }
+}
+
+/**
+ * One finding per cause. A module's review rule may restate a built-in check, naming it by its key
+ * (`thrust_above_ideal` for 'thrust-above-ideal'); when both fire they are one cause, so staff get
+ * one flag to resolve. It keeps the built-in code and message, names the rule in its detail, and adds
+ * the rule's reason when that says something else. A rule that fires alone stays as it is.
+ */
+export function oneFlagPerCause(builtIn: readonly GradeFlag[], rules: readonly GradeFlag[]): GradeFlag[] {
+  const merged = builtIn.map((f) => ({ ...f, ...(f.detail ? { detail: { ...f.detail } } : {}) }))
+  const rest: GradeFlag[] = []
+  for (const rule of rules) {
+    const key = rule.code.startsWith('rule:') ? rule.code.slice('rule:'.length) : null
+    const same = key === null ? undefined : merged.find((f) => f.code === key.replace(/_/g, '-'))
+    if (!same || key === null) {
+      rest.push(rule)
+      continue
+    }
+    same.detail = { ...same.detail, rule: key }
+    const reason = rule.message.trim()
+    if (reason !== same.message.trim()) same.message = `${same.message} The module's rule "${key}" says: ${reason}`
+  }
+  return [...merged, ...rest]
 }
 
 /** The module's review rules, over the data and the reported results in SI. */

@@ -25,3 +25,12 @@ export function useCourseRole(courseId: Ref<number>): ComputedRef<CourseRole | n
   const roles = useCourseRolesStore()
   return computed(() => roles.roleIn(courseId.value))
 }
+
+/**
+ * The course's time zone (null until known), from the shared roles store: times on every page are
+ * shown in the course's zone, with the zone named, whatever the viewer's own clock says.
+ */
+export function useCourseTimeZone(courseId: Ref<number>): ComputedRef<string | null> {
+  const roles = useCourseRolesStore()
+  return computed(() => roles.timeZoneIn(courseId.value))
+}

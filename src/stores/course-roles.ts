@@ -11,6 +11,8 @@ import { useSessionStore } from './session'
 export const useCourseRolesStore = defineStore('course-roles', () => {
   const session = useSessionStore()
   const roles = ref<Record<number, CourseRole>>({})
+  /** Each course's IANA time zone, from the same list: pages show times in it. */
+  const zones = ref<Record<number, string>>({})
   let loadedFor: number | null = null
   let loading: Promise<void> | null = null
   /** Courses missing from a loaded list that were asked about once more (a newer enrollment). */
@@ -20,6 +22,7 @@ export const useCourseRolesStore = defineStore('course-roles', () => {
     () => session.user?.id ?? null,
     () => {
       roles.value = {}
+      zones.value = {}
       loadedFor = null
       rechecked.clear()
     },
@@ -32,6 +35,7 @@ export const useCourseRolesStore = defineStore('course-roles', () => {
       .then((list) => {
         if ((session.user?.id ?? null) !== userId) return
         roles.value = Object.fromEntries(list.map((c) => [c.id, c.role]))
+        zones.value = Object.fromEntries(list.map((c) => [c.id, c.timeZone]))
         loadedFor = userId
       })
       // Navigation falls back to the links every member has; the page itself reports errors.
@@ -58,5 +62,11 @@ export const useCourseRolesStore = defineStore('course-roles', () => {
     return known ?? null
   }
 
-  return { roleIn }
+  /** The course's time zone, or null until known (loads like `roleIn`). */
+  function timeZoneIn(courseId: number): string | null {
+    roleIn(courseId)
+    return zones.value[courseId] ?? null
+  }
+
+  return { roleIn, timeZoneIn }
 })

@@ -120,7 +120,7 @@ describe('course administration in the browser', () => {
     // The roster: move the student into the group (which also puts them in its section).
     await nav.getByRole('link', { name: 'Roster' }).click()
     await page.getByRole('heading', { level: 1, name: 'Roster' }).waitFor()
-    await page.getByRole('button', { name: `Change section and lab group of ${people.student.name}` }).click()
+    await page.getByRole('button', { name: `Change section & group of ${people.student.name}` }).click()
     const placement = page.getByRole('dialog', { name: `Section and lab group: ${people.student.name}` })
     await placement.waitFor()
     expect(await placement.innerText()).toContain('only future hand-ins follow the new group')

@@ -5,6 +5,7 @@ import { DEMO_COURSE, DEMO_SECTIONS } from '../../scripts/demo/scenario'
 import { REGIME_CHOICES } from '../../shared/grading/regime'
 import type { ReviewPage } from '../../shared/schemas/review'
 import type { SubmissionDetail } from '../../shared/schemas/submissions'
+import { formatInZone } from '../../shared/time'
 import { choose, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
@@ -77,6 +78,10 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
       row,
       `a flagged hand-in of ${GROUP_NAME} among ${JSON.stringify(queue.body.rows.map((r) => [r.labGroupName, r.flagCodes]))}`,
     ).toBeDefined()
+    // Times are in the course's zone, named, not the browser's (UTC here).
+    const handedIn = formatInZone(new Date(row!.submittedAt), DEMO_COURSE.timeZone)
+    expect(handedIn).not.toContain('UTC')
+    await expect.poll(() => table.innerText()).toContain(handedIn)
     await settled(page)
     await page.screenshot({ path: screenshotPath('review-queue-desktop'), fullPage: true })
 
@@ -86,6 +91,7 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
 
     const before = await api<SubmissionDetail>(page, `/api/courses/${courseId}/submissions/${row!.submissionId}`)
     const max = before.body.maxScore!
+    await expect.poll(() => page.locator('main').innerText()).toContain(`${handedIn} by`)
     expect(max).toBeGreaterThan(0)
 
     // The regime the group reported is shown by its name, as on the student's page, not as a bare code.
@@ -116,6 +122,10 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     expect(entry).toContain(ta.displayName)
     expect(entry).toContain('total')
     expect(entry).toContain(`→ ${points}`)
+    // The audit trail's time is in the course's zone, named.
+    const zoneName = formatInZone(new Date(), DEMO_COURSE.timeZone).split(' ').pop()!
+    expect(entry).toContain(` ${zoneName}`)
+    expect(entry).not.toContain('UTC')
     await expect.poll(() => page.getByTestId('score').innerText()).toContain(`${points}`)
     expect(await page.getByTestId('score').innerText()).toContain(`of ${max} points`)
     await expect.poll(() => page.getByTestId('review-status').innerText()).toBe('in review')

@@ -4,8 +4,8 @@ import type { Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import path from 'node:path'
 import { chromium } from 'playwright-core'
-import type { Browser, Page } from 'playwright-core'
-import { expect } from 'vitest'
+import type { Browser, BrowserContext, Page } from 'playwright-core'
+import { afterEach, expect } from 'vitest'
 import { DEFAULT_DEMO_PASSWORD } from '../../scripts/demo/scenario'
 import { createApp, gradingContext } from '../../server/app'
 import { appDbOptions, gradingBudget } from '../../server/config'
@@ -16,6 +16,22 @@ import { createSmtpSender } from '../../server/mail/transport'
 import { createGrader } from '../../server/grading/grading-pool'
 import { DEFAULT_GRADING_WORKER_OPTIONS, startGradingWorker } from '../../server/grading/grading-worker'
 import { testConfig } from './app'
+import { auditRecorded, newRecorder, recordNavigations } from './a11y'
+import type { A11yRecorder } from './a11y'
+
+/** The browser this test file launched, and the pages its tests reached that are not yet checked. */
+let current: { browser: Browser; recorder: A11yRecorder } | null = null
+
+/** The pages the current file's tests reached that are not yet checked (for the checker's own test). */
+export function a11yRecorder(): A11yRecorder | null {
+  return current?.recorder ?? null
+}
+
+// Every browser test file gets the accessibility check: after each test, the pages it reached are
+// checked at 1280 px and 375 px (each route once per person per file). See ./a11y.ts.
+afterEach(async () => {
+  if (current) await auditRecorded(current.recorder)
+}, 180_000)
 
 /** Debian's Chromium, never a downloaded browser; playwright gives it a fresh temporary profile. */
 export async function launchBrowser(): Promise<{ browser: Browser; close: () => Promise<void> }> {
@@ -32,9 +48,37 @@ export async function launchBrowser(): Promise<{ browser: Browser; close: () => 
       '--disable-sync',
     ],
   })
+  const recorder = newRecorder(browser.newContext.bind(browser))
+  watchNavigations(browser, recorder)
+  current = { browser, recorder }
   return {
     browser,
-    close: () => browser.close(),
+    close: async () => {
+      if (current?.browser === browser) current = null
+      await browser.close()
+    },
+  }
+}
+
+/**
+ * Contexts and pages the tests open record where they go. Pages from `browser.newPage` get a context
+ * of their own that closes with the page, as playwright's own `newPage` does.
+ */
+function watchNavigations(browser: Browser, recorder: A11yRecorder): void {
+  browser.newContext = async (options) => {
+    const ctx = await recorder.open(options)
+    recordNavigations(ctx, recorder)
+    return ctx
+  }
+  browser.newPage = async (options) => {
+    const ctx: BrowserContext = await browser.newContext(options)
+    const page = await ctx.newPage()
+    const closePage = page.close.bind(page)
+    page.close = async (opts) => {
+      await closePage(opts)
+      await ctx.close()
+    }
+    return page
   }
 }
 

@@ -12,6 +12,12 @@ export interface PdfRead {
   pageTexts: string[]
   /** All pages' text, whitespace collapsed. */
   text: string
+  /**
+   * Per page, the printed lines top to bottom: pieces of text on one baseline (within 3 pt, so the
+   * cells of one table row count as one line) joined left to right with a space. A wrapped cell
+   * shows as its pieces on two lines.
+   */
+  lines: string[][]
   /** Per page, how many times each drawing operator occurs (by pdf.js's OPS names). */
   operators: Record<string, number>[]
   /** Per page, the length of the longest path pdf.js built (numbers in its path data). */
@@ -39,9 +45,11 @@ export async function readPdf(bytes: Buffer): Promise<PdfRead> {
   const pageTexts: string[] = []
   const operators: Record<string, number>[] = []
   const longestPath: number[] = []
+  const lines: string[][] = []
   for (let i = 1; i <= doc.numPages; i++) {
     const page = await doc.getPage(i)
     const content = await page.getTextContent()
+    lines.push(textLines(content.items))
     // Items of one line follow each other; hasEOL marks a line end (a wrapped line or a new paragraph).
     const text = content.items.map((item) => ('str' in item ? item.str + (item.hasEOL ? ' ' : '') : '')).join('')
     pageTexts.push(squash(text))
@@ -57,7 +65,28 @@ export async function readPdf(bytes: Buffer): Promise<PdfRead> {
     longestPath.push(longest)
   }
   await task.destroy()
-  return { pages: doc.numPages, pageTexts, text: squash(pageTexts.join(' ')), operators, longestPath }
+  return { pages: doc.numPages, pageTexts, text: squash(pageTexts.join(' ')), operators, longestPath, lines }
+}
+
+/** Text items grouped into lines by their baseline (PDF y grows upwards), each line read left to right. */
+function textLines(items: readonly object[]): string[] {
+  const pieces = items
+    .filter((it): it is { str: string; transform: number[] } => 'str' in it && 'transform' in it)
+    .filter((it) => it.str.trim() !== '')
+    .map((it) => ({ text: it.str.trim(), x: it.transform[4]!, y: it.transform[5]! }))
+    .sort((a, b) => b.y - a.y)
+  const rows: { y: number; parts: { text: string; x: number }[] }[] = []
+  for (const p of pieces) {
+    const row = rows.find((r) => Math.abs(r.y - p.y) <= 3)
+    if (row) row.parts.push(p)
+    else rows.push({ y: p.y, parts: [p] })
+  }
+  return rows.map((r) =>
+    r.parts
+      .sort((a, b) => a.x - b.x)
+      .map((p) => p.text)
+      .join(' '),
+  )
 }
 
 /** The fonts a PDF names: every /BaseFont and how many embedded font programs it carries. */

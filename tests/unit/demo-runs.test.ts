@@ -222,4 +222,18 @@ describe('grading the demo runs', () => {
     expect(peak / ideal).toBeLessThan(1.5)
     expect(results.get('B4')?.flags.map((f) => f.code)).toContain('thrust-above-ideal')
   })
+
+  it("gives B4 one flag for its one cause, though the built-in check and the module's own rule both see it", () => {
+    const flags = results.get('B4')?.flags ?? []
+    const thrust = flags.filter((f) => f.code === 'thrust-above-ideal' || f.code === 'rule:thrust_above_ideal')
+    expect(thrust).toHaveLength(1)
+    const [flag] = thrust
+    expect(flag!.code).toBe('thrust-above-ideal')
+    expect(flag!.detail?.rule).toBe('thrust_above_ideal')
+    // The two reasons differ, so both are there: the built-in one, then the module's.
+    expect(flag!.message).toMatch(/^The peak thrust/)
+    expect(flag!.message).toContain(
+      'The module\'s rule "thrust_above_ideal" says: The peak thrust (tared, through the 5-sample',
+    )
+  })
 })

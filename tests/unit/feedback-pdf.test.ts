@@ -70,6 +70,50 @@ describe('the feedback report layout', () => {
     expect(pdf.text).toContain('word898 word899 Last paragraph.')
   })
 
+  it('sizes the checks columns to their content, so short cells such as "< 0.01 %" stay on one line', async () => {
+    const base = { unit: 'N*s', tolerance: 2.5, pointsPossible: 2, adjusted: false }
+    const checks = [
+      {
+        ...base,
+        label: 'Total impulse',
+        reported: 98.2,
+        expected: 98.2049,
+        relError: 5e-5,
+        pointsAwarded: 2,
+        outcome: 'pass' as const,
+      },
+      {
+        ...base,
+        label: 'Peak thrust',
+        reported: 101.5,
+        expected: 98.2,
+        relError: 0.0336,
+        pointsAwarded: 1,
+        outcome: 'partial' as const,
+      },
+      {
+        ...base,
+        label: 'Burn time',
+        reported: 140,
+        expected: 98.2,
+        relError: 0.4257,
+        pointsAwarded: 0.5,
+        outcome: 'fail' as const,
+        adjusted: true,
+      },
+    ]
+    const pdf = await readPdf(await feedbackPdfBuffer(report({ checks })))
+    const lines = pdf.lines.flat()
+    const row = (label: string) => lines.find((l) => l.startsWith(`${label} `)) ?? ''
+    // Each row is one printed line holding every cell whole.
+    expect(row('Total impulse')).toContain('< 0.01 %')
+    expect(row('Total impulse')).toMatch(/98\.2 N·s 98\.205 N·s < 0\.01 % ± 2\.5 N·s 2 \/ 2 Passed$/)
+    expect(row('Peak thrust')).toMatch(/3\.4 % ± 2\.5 N·s 1 \/ 2 Partial credit$/)
+    expect(row('Burn time')).toMatch(/43 % ± 2\.5 N·s 0\.5 \/ 2 \* Failed$/)
+    // No line holds a cell's lone tail.
+    expect(lines.filter((l) => l === '%' || l === 'credit')).toEqual([])
+  })
+
   it('sets letters beyond Latin-1 in the latin-ext file and writes out symbols the fonts lack', async () => {
     const runs = fontRuns('Dvořák ≤ 3', 'serif')
     expect(runs.map((r) => r.text).join('')).toBe('Dvořák <= 3')

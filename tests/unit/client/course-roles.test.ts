@@ -3,7 +3,7 @@ import { beforeEach, describe, expect, it, vi } from 'vitest'
 import type { CourseSummary } from '../../../shared/schemas/courses'
 
 // "My courses" as the server would answer it; each test sets what the server holds.
-let serverCourses: Pick<CourseSummary, 'id' | 'role'>[] = []
+let serverCourses: (Pick<CourseSummary, 'id' | 'role'> & Partial<Pick<CourseSummary, 'timeZone'>>)[] = []
 const fetchMyCourses = vi.fn(async () => serverCourses.map((c) => ({ ...c }) as CourseSummary))
 vi.mock('@/api/courses', () => ({ fetchMyCourses: () => fetchMyCourses() }))
 
@@ -33,6 +33,21 @@ describe('the shared course roles', () => {
     expect(roles.roleIn(1)).toBeNull()
     await settle()
     expect(roles.roleIn(1)).toBe('student')
+    expect(roles.roleIn(2)).toBe('ta')
+    expect(fetchMyCourses).toHaveBeenCalledTimes(1)
+  })
+
+  it("answers each course's time zone from the same list, without another request", async () => {
+    serverCourses = [
+      { id: 1, role: 'student', timeZone: 'America/Denver' },
+      { id: 2, role: 'ta', timeZone: 'Europe/Oslo' },
+    ]
+    signedInAs(12)
+    const roles = useCourseRolesStore()
+    expect(roles.timeZoneIn(1)).toBeNull()
+    await settle()
+    expect(roles.timeZoneIn(1)).toBe('America/Denver')
+    expect(roles.timeZoneIn(2)).toBe('Europe/Oslo')
     expect(roles.roleIn(2)).toBe('ta')
     expect(fetchMyCourses).toHaveBeenCalledTimes(1)
   })
