@@ -11,7 +11,7 @@ import { defaultKeymap, history, historyKeymap } from '@codemirror/commands'
 import { HighlightStyle, syntaxHighlighting } from '@codemirror/language'
 import { markdownLanguage } from '@codemirror/lang-markdown'
 import { yamlFrontmatter } from '@codemirror/lang-yaml'
-import { lintGutter, setDiagnostics } from '@codemirror/lint'
+import { lintGutter, lintKeymap, setDiagnostics } from '@codemirror/lint'
 import type { Diagnostic } from '@codemirror/lint'
 import { EditorSelection, EditorState } from '@codemirror/state'
 import type { Extension } from '@codemirror/state'
@@ -74,8 +74,8 @@ const theme = EditorView.theme({
   },
   '.cm-activeLine': { backgroundColor: 'rgba(44, 98, 201, 0.06)' },
   '.cm-activeLineGutter': { backgroundColor: 'rgba(44, 98, 201, 0.12)', color: 'var(--text)' },
-  // The app's focus ring, on the editor box rather than the inner text area.
-  '&.cm-focused': { outline: '3px solid var(--focus)', outlineOffset: '2px' },
+  // ModuleSourceEditor.vue draws the app's focus ring around the editor's box.
+  '&.cm-focused': { outline: 'none' },
   '.cm-lintRange-error': { backgroundColor: 'rgba(160, 28, 44, 0.08)' },
   '.cm-tooltip-lint': { fontFamily: 'var(--font-ui)', maxWidth: 'min(36rem, 90vw)' },
 })
@@ -98,8 +98,9 @@ export function createSourceEditor(parent: HTMLElement, options: SourceEditorOpt
     highlightActiveLineGutter(),
     highlightActiveLine(),
     history(),
-    // Tab is not bound, so it still moves focus out of the editor (no keyboard trap).
-    keymap.of([...defaultKeymap, ...historyKeymap]),
+    // Tab is not bound, so it still moves focus out of the editor (no keyboard trap). The lint keys
+    // reach the problems without a mouse: F8 goes to the next one, Ctrl/Cmd+Shift+M lists them.
+    keymap.of([...defaultKeymap, ...historyKeymap, ...lintKeymap]),
     yamlFrontmatter({ content: markdownLanguage }),
     syntaxHighlighting(highlight),
     EditorView.lineWrapping,
