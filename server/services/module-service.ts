@@ -189,7 +189,8 @@ export async function previewModule(
   const m = await findModule(db, e.courseId, moduleId)
   if (!m) throw notFound('That module')
   const { timeZone } = await courseTimeZone(db, e.courseId)
-  const c = checkModule(source, m.slug, timeZone)
+  // Blocks carry their source lines so the editor's preview can follow the cursor.
+  const c = checkModule(source, m.slug, timeZone, { sourceLines: true })
   return { title: c.title, html: c.html, dueAt: c.dueAt?.toISOString() ?? null, issues: c.issues }
 }
 

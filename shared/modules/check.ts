@@ -30,8 +30,14 @@ export interface ModuleCheck {
  * @param source - the whole module
  * @param name - its name or slug, named in every message
  * @param timeZoneFallback - the course's IANA time zone, used when `due.timeZone` is left out
+ * @param options - `sourceLines`: mark the HTML's blocks with their source lines (for the editor's preview)
  */
-export function checkModule(source: string, name: string, timeZoneFallback: string): ModuleCheck {
+export function checkModule(
+  source: string,
+  name: string,
+  timeZoneFallback: string,
+  options: { sourceLines?: boolean } = {},
+): ModuleCheck {
   const parsed = parseModuleSource(source, name)
   const body = parsed.ok ? parsed.body : parsed.body
   const bodyLine = (parsed.ok ? parsed.bodyLine : parsed.bodyLine) ?? 1
@@ -56,7 +62,7 @@ export function checkModule(source: string, name: string, timeZoneFallback: stri
 
   let html = ''
   if (body !== undefined) {
-    html = renderModule(body)
+    html = renderModule(body, options.sourceLines ? { firstLine: bodyLine } : {})
     for (const lint of lintModuleBody(body)) {
       const line = lint.line === undefined ? undefined : lint.line + bodyLine - 1
       issues.push(moduleIssue(name, 'body', line === undefined ? lint.message : `line ${line}: ${lint.message}`, line))

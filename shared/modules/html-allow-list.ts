@@ -197,6 +197,9 @@ export const MODULE_HTML: HtmlAllowList = {
       MATHML_TAGS.filter((t) => t !== 'math' && t !== 'annotation').map((t) => [t, MATHML_ATTRIBUTES]),
     ),
     mpadded: [...MATHML_ATTRIBUTES, 'style'],
+    // On any element. Written only by the renderer when the editor's preview asks (raw HTML is off);
+    // the preview scrolls to the block of the cursor's line by it.
+    '*': ['data-source-line'],
   },
   classes: {
     code: ['language-*'],

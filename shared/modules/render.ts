@@ -87,7 +87,16 @@ export const MAX_FORMULAS = 1000
 const MATH_TOKENS = ['math_inline', 'math_inline_double', 'math_block', 'math_block_eqno'] as const
 
 /** Per-render state passed through markdown-it. */
-type RenderEnv = Env & { formulas?: number }
+type RenderEnv = Env & { formulas?: number; firstLine?: number }
+
+/** Options for {@link renderModule}. */
+export interface RenderOptions {
+  /**
+   * The source line (1-based) of the Markdown's first line. When given, block elements carry
+   * `data-source-line` with the source line they start on, so the editor's preview can follow the cursor.
+   */
+  firstLine?: number
+}
 
 const KATEX_OPTIONS = {
   throwOnError: false,
@@ -137,16 +146,25 @@ function createMarkdown() {
     }
   })
 
+  // Block tokens know their lines (token.map, 0-based in the Markdown); only the editor asks for them.
+  md.core.ruler.push('isentrope_source_lines', (state) => {
+    const firstLine = (state.env as RenderEnv).firstLine
+    if (firstLine === undefined) return
+    for (const t of state.tokens) {
+      if (t.block && t.map && t.nesting !== -1) t.attrSet('data-source-line', String(t.map[0] + firstLine))
+    }
+  })
+
   const fence = md.renderer.rules.fence
   md.renderer.rules.fence = (tokens, idx, options, env, self) => {
     const token = tokens[idx]
     if (token && CALCULATOR_INFO.test(token.info.trim())) {
       const block = readCalculatorBlock(token.info, token.content)
       if (!block.ok) {
-        return `<div class="isentrope-module-error" role="note"><strong>Calculator block:</strong> ${md.utils.escapeHtml(block.message)}</div>\n`
+        return `<div class="isentrope-module-error" role="note"${self.renderAttrs(token)}><strong>Calculator block:</strong> ${md.utils.escapeHtml(block.message)}</div>\n`
       }
       const json = md.utils.escapeHtml(JSON.stringify(block.defaults))
-      return `<div class="isentrope-calculator" data-kind="${block.kind}" data-defaults="${json}"></div>\n`
+      return `<div class="isentrope-calculator" data-kind="${block.kind}" data-defaults="${json}"${self.renderAttrs(token)}></div>\n`
     }
     return fence ? fence(tokens, idx, options, env, self) : self.renderToken(tokens, idx, options)
   }
@@ -184,8 +202,8 @@ const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
  * Renders a module's Markdown body to sanitised HTML. Pure and deterministic: the same input gives
  * the same output in the browser and on the server.
  */
-export function renderModule(markdownText: string): string {
-  const env: RenderEnv = {}
+export function renderModule(markdownText: string, options: RenderOptions = {}): string {
+  const env: RenderEnv = options.firstLine === undefined ? {} : { firstLine: options.firstLine }
   return sanitizeModuleHtml(markdown.render(markdownText, env))
 }
 

@@ -110,6 +110,9 @@ export function useModulePreview(
         const c = m.current
         preview.value = { title: c.title, html: c.html, dueAt: c.dueAt ? new Date(c.dueAt) : null, issues: c.issues }
         error.value = ''
+        // The stored HTML shows at once; the server's preview of the same text adds the source-line
+        // marks the preview scrolls by when the cursor moves.
+        void ask(text)
         return
       }
       if (text.trim() === '') {

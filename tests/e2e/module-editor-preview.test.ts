@@ -42,8 +42,10 @@ describe('the module editor preview', () => {
     await page.goto(`${app.url}/courses/${courseId}/modules/${moduleId}/edit`)
     const preview = page.getByTestId('module-preview')
     await preview.locator('.katex').first().waitFor()
-    // The saved text's preview is what the server stored with it: no preview request yet.
-    expect(previews).toHaveLength(0)
+    // The saved text's preview is what the server stored with it, then the server's line-marked
+    // preview of the same text (one request, for the cursor to follow).
+    await preview.locator('[data-source-line]').first().waitFor()
+    expect(previews).toHaveLength(1)
 
     const source = page.getByLabel('Markdown with YAML front matter')
     await source.press('ControlOrMeta+End')

@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Browser } from 'playwright-core'
+import type { Browser, Page } from 'playwright-core'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
-import { launchBrowser, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { waitForMail } from '../helpers/maildev'
 
 let app: Awaited<ReturnType<typeof serveApp>>
@@ -31,15 +31,17 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     const draft = list.locator('li').filter({ hasText: 'Draft' }).first()
     const title = (await draft.locator('a.title').innerText()).trim()
     await draft.getByRole('link', { name: /^Edit/ }).click()
-    await page.getByLabel('Markdown with YAML front matter').waitFor()
+    await page.getByRole('textbox', { name: 'Markdown with YAML front matter' }).waitFor()
 
     const preview = page.getByTestId('module-preview')
     await preview.locator('.katex').first().waitFor()
     const before = await preview.locator('.katex').count()
     const marker = `Added in the browser check ${Date.now()}`
-    const source = page.getByLabel('Markdown with YAML front matter')
-    await source.press('ControlOrMeta+End')
-    await source.pressSequentially(`\n\n${marker}: $c^* = p_0 A_t / \\dot m$.\n`, { delay: 2 })
+    // The source is a code editor: click into it, go to the end, type.
+    const source = page.getByRole('textbox', { name: 'Markdown with YAML front matter' })
+    await source.click()
+    await page.keyboard.press('ControlOrMeta+End')
+    await page.keyboard.type(`\n\n${marker}: $c^* = p_0 A_t / \\dot m$.\n`, { delay: 2 })
     // The preview renders the new equation (KaTeX output) as the text changes.
     await preview.getByText(marker).waitFor()
     await expect.poll(() => preview.locator('.katex').count()).toBe(before + 1)
@@ -94,4 +96,142 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     await content.getByRole('heading', { name: 'Regime boundaries' }).waitFor()
     await page.close()
   })
+})
+
+const SOURCE_LABEL = 'Markdown with YAML front matter'
+
+/** Signs in as the instructor and opens the first module of the demo course in the editor. */
+async function openEditor(page: Page) {
+  await signIn(page, app.url, DEMO_INSTRUCTOR.email)
+  await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+  const list = page.getByTestId('module-list')
+  await list.waitFor()
+  await list.getByRole('link', { name: /^Edit/ }).first().click()
+  const source = page.getByRole('textbox', { name: SOURCE_LABEL })
+  await source.waitFor()
+  return { source, editor: page.getByTestId('module-source-editor'), preview: page.getByTestId('module-preview') }
+}
+
+/** The 1-based line the editor's cursor is on, read from the highlighted line number. */
+async function cursorLine(page: Page): Promise<number> {
+  return Number(await page.locator('.cm-lineNumbers .cm-activeLineGutter').innerText())
+}
+
+describe('the module source editor', () => {
+  it('marks a publish-blocking problem on its line, explains it on hover, and the problem list jumps to it', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
+    const { source, editor } = await openEditor(page)
+
+    // Replace the whole text, as a person pasting a module would; line 3 breaks a front-matter rule.
+    await source.click()
+    await page.keyboard.press('ControlOrMeta+A')
+    await page.keyboard.insertText(
+      ['---', 'title: Marker check', 'attempts: -1', '---', '', '# Marker check', '', 'Some text.'].join('\n'),
+    )
+    const problems = page.getByTestId('module-issues')
+    await problems.getByRole('button', { name: 'line 3' }).waitFor()
+    const marker = editor.locator('.cm-lint-marker-error')
+    await marker.waitFor()
+    expect(await marker.count()).toBe(1)
+
+    // The marker is level with line number 3, and the text of line 3 is the one underlined.
+    const markerBox = (await marker.boundingBox())!
+    const line3 = (await editor.locator('.cm-lineNumbers .cm-gutterElement').filter({ hasText: /^3$/ }).boundingBox())!
+    expect(Math.abs(markerBox.y + markerBox.height / 2 - (line3.y + line3.height / 2))).toBeLessThan(line3.height / 2)
+    expect((await editor.locator('.cm-lintRange-error').allInnerTexts()).join('')).toBe('attempts: -1')
+
+    // Hovering the marker shows the same message as the problem list.
+    const message = 'attempts: must be at least 1'
+    expect(await problems.locator('li').first().innerText()).toContain(message)
+    await marker.hover()
+    await page.locator('.cm-tooltip-lint').getByText(message).waitFor()
+
+    // From the end of the text, the problem list's line link puts the cursor on line 3, in the editor.
+    await source.click()
+    await page.keyboard.press('ControlOrMeta+End')
+    expect(await cursorLine(page)).toBe(8)
+    await problems.getByRole('button', { name: 'line 3' }).click()
+    await expect.poll(() => cursorLine(page)).toBe(3)
+    expect(await page.evaluate(() => document.activeElement?.classList.contains('cm-content'))).toBe(true)
+
+    // Tab leaves the editor (no keyboard trap) instead of inserting a tab.
+    await page.keyboard.press('Tab')
+    expect(await page.evaluate(() => !!document.activeElement?.closest('.cm-editor'))).toBe(false)
+    expect(await page.locator('.cm-line').nth(2).innerText()).toBe('attempts: -1')
+
+    // Without the mouse: F8 goes from the end of the text to the (only) problem.
+    await source.focus()
+    await page.keyboard.press('ControlOrMeta+End')
+    await expect.poll(() => cursorLine(page)).toBe(8)
+    await page.keyboard.press('F8')
+    await expect.poll(() => cursorLine(page)).toBe(3)
+    await page.screenshot({ path: screenshotPath('module-editor-problem-marker'), fullPage: false })
+
+    // At 375 px the editor fits the width and still marks the problem.
+    await page.setViewportSize({ width: 375, height: 812 })
+    await noSideways(page)
+    await marker.waitFor()
+    await source.scrollIntoViewIfNeeded()
+    await page.screenshot({ path: screenshotPath('module-editor-375'), fullPage: false })
+    await page.close()
+  }, 60_000)
+
+  it('falls back to a plain text box, still labelled and editable, when the editor cannot be loaded', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
+    await page.route(/module-source-codemirror-[^/]*\.js$/, (route) => route.abort())
+    await signIn(page, app.url, DEMO_INSTRUCTOR.email)
+    await page.getByRole('link', { name: DEMO_COURSE.title }).click()
+    await page.getByTestId('module-list').getByRole('link', { name: /^Edit/ }).first().click()
+    await page.getByText('The code editor could not be loaded').waitFor()
+    const text = page.getByRole('textbox', { name: SOURCE_LABEL })
+    expect(await text.evaluate((el) => el.tagName)).toBe('TEXTAREA')
+    expect(await text.inputValue()).toMatch(/^---\n[^]*\ntitle: /)
+    const save = page.getByRole('button', { name: 'Save draft' })
+    expect(await save.isDisabled()).toBe(true)
+    await text.press('ControlOrMeta+End')
+    await text.pressSequentially('\nOne more line.')
+    await expect.poll(() => save.isDisabled()).toBe(false)
+    await page.close()
+  })
+
+  it('scrolls the preview to the part rendered from the line the cursor is on', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
+    const { source, preview } = await openEditor(page)
+    await preview.locator('[data-source-line]').first().waitFor()
+    // Calculators mount after the HTML and change its height; let them settle first.
+    await expect.poll(() => preview.locator('.isentrope-calculator:empty').count()).toBe(0)
+    const scrollTop = () => preview.evaluate((el) => el.scrollTop)
+    expect(await scrollTop()).toBe(0)
+    expect(await preview.evaluate((el) => el.scrollHeight > el.clientHeight)).toBe(true)
+
+    /** Whether the preview block that starts last at or before this source line is in the preview's view. */
+    const blockInView = (line: number) =>
+      preview.evaluate((el, at) => {
+        const blocks = Array.from(el.querySelectorAll<HTMLElement>('[data-source-line]'))
+        const starts = blocks.map((b) => Number(b.dataset.sourceLine)).filter((n) => n <= at)
+        if (starts.length === 0) return false
+        const block = blocks.find((b) => Number(b.dataset.sourceLine) === Math.max(...starts))!
+        const r = block.getBoundingClientRect()
+        const box = el.getBoundingClientRect()
+        return r.top >= box.top - 1 && r.top < box.bottom
+      }, line)
+
+    await source.click()
+    await page.keyboard.press('ControlOrMeta+End')
+    await expect.poll(scrollTop).toBeGreaterThan(0)
+    expect(await blockInView(await cursorLine(page))).toBe(true)
+
+    // Back to the front matter: the preview returns to its top.
+    await page.keyboard.press('ControlOrMeta+Home')
+    await expect.poll(scrollTop).toBe(0)
+
+    // A page further down, into the body: the preview shows that part.
+    await page.keyboard.press('PageDown')
+    await page.keyboard.press('PageDown')
+    const line = await cursorLine(page)
+    expect(line).toBeGreaterThan(20)
+    await expect.poll(() => blockInView(line)).toBe(true)
+    await page.screenshot({ path: screenshotPath('module-editor-preview-follows'), fullPage: false })
+    await page.close()
+  }, 60_000)
 })

@@ -36,7 +36,7 @@ export function createModuleSanitizer(window?: WindowLike): (html: string) => st
   purifier.addHook('uponSanitizeAttribute', (node, event) => {
     const element = node.nodeName.toLowerCase()
     const name = event.attrName
-    if (!MODULE_HTML.attributes[element]?.includes(name)) {
+    if (!MODULE_HTML.attributes[element]?.includes(name) && !MODULE_HTML.attributes['*']?.includes(name)) {
       event.keepAttr = false
       return
     }

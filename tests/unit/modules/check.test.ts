@@ -90,3 +90,35 @@ describe('checkModule', () => {
     expect(c.issues).toHaveLength(1)
   })
 })
+
+describe('checkModule for the editor preview (sourceLines)', () => {
+  // Lines: 1 ---, 2 title, 3 ---, 4 heading, 5 blank, 6–7 paragraph, 8 blank, 9 list, 10 blank, 11–12 calculator.
+  const source = module(
+    ['title: Lines'],
+    [
+      '# Heading',
+      '',
+      'First line of a paragraph',
+      'and its second line.',
+      '',
+      '- an item',
+      '',
+      '```calculator nozzle',
+      '```',
+    ],
+  )
+
+  it('marks each block with the source line it starts on, counted in the whole source', () => {
+    const { html } = checkModule(source, 'lines', 'UTC', { sourceLines: true })
+    expect(html).toContain('<h2 data-source-line="4">Heading</h2>')
+    expect(html).toContain('<p data-source-line="6">First line of a paragraph')
+    expect(html).toContain('<ul data-source-line="9">')
+    expect(html).toMatch(/<div class="isentrope-calculator"[^>]* data-source-line="11"/)
+  })
+
+  it('leaves the stored HTML without line marks', () => {
+    const { html } = checkModule(source, 'lines', 'UTC')
+    expect(html).toContain('<h2>Heading</h2>')
+    expect(html).not.toContain('data-source-line')
+  })
+})
