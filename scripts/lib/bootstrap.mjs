@@ -4,7 +4,7 @@
 // under the git-ignored .data/ folder.
 import { spawn, spawnSync } from 'node:child_process'
 import { createHash, randomBytes } from 'node:crypto'
-import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs'
+import { existsSync, lstatSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs'
 import { setTimeout as sleep } from 'node:timers/promises'
 import path from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -68,6 +68,13 @@ export function ensureNodeModules() {
   // Installs made before the marker existed: trust npm's own record when it is newer than the lock.
   if (!existsSync(marker) && existsSync(npmMarker) && statSync(npmMarker).mtimeMs >= statSync(lock).mtimeMs) {
     writeFileSync(marker, want + '\n')
+    return
+  }
+  // A second working copy whose node_modules links to another checkout's install: npm ci would
+  // empty the linked install for every copy that shares it. Say so and use it as it is.
+  const modules = path.join(ROOT, 'node_modules')
+  if (existsSync(modules) && lstatSync(modules).isSymbolicLink()) {
+    log('node_modules is a link to another install whose package-lock.json differs; not reinstalling it')
     return
   }
   log('installing npm dependencies (npm ci)')
