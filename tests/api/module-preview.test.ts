@@ -35,7 +35,10 @@ describe('module preview', () => {
     expect(res.status).toBe(200)
     expect(res.body.title).toBe('Unsaved title')
     expect(res.body.issues).toEqual([])
-    expect(res.body.html).toContain('<h2>Unsaved title</h2>')
+    // Blocks carry their source lines (1-based in the whole text) for the editor to follow the cursor.
+    const headingLine = source.split('\n').findIndex((l) => /^#+ Unsaved title/.test(l)) + 1
+    expect(headingLine).toBeGreaterThan(1)
+    expect(res.body.html).toContain(`<h2 data-source-line="${headingLine}">Unsaved title</h2>`)
     expect(res.body.html).toContain('<strong>bold</strong>')
     expect(res.body.html).toContain('class="katex"')
     // 2027-02-09 17:00 in Denver (UTC−7).

@@ -198,8 +198,8 @@ describe('the module source editor', () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
     const { source, preview } = await openEditor(page)
     await preview.locator('[data-source-line]').first().waitFor()
-    // Calculators mount after the HTML and change its height; let them settle first.
-    await expect.poll(() => preview.locator('.isentrope-calculator:empty').count()).toBe(0)
+    // Calculators mount when scrolled into view and change the height; let the first one settle.
+    await preview.locator('.isentrope-calculator').first().locator('input').first().waitFor()
     const scrollTop = () => preview.evaluate((el) => el.scrollTop)
     expect(await scrollTop()).toBe(0)
     expect(await preview.evaluate((el) => el.scrollHeight > el.clientHeight)).toBe(true)
@@ -219,7 +219,8 @@ describe('the module source editor', () => {
     await source.click()
     await page.keyboard.press('ControlOrMeta+End')
     await expect.poll(scrollTop).toBeGreaterThan(0)
-    expect(await blockInView(await cursorLine(page))).toBe(true)
+    const last = await cursorLine(page)
+    await expect.poll(() => blockInView(last)).toBe(true)
 
     // Back to the front matter: the preview returns to its top.
     await page.keyboard.press('ControlOrMeta+Home')

@@ -111,6 +111,9 @@ export function createSourceEditor(parent: HTMLElement, options: SourceEditorOpt
       spellcheck: 'true',
       autocorrect: 'off',
       autocapitalize: 'off',
+      // Focusable already (contenteditable); the explicit tab stop lets checkers see that the
+      // scrolling box around it is reachable by keyboard.
+      tabindex: '0',
     }),
     EditorView.updateListener.of((u) => {
       if (u.docChanged && !quiet) options.onChange(u.state.doc.toString())
