@@ -16,6 +16,7 @@ import {
   submissions,
   users,
 } from '../db/schema'
+import type { FlagStatus, SettableReviewState } from '../../shared/schemas/review'
 
 /** The flag reasons that occur on the course's hand-ins, each with one flag's message. */
 export async function listFlagReasons(db: Executor, courseId: number): Promise<{ code: string; example: string }[]> {
@@ -135,7 +136,7 @@ export async function bumpRevision(
   tx: Executor,
   submissionId: number,
   set: Partial<{
-    reviewStatus: 'open' | 'in-review' | 'resolved'
+    reviewStatus: SettableReviewState
     scoreOverride: number | null
     rawScore: number
     score: number
@@ -224,7 +225,7 @@ export async function setFlagStatus(
   tx: Executor,
   submissionId: number,
   flagId: number,
-  status: 'open' | 'resolved',
+  status: FlagStatus,
   userId: number,
 ): Promise<boolean> {
   const [res] = await tx

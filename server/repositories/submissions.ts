@@ -13,6 +13,7 @@ import {
   users,
 } from '../db/schema'
 import type { ColumnMappingRow, SubmissionInputs } from '../db/schema'
+import type { ReviewState } from '../../shared/schemas/review'
 
 export interface SubmissionRow {
   id: number
@@ -32,7 +33,7 @@ export interface SubmissionRow {
   score: number | null
   scoreOverride: number | null
   maxScore: number | null
-  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
+  reviewStatus: ReviewState
   revision: number
   submittedAt: Date
   gradedAt: Date | null

@@ -21,7 +21,8 @@ import {
   useLiveCalculation,
   withArgumentFields,
 } from './use-calculator'
-import type { LiveCalculation, PressureReading } from './use-calculator'
+import type { LiveCalculation } from './use-calculator'
+import { PRESSURE_SENSES } from '@shared/units'
 
 /** A calculator's `defaults` prop: starting values by key, as a lab module's YAML gives them. */
 type CalculatorDefaults = Partial<Record<string, number | string>>
@@ -31,7 +32,6 @@ export const PRESSURE_UNITS = ['kPa', 'bar', 'psi', 'MPa'] as const satisfies re
 export const TEMPERATURE_UNITS = ['K', 'degC'] as const satisfies readonly UnitSymbol[]
 export const LENGTH_UNITS = ['mm', 'in'] as const satisfies readonly UnitSymbol[]
 export const VOLUME_UNITS = ['L', 'm3'] as const satisfies readonly UnitSymbol[]
-const READINGS: readonly PressureReading[] = ['gauge', 'absolute']
 /** Integration steps over the run: fine enough for the chart and the choked time, quick to compute. */
 const STEPS = 1000
 
@@ -50,7 +50,7 @@ function blowdownForm(d: CalculatorDefaults | undefined) {
     volumeUnit: defaultChoice<UnitSymbol>(d, 'volumeUnit', VOLUME_UNITS, 'L'),
     initialPressure: defaultNumber(d, 'initialPressure', 8),
     initialPressureUnit: defaultChoice<UnitSymbol>(d, 'initialPressureUnit', PRESSURE_UNITS, 'bar'),
-    initialPressureReading: defaultChoice(d, 'initialPressureReading', READINGS, 'gauge'),
+    initialPressureSense: defaultChoice(d, 'initialPressureSense', PRESSURE_SENSES, 'gauge'),
     ambientPressure: defaultNumber(d, 'ambientPressure', 101.325),
     ambientPressureUnit: defaultChoice<UnitSymbol>(d, 'ambientPressureUnit', PRESSURE_UNITS, 'kPa'),
     initialTemperature: defaultNumber(d, 'initialTemperature', 20),
@@ -136,7 +136,7 @@ function compute(form: BlowdownForm): BlowdownResult {
           `A gauge reading cannot be below −${formatPressure(ambient, pressureUnit)} (the ambient pressure): that would be less than a perfect vacuum.`,
       },
     },
-    () => absolutePressure(initialTyped, pressureUnit, form.initialPressureReading, ambient),
+    () => absolutePressure(initialTyped, pressureUnit, form.initialPressureSense, ambient),
   )
   const temperatureTyped = readNumber('initialTemperature', form.initialTemperature, 'initial temperature')
   const temperatureMessage = 'The initial temperature must be above absolute zero (0 K, −273.15 °C).'

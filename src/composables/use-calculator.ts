@@ -1,7 +1,7 @@
 import { onBeforeUnmount, ref, shallowRef, watch } from 'vue'
 import type { Ref, ShallowRef, WatchSource } from 'vue'
-import { UNITS, fromSI, gaugeToAbsolute, toSI } from '@shared/units'
-import type { UnitSymbol } from '@shared/units'
+import { PRESSURE_SENSES, UNITS, fromSI, gaugeToAbsolute, toSI } from '@shared/units'
+import type { PressureSense, UnitSymbol } from '@shared/units'
 import { formatCompact, formatNumber, unitLabel } from '@shared/format'
 
 // The shared number and unit wording, for the calculators and everything that imports it from here.
@@ -90,20 +90,16 @@ export function forField<T>(field: string, message: string, run: () => T): T {
   }
 }
 
-/** Whether a pressure reading is gauge (relative to ambient) or absolute. */
-export type PressureReading = 'gauge' | 'absolute'
-
-/** The two readings, for the gauge/absolute pickers. */
-export const PRESSURE_READINGS: readonly { label: string; value: PressureReading }[] = [
-  { label: 'gauge', value: 'gauge' },
-  { label: 'absolute', value: 'absolute' },
-]
+/** The two senses, for the gauge/absolute pickers. */
+export const PRESSURE_SENSE_OPTIONS: readonly { label: string; value: PressureSense }[] = PRESSURE_SENSES.map(
+  (value) => ({ label: value, value }),
+)
 
 /**
  * An absolute pressure in Pa from a typed value, its unit and its reading, converted by the unit
  * table and, for a gauge reading, gaugeToAbsolute with the given ambient pressure.
  */
-export function absolutePressure(value: number, unit: UnitSymbol, reading: PressureReading, ambient: number): number {
+export function absolutePressure(value: number, unit: UnitSymbol, reading: PressureSense, ambient: number): number {
   const si = toSI(value, unit)
   return reading === 'gauge' ? gaugeToAbsolute(si, ambient) : si
 }

@@ -29,7 +29,8 @@ import {
   useLiveCalculation,
   withArgumentFields,
 } from './use-calculator'
-import type { LiveCalculation, PressureReading } from './use-calculator'
+import type { LiveCalculation } from './use-calculator'
+import { PRESSURE_SENSES, type PressureSense } from '@shared/units'
 
 /** A calculator's `defaults` prop: starting values by key, as a lab module's YAML gives them. */
 type CalculatorDefaults = Partial<Record<string, number | string>>
@@ -38,7 +39,6 @@ type CalculatorDefaults = Partial<Record<string, number | string>>
 export const PRESSURE_UNITS = ['kPa', 'bar', 'psi', 'MPa'] as const satisfies readonly UnitSymbol[]
 export const TEMPERATURE_UNITS = ['K', 'degC'] as const satisfies readonly UnitSymbol[]
 export const LENGTH_UNITS = ['mm', 'in'] as const satisfies readonly UnitSymbol[]
-const READINGS: readonly PressureReading[] = ['gauge', 'absolute']
 
 /** Half-angle of the conical diverging section drawn in the chart. */
 export const CONE_HALF_ANGLE_DEGREES = 15
@@ -57,7 +57,7 @@ function nozzleForm(d: CalculatorDefaults | undefined) {
   return reactive({
     chamberPressure: defaultNumber(d, 'chamberPressure', 6),
     chamberPressureUnit: defaultChoice<UnitSymbol>(d, 'chamberPressureUnit', PRESSURE_UNITS, 'bar'),
-    chamberPressureReading: defaultChoice(d, 'chamberPressureReading', READINGS, 'gauge'),
+    chamberPressureSense: defaultChoice(d, 'chamberPressureSense', PRESSURE_SENSES, 'gauge'),
     ambientPressure: defaultNumber(d, 'ambientPressure', 101.325),
     ambientPressureUnit: defaultChoice<UnitSymbol>(d, 'ambientPressureUnit', PRESSURE_UNITS, 'kPa'),
     chamberTemperature: defaultNumber(d, 'chamberTemperature', 20),
@@ -87,7 +87,7 @@ export interface NozzleResult {
   gamma: number
   /** Units the person chose, for showing results in them. */
   pressureUnit: UnitSymbol
-  pressureReading: PressureReading
+  pressureReading: PressureSense
   lengthUnit: UnitSymbol
   /**
    * Mach-disk distance, m, by Ashkenas & Sherman and by Lewis & Carlson, when the jet is
@@ -187,7 +187,7 @@ function compute(form: NozzleForm): NozzleResult {
           `A gauge reading cannot be below −${formatPressure(ambient, pressureUnit)} (the ambient pressure): that would be less than a perfect vacuum.`,
       },
     },
-    () => absolutePressure(chamberTyped, pressureUnit, form.chamberPressureReading, ambient),
+    () => absolutePressure(chamberTyped, pressureUnit, form.chamberPressureSense, ambient),
   )
 
   const temperatureTyped = readNumber('chamberTemperature', form.chamberTemperature, 'chamber temperature')
@@ -262,7 +262,7 @@ function compute(form: NozzleForm): NozzleResult {
         ambientPressure: ambient,
         gamma,
         pressureUnit,
-        pressureReading: form.chamberPressureReading,
+        pressureReading: form.chamberPressureSense,
         lengthUnit,
         machDisk,
         separationPosition,

@@ -9,10 +9,8 @@ import type {
   RosterRowsRefusal,
 } from '@shared/schemas/roster-import'
 import { confirmRosterImport, previewRosterImport } from '@/api/roster-import'
-import { ApiError } from '@/api/http'
+import { ApiError, asApiError } from '@/api/http'
 import type { LoadState } from './use-resource'
-
-const asApiError = (err: unknown) => (err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err)))
 
 /**
  * The roster import screen's state: the CSV text (from a file or pasted), the server's preview of
