@@ -1,5 +1,5 @@
 import { createApp } from 'vue'
-import { PrimeVueToastSymbol } from 'primevue/usetoast'
+import ToastService from 'primevue/toastservice'
 import type { ToastMessageOptions } from 'primevue/toast'
 import { describe, expect, it } from 'vitest'
 import { ApiError } from '@/api/http'
@@ -10,12 +10,9 @@ import type { ActionMessages } from '@/composables/use-action'
 function setUp<A extends unknown[], T>(write: (...args: A) => Promise<T>, messages?: ActionMessages<T>) {
   const toasts: ToastMessageOptions[] = []
   const app = createApp({})
-  app.provide(PrimeVueToastSymbol, {
-    add: (m: ToastMessageOptions) => toasts.push(m),
-    remove: () => {},
-    removeGroup: () => {},
-    removeAllGroups: () => {},
-  })
+  app.use(ToastService)
+  // The service the app provides to useToast(): keep its messages here instead of showing them.
+  app.config.globalProperties.$toast.add = (m: ToastMessageOptions) => void toasts.push(m)
   const action = app.runWithContext(() => useAction(write, messages))
   return { action, toasts }
 }
