@@ -2,7 +2,9 @@ import { readFileSync, readdirSync } from 'node:fs'
 import { join, relative, resolve } from 'node:path'
 import { describe, expect, it } from 'vitest'
 
-// Pages and components get data and writes from composables; only composables talk to src/api.
+// The layers' one-way rules, read from the source: pages and components get data and writes from
+// composables (only composables talk to src/api); services and background jobs read and write
+// through repositories (only repositories speak Drizzle).
 const root = resolve(import.meta.dirname, '../..')
 
 function filesUnder(dir: string): string[] {
@@ -33,7 +35,7 @@ function reachesApi(file: string, spec: string): boolean {
   return target === 'api' || target.startsWith('api/')
 }
 
-describe('the client layers', () => {
+describe('the layers of client and server', () => {
   it('finds an import of src/api however it is written', () => {
     const view = join(root, 'src/views/SomeView.vue')
     const text = [
@@ -53,6 +55,24 @@ describe('the client layers', () => {
       for (const file of filesUnder(join(root, dir))) {
         for (const spec of importsOf(readFileSync(file, 'utf8'))) {
           if (reachesApi(file, spec)) offenders.push(`${relative(root, file)} imports ${spec}`)
+        }
+      }
+    }
+    expect(offenders).toEqual([])
+  })
+
+  it('no service or background job queries the database itself (only repositories import Drizzle)', () => {
+    const offenders: string[] = []
+    for (const dir of ['server/services', 'server/grading', 'server/mail']) {
+      for (const file of filesUnder(join(root, dir))) {
+        const text = readFileSync(file, 'utf8')
+        for (const spec of importsOf(text)) {
+          if (spec === 'drizzle-orm' || spec.startsWith('drizzle-orm/'))
+            offenders.push(`${relative(root, file)} imports ${spec}`)
+        }
+        // Table objects are for queries; a type of a stored column is fine.
+        for (const m of text.matchAll(/^import\s+(type\s+)?\{[^}]*\}\s+from\s+'[./]*db\/schema'/gm)) {
+          if (!m[1]) offenders.push(`${relative(root, file)} imports tables from db/schema`)
         }
       }
     }
