@@ -230,12 +230,6 @@ export async function saveGrade(
   return true
 }
 
-export async function addFlags(tx: Executor, submissionId: number, flags: FlagWrite[]): Promise<void> {
-  if (!flags.length) return
-  await tx.insert(submissionFlags).values(flags.map((f) => ({ ...f, submissionId })))
-  await tx.update(submissions).set({ reviewStatus: 'open' }).where(eq(submissions.id, submissionId))
-}
-
 /** Files in the course with these bytes that belong to someone else (another person and group). */
 export async function findIdenticalFiles(
   db: Executor,
