@@ -1,10 +1,12 @@
+import type { ErrorCode } from '../shared/schemas/errors'
+
 /**
  * The one error type services throw. Routes never build HTTP errors by hand; the error
  * middleware turns an AppError into `{ error: { code, message, details } }` with its status.
  */
 export class AppError extends Error {
   constructor(
-    readonly code: string,
+    readonly code: ErrorCode,
     message: string,
     readonly status: number = 400,
     readonly details?: unknown,

@@ -3,7 +3,7 @@
  * the unit a module's spec declares. The same rules run in the hand-in form and on the server.
  */
 import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, valueFromSI, valueToSI } from './modules/quantities'
-import { unitsOfKind } from './units'
+import { unitsOfKind, type PressureSense } from './units'
 
 const RESULT_FAMILIES: readonly (readonly string[])[] = [
   ['N*s', 'N·s', 'lbf*s', 'lbf·s'],
@@ -55,8 +55,8 @@ export function toSpecUnit(value: number, typedUnit: string, specUnit: string): 
  */
 export function toSpecSense(
   value: number,
-  typedSense: 'gauge' | 'absolute',
-  specSense: 'gauge' | 'absolute',
+  typedSense: PressureSense,
+  specSense: PressureSense,
   ambientInSpecUnit: number | undefined,
 ): number {
   if (typedSense === specSense) return value

@@ -230,6 +230,13 @@ export function convert(value: number, from: UnitSymbol, to: UnitSymbol): number
 }
 
 /**
+ * How a pressure was read: against the surrounding air ('gauge') or against vacuum ('absolute').
+ * One list for the module spec, the hand-in, the calculators and the grader.
+ */
+export const PRESSURE_SENSES = ['gauge', 'absolute'] as const
+export type PressureSense = (typeof PRESSURE_SENSES)[number]
+
+/**
  * Absolute pressure from a gauge reading and the ambient (barometric) pressure, both in Pa.
  *
  * p_abs = p_gauge + p_ambient.

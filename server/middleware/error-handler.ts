@@ -1,10 +1,10 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express'
 import { ZodError } from 'zod'
-import type { ApiErrorBody, FieldIssue } from '../../shared/schemas/errors'
+import type { ApiErrorBody, ErrorCode, FieldIssue } from '../../shared/schemas/errors'
 import { AppError } from '../errors'
 import { isDatabaseUnavailable } from '../db/errors'
 
-function body(code: string, message: string, details?: unknown): ApiErrorBody {
+function body(code: ErrorCode, message: string, details?: unknown): ApiErrorBody {
   return { error: details === undefined ? { code, message } : { code, message, details } }
 }
 

@@ -16,6 +16,7 @@ import { formatInZone } from '../../shared/time'
 import { allFaces, defaultFont, fontRuns, fontStacks } from './fonts'
 import type { FontRole } from './fonts'
 import { formatCompact, formatScore, percentText, valueText } from '../../shared/format'
+import type { FlagStatus } from '../../shared/schemas/review'
 
 export interface ReportCheck {
   label: string
@@ -36,7 +37,7 @@ export interface ReportCheck {
 
 export interface ReportFlag {
   message: string
-  status: 'open' | 'resolved'
+  status: FlagStatus
   resolvedAt: Date | null
 }
 

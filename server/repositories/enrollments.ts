@@ -1,4 +1,4 @@
-import { and, asc, count, eq, sql } from 'drizzle-orm'
+import { and, asc, count, eq, inArray, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/mysql-core'
 import type { CourseRole } from '../../shared/schemas/auth'
 import type { CourseSummary, RosterEntry, SectionSummary } from '../../shared/schemas/courses'
@@ -144,4 +144,35 @@ export async function insertCourseWithInstructor(
   if (!row) throw new Error('insert into courses returned no id')
   await db.insert(enrollments).values({ userId: instructorId, courseId: row.id, role: 'instructor' })
   return row.id
+}
+
+/** A TA or instructor of a course, with their section (TAs) and the course code, for staff mail. */
+export interface CourseStaffMember {
+  courseId: number
+  sectionId: number | null
+  role: CourseRole
+  email: string
+  name: string
+  code: string
+  sectionName: string | null
+}
+
+/** The TAs and instructors of these courses. */
+export async function listCourseStaff(db: Executor, courseIds: number[]): Promise<CourseStaffMember[]> {
+  if (courseIds.length === 0) return []
+  return db
+    .select({
+      courseId: enrollments.courseId,
+      sectionId: enrollments.sectionId,
+      role: enrollments.role,
+      email: users.email,
+      name: users.displayName,
+      code: courses.code,
+      sectionName: sections.name,
+    })
+    .from(enrollments)
+    .innerJoin(users, eq(users.id, enrollments.userId))
+    .innerJoin(courses, eq(courses.id, enrollments.courseId))
+    .leftJoin(sections, eq(sections.id, enrollments.sectionId))
+    .where(and(inArray(enrollments.courseId, courseIds), inArray(enrollments.role, ['ta', 'instructor'])))
 }

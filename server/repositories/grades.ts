@@ -13,6 +13,7 @@ import {
   submissions,
   users,
 } from '../db/schema'
+import type { ReviewState } from '../../shared/schemas/review'
 
 export interface StudentRow {
   userId: number
@@ -78,7 +79,7 @@ export interface GradedRow {
   maxScore: number | null
   isLate: boolean
   daysLate: number
-  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
+  reviewStatus: ReviewState
   regradeOpen: boolean
 }
 

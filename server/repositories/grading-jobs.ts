@@ -68,13 +68,3 @@ export async function releaseStaleGradingClaims(db: Executor, staleMs: number): 
     .where(and(eq(submissions.status, 'grading'), lt(submissions.gradeClaimedAt, new Date(Date.now() - staleMs))))
   return (res as { affectedRows?: number }).affectedRows ?? 0
 }
-
-/** How many hand-ins are in each grading state (for the bench and the fault suite). */
-export async function countByGradingStatus(db: Executor, courseId?: number): Promise<Record<string, number>> {
-  const rows = await db
-    .select({ status: submissions.status, n: sql<number>`COUNT(*)`.mapWith(Number) })
-    .from(submissions)
-    .where(courseId === undefined ? undefined : eq(submissions.courseId, courseId))
-    .groupBy(submissions.status)
-  return Object.fromEntries(rows.map((r) => [r.status, r.n]))
-}

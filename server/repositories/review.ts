@@ -1,7 +1,7 @@
-import { and, asc, count, desc, eq, ne, sql } from 'drizzle-orm'
+import { and, asc, count, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
 import { REGRADE_REASON } from '../../shared/schemas/grades'
-import type { ReviewQuery, ReviewRow } from '../../shared/schemas/review'
+import type { FlagStatus, ReviewQuery, ReviewRow, SettableReviewState } from '../../shared/schemas/review'
 import type { Executor } from '../db/client'
 import {
   enrollments,
@@ -135,7 +135,7 @@ export async function bumpRevision(
   tx: Executor,
   submissionId: number,
   set: Partial<{
-    reviewStatus: 'open' | 'in-review' | 'resolved'
+    reviewStatus: SettableReviewState
     scoreOverride: number | null
     rawScore: number
     score: number
@@ -224,7 +224,7 @@ export async function setFlagStatus(
   tx: Executor,
   submissionId: number,
   flagId: number,
-  status: 'open' | 'resolved',
+  status: FlagStatus,
   userId: number,
 ): Promise<boolean> {
   const [res] = await tx
@@ -236,4 +236,54 @@ export async function setFlagStatus(
     )
     .where(and(eq(submissionFlags.id, flagId), eq(submissionFlags.submissionId, submissionId)))
   return ((res as { affectedRows?: number }).affectedRows ?? 0) > 0
+}
+
+/** A flag not yet in any staff digest, with what the digest line says about it. */
+export interface UndigestedFlag {
+  id: number
+  message: string
+  submissionId: number
+  courseId: number
+  moduleTitle: string
+  student: string
+  /** The student's section in the course (null: none, or no longer enrolled). */
+  sectionId: number | null
+}
+
+/**
+ * The oldest flags no digest has listed yet, locked for this transaction. SKIP LOCKED lets a second
+ * server process take the next flags instead of waiting for (and then repeating) these.
+ */
+export async function claimUndigestedFlags(tx: Executor, batch: number): Promise<UndigestedFlag[]> {
+  return tx
+    .select({
+      id: submissionFlags.id,
+      message: submissionFlags.message,
+      submissionId: submissions.id,
+      courseId: submissions.courseId,
+      moduleTitle: moduleVersions.title,
+      student: users.displayName,
+      sectionId: enrollments.sectionId,
+    })
+    .from(submissionFlags)
+    .innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId))
+    .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .leftJoin(
+      enrollments,
+      and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)),
+    )
+    .where(isNull(submissionFlags.digestedAt))
+    .orderBy(asc(submissionFlags.id))
+    .limit(batch)
+    .for('update', { skipLocked: true })
+}
+
+/** Marks flags as listed in a digest, so no later digest lists them again. */
+export async function markFlagsDigested(tx: Executor, flagIds: number[]): Promise<void> {
+  if (flagIds.length === 0) return
+  await tx
+    .update(submissionFlags)
+    .set({ digestedAt: sql`CURRENT_TIMESTAMP(3)` })
+    .where(inArray(submissionFlags.id, flagIds))
 }

@@ -13,6 +13,7 @@ import {
   users,
 } from '../db/schema'
 import type { ColumnMappingRow, SubmissionInputs } from '../db/schema'
+import type { ReviewState } from '../../shared/schemas/review'
 
 export interface SubmissionRow {
   id: number
@@ -32,7 +33,7 @@ export interface SubmissionRow {
   score: number | null
   scoreOverride: number | null
   maxScore: number | null
-  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
+  reviewStatus: ReviewState
   revision: number
   submittedAt: Date
   gradedAt: Date | null
@@ -227,12 +228,6 @@ export async function saveGrade(
     })
     .where(eq(submissions.id, submissionId))
   return true
-}
-
-export async function addFlags(tx: Executor, submissionId: number, flags: FlagWrite[]): Promise<void> {
-  if (!flags.length) return
-  await tx.insert(submissionFlags).values(flags.map((f) => ({ ...f, submissionId })))
-  await tx.update(submissions).set({ reviewStatus: 'open' }).where(eq(submissions.id, submissionId))
 }
 
 /** Files in the course with these bytes that belong to someone else (another person and group). */

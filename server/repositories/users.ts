@@ -27,20 +27,3 @@ export async function findUserById(db: Executor, id: number): Promise<SessionUse
   const rows = await db.select(publicColumns).from(users).where(eq(users.id, id)).limit(1)
   return rows[0] ?? null
 }
-
-export async function insertUser(
-  db: Executor,
-  u: { email: string; displayName: string; passwordHash: string | null; isSiteAdmin?: boolean },
-): Promise<number> {
-  const [row] = await db
-    .insert(users)
-    .values({
-      email: u.email.toLowerCase(),
-      displayName: u.displayName,
-      passwordHash: u.passwordHash,
-      isSiteAdmin: u.isSiteAdmin ?? false,
-    })
-    .$returningId()
-  if (!row) throw new Error('insert into users returned no id')
-  return row.id
-}

@@ -66,7 +66,7 @@ function isDuplicate(err: unknown): boolean {
 
 const duplicateName = (what: 'section' | 'lab group', name: string) =>
   new AppError(
-    `${what === 'section' ? 'section' : 'lab_group'}_exists`,
+    what === 'section' ? 'section_exists' : 'lab_group_exists',
     `There is already a ${what} named “${name}” in this course; choose another name.`,
     409,
     {

@@ -1,7 +1,7 @@
-import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm'
 import type { Database } from '../db/client'
-import { courses, enrollments, moduleVersions, sections, submissionFlags, submissions, users } from '../db/schema'
+import { listCourseStaff } from '../repositories/enrollments'
 import { enqueueMail } from '../repositories/outbox'
+import { claimUndigestedFlags, markFlagsDigested } from '../repositories/review'
 import { escapeHtml } from './text'
 
 /**
@@ -13,47 +13,12 @@ import { escapeHtml } from './text'
  */
 export async function queueFlagDigests(db: Database, appUrl: string, batch = 500): Promise<number> {
   return db.transaction(async (tx) => {
-    const flags = await tx
-      .select({
-        id: submissionFlags.id,
-        message: submissionFlags.message,
-        submissionId: submissions.id,
-        courseId: submissions.courseId,
-        moduleTitle: moduleVersions.title,
-        student: users.displayName,
-        sectionId: enrollments.sectionId,
-      })
-      .from(submissionFlags)
-      .innerJoin(submissions, eq(submissions.id, submissionFlags.submissionId))
-      .innerJoin(moduleVersions, eq(moduleVersions.id, submissions.moduleVersionId))
-      .innerJoin(users, eq(users.id, submissions.userId))
-      .leftJoin(
-        enrollments,
-        and(eq(enrollments.userId, submissions.userId), eq(enrollments.courseId, submissions.courseId)),
-      )
-      .where(isNull(submissionFlags.digestedAt))
-      .orderBy(asc(submissionFlags.id))
-      .limit(batch)
-      .for('update', { skipLocked: true })
+    const flags = await claimUndigestedFlags(tx, batch)
     if (flags.length === 0) return 0
 
     // Who reads each (course, section): its TAs, or the course's instructors when there are none.
     const courseIds = [...new Set(flags.map((f) => f.courseId))]
-    const staff = await tx
-      .select({
-        courseId: enrollments.courseId,
-        sectionId: enrollments.sectionId,
-        role: enrollments.role,
-        email: users.email,
-        name: users.displayName,
-        code: courses.code,
-        sectionName: sections.name,
-      })
-      .from(enrollments)
-      .innerJoin(users, eq(users.id, enrollments.userId))
-      .innerJoin(courses, eq(courses.id, enrollments.courseId))
-      .leftJoin(sections, eq(sections.id, enrollments.sectionId))
-      .where(and(inArray(enrollments.courseId, courseIds), inArray(enrollments.role, ['ta', 'instructor'])))
+    const staff = await listCourseStaff(tx, courseIds)
 
     const perReader = new Map<
       string,
@@ -113,15 +78,10 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
         }
       }),
     )
-    await tx
-      .update(submissionFlags)
-      .set({ digestedAt: sql`CURRENT_TIMESTAMP(3)` })
-      .where(
-        inArray(
-          submissionFlags.id,
-          flags.map((f) => f.id),
-        ),
-      )
+    await markFlagsDigested(
+      tx,
+      flags.map((f) => f.id),
+    )
     return perReader.size
   })
 }

@@ -27,6 +27,7 @@ import {
 import { enqueueMail } from '../repositories/outbox'
 import type { NewMail } from '../repositories/outbox'
 import { readingSense } from './hand-in-validation'
+import type { PressureSense } from '../../shared/units'
 
 /** How many times a hand-in is claimed before its grading is given up as failed. */
 export const MAX_GRADE_ATTEMPTS = 6
@@ -58,14 +59,14 @@ export function gradingInputOf(
   files: {
     tableKey: string
     parsed: Record<string, number[]>
-    mapping: Record<string, { pressure?: 'gauge' | 'absolute' }>
+    mapping: Record<string, { pressure?: PressureSense }>
   }[],
   latePenalty: number,
 ): GradeInput {
   const a = fm.assignment
   if (!a) throw new Error('the module version has no assignment')
   const measurements: Record<string, number> = {}
-  const pressures: Record<string, 'gauge' | 'absolute'> = {}
+  const pressures: Record<string, PressureSense> = {}
   for (const m of a.measurements) {
     const t = inputs.measurements[m.key]
     if (!t) continue

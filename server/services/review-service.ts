@@ -1,5 +1,12 @@
 import { renderModule } from '../../shared/modules/render'
-import type { CommentView, GradeChangeView, Override, ReviewPage, ReviewQuery } from '../../shared/schemas/review'
+import type {
+  CommentView,
+  Override,
+  ReviewExtras,
+  ReviewPage,
+  ReviewQuery,
+  SettableReviewState,
+} from '../../shared/schemas/review'
 import type { Database } from '../db/client'
 import { AppError, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
@@ -156,7 +163,7 @@ export async function setReviewStatus(
   db: Database,
   e: CourseEnrollment,
   submissionId: number,
-  status: 'open' | 'in-review' | 'resolved',
+  status: SettableReviewState,
   revision: number,
 ) {
   await inScope(db, e, submissionId)
@@ -164,14 +171,6 @@ export async function setReviewStatus(
     if (!(await lockRevision(tx, submissionId, revision))) throw conflict()
     await bumpRevision(tx, submissionId, { reviewStatus: status })
   })
-}
-
-export interface ReviewExtras {
-  revision: number
-  reviewStatus: string
-  scoreOverride: number | null
-  gradeChanges: GradeChangeView[]
-  comments: CommentView[]
 }
 
 /** What staff see beside the submission detail: the audit, the comments and the revision to edit. */

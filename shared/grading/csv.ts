@@ -21,7 +21,7 @@ import Papa from 'papaparse/papaparse.min.js'
 import { DIMENSIONLESS, dataUnitKind, isDataUnit } from '../modules/quantities'
 import type { ColumnSpec, TableSpec } from '../modules/schema'
 import { SI_UNITS, UNITS, unitsOfKind } from '../units'
-import type { UnitKind, UnitSymbol } from '../units'
+import type { PressureSense, UnitKind, UnitSymbol } from '../units'
 import { checkHeader, checkLines, clip, listSome, quote, quoteCells, scanRows } from './csv-limits'
 import { readHeader, readUnit } from './units-text'
 
@@ -34,7 +34,7 @@ export interface ColumnMappingEntry {
   /** A unit of the same kind as the spec's column (the student's choice), or '1' for a pure number. */
   unit: string
   /** For pressure columns: how the file's values were read; left out, the spec's `pressure`. */
-  pressure?: 'gauge' | 'absolute'
+  pressure?: PressureSense
 }
 
 /** Spec column key → the file's column. */
@@ -59,7 +59,7 @@ export type LogParseResult =
        */
       columns: Record<string, number[]>
       /** For each pressure column: how its values were read. */
-      pressures: Record<string, 'gauge' | 'absolute'>
+      pressures: Record<string, PressureSense>
       rowCount: number
       /** The file's headers, trimmed, in file order. */
       headers: string[]
@@ -332,7 +332,7 @@ export function parseLog(text: string, table: TableSpec, mapping: ColumnMapping)
 
   // Map the spec's columns onto the file's.
   const mapped: MappedColumn[] = []
-  const pressures: Record<string, 'gauge' | 'absolute'> = {}
+  const pressures: Record<string, PressureSense> = {}
   for (const spec of table.columns) {
     const entry = mapping[spec.key]
     if (!entry) {
@@ -596,7 +596,7 @@ export function suggestMapping(headers: readonly string[], table: TableSpec): Re
       [normalise(spec.label), 2],
       ...(spec.role ? (ROLE_NAMES[spec.role] ?? []).map((n): [string, number] => [n, 1]) : []),
     ]
-    let best: { index: number; score: number; unit?: string; pressure?: 'gauge' | 'absolute' } | undefined
+    let best: { index: number; score: number; unit?: string; pressure?: PressureSense } | undefined
     headers.forEach((header, index) => {
       if (used.has(index)) return
       const reading = readHeader(header, kind === 'dimensionless' ? undefined : kind)

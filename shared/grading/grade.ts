@@ -114,22 +114,6 @@ export interface GradeInput {
   latePenalty?: number
 }
 
-/** Message of the flag the server raises when a file is byte-identical to another group's (sha256). */
-export const IDENTICAL_FILE_MESSAGE =
-  "The uploaded log is byte-for-byte identical to a file another lab group submitted in this course. Every group's run gives its own log; a teaching assistant will ask about it."
-
-/**
- * The flag for a log identical to another group's. The server decides it (sha256 of the raw bytes
- * against the course's other submissions); this gives the code and the words.
- *
- * @param detail - e.g. { otherSubmission: 812, otherGroup: 'A1' }
- */
-export function identicalFileFlag(detail?: Record<string, number | string>): GradeFlag {
-  return detail === undefined
-    ? { code: 'identical-file', message: IDENTICAL_FILE_MESSAGE }
-    : { code: 'identical-file', message: IDENTICAL_FILE_MESSAGE, detail }
-}
-
 // ---------------------------------------------------------------------------------------------
 // Grading.
 

@@ -52,6 +52,7 @@ import type { Assignment, ResultSpec, Tolerance } from '../modules/schema'
 import type { ExpressionValue, SubmissionData } from '../modules/scope'
 import { rescaledColumn } from '../modules/run-cache'
 import { PartEvaluator, expressionReads } from './expression-parts'
+import type { PressureSense } from '../units'
 
 /** The coverage factor shown with expected values when the result's tolerance names none. */
 export const DEFAULT_COVERAGE = 2
@@ -136,7 +137,7 @@ function unitScale(unit: string): number {
   return valueToSI(1, unit) - valueToSI(0, unit)
 }
 
-function isGauge(data: SubmissionData, key: string, declared: 'gauge' | 'absolute' | undefined): boolean {
+function isGauge(data: SubmissionData, key: string, declared: PressureSense | undefined): boolean {
   return (data.pressures?.[key] ?? declared) === 'gauge'
 }
 

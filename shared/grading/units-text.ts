@@ -4,13 +4,13 @@
  * under the header. The unit table itself (shared/units.ts) stays strict: these are only guesses a
  * person confirms in the mapping form.
  */
-import { UNITS, isUnitSymbol, unitKind } from '../units'
+import { UNITS, isUnitSymbol, unitKind, type PressureSense } from '../units'
 import type { UnitKind, UnitSymbol } from '../units'
 
 /** A unit read from text, with the gauge/absolute sense when the text says it (psig, bar(a)). */
 export interface UnitReading {
   unit: UnitSymbol
-  pressure?: 'gauge' | 'absolute'
+  pressure?: PressureSense
 }
 
 // Spellings seen in logger exports, lower-case, with the unit they mean.
@@ -83,7 +83,7 @@ export function readUnit(text: string, kind?: UnitKind | 'dimensionless'): UnitR
   const wrapped = /^[[(]\s*(.*?)\s*[\])]$/.exec(t)
   if (wrapped && wrapped[1] !== undefined) t = wrapped[1]
   if (t === '') return undefined
-  let pressure: 'gauge' | 'absolute' | undefined
+  let pressure: PressureSense | undefined
   // "kPa(g)", "kPa (a)", "kPa g", "bar gauge", "psi abs"
   const sense = /^(.*?)(?:\s*\(\s*([ga])\s*\)|[\s_-]+([ga])|[\s_-]+(gauge|absolute|abs))$/i.exec(t)
   if (sense && sense[1]) {

@@ -14,7 +14,7 @@ import { z } from 'zod'
 import { RESERVED_NAMES } from './expression-names'
 import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, isDataUnit, isPressureUnit, isResultUnit } from './quantities'
 import { singleLineName } from '../schemas/names'
-import { UNITS } from '../units'
+import { PRESSURE_SENSES, UNITS, type PressureSense } from '../units'
 
 /**
  * Size budgets of an assignment, checked when a module is saved: each bounds the work one save
@@ -117,7 +117,7 @@ export const LateSchema = z.strictObject({
     .max(1, 'the penalty per day is a fraction from 0 to 1 (0.1 = 10 % a day)'),
 })
 
-const PressureSenseSchema = z.enum(['gauge', 'absolute'])
+const PressureSenseSchema = z.enum(PRESSURE_SENSES)
 
 const dataUnitMessage = `use a unit symbol of the unit table (${Object.keys(UNITS).join(', ')}) or ${DIMENSIONLESS} for a dimensionless number`
 const DataUnitSchema = z.string().refine(isDataUnit, dataUnitMessage)
@@ -126,10 +126,7 @@ const ResultUnitSchema = z
   .refine(isResultUnit, `${dataUnitMessage}; results may also use ${Object.keys(RESULT_ONLY_UNITS).join(', ')}`)
 
 /** A pressure unit needs to say gauge or absolute; any other unit must not. */
-function checkPressureSense(
-  value: { unit: string; pressure?: 'gauge' | 'absolute' | undefined },
-  ctx: z.RefinementCtx,
-): void {
+function checkPressureSense(value: { unit: string; pressure?: PressureSense | undefined }, ctx: z.RefinementCtx): void {
   if (isPressureUnit(value.unit) && value.pressure === undefined) {
     ctx.addIssue({
       code: 'custom',

@@ -12,7 +12,7 @@
  * - a gauge pressure column with `tare: true` also has its transducer zero removed, with the zero
  *   and window of the thrust run logged beside it (see {@link buildExpressionScope}).
  */
-import { gaugeToAbsolute } from '../units'
+import { gaugeToAbsolute, type PressureSense } from '../units'
 import { signalZeros, tareWithRun } from '../physics/thrust-run'
 import { cachedThrustRun } from './run-cache'
 import { DIMENSIONLESS, dataUnitKind, valueFromSI, valueToSI } from './quantities'
@@ -39,7 +39,7 @@ export interface SubmissionData {
    * from the spec's `pressure:` (a student may log absolute where the spec suggests gauge). Keys
    * left out follow the spec. The ambient pressure is always absolute.
    */
-  pressures?: Readonly<Record<string, 'gauge' | 'absolute'>>
+  pressures?: Readonly<Record<string, PressureSense>>
 }
 
 /** Options of {@link buildExpressionScope}. */
@@ -102,7 +102,7 @@ function ambientOf(assignment: Assignment, data: SubmissionData, si: boolean): n
 /** Stand-in unit for values already in SI: convert() then only checks and adds the ambient. */
 const SI_PASS = DIMENSIONLESS
 
-function isGauge(data: SubmissionData, key: string, declared: 'gauge' | 'absolute' | undefined): boolean {
+function isGauge(data: SubmissionData, key: string, declared: PressureSense | undefined): boolean {
   return (data.pressures?.[key] ?? declared) === 'gauge'
 }
 

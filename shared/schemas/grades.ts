@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import type { ReviewState } from './review'
 
 /**
  * The gradebook, grade release, a student's own grades and regrade requests: request schemas
@@ -63,8 +64,6 @@ export const COUNTING_RULE =
 /** How the course total treats modules without a counted hand-in. */
 export const TOTAL_RULE =
   'The total is the weighted mean of the module percentages. A module past its due date without a graded hand-in counts as 0 %; a module not yet due is left out until it has one.'
-
-export type ReviewState = 'none' | 'open' | 'in-review' | 'resolved'
 
 /** One student's counted hand-in of one module. */
 export interface GradebookCell {

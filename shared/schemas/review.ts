@@ -1,5 +1,21 @@
 import { z } from 'zod'
 
+/**
+ * Where a hand-in stands with the staff: 'none' until a flag or a person opens it, then 'open',
+ * 'in-review' while someone works on it, 'resolved' when done. One list for the database column,
+ * the server and the pages.
+ */
+export const REVIEW_STATES = ['none', 'open', 'in-review', 'resolved'] as const
+export type ReviewState = (typeof REVIEW_STATES)[number]
+
+/** The states staff may set by hand ('none' is only where a hand-in starts). */
+export const SETTABLE_REVIEW_STATES = ['open', 'in-review', 'resolved'] as const
+export type SettableReviewState = (typeof SETTABLE_REVIEW_STATES)[number]
+
+/** A flag is open until staff resolve it (and may be reopened). */
+export const FLAG_STATUSES = ['open', 'resolved'] as const
+export type FlagStatus = (typeof FLAG_STATUSES)[number]
+
 export const REVIEW_SORTS = ['submittedAt', 'score', 'module', 'student'] as const
 
 /** Query of the review queue: server-side paging, sorting and filters. */
@@ -12,7 +28,7 @@ export const ReviewQuerySchema = z.object({
   sectionId: z.coerce.number().int().positive().optional(),
   /** A flag code, e.g. thrust-above-ideal or rule:chamber_above_receiver. */
   reason: z.string().max(80).optional(),
-  status: z.enum(['open', 'in-review', 'resolved', 'all']).default('open'),
+  status: z.enum([...SETTABLE_REVIEW_STATES, 'all']).default('open'),
 })
 export type ReviewQuery = z.infer<typeof ReviewQuerySchema>
 
@@ -27,7 +43,7 @@ export interface ReviewRow {
   isLate: boolean
   score: number | null
   maxScore: number | null
-  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
+  reviewStatus: ReviewState
   flagCodes: string[]
 }
 
@@ -72,7 +88,7 @@ export const FlagActionSchema = z.object({
 })
 
 export const ReviewStatusSchema = z.object({
-  status: z.enum(['open', 'in-review', 'resolved']),
+  status: z.enum(SETTABLE_REVIEW_STATES),
   revision: z.number().int().min(0),
 })
 
@@ -98,4 +114,13 @@ export interface CommentView {
   at: string
   /** Sanitised HTML of the Markdown body. */
   html: string
+}
+
+/** What staff see beside a submission: the audit trail, the comments and the revision to edit against. */
+export interface ReviewExtras {
+  revision: number
+  reviewStatus: ReviewState
+  scoreOverride: number | null
+  gradeChanges: GradeChangeView[]
+  comments: CommentView[]
 }

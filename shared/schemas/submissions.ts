@@ -1,5 +1,7 @@
 import { z } from 'zod'
 import type { UncertaintyContribution } from '../grading/uncertainty'
+import type { FlagStatus } from './review'
+import type { PressureSense } from '../units'
 
 const finite = (what: string) =>
   z.number({ error: `${what}: enter a number.` }).refine(Number.isFinite, `${what}: enter a finite number.`)
@@ -91,7 +93,7 @@ export interface FlagView {
   id: number
   code: string
   message: string
-  status: 'open' | 'resolved'
+  status: FlagStatus
 }
 
 export interface ChartData {
@@ -152,7 +154,7 @@ export interface SubmissionDetail extends SubmissionSummary {
   chart: ChartData | null
   files: { id: number; tableKey: string; filename: string; size: number; rowCount: number; sha256: string }[]
   inputs: {
-    measurements: Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>
+    measurements: Record<string, { value: number; unit: string; pressure?: PressureSense }>
     reported: Record<string, { value: number; unit: string }>
   }
   attemptsAllowed: number

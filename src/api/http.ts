@@ -1,16 +1,28 @@
-import type { ApiErrorBody } from '@shared/schemas/errors'
+import type { ApiErrorBody, ErrorCode } from '@shared/schemas/errors'
+
+/** Codes the client itself gives a failure that never got a server's answer (or got an unreadable one). */
+export type ClientErrorCode =
+  'http_error' | 'network_error' | 'client_error' | 'aborted' | 'bad_response' | 'bad_assignment'
+
+/** A server code or one of the client's own. */
+export type ApiErrorCode = ErrorCode | ClientErrorCode
 
 /** Every failed API call becomes one of these; views show `message`, forms use `details`. */
 export class ApiError extends Error {
   constructor(
     readonly status: number,
-    readonly code: string,
+    readonly code: ApiErrorCode,
     message: string,
     readonly details?: unknown,
   ) {
     super(message)
     this.name = 'ApiError'
   }
+}
+
+/** Any thrown value as the ApiError the pages know how to show. */
+export function asApiError(err: unknown): ApiError {
+  return err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err))
 }
 
 let csrfToken = ''

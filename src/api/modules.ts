@@ -5,7 +5,6 @@ import type {
   ModulePreview,
   ModuleReading,
   PublishResult,
-  VersionStatus,
   VersionSummary,
 } from '@shared/schemas/modules'
 import { http } from './http'
@@ -29,11 +28,6 @@ export const unpublishModule = (courseId: number, moduleId: number) =>
   http<ModuleListItem>('POST', `${base(courseId)}/${moduleId}/unpublish`)
 export const fetchVersions = (courseId: number, moduleId: number) =>
   http<VersionSummary[]>('GET', `${base(courseId)}/${moduleId}/versions`)
-export const fetchVersionSource = (courseId: number, moduleId: number, versionId: number) =>
-  http<{ id: number; number: number; status: VersionStatus; source: string; html: string }>(
-    'GET',
-    `${base(courseId)}/${moduleId}/versions/${versionId}`,
-  )
 export const fetchDiff = (courseId: number, moduleId: number, from: number, to: number) =>
   http<ModuleDiff>('GET', `${base(courseId)}/${moduleId}/diff?from=${from}&to=${to}`)
 export const exportUrl = (courseId: number, moduleId: number) => `${base(courseId)}/${moduleId}/export`

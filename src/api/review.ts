@@ -1,16 +1,5 @@
-import type { CommentView, GradeChangeView, Override, ReviewPage, ReviewQuery } from '@shared/schemas/review'
+import type { Override, ReviewExtras, ReviewPage, ReviewQuery, SettableReviewState } from '@shared/schemas/review'
 import { http } from './http'
-
-/** What staff see beside a submission: the audit trail, the comments and the revision to edit against. */
-export interface ReviewExtras {
-  revision: number
-  reviewStatus: 'none' | 'open' | 'in-review' | 'resolved'
-  scoreOverride: number | null
-  gradeChanges: GradeChangeView[]
-  comments: CommentView[]
-}
-
-export type ReviewStatus = 'open' | 'in-review' | 'resolved'
 
 const submissionBase = (courseId: number, submissionId: number) =>
   `/api/courses/${courseId}/submissions/${submissionId}`
@@ -39,5 +28,9 @@ export const postFlagAction = (
   revision: number,
 ) => http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/flags/${flagId}`, { action, revision })
 
-export const postReviewStatus = (courseId: number, submissionId: number, status: ReviewStatus, revision: number) =>
-  http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/review-status`, { status, revision })
+export const postReviewStatus = (
+  courseId: number,
+  submissionId: number,
+  status: SettableReviewState,
+  revision: number,
+) => http<ReviewExtras>('POST', `${submissionBase(courseId, submissionId)}/review-status`, { status, revision })

@@ -1,7 +1,10 @@
 import { ref, shallowRef } from 'vue'
 import type { Ref } from 'vue'
 import { useToast } from 'primevue/usetoast'
-import { ApiError } from '@/api/http'
+import { asApiError } from '@/api/http'
+import type { ApiError } from '@/api/http'
+
+export { asApiError }
 
 /** What a finished action says to the person, as a toast. A function receives the action's result. */
 export interface ActionMessages<T> {
@@ -18,11 +21,6 @@ export interface Action<A extends unknown[], T> {
   error: Ref<ApiError | null>
   /** Runs the write; resolves to its result, or `undefined` when it failed (the error is in `error`). */
   run: (...args: A) => Promise<T | undefined>
-}
-
-/** Any thrown value as the ApiError the pages know how to show. */
-export function asApiError(err: unknown): ApiError {
-  return err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err))
 }
 
 /**

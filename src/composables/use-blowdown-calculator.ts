@@ -5,70 +5,88 @@
  * throat stays choked (by the outlet's own choke limit: a converging–diverging nozzle stays choked
  * to a much higher back pressure than a plain orifice) and the mass released.
  */
-import { reactive } from 'vue'
 import { BLOWDOWN_PROCESSES, areaFromDiameter, nozzlePressureRatios, tankBlowdown } from '@shared/physics'
 import type { Blowdown, BlowdownProcess } from '@shared/physics'
 import { toSI } from '@shared/units'
 import type { UnitSymbol } from '@shared/units'
 import {
   absolutePressure,
-  defaultChoice,
-  defaultNumber,
   forField,
   formatPressure,
   readNumber,
   unitLabel,
-  useLiveCalculation,
+  useCalculator,
   withArgumentFields,
 } from './use-calculator'
-import type { LiveCalculation, PressureReading } from './use-calculator'
-
-/** A calculator's `defaults` prop: starting values by key, as a lab module's YAML gives them. */
-type CalculatorDefaults = Partial<Record<string, number | string>>
+import type { Calculator, CalculatorDefaults, CalculatorForm, FieldGroup, InputsOf } from './use-calculator'
 
 /** The units each input offers. */
 export const PRESSURE_UNITS = ['kPa', 'bar', 'psi', 'MPa'] as const satisfies readonly UnitSymbol[]
 export const TEMPERATURE_UNITS = ['K', 'degC'] as const satisfies readonly UnitSymbol[]
 export const LENGTH_UNITS = ['mm', 'in'] as const satisfies readonly UnitSymbol[]
 export const VOLUME_UNITS = ['L', 'm3'] as const satisfies readonly UnitSymbol[]
-const READINGS: readonly PressureReading[] = ['gauge', 'absolute']
 /** Integration steps over the run: fine enough for the chart and the choked time, quick to compute. */
 const STEPS = 1000
 
-/** An optional numeric starting value: the text given (as {@link defaultNumber} reads it), or '' (left empty). */
-function optionalDefault(d: CalculatorDefaults | undefined, key: string): string {
-  const given = d?.[key]
-  const usable =
-    (typeof given === 'number' && Number.isFinite(given)) || (typeof given === 'string' && given.trim() !== '')
-  return usable ? defaultNumber(d, key, 0) : ''
-}
+const PROCESS_CHOICES = BLOWDOWN_PROCESSES.map((value) => ({ label: value, value }))
 
-/** The inputs as typed (text) with their units and choices, starting from `d` or the built-in values. */
-function blowdownForm(d: CalculatorDefaults | undefined) {
-  return reactive({
-    volume: defaultNumber(d, 'volume', 50),
-    volumeUnit: defaultChoice<UnitSymbol>(d, 'volumeUnit', VOLUME_UNITS, 'L'),
-    initialPressure: defaultNumber(d, 'initialPressure', 8),
-    initialPressureUnit: defaultChoice<UnitSymbol>(d, 'initialPressureUnit', PRESSURE_UNITS, 'bar'),
-    initialPressureReading: defaultChoice(d, 'initialPressureReading', READINGS, 'gauge'),
-    ambientPressure: defaultNumber(d, 'ambientPressure', 101.325),
-    ambientPressureUnit: defaultChoice<UnitSymbol>(d, 'ambientPressureUnit', PRESSURE_UNITS, 'kPa'),
-    initialTemperature: defaultNumber(d, 'initialTemperature', 20),
-    initialTemperatureUnit: defaultChoice<UnitSymbol>(d, 'initialTemperatureUnit', TEMPERATURE_UNITS, 'degC'),
-    throatDiameter: defaultNumber(d, 'throatDiameter', 4),
-    throatDiameterUnit: defaultChoice<UnitSymbol>(d, 'throatDiameterUnit', LENGTH_UNITS, 'mm'),
-    // Empty: a plain orifice (or converging nozzle) with no diverging part.
-    exitDiameter: optionalDefault(d, 'exitDiameter'),
-    exitDiameterUnit: defaultChoice<UnitSymbol>(d, 'exitDiameterUnit', LENGTH_UNITS, 'mm'),
-    dischargeCoefficient: defaultNumber(d, 'dischargeCoefficient', 0.98),
-    process: defaultChoice<BlowdownProcess>(d, 'process', BLOWDOWN_PROCESSES, 'adiabatic'),
-    duration: defaultNumber(d, 'duration', 60),
-    gamma: defaultNumber(d, 'gamma', 1.4),
-    gasConstant: defaultNumber(d, 'gasConstant', 287.05),
-  })
-}
+/** The form's fieldsets and inputs, in order; BlowdownCalculator.vue renders them from this list. */
+export const BLOWDOWN_FIELDS = [
+  {
+    legend: 'Receiver',
+    fields: [
+      { key: 'volume', label: 'Receiver volume', start: 50, units: VOLUME_UNITS, unit: 'L' },
+      { key: 'initialPressure', label: 'Initial pressure', start: 8, units: PRESSURE_UNITS, unit: 'bar', sense: true },
+      {
+        key: 'initialTemperature',
+        label: 'Initial temperature',
+        start: 20,
+        units: TEMPERATURE_UNITS,
+        unit: 'degC',
+      },
+      {
+        key: 'process',
+        label: 'Gas in the receiver',
+        choices: PROCESS_CHOICES as readonly { label: BlowdownProcess; value: BlowdownProcess }[],
+        start: 'adiabatic',
+        hint: 'Isothermal: a slow discharge, the walls keep the gas warm. Adiabatic: a fast one, the gas cools as it expands.',
+      },
+    ],
+  },
+  {
+    legend: 'Outlet',
+    fields: [
+      { key: 'throatDiameter', label: 'Throat diameter', start: 4, units: LENGTH_UNITS, unit: 'mm' },
+      // Empty: a plain orifice (or converging nozzle) with no diverging part.
+      {
+        key: 'exitDiameter',
+        label: 'Exit diameter',
+        start: null,
+        units: LENGTH_UNITS,
+        unit: 'mm',
+        hint: 'Leave empty for a plain orifice',
+      },
+      { key: 'dischargeCoefficient', label: 'Discharge coefficient', start: 0.98, hint: 'Smooth nozzle: about 0.98' },
+      {
+        key: 'ambientPressure',
+        label: 'Ambient pressure (absolute)',
+        start: 101.325,
+        units: PRESSURE_UNITS,
+        unit: 'kPa',
+      },
+    ],
+  },
+  {
+    legend: 'Gas and run',
+    fields: [
+      { key: 'gamma', label: 'Ratio of specific heats γ', start: 1.4, hint: 'Air: 1.4' },
+      { key: 'gasConstant', label: 'Gas constant R', start: 287.05, unitText: 'J/(kg·K)', hint: 'Air: 287.05' },
+      { key: 'duration', label: 'Duration', start: 60, unitText: 's' },
+    ],
+  },
+] as const satisfies readonly FieldGroup[]
 
-type BlowdownForm = ReturnType<typeof blowdownForm>
+type BlowdownForm = CalculatorForm<InputsOf<typeof BLOWDOWN_FIELDS>>
 
 /** What the blow-down calculator shows, in SI except where a field says otherwise. */
 export interface BlowdownResult {
@@ -231,22 +249,13 @@ function compute(form: BlowdownForm): BlowdownResult {
   )
 }
 
-/** What {@link useBlowdownCalculator} gives the component: the form to bind and the live results. */
-export interface BlowdownCalculator extends LiveCalculation<BlowdownResult> {
-  form: BlowdownForm
-}
+/** What {@link useBlowdownCalculator} gives the component: the fieldsets, the form to bind and the live results. */
+export type BlowdownCalculator = Calculator<typeof BLOWDOWN_FIELDS, BlowdownResult>
 
 /**
  * The blow-down calculator's form, starting from `defaults` (keys listed in
  * BlowdownCalculator.vue), and its results, recomputed a moment after each edit.
  */
 export function useBlowdownCalculator(defaults: CalculatorDefaults | undefined): BlowdownCalculator {
-  const form = blowdownForm(defaults)
-  return {
-    form,
-    ...useLiveCalculation(
-      () => ({ ...form }),
-      () => compute(form),
-    ),
-  }
+  return useCalculator(BLOWDOWN_FIELDS, defaults, compute)
 }

@@ -1,7 +1,7 @@
-import { onBeforeUnmount, ref, shallowRef, watch } from 'vue'
+import { onBeforeUnmount, reactive, ref, shallowRef, watch } from 'vue'
 import type { Ref, ShallowRef, WatchSource } from 'vue'
-import { UNITS, fromSI, gaugeToAbsolute, toSI } from '@shared/units'
-import type { UnitSymbol } from '@shared/units'
+import { PRESSURE_SENSES, UNITS, fromSI, gaugeToAbsolute, toSI } from '@shared/units'
+import type { PressureSense, UnitSymbol } from '@shared/units'
 import { formatCompact, formatNumber, unitLabel } from '@shared/format'
 
 // The shared number and unit wording, for the calculators and everything that imports it from here.
@@ -90,20 +90,16 @@ export function forField<T>(field: string, message: string, run: () => T): T {
   }
 }
 
-/** Whether a pressure reading is gauge (relative to ambient) or absolute. */
-export type PressureReading = 'gauge' | 'absolute'
-
-/** The two readings, for the gauge/absolute pickers. */
-export const PRESSURE_READINGS: readonly { label: string; value: PressureReading }[] = [
-  { label: 'gauge', value: 'gauge' },
-  { label: 'absolute', value: 'absolute' },
-]
+/** The two senses, for the gauge/absolute pickers. */
+export const PRESSURE_SENSE_OPTIONS: readonly { label: string; value: PressureSense }[] = PRESSURE_SENSES.map(
+  (value) => ({ label: value, value }),
+)
 
 /**
  * An absolute pressure in Pa from a typed value, its unit and its reading, converted by the unit
  * table and, for a gauge reading, gaugeToAbsolute with the given ambient pressure.
  */
-export function absolutePressure(value: number, unit: UnitSymbol, reading: PressureReading, ambient: number): number {
+export function absolutePressure(value: number, unit: UnitSymbol, reading: PressureSense, ambient: number): number {
   const si = toSI(value, unit)
   return reading === 'gauge' ? gaugeToAbsolute(si, ambient) : si
 }
@@ -210,4 +206,131 @@ export function defaultChoice<T extends string>(
 ): T {
   const given = defaults?.[key]
   return typeof given === 'string' && (allowed as readonly string[]).includes(given) ? (given as T) : fallback
+}
+
+/** A calculator's `defaults` prop: starting values by key, as a lab module's YAML gives them. */
+export type CalculatorDefaults = Partial<Record<string, number | string>>
+
+/**
+ * One numeric input of a calculator. Its form keys are `key` (the typed text), `${key}Unit` when it
+ * offers units, and `${key}Reading` when it has a gauge/absolute picker; the `defaults` prop uses
+ * the same keys.
+ */
+export interface NumberField {
+  readonly key: string
+  /** The visible label, without the unit. */
+  readonly label: string
+  /** The built-in starting value; null for an optional input that starts empty. */
+  readonly start: number | null
+  /** Units offered in a picker, and the one it starts in (the first when not given). */
+  readonly units?: readonly UnitSymbol[]
+  readonly unit?: UnitSymbol
+  /** A fixed unit written beside the box, when there is no choice. */
+  readonly unitText?: string
+  readonly hint?: string
+  /** A pressure read gauge or absolute: a gauge/absolute picker beside it, starting at gauge. */
+  readonly sense?: true
+}
+
+/** A choice between a few named options (e.g. the receiver's process), shown as buttons. */
+export interface ChoiceField {
+  readonly key: string
+  readonly label: string
+  readonly choices: readonly { readonly label: string; readonly value: string }[]
+  readonly start: string
+  /** A sentence under the buttons explaining the choice. */
+  readonly hint?: string
+}
+
+export type CalculatorInput = NumberField | ChoiceField
+
+/** A fieldset of a calculator's form: its legend and its inputs, in order. */
+export interface FieldGroup {
+  readonly legend: string
+  readonly fields: readonly CalculatorInput[]
+}
+
+/** The inputs of a list of fieldsets. */
+export type InputsOf<G extends readonly FieldGroup[]> = G[number]['fields'][number]
+
+/** The form of a calculator with these inputs: typed text, chosen units, readings and choices by key. */
+export type CalculatorForm<F extends CalculatorInput> = { [K in Extract<F, NumberField>['key']]: string } & {
+  [K in Extract<F, { units: readonly UnitSymbol[] }>['key'] as `${K}Unit`]: UnitSymbol
+} & { [K in Extract<F, { sense: true }>['key'] as `${K}Reading`]: PressureSense } & {
+  [C in Extract<F, ChoiceField> as C['key']]: C['choices'][number]['value']
+}
+
+/** An optional numeric starting value: the text given (as {@link defaultNumber} reads it), or '' (left empty). */
+function optionalDefault(d: CalculatorDefaults | undefined, key: string): string {
+  const given = d?.[key]
+  const usable =
+    (typeof given === 'number' && Number.isFinite(given)) || (typeof given === 'string' && given.trim() !== '')
+  return usable ? defaultNumber(d, key, 0) : ''
+}
+
+/** The form of a calculator, each input starting from `defaults` where given and usable, else its built-in value. */
+export function calculatorForm<G extends readonly FieldGroup[]>(
+  groups: G,
+  defaults: CalculatorDefaults | undefined,
+): CalculatorForm<InputsOf<G>> {
+  const form: Record<string, string> = {}
+  for (const f of groups.flatMap((g) => g.fields)) {
+    if ('choices' in f) {
+      form[f.key] = defaultChoice(
+        defaults,
+        f.key,
+        f.choices.map((c) => c.value),
+        f.start,
+      )
+      continue
+    }
+    form[f.key] = f.start === null ? optionalDefault(defaults, f.key) : defaultNumber(defaults, f.key, f.start)
+    if (f.units?.length) form[`${f.key}Unit`] = defaultChoice(defaults, `${f.key}Unit`, f.units, f.unit ?? f.units[0]!)
+    if (f.sense) form[`${f.key}Reading`] = defaultChoice(defaults, `${f.key}Reading`, PRESSURE_SENSES, 'gauge')
+  }
+  return reactive(form) as unknown as CalculatorForm<InputsOf<G>>
+}
+
+/** What a calculator composable gives its component: the fieldsets to render, the form to bind, the live results. */
+export interface Calculator<G extends readonly FieldGroup[], R> extends LiveCalculation<R> {
+  groups: G
+  form: CalculatorForm<InputsOf<G>>
+  /** Sets one form value by its key (the field list renders the inputs by key). */
+  set: (key: string, value: string) => void
+}
+
+/**
+ * A calculator from its fieldsets and its physics: the form built from the field list and
+ * `defaults`, and the results recomputed a moment after each edit.
+ */
+export function useCalculator<const G extends readonly FieldGroup[], R>(
+  groups: G,
+  defaults: CalculatorDefaults | undefined,
+  compute: (form: CalculatorForm<InputsOf<G>>) => R,
+): Calculator<G, R> {
+  const form = calculatorForm(groups, defaults)
+  return {
+    groups,
+    form,
+    set: (key, value) => {
+      ;(form as Record<string, string>)[key] = value
+    },
+    ...useLiveCalculation(
+      () => ({ ...form }),
+      () => compute(form),
+    ),
+  }
+}
+
+/**
+ * The hint under a pressure read as gauge: the absolute pressure it gives, once the result is in
+ * the same unit as the box (so the two numbers can be compared at a glance).
+ */
+export function absoluteHint(
+  reading: PressureSense,
+  typedUnit: UnitSymbol,
+  absolute: { value: number; unit: UnitSymbol } | null,
+): string | undefined {
+  if (!absolute || reading !== 'gauge' || absolute.unit !== typedUnit) return undefined
+  return `Absolute: ${formatPressure(absolute.value, absolute.unit)}`
 }

@@ -31,9 +31,8 @@ import {
   postSection,
   putExtension,
 } from '@/api/course-admin'
+import { useAction } from './use-action'
 import { useResource } from './use-resource'
-
-const asApiError = (err: unknown) => (err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err)))
 
 /** The first problem the shared schema finds in a form's value, as an ApiError the form can show. */
 export function checkForm<S extends z.ZodType>(
@@ -89,25 +88,19 @@ export function errorField(err: ApiError | null): string | null {
 /** Sections, lab groups and TA placements, with the changes that replace them. */
 export function useCourseStructure(courseId: Ref<number>) {
   const res = useResource(() => fetchCourseStructure(courseId.value), courseId)
-  const busy = ref(false)
-
-  async function change(action: () => Promise<CourseStructure | void>, reload = false): Promise<ApiError | null> {
-    busy.value = true
-    try {
-      const next = await action()
-      if (next) res.data.value = next
-      if (reload) await res.reload()
-      return null
-    } catch (err) {
-      return asApiError(err)
-    } finally {
-      busy.value = false
-    }
-  }
+  // The panels show each failure at its own form or row, so no toast.
+  const action = useAction(async (write: () => Promise<CourseStructure | void>, reload: boolean) => {
+    const next = await write()
+    if (next) res.data.value = next
+    if (reload) await res.reload()
+    return true
+  })
+  const change = async (write: () => Promise<CourseStructure | void>, reload = false): Promise<ApiError | null> =>
+    (await action.run(write, reload)) ? null : action.error.value
 
   return {
     ...res,
-    busy,
+    busy: action.busy,
     createSection: (b: SectionCreate) => change(() => postSection(courseId.value, b)),
     updateSection: (id: number, b: SectionUpdate) => change(() => patchSection(courseId.value, id, b)),
     removeSection: (id: number) => change(() => deleteSection(courseId.value, id)),
@@ -129,20 +122,14 @@ export function useRosterAdmin(courseId: Ref<number>, enabled: Ref<boolean>, onC
     () => (enabled.value ? fetchExtensions(courseId.value) : Promise.resolve(null)),
     () => [courseId.value, enabled.value],
   )
-  const busy = ref(false)
-
-  async function run(action: () => Promise<unknown>, after: () => Promise<void>): Promise<ApiError | null> {
-    busy.value = true
-    try {
-      await action()
-      await after()
-      return null
-    } catch (err) {
-      return asApiError(err)
-    } finally {
-      busy.value = false
-    }
-  }
+  // The dialogs show each failure in place, so no toast.
+  const action = useAction(async (write: () => Promise<unknown>, after: () => Promise<void>) => {
+    await write()
+    await after()
+    return true
+  })
+  const run = async (write: () => Promise<unknown>, after: () => Promise<void>): Promise<ApiError | null> =>
+    (await action.run(write, after)) ? null : action.error.value
 
   const refreshAll = async () => {
     await Promise.all([onChanged(), structure.reload()])
@@ -151,7 +138,7 @@ export function useRosterAdmin(courseId: Ref<number>, enabled: Ref<boolean>, onC
   return {
     structure,
     extensions,
-    busy,
+    busy: action.busy,
     place: (userId: number, p: Placement) => run(() => patchPlacement(courseId.value, userId, p), refreshAll),
     remove: (userId: number) => run(() => deleteMember(courseId.value, userId), refreshAll),
     grant: (moduleId: number, userId: number, input: ExtensionInput) =>

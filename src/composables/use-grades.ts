@@ -2,11 +2,10 @@
  * Grades: the staff gradebook (weights, release, CSV), a student's own grades, and regrade
  * requests. Views and components take everything from here; only this file talks to `api/grades.ts`.
  */
-import { computed, ref, shallowRef } from 'vue'
+import { computed, ref } from 'vue'
 import type { Ref } from 'vue'
 import type { GradebookQuery, MyGradeState, RegradeStatus } from '@shared/schemas/grades'
 import { RegradeAnswerSchema, RegradeRequestSchema, WeightSchema } from '@shared/schemas/grades'
-import { ApiError } from '@/api/http'
 import {
   deleteRelease,
   fetchGradebook,
@@ -18,6 +17,7 @@ import {
   postRelease,
   putWeight,
 } from '@/api/grades'
+import { useAction } from './use-action'
 import { useResource } from './use-resource'
 
 export const MY_GRADE_STATE_WORDS: Record<MyGradeState, string> = {
@@ -33,8 +33,6 @@ export function percentText(p: number | null | undefined): string {
   return p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toFixed(1)} %`
 }
 
-const asApiError = (err: unknown) => (err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err)))
-
 /** A first letter in capitals, for a schema message shown under its own labelled field. */
 const sentence = (s: string) => s.charAt(0).toUpperCase() + s.slice(1)
 
@@ -44,26 +42,17 @@ export function useGradebook(courseId: Ref<number>, filters: Ref<GradebookQuery>
     () => fetchGradebook(courseId.value, filters.value),
     () => [courseId.value, filters.value.sectionId, filters.value.labGroupId],
   )
-  const busy = ref(false)
-  const actionError = shallowRef<ApiError | null>(null)
+  // Failures show above the table (`actionError`), not as a toast.
+  const action = useAction(async (write: () => Promise<unknown>) => {
+    await write()
+    await book.reload()
+    return true
+  })
   /** A weight problem per module id. */
   const weightErrors = ref<Record<number, string>>({})
   const csvUrl = computed(() => gradebookCsvUrl(courseId.value, filters.value))
 
-  async function run(action: () => Promise<unknown>): Promise<boolean> {
-    busy.value = true
-    actionError.value = null
-    try {
-      await action()
-      await book.reload()
-      return true
-    } catch (err) {
-      actionError.value = asApiError(err)
-      return false
-    } finally {
-      busy.value = false
-    }
-  }
+  const run = async (write: () => Promise<unknown>): Promise<boolean> => (await action.run(write)) === true
 
   /** Checks the weight with the server's own schema, then saves it. */
   async function setWeight(moduleId: number, weight: number | null): Promise<boolean> {
@@ -84,7 +73,7 @@ export function useGradebook(courseId: Ref<number>, filters: Ref<GradebookQuery>
   const release = (moduleId: number) => run(() => postRelease(courseId.value, moduleId))
   const withdraw = (moduleId: number) => run(() => deleteRelease(courseId.value, moduleId))
 
-  return { book, busy, actionError, weightErrors, csvUrl, setWeight, release, withdraw }
+  return { book, busy: action.busy, actionError: action.error, weightErrors, csvUrl, setWeight, release, withdraw }
 }
 
 export function useMyGrades(courseId: Ref<number>) {
@@ -103,25 +92,17 @@ export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
     () => fetchRegrade(courseId.value, submissionId.value),
     () => [courseId.value, submissionId.value],
   )
-  const busy = ref(false)
   const fieldError = ref<string | null>(null)
-  const actionError = shallowRef<ApiError | null>(null)
+  // No toast: a 400 is the field's message, anything else shows above the form.
+  const action = useAction((write: () => Promise<RegradeStatus>) => write())
+  const actionError = computed(() => (action.error.value?.status === 400 ? null : action.error.value))
 
-  async function send(action: () => Promise<RegradeStatus>): Promise<boolean> {
-    busy.value = true
-    actionError.value = null
+  async function send(write: () => Promise<RegradeStatus>): Promise<boolean> {
     fieldError.value = null
-    try {
-      status.data.value = await action()
-      return true
-    } catch (err) {
-      const e = asApiError(err)
-      if (e.status === 400) fieldError.value = e.message
-      else actionError.value = e
-      return false
-    } finally {
-      busy.value = false
-    }
+    const next = await action.run(write)
+    if (next) status.data.value = next
+    else if (action.error.value?.status === 400) fieldError.value = action.error.value.message
+    return next !== undefined
   }
 
   async function ask(message: string): Promise<boolean> {
@@ -142,5 +123,5 @@ export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
     return send(() => postRegradeAnswer(courseId.value, submissionId.value, requestId, parsed.data.answer))
   }
 
-  return { status, busy, fieldError, actionError, ask, answer }
+  return { status, busy: action.busy, fieldError, actionError, ask, answer }
 }

@@ -5,7 +5,6 @@
  * Mach-disk estimates of an under-expanded jet, where the flow separates in an over-expanded one,
  * and p/p0 and Mach number along a conical diverging section for the chart.
  */
-import { reactive } from 'vue'
 import {
   IDEAL_EXPANSION_BAND,
   areaFromDiameter,
@@ -17,28 +16,22 @@ import {
 } from '@shared/physics'
 import type { NozzleFlow } from '@shared/physics'
 import { fromSI, toSI } from '@shared/units'
-import type { UnitSymbol } from '@shared/units'
+import type { PressureSense, UnitSymbol } from '@shared/units'
 import {
   absolutePressure,
-  defaultChoice,
-  defaultNumber,
   forField,
   formatPressure,
   readNumber,
   unitLabel,
-  useLiveCalculation,
+  useCalculator,
   withArgumentFields,
 } from './use-calculator'
-import type { LiveCalculation, PressureReading } from './use-calculator'
-
-/** A calculator's `defaults` prop: starting values by key, as a lab module's YAML gives them. */
-type CalculatorDefaults = Partial<Record<string, number | string>>
+import type { Calculator, CalculatorDefaults, CalculatorForm, FieldGroup, InputsOf } from './use-calculator'
 
 /** The units each input offers. */
 export const PRESSURE_UNITS = ['kPa', 'bar', 'psi', 'MPa'] as const satisfies readonly UnitSymbol[]
 export const TEMPERATURE_UNITS = ['K', 'degC'] as const satisfies readonly UnitSymbol[]
 export const LENGTH_UNITS = ['mm', 'in'] as const satisfies readonly UnitSymbol[]
-const READINGS: readonly PressureReading[] = ['gauge', 'absolute']
 
 /** Half-angle of the conical diverging section drawn in the chart. */
 export const CONE_HALF_ANGLE_DEGREES = 15
@@ -52,24 +45,49 @@ function distanceFromThroat(diameter: number, throatDiameter: number, unit: Unit
   return fromSI((diameter - throatDiameter) / (2 * TAN_HALF_ANGLE), unit)
 }
 
-/** The inputs as typed (text) with their units and readings, starting from `d` or the built-in values. */
-function nozzleForm(d: CalculatorDefaults | undefined) {
-  return reactive({
-    chamberPressure: defaultNumber(d, 'chamberPressure', 6),
-    chamberPressureUnit: defaultChoice<UnitSymbol>(d, 'chamberPressureUnit', PRESSURE_UNITS, 'bar'),
-    chamberPressureReading: defaultChoice(d, 'chamberPressureReading', READINGS, 'gauge'),
-    ambientPressure: defaultNumber(d, 'ambientPressure', 101.325),
-    ambientPressureUnit: defaultChoice<UnitSymbol>(d, 'ambientPressureUnit', PRESSURE_UNITS, 'kPa'),
-    chamberTemperature: defaultNumber(d, 'chamberTemperature', 20),
-    chamberTemperatureUnit: defaultChoice<UnitSymbol>(d, 'chamberTemperatureUnit', TEMPERATURE_UNITS, 'degC'),
-    throatDiameter: defaultNumber(d, 'throatDiameter', 4),
-    throatDiameterUnit: defaultChoice<UnitSymbol>(d, 'throatDiameterUnit', LENGTH_UNITS, 'mm'),
-    exitDiameter: defaultNumber(d, 'exitDiameter', 8),
-    exitDiameterUnit: defaultChoice<UnitSymbol>(d, 'exitDiameterUnit', LENGTH_UNITS, 'mm'),
-    gamma: defaultNumber(d, 'gamma', 1.4),
-    gasConstant: defaultNumber(d, 'gasConstant', 287.05),
-  })
-}
+/** The form's fieldsets and inputs, in order; NozzleCalculator.vue renders them from this list. */
+export const NOZZLE_FIELDS = [
+  {
+    legend: 'Chamber',
+    fields: [
+      { key: 'chamberPressure', label: 'Chamber pressure', start: 6, units: PRESSURE_UNITS, unit: 'bar', sense: true },
+      {
+        key: 'chamberTemperature',
+        label: 'Chamber temperature',
+        start: 20,
+        units: TEMPERATURE_UNITS,
+        unit: 'degC',
+      },
+    ],
+  },
+  {
+    legend: 'Surroundings',
+    fields: [
+      {
+        key: 'ambientPressure',
+        label: 'Ambient pressure (absolute)',
+        start: 101.325,
+        units: PRESSURE_UNITS,
+        unit: 'kPa',
+        hint: 'From the lab barometer; standard atmosphere 101.325 kPa',
+      },
+    ],
+  },
+  {
+    legend: 'Nozzle',
+    fields: [
+      { key: 'throatDiameter', label: 'Throat diameter', start: 4, units: LENGTH_UNITS, unit: 'mm' },
+      { key: 'exitDiameter', label: 'Exit diameter', start: 8, units: LENGTH_UNITS, unit: 'mm' },
+    ],
+  },
+  {
+    legend: 'Gas',
+    fields: [
+      { key: 'gamma', label: 'Ratio of specific heats γ', start: 1.4, hint: 'Air: 1.4' },
+      { key: 'gasConstant', label: 'Gas constant R', start: 287.05, unitText: 'J/(kg·K)', hint: 'Air: 287.05' },
+    ],
+  },
+] as const satisfies readonly FieldGroup[]
 
 /** One point of the flow along the diverging section; x and diameter in the exit diameter's unit. */
 export interface ProfilePoint {
@@ -87,7 +105,7 @@ export interface NozzleResult {
   gamma: number
   /** Units the person chose, for showing results in them. */
   pressureUnit: UnitSymbol
-  pressureReading: PressureReading
+  pressureReading: PressureSense
   lengthUnit: UnitSymbol
   /**
    * Mach-disk distance, m, by Ashkenas & Sherman and by Lewis & Carlson, when the jet is
@@ -165,7 +183,7 @@ function flowProfile(
   return { profile: xs.map(supersonic), shockPosition: null }
 }
 
-type NozzleForm = ReturnType<typeof nozzleForm>
+type NozzleForm = CalculatorForm<InputsOf<typeof NOZZLE_FIELDS>>
 
 function compute(form: NozzleForm): NozzleResult {
   const pressureUnit = form.chamberPressureUnit
@@ -273,22 +291,13 @@ function compute(form: NozzleForm): NozzleResult {
   )
 }
 
-/** What {@link useNozzleCalculator} gives the component: the form to bind and the live results. */
-export interface NozzleCalculator extends LiveCalculation<NozzleResult> {
-  form: NozzleForm
-}
+/** What {@link useNozzleCalculator} gives the component: the fieldsets, the form to bind and the live results. */
+export type NozzleCalculator = Calculator<typeof NOZZLE_FIELDS, NozzleResult>
 
 /**
  * The nozzle calculator's form, starting from `defaults` (keys listed in NozzleCalculator.vue), and
  * its results, recomputed a moment after each edit.
  */
 export function useNozzleCalculator(defaults: CalculatorDefaults | undefined): NozzleCalculator {
-  const form = nozzleForm(defaults)
-  return {
-    form,
-    ...useLiveCalculation(
-      () => ({ ...form }),
-      () => compute(form),
-    ),
-  }
+  return useCalculator(NOZZLE_FIELDS, defaults, compute)
 }

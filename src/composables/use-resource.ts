@@ -1,6 +1,7 @@
 import { ref, shallowRef, watch } from 'vue'
 import type { Ref, WatchSource } from 'vue'
-import { ApiError } from '@/api/http'
+import { asApiError } from '@/api/http'
+import type { ApiError } from '@/api/http'
 
 export type LoadState = 'idle' | 'loading' | 'done' | 'error'
 
@@ -37,7 +38,7 @@ export function useResource<T>(load: () => Promise<T>, source?: WatchSource): Re
       state.value = 'done'
     } catch (err) {
       if (mine !== run) return
-      error.value = err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err))
+      error.value = asApiError(err)
       state.value = 'error'
     }
   }

@@ -4,9 +4,9 @@
  */
 import { computed, ref, shallowRef } from 'vue'
 import type { Ref } from 'vue'
-import type { ReviewQuery } from '@shared/schemas/review'
+import type { ReviewExtras, ReviewQuery, ReviewState, SettableReviewState } from '@shared/schemas/review'
 import { OverrideSchema } from '@shared/schemas/review'
-import { ApiError } from '@/api/http'
+import type { ApiError } from '@/api/http'
 import { fetchModules } from '@/api/modules'
 import {
   fetchReviewExtras,
@@ -16,7 +16,7 @@ import {
   postOverride,
   postReviewStatus,
 } from '@/api/review'
-import type { ReviewExtras, ReviewStatus } from '@/api/review'
+import { useAction } from './use-action'
 import { useSubmission } from './use-submissions'
 import { useResource } from './use-resource'
 
@@ -33,7 +33,7 @@ const FLAG_WORDS: Record<string, string> = {
 }
 export const flagWords = (code: string) => FLAG_WORDS[code] ?? code
 
-export const REVIEW_STATUS_WORDS: Record<string, string> = {
+export const REVIEW_STATUS_WORDS: Record<ReviewState, string> = {
   none: 'not flagged',
   open: 'open',
   'in-review': 'in review',
@@ -80,35 +80,33 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
     () => fetchReviewExtras(courseId.value, submissionId.value),
     () => [courseId.value, submissionId.value],
   )
-  const busy = ref(false)
+  // Failures land at a field, as a conflict banner or above the forms, so no toast.
+  const action = useAction(async (write: () => Promise<ReviewExtras>) => {
+    extras.data.value = await write()
+    // Scores, checks and flags live on the detail: fetch it again so the page shows the new state.
+    await detail.reload()
+    return true
+  })
   const conflict = shallowRef<ApiError | null>(null)
   const actionError = shallowRef<ApiError | null>(null)
   /** Problems by form field: `points`, `reason`, `body`. */
   const fieldErrors = ref<Record<string, string>>({})
   const revision = computed(() => extras.data.value?.revision ?? 0)
 
-  async function run(action: () => Promise<ReviewExtras>, fields: readonly string[]): Promise<boolean> {
-    busy.value = true
+  async function run(write: () => Promise<ReviewExtras>, fields: readonly string[]): Promise<boolean> {
+    if (action.busy.value) return false
     actionError.value = null
     conflict.value = null
     for (const f of fields) delete fieldErrors.value[f]
-    try {
-      extras.data.value = await action()
-      // Scores, checks and flags live on the detail: fetch it again so the page shows the new state.
-      await detail.reload()
-      return true
-    } catch (err) {
-      const e = err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err))
-      if (e.status === 409) conflict.value = e
-      else {
-        const p = e.status === 400 ? fieldProblem(e) : null
-        if (p && fields.includes(p.field)) fieldErrors.value[p.field] = p.message
-        else actionError.value = e
-      }
-      return false
-    } finally {
-      busy.value = false
+    if (await action.run(write)) return true
+    const e = action.error.value
+    if (e?.status === 409) conflict.value = e
+    else if (e) {
+      const p = e.status === 400 ? fieldProblem(e) : null
+      if (p && fields.includes(p.field)) fieldErrors.value[p.field] = p.message
+      else actionError.value = e
     }
+    return false
   }
 
   /** Checks the override in the browser with the server's own schema and range, then sends it. */
@@ -152,7 +150,7 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
   const flag = (flagId: number, action: 'resolve' | 'reopen') =>
     run(() => postFlagAction(courseId.value, submissionId.value, flagId, action, revision.value), [])
 
-  const setStatus = (status: ReviewStatus) =>
+  const setStatus = (status: SettableReviewState) =>
     run(() => postReviewStatus(courseId.value, submissionId.value, status, revision.value), [])
 
   async function reloadAll() {
@@ -160,5 +158,17 @@ export function useReviewSubmission(courseId: Ref<number>, submissionId: Ref<num
     await Promise.all([detail.reload(), extras.reload()])
   }
 
-  return { detail, extras, busy, conflict, actionError, fieldErrors, override, comment, flag, setStatus, reloadAll }
+  return {
+    detail,
+    extras,
+    busy: action.busy,
+    conflict,
+    actionError,
+    fieldErrors,
+    override,
+    comment,
+    flag,
+    setStatus,
+    reloadAll,
+  }
 }

@@ -11,10 +11,8 @@ import type {
   RosterRowsRefusal,
 } from '@shared/schemas/roster-import'
 import { confirmRosterImport, previewRosterImport } from '@/api/roster-import'
-import { ApiError } from '@/api/http'
+import { ApiError, asApiError } from '@/api/http'
 import type { LoadState } from './use-resource'
-
-const asApiError = (err: unknown) => (err instanceof ApiError ? err : new ApiError(0, 'client_error', String(err)))
 
 /** Base64 of the file's bytes, in slices (String.fromCharCode takes a bounded number of arguments). */
 function toBase64(bytes: Uint8Array): string {

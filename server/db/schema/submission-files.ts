@@ -3,6 +3,7 @@ import type { LogFingerprint } from '../../../shared/grading/fingerprint'
 import { id, ref, timestamps } from './columns'
 import { courses } from './courses'
 import { submissions } from './submissions'
+import type { PressureSense } from '../../../shared/units'
 
 /** LONGBLOB: the raw upload, byte for byte, as the student sent it. */
 const longBlob = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'longblob' })
@@ -10,7 +11,7 @@ const longBlob = customType<{ data: Buffer; driverData: Buffer }>({ dataType: ()
 export interface ColumnMappingRow {
   header: string
   unit: string
-  pressure?: 'gauge' | 'absolute'
+  pressure?: PressureSense
 }
 
 /** A submission's uploaded table: raw bytes with their sha256, the mapping used, the parsed data. */

@@ -2,8 +2,7 @@ import { index, json, mysqlEnum, mysqlTable, timestamp, varchar } from 'drizzle-
 import { id, ref, timestamps } from './columns'
 import { submissions } from './submissions'
 import { users } from './users'
-
-export const FLAG_STATUSES = ['open', 'resolved'] as const
+import { FLAG_STATUSES } from '../../../shared/schemas/review'
 
 /** A reason for staff to look at a submission: a built-in data check or a module's review rule. */
 export const submissionFlags = mysqlTable(

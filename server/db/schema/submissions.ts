@@ -7,14 +7,14 @@ import { moduleVersions } from './module-versions'
 import { modules } from './modules'
 import { users } from './users'
 import { SUBMISSION_STATUSES } from '../../../shared/schemas/submissions'
+import { REVIEW_STATES } from '../../../shared/schemas/review'
+import type { PressureSense } from '../../../shared/units'
 
 export { SUBMISSION_STATUSES }
 
-export const REVIEW_STATUSES = ['none', 'open', 'in-review', 'resolved'] as const
-
 /** What the student typed, kept as typed (value and unit) besides the SI values used to grade. */
 export interface SubmissionInputs {
-  measurements: Record<string, { value: number; unit: string; pressure?: 'gauge' | 'absolute' }>
+  measurements: Record<string, { value: number; unit: string; pressure?: PressureSense }>
   reported: Record<string, { value: number; unit: string }>
 }
 
@@ -55,7 +55,7 @@ export const submissions = mysqlTable(
     /** A staff override of the total (after penalty); null when the computed score stands. */
     scoreOverride: double('score_override'),
     maxScore: double('max_score'),
-    reviewStatus: mysqlEnum('review_status', REVIEW_STATUSES).notNull().default('none'),
+    reviewStatus: mysqlEnum('review_status', REVIEW_STATES).notNull().default('none'),
     /** Optimistic-lock counter for staff edits. */
     revision: int('revision').notNull().default(0),
     submittedAt: timestamp('submitted_at', { fsp: 3, mode: 'date' })

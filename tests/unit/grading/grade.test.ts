@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { IDENTICAL_FILE_MESSAGE, gradeSubmission, identicalFileFlag } from '../../../shared/grading/grade'
+import { gradeSubmission } from '../../../shared/grading/grade'
 import type { CheckResult, GradeResult } from '../../../shared/grading/grade'
 import { AssignmentSchema } from '../../../shared/modules/schema'
 import type { SubmissionData } from '../../../shared/modules/scope'
@@ -284,13 +284,5 @@ describe('gradeSubmission: review rules', () => {
     const result = gradeSubmission({ assignment: ruled, data, reported: rest })
     expect(result.flags.some((f) => f.detail?.rule === 'about_first')).toBe(false)
     expect(result.flags.some((f) => f.code === 'rule:impulse_big')).toBe(true)
-  })
-})
-
-describe('the identical-file flag (decided by the server)', () => {
-  it('has its code and plain message, with optional detail', () => {
-    expect(identicalFileFlag()).toEqual({ code: 'identical-file', message: IDENTICAL_FILE_MESSAGE })
-    expect(identicalFileFlag({ otherGroup: 'A1' }).detail).toEqual({ otherGroup: 'A1' })
-    expect(IDENTICAL_FILE_MESSAGE).toMatch(/identical to a file another lab group submitted/)
   })
 })
