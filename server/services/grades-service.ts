@@ -33,7 +33,7 @@ import {
 import { listExtensions } from '../repositories/due-extensions'
 import { courseTimeZone, findModule, findVersions, listModuleRows } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
-import { regradeViews } from './regrade-service'
+import { recheckViews } from './recheck-service'
 import { visibility } from './submission-service'
 import { escapeHtml } from './text'
 
@@ -127,7 +127,7 @@ function cellOf(s: GradedRow): GradebookCell {
     isLate: s.isLate,
     daysLate: s.daysLate,
     reviewStatus: s.reviewStatus,
-    regradeOpen: s.regradeOpen,
+    recheckOpen: s.recheckOpen,
   }
 }
 
@@ -336,7 +336,7 @@ export async function withdrawRelease(db: Database, e: CourseEnrollment, moduleI
 
 /**
  * A student's own grades: every module with something to hand in, what state its grade is in,
- * the counted score when it may be shown, and the latest regrade request on it.
+ * the counted score when it may be shown, and the latest re-check request on it.
  */
 export async function myGrades(db: Database, e: CourseEnrollment, now = new Date()): Promise<MyGrades> {
   if (e.role !== 'student') throw forbidden('“My grades” is for students; staff see every grade in the gradebook.')
@@ -357,7 +357,7 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
     const s = countedFor(me, m, graded)
     if (s) counted.set(m.id, s)
   }
-  const regrades = await regradeViews(
+  const rechecks = await recheckViews(
     db,
     [...counted.values()].map((s) => s.id),
   )
@@ -392,15 +392,15 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
       maxScore: null,
       isLate: false,
       daysLate: 0,
-      regrade: null,
+      recheck: null,
     }
     if (!s) {
       if (!anyAttempt) return { ...base, state: 'not-handed-in' as const, submissionId: null, attempt: null }
       return { ...base, state: 'awaiting-grade' as const, submissionId: anyAttempt.id, attempt: anyAttempt.attempt }
     }
-    const mine = regrades.filter((r) => r.submissionId === s.id)
-    const regrade = mine.find((r) => r.status === 'open') ?? mine.at(-1) ?? null
-    const common = { ...base, submissionId: s.id, attempt: s.attempt, isLate: s.isLate, daysLate: s.daysLate, regrade }
+    const mine = rechecks.filter((r) => r.submissionId === s.id)
+    const recheck = mine.find((r) => r.status === 'open') ?? mine.at(-1) ?? null
+    const common = { ...base, submissionId: s.id, attempt: s.attempt, isLate: s.isLate, daysLate: s.daysLate, recheck }
     if (!vis.visible) return { ...common, state: 'hidden' as const, hiddenReason: vis.reason }
     return {
       ...common,

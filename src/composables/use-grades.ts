@@ -1,20 +1,20 @@
 /**
- * Grades: the staff gradebook (weights, release, CSV), a student's own grades, and regrade
+ * Grades: the staff gradebook (weights, release, CSV), a student's own grades, and re-check
  * requests. Views and components take everything from here; only this file talks to `api/grades.ts`.
  */
 import { computed, ref, shallowRef } from 'vue'
 import type { Ref } from 'vue'
-import type { GradebookQuery, MyGradeState, RegradeStatus } from '@shared/schemas/grades'
-import { RegradeAnswerSchema, RegradeRequestSchema, WeightSchema } from '@shared/schemas/grades'
+import type { GradebookQuery, MyGradeState, RecheckStatus } from '@shared/schemas/grades'
+import { RecheckAnswerSchema, RecheckRequestSchema, WeightSchema } from '@shared/schemas/grades'
 import { ApiError } from '@/api/http'
 import {
   deleteRelease,
   fetchGradebook,
   fetchMyGrades,
-  fetchRegrade,
+  fetchRecheck,
   gradebookCsvUrl,
-  postRegrade,
-  postRegradeAnswer,
+  postRecheck,
+  postRecheckAnswer,
   postRelease,
   putWeight,
 } from '@/api/grades'
@@ -95,19 +95,19 @@ export function useMyGrades(courseId: Ref<number>) {
 }
 
 /**
- * The regrade requests of one hand-in: the student asks, the staff answer. A 400 lands at the
+ * The re-check requests of one hand-in: the student asks, the staff answer. A 400 lands at the
  * form's field, anything else (409: not released, one already open) as a message above it.
  */
-export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
+export function useRecheck(courseId: Ref<number>, submissionId: Ref<number>) {
   const status = useResource(
-    () => fetchRegrade(courseId.value, submissionId.value),
+    () => fetchRecheck(courseId.value, submissionId.value),
     () => [courseId.value, submissionId.value],
   )
   const busy = ref(false)
   const fieldError = ref<string | null>(null)
   const actionError = shallowRef<ApiError | null>(null)
 
-  async function send(action: () => Promise<RegradeStatus>): Promise<boolean> {
+  async function send(action: () => Promise<RecheckStatus>): Promise<boolean> {
     busy.value = true
     actionError.value = null
     fieldError.value = null
@@ -125,21 +125,21 @@ export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
   }
 
   async function ask(message: string): Promise<boolean> {
-    const parsed = RegradeRequestSchema.safeParse({ message })
+    const parsed = RecheckRequestSchema.safeParse({ message })
     if (!parsed.success) {
       fieldError.value = sentence(parsed.error.issues[0]?.message ?? '')
       return false
     }
-    return send(() => postRegrade(courseId.value, submissionId.value, parsed.data.message))
+    return send(() => postRecheck(courseId.value, submissionId.value, parsed.data.message))
   }
 
   async function answer(requestId: number, text: string): Promise<boolean> {
-    const parsed = RegradeAnswerSchema.safeParse({ answer: text })
+    const parsed = RecheckAnswerSchema.safeParse({ answer: text })
     if (!parsed.success) {
       fieldError.value = sentence(parsed.error.issues[0]?.message ?? '')
       return false
     }
-    return send(() => postRegradeAnswer(courseId.value, submissionId.value, requestId, parsed.data.answer))
+    return send(() => postRecheckAnswer(courseId.value, submissionId.value, requestId, parsed.data.answer))
   }
 
   return { status, busy, fieldError, actionError, ask, answer }

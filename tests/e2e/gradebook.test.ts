@@ -102,8 +102,8 @@ describe('the instructor’s gradebook', () => {
     await ctx.close()
   }, 120_000)
 
-  it('a student reads My grades, opens the released result and asks for a regrade', async () => {
-    // Group A3's demo hand-in is already flagged for review, so a regrade changes no other test's queue.
+  it('a student reads My grades, opens the released result and asks for a re-check', async () => {
+    // Group A3's demo hand-in is already flagged for review, so a re-check changes no other test's queue.
     const who = DEMO_STUDENTS.find((p) => p.labGroup === 'A3')!
     const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
     const page = await ctx.newPage()
@@ -117,19 +117,19 @@ describe('the instructor’s gradebook', () => {
     await page.screenshot({ path: screenshotPath('my-grades-375'), fullPage: true })
 
     await row.getByRole('link', { name: /^See the result/ }).click()
-    await page.getByRole('heading', { level: 2, name: 'Regrade' }).waitFor()
-    const regrade = page.getByTestId('regrade')
-    if ((await regrade.getByRole('button', { name: 'Ask for a regrade' }).count()) > 0) {
-      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
-      await expect.poll(() => page.locator('#regrade-message-error').innerText()).toContain('look at again')
+    await page.getByRole('heading', { level: 2, name: 'Recheck' }).waitFor()
+    const recheck = page.getByTestId('recheck')
+    if ((await recheck.getByRole('button', { name: 'Ask for a re-check' }).count()) > 0) {
+      await recheck.getByRole('button', { name: 'Ask for a re-check' }).click()
+      await expect.poll(() => page.locator('#recheck-message-error').innerText()).toContain('look at again')
       const message = `Our peak thrust was read after the load cell was re-zeroed (${Date.now()}).`
       await page.getByLabel('What should the staff look at again?').fill(message)
-      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
-      await expect.poll(() => regrade.locator('li.open').filter({ hasText: message }).count()).toBe(1)
+      await recheck.getByRole('button', { name: 'Ask for a re-check' }).click()
+      await expect.poll(() => recheck.locator('li.open').filter({ hasText: message }).count()).toBe(1)
     }
-    expect(await regrade.locator('li.open').count()).toBe(1)
+    expect(await recheck.locator('li.open').count()).toBe(1)
     await noSideways(page)
-    await page.screenshot({ path: screenshotPath('submission-regrade-375'), fullPage: true })
+    await page.screenshot({ path: screenshotPath('submission-recheck-375'), fullPage: true })
     const submissionId = Number(/\/submissions\/(\d+)/.exec(page.url())?.[1])
     const courseId = Number(/\/courses\/(\d+)/.exec(page.url())?.[1])
     await ctx.close()
@@ -139,7 +139,7 @@ describe('the instructor’s gradebook', () => {
     const tp = await staff.newPage()
     await signIn(tp, app.url, DEMO_SECTIONS[0].ta.email)
     await tp.goto(`${app.url}/courses/${courseId}/review/${submissionId}`)
-    const answers = tp.getByTestId('regrade-review')
+    const answers = tp.getByTestId('recheck-review')
     await answers.locator('li.open').waitFor()
     const answer = `We checked the zero: the **peak stands** (${Date.now()}).`
     await answers.getByLabel('Answer to the student (Markdown)').fill(answer)
