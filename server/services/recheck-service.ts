@@ -14,12 +14,12 @@ import {
   saveRecheckAnswer,
 } from '../repositories/grades'
 import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
+import { pageLinks, recheckAnsweredMail } from '../mail/templates'
 import { enqueueMail } from '../repositories/outbox'
 import type { SubmissionRow } from '../repositories/submissions'
 import { findSubmission } from '../repositories/submissions'
 import { findUserById } from '../repositories/users'
 import { inScope } from './review-service'
-import { escapeHtml } from './text'
 
 /** Re-check requests of these hand-ins as the API shows them (the answer rendered and sanitised). */
 export async function recheckViews(db: Database, submissionIds: number[]): Promise<RecheckView[]> {
@@ -60,7 +60,7 @@ async function ownSubmission(
 async function refusal(db: Executor, s: SubmissionRow): Promise<AppError | null> {
   const m = await findModule(db, s.courseId, s.moduleId)
   if (!m?.gradesReleasedAt) {
-    return new AppError('not_released', 'You can ask for a re-check once the grades of this module are released.', 409)
+    return new AppError('not_released', 'You can ask for a re-check once the marks of this module are final.', 409)
   }
   if (s.status !== 'graded') return new AppError('not_graded', 'This hand-in has no grade to look at again.', 409)
   if (await hasOpenRecheck(db, s.id)) {
@@ -129,31 +129,23 @@ export async function answerRecheck(
     await saveRecheckAnswer(tx, requestId, answer, e.userId)
     const student = await findUserById(tx, r.requestedBy)
     if (!student) return
-    const link = `${appUrl.replace(/\/$/, '')}/courses/${e.courseId}/submissions/${submissionId}`
+    const link = pageLinks(appUrl, course.slug).handInResult(submissionId)
     const title = version?.title ?? 'your hand-in'
-    const by = staff?.displayName ?? 'The course staff'
     await enqueueMail(tx, [
       {
         dedupeKey: `recheck-answer:${requestId}`,
         toAddress: student.email,
         toName: student.displayName,
-        subject: `${course.code}: your re-check request was answered — ${title}`,
-        textBody: [
-          `Hello ${student.displayName},`,
-          '',
-          `${by} answered your re-check request on “${title}” (attempt ${s.attempt}):`,
-          '',
+        ...recheckAnsweredMail({
+          name: student.displayName,
+          courseCode: course.code,
+          sheetTitle: title,
+          attempt: s.attempt,
+          by: staff?.displayName ?? 'The course staff',
           answer,
-          '',
-          `See your result: ${link}`,
-          '',
-          '— Isentrope',
-        ].join('\n'),
-        htmlBody: `<p>Hello ${escapeHtml(student.displayName)},</p>
-<p>${escapeHtml(by)} answered your re-check request on <strong>${escapeHtml(title)}</strong> (attempt ${s.attempt}):</p>
-<div>${renderModule(answer)}</div>
-<p><a href="${escapeHtml(link)}">See your result</a></p>
-<p style="color:#5d574c">— Isentrope</p>`,
+          answerHtml: renderModule(answer),
+          link,
+        }),
       },
     ])
   })

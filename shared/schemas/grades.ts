@@ -90,7 +90,7 @@ export interface GradebookModule {
   dueAt: string | null
   pastDue: boolean
   releasedAt: string | null
-  results: 'immediately' | 'after-due' | 'after-release'
+  results: 'immediately' | 'after-due' | 'when-final'
   groupSubmission: boolean
 }
 

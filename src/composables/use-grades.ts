@@ -23,9 +23,9 @@ import { useResource } from './use-resource'
 export const MY_GRADE_STATE_WORDS: Record<MyGradeState, string> = {
   'not-handed-in': 'not handed in',
   'awaiting-grade': 'waiting for a grade',
-  hidden: 'hidden until release',
-  provisional: 'graded, provisional',
-  released: 'released',
+  hidden: 'shown once the marks are final',
+  provisional: 'marked, not final yet',
+  released: 'final',
 }
 
 /** A percentage for tables: one decimal, or a dash. */
