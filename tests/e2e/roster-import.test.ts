@@ -48,9 +48,9 @@ afterAll(async () => {
 
 describe('roster import in the browser', () => {
   it('an instructor imports a CSV, and an invited student chooses a password from the e-mail and lands signed in', async () => {
-    const mira = `mira.${tag}@univ.example`
-    const dag = `dag.${tag}@univ.example`
-    const csv = `Email,Name,Role,Section,Group\n${mira},Mira Okafor ${tag},student,Tue PM,Rig ${tag}\n${dag},Dag Lindqvist ${tag},ta,Tue PM,\n`
+    const mira = `merrin.${tag}@univ.example`
+    const dag = `dace.${tag}@univ.example`
+    const csv = `Email,Name,Role,Section,Group\n${mira},Merrin Saltmarsh ${tag},student,Tue PM,Rig ${tag}\n${dag},Dace Hollowmere ${tag},ta,Tue PM,\n`
 
     const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
     const page = await ctx.newPage()
@@ -92,7 +92,7 @@ describe('roster import in the browser', () => {
     await done.getByText('2 invitations e-mailed').waitFor()
     await noSideways(page)
     await page.getByRole('link', { name: 'See the roster' }).click()
-    await page.getByTestId('roster-table').getByText(`Mira Okafor ${tag}`).waitFor()
+    await page.getByTestId('roster-table').getByText(`Merrin Saltmarsh ${tag}`).waitFor()
     await ctx.close()
 
     const all = await waitForMail((m) => m.some((x) => x.to[0]?.address === mira))
