@@ -95,6 +95,16 @@ const CASES: Case[] = [
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
   {
+    route: 'GET /api/course-keys/:courseSlug',
+    call: (c, fx) => c.agent.get(`/api/course-keys/${fx.courseSlug}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/course-keys/by-id/:courseId',
+    call: (c, fx) => c.agent.get(`/api/course-keys/by-id/${fx.courseId}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
     route: 'GET /api/courses/:courseId/roster',
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/roster`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
@@ -488,7 +498,7 @@ const CASES: Case[] = [
   {
     route: 'POST /api/courses/:courseId/submissions/:submissionId/recheck',
     call: async (c, fx) => {
-      // A recheck needs released grades: release the hand-in's module first (as the instructor would).
+      // A re-check needs final marks: release the hand-in's module first (as the instructor would).
       await ctx.handle.db.update(modules).set({ gradesReleasedAt: new Date() }).where(eq(modules.id, mods.coldFlow!.id))
       await ctx.handle.db.delete(recheckRequests).where(eq(recheckRequests.submissionId, handIn.submissionId!))
       return c.agent

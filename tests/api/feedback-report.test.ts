@@ -16,10 +16,10 @@ import { pdfFonts, readPdf, readZip, squash } from '../helpers/pdf'
 const COLD = currentDueDates(
   readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
 )
-/** The same module, but its results wait for the staff to release the grades. */
+/** The same module, but its results wait until the staff make the marks final. */
 const COLD_AFTER_RELEASE = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, results after release').replace(
   /^results: .*$/m,
-  'results: after-release',
+  'results: when-final',
 )
 
 let ctx: TestContext

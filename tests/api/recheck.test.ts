@@ -21,6 +21,7 @@ const COLD = currentDueDates(
 )
 const moduleText = (title: string, group: boolean) =>
   COLD.replace(/^title: .*$/m, `title: ${title}`)
+    // The older name of `results: when-final`, still read so that modules written with it load.
     .replace('results: immediately', 'results: after-release')
     .replace('groupSubmission: true', `groupSubmission: ${group}`)
 
@@ -108,7 +109,7 @@ describe('asking for a re-check', () => {
   it('is refused before the grades are released (409), and the student is told why', async () => {
     const status = (await student.agent.get(`${R()}/submissions/${soloSub}/recheck`).expect(200)).body as RecheckStatus
     expect(status.canRequest).toBe(false)
-    expect(status.reason).toContain('released')
+    expect(status.reason).toContain('final')
     const res = await recheck(student, soloSub, { message: 'Please look at my impulse again.' })
     expect(res.status).toBe(409)
     expect(res.body.error.code).toBe('not_released')
@@ -163,7 +164,7 @@ describe('asking for a re-check', () => {
     expect(qa.rows.map((r) => r.submissionId)).toEqual([soloSub])
     const qb = (await taB.agent.get(`${R()}/review?status=all&reason=recheck-requested`).expect(200)).body as ReviewPage
     expect(qb.rows).toEqual([])
-    // The student sees the open request on "my grades".
+    // The student sees the open request on "my marks".
     const mine = (await student.agent.get(`${R()}/my-grades`).expect(200)).body as MyGrades
     expect(mine.rows.find((r) => r.moduleId === solo.id)!.recheck).toMatchObject({ status: 'open' })
   })
@@ -216,7 +217,7 @@ describe('asking for a re-check', () => {
     )
     expect(mine).toHaveLength(1)
     expect(mine[0]!.text).toContain(`Checked the window ${tag}`)
-    expect(mine[0]!.text).toContain(`/courses/${fx.courseId}/submissions/${soloSub}`)
+    expect(mine[0]!.text).toContain(`/c/${fx.courseSlug}/hand-ins/${soloSub}`)
     expect(mine[0]!.html).not.toMatch(/<script/i)
   })
 

@@ -55,7 +55,8 @@ describe('roster import in the browser', () => {
     const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
     const page = await ctx.newPage()
     await signIn(page, app.url, instructorEmail, PASSWORD)
-    await page.goto(`${app.url}/courses/${courseId}/roster`)
+    // The course's page address: its code and term, lower case and hyphenated.
+    await page.goto(`${app.url}/c/r${tag.toLowerCase()}-test-term/roster`)
     await page.getByRole('link', { name: 'Import roster' }).click()
     await page.getByRole('heading', { level: 1, name: 'Import roster' }).waitFor()
 
