@@ -23,6 +23,7 @@ import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseAdminRoutes } from './routes/course-admin'
+import { courseKeyRoutes } from './routes/course-keys'
 import { courseRoutes } from './routes/courses'
 import { gradeRoutes } from './routes/grades'
 import { healthRoutes } from './routes/health'
@@ -179,6 +180,7 @@ export function createApp({
   // Every state-changing request below needs the CSRF header (GET/HEAD/OPTIONS do not).
   api.use(csrf.protect)
   api.use('/auth', authRoutes(passport, csrf))
+  api.use('/course-keys', courseKeyRoutes(db))
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
   api.use(
     '/courses/:courseId',

@@ -3,10 +3,10 @@
 
 export const DEMO_DOMAIN = 'calder-ridge.example'
 
+/** The demo course; its term is named when it is seeded (see `demoTerm`), as its dates are. */
 export const DEMO_COURSE = {
   code: 'PRL 341',
   title: 'Propulsion Laboratory: Nozzles and Blow-down Testing',
-  term: 'Winter 2027',
   institution: 'Calder Ridge Polytechnic University (fictional)',
   timeZone: 'America/Denver',
 }

@@ -30,7 +30,8 @@ export async function seedDemo(
   const existing = await db
     .select({ id: courses.id })
     .from(courses)
-    .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.term, DEMO_COURSE.term)))
+    // By code and institution: the term is named from the day of seeding (see demoTerm).
+    .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.institution, DEMO_COURSE.institution)))
   if (existing[0]) {
     // A demo database from before modules existed gets them (and the seeded hand-ins) now.
     const courseId = existing[0].id
@@ -66,7 +67,12 @@ export async function seedDemo(
         .$returningId()
       userIds.set(p.email, row!.id)
     }
-    const id = (await tx.insert(courses).values(DEMO_COURSE).$returningId())[0]!.id
+    const id = (
+      await tx
+        .insert(courses)
+        .values({ ...DEMO_COURSE, term: demoTerm() })
+        .$returningId()
+    )[0]!.id
     const uid = (email: string) => {
       const v = userIds.get(email)
       if (v === undefined) throw new Error(`seed: no user ${email}`)
@@ -215,6 +221,18 @@ async function seedGroupRuns(
       { grading },
     )
   }
+}
+
+/**
+ * The demo course's term, named after the weeks its shifted due dates fall in (the first one two to
+ * three weeks after `now`, see currentDueDates): Winter for January to April, Summer for May to
+ * August, Fall for September to December.
+ */
+export function demoTerm(now = new Date()): string {
+  const firstDue = new Date(now.getTime() + 14 * 86_400_000)
+  const month = firstDue.getUTCMonth()
+  const season = month < 4 ? 'Winter' : month < 8 ? 'Summer' : 'Fall'
+  return `${season} ${firstDue.getUTCFullYear()}`
 }
 
 const DATE_TIME_LINE = /^(\s*(?:at|acceptUntil):\s*)(\d{4})-(\d{2})-(\d{2})T(\d{2}:\d{2})/gm

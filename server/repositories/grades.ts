@@ -7,7 +7,7 @@ import {
   labGroups,
   mailOutbox,
   modules,
-  regradeRequests,
+  recheckRequests,
   sections,
   submissionChecks,
   submissions,
@@ -80,7 +80,7 @@ export interface GradedRow {
   isLate: boolean
   daysLate: number
   reviewStatus: ReviewState
-  regradeOpen: boolean
+  recheckOpen: boolean
 }
 
 /** Every graded hand-in of these modules, newest attempt first. */
@@ -99,8 +99,8 @@ export async function listGraded(db: Executor, courseId: number, moduleIds: numb
       isLate: submissions.isLate,
       daysLate: submissions.daysLate,
       reviewStatus: submissions.reviewStatus,
-      regradeOpen:
-        sql<number>`EXISTS (SELECT 1 FROM ${regradeRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`.mapWith(
+      recheckOpen:
+        sql<number>`EXISTS (SELECT 1 FROM ${recheckRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`.mapWith(
           Number,
         ),
     })
@@ -113,7 +113,7 @@ export async function listGraded(db: Executor, courseId: number, moduleIds: numb
       ),
     )
     .orderBy(desc(submissions.attempt), desc(submissions.id))
-  return rows.map((r) => ({ ...r, regradeOpen: r.regradeOpen === 1 }))
+  return rows.map((r) => ({ ...r, recheckOpen: r.recheckOpen === 1 }))
 }
 
 export interface AnyAttemptRow {
@@ -183,7 +183,7 @@ export async function setGradesReleased(db: Executor, moduleId: number, at: Date
   await db.update(modules).set({ gradesReleasedAt: at }).where(eq(modules.id, moduleId))
 }
 
-export interface RegradeRow {
+export interface RecheckRow {
   id: number
   submissionId: number
   requestedById: number
@@ -197,27 +197,27 @@ export interface RegradeRow {
   createdAt: Date
 }
 
-/** Regrade requests of these hand-ins, oldest first. */
-export async function listRegrades(db: Executor, submissionIds: number[]): Promise<RegradeRow[]> {
+/** Re-check requests of these hand-ins, oldest first. */
+export async function listRechecks(db: Executor, submissionIds: number[]): Promise<RecheckRow[]> {
   if (submissionIds.length === 0) return []
   const rows = await db
     .select({
-      id: regradeRequests.id,
-      submissionId: regradeRequests.submissionId,
-      requestedById: regradeRequests.requestedBy,
+      id: recheckRequests.id,
+      submissionId: recheckRequests.submissionId,
+      requestedById: recheckRequests.requestedBy,
       requestedBy: users.displayName,
       requesterEmail: users.email,
-      message: regradeRequests.message,
-      status: regradeRequests.status,
-      answer: regradeRequests.answer,
-      answeredById: regradeRequests.answeredBy,
-      answeredAt: regradeRequests.answeredAt,
-      createdAt: regradeRequests.createdAt,
+      message: recheckRequests.message,
+      status: recheckRequests.status,
+      answer: recheckRequests.answer,
+      answeredById: recheckRequests.answeredBy,
+      answeredAt: recheckRequests.answeredAt,
+      createdAt: recheckRequests.createdAt,
     })
-    .from(regradeRequests)
-    .innerJoin(users, eq(users.id, regradeRequests.requestedBy))
-    .where(inArray(regradeRequests.submissionId, submissionIds))
-    .orderBy(asc(regradeRequests.id))
+    .from(recheckRequests)
+    .innerJoin(users, eq(users.id, recheckRequests.requestedBy))
+    .where(inArray(recheckRequests.submissionId, submissionIds))
+    .orderBy(asc(recheckRequests.id))
   const answerIds = [...new Set(rows.map((r) => r.answeredById).filter((x): x is number => x !== null))]
   const names = answerIds.length
     ? new Map(
@@ -237,48 +237,48 @@ export async function lockSubmission(tx: Executor, submissionId: number): Promis
   await tx.select({ id: submissions.id }).from(submissions).where(eq(submissions.id, submissionId)).for('update')
 }
 
-export async function hasOpenRegrade(tx: Executor, submissionId: number): Promise<boolean> {
+export async function hasOpenRecheck(tx: Executor, submissionId: number): Promise<boolean> {
   const rows = await tx
-    .select({ id: regradeRequests.id })
-    .from(regradeRequests)
-    .where(and(eq(regradeRequests.submissionId, submissionId), eq(regradeRequests.status, 'open')))
+    .select({ id: recheckRequests.id })
+    .from(recheckRequests)
+    .where(and(eq(recheckRequests.submissionId, submissionId), eq(recheckRequests.status, 'open')))
     .limit(1)
   return rows.length > 0
 }
 
-export async function insertRegrade(
+export async function insertRecheck(
   tx: Executor,
   r: { courseId: number; submissionId: number; requestedBy: number; message: string },
 ): Promise<number> {
-  const [row] = await tx.insert(regradeRequests).values(r).$returningId()
+  const [row] = await tx.insert(recheckRequests).values(r).$returningId()
   return row!.id
 }
 
 /** The request, locked for the answer. */
-export async function findRegradeForUpdate(tx: Executor, submissionId: number, requestId: number) {
+export async function findRecheckForUpdate(tx: Executor, submissionId: number, requestId: number) {
   const [row] = await tx
     .select({
-      id: regradeRequests.id,
-      status: regradeRequests.status,
-      requestedBy: regradeRequests.requestedBy,
-      message: regradeRequests.message,
+      id: recheckRequests.id,
+      status: recheckRequests.status,
+      requestedBy: recheckRequests.requestedBy,
+      message: recheckRequests.message,
     })
-    .from(regradeRequests)
-    .where(and(eq(regradeRequests.id, requestId), eq(regradeRequests.submissionId, submissionId)))
+    .from(recheckRequests)
+    .where(and(eq(recheckRequests.id, requestId), eq(recheckRequests.submissionId, submissionId)))
     .for('update')
   return row ?? null
 }
 
-export async function saveRegradeAnswer(
+export async function saveRecheckAnswer(
   tx: Executor,
   requestId: number,
   answer: string,
   answeredBy: number,
 ): Promise<void> {
   await tx
-    .update(regradeRequests)
+    .update(recheckRequests)
     .set({ status: 'answered', answer, answeredBy, answeredAt: new Date() })
-    .where(eq(regradeRequests.id, requestId))
+    .where(eq(recheckRequests.id, requestId))
 }
 
 /** Puts a hand-in (back) in the review queue and moves its revision on, so open editors reload. */

@@ -223,9 +223,15 @@ export async function listVersionSummaries(db: Executor, moduleId: number): Prom
 export async function courseTimeZone(
   db: Executor,
   courseId: number,
-): Promise<{ timeZone: string; code: string; title: string }> {
+): Promise<{ timeZone: string; code: string; title: string; slug: string }> {
   const [row] = await db
-    .select({ timeZone: courses.timeZone, code: courses.code, title: courses.title })
+    // The slug is generated from code and term and never NULL (see the schema).
+    .select({
+      timeZone: courses.timeZone,
+      code: courses.code,
+      title: courses.title,
+      slug: sql<string>`${courses.slug}`,
+    })
     .from(courses)
     .where(eq(courses.id, courseId))
   if (!row) throw new Error(`course ${courseId} not found`)

@@ -1,6 +1,6 @@
 import { and, asc, count, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
 import type { SQL } from 'drizzle-orm'
-import { REGRADE_REASON } from '../../shared/schemas/grades'
+import { RECHECK_REASON } from '../../shared/schemas/grades'
 import type { FlagStatus, ReviewQuery, ReviewRow, SettableReviewState } from '../../shared/schemas/review'
 import type { Executor } from '../db/client'
 import {
@@ -8,7 +8,7 @@ import {
   gradeChanges,
   labGroups,
   moduleVersions,
-  regradeRequests,
+  recheckRequests,
   sections,
   submissionChecks,
   submissionComments,
@@ -39,9 +39,9 @@ export async function listQueue(
   else where.push(eq(submissions.reviewStatus, q.status))
   if (q.moduleId) where.push(eq(submissions.moduleId, q.moduleId))
   if (q.sectionId) where.push(eq(enrollments.sectionId, q.sectionId))
-  // An open regrade request is a reason of its own, listed with the flag codes.
-  const regradeOpen = sql`EXISTS (SELECT 1 FROM ${regradeRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`
-  if (q.reason === REGRADE_REASON) where.push(regradeOpen)
+  // An open re-check request is a reason of its own, listed with the flag codes.
+  const recheckOpen = sql`EXISTS (SELECT 1 FROM ${recheckRequests} rr WHERE rr.submission_id = ${submissions.id} AND rr.status = 'open')`
+  if (q.reason === RECHECK_REASON) where.push(recheckOpen)
   else if (q.reason)
     where.push(
       sql`EXISTS (SELECT 1 FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id} AND f.code = ${q.reason})`,
@@ -68,7 +68,7 @@ export async function listQueue(
       reviewStatus: submissions.reviewStatus,
       flagCodes: sql<
         string | null
-      >`CONCAT_WS(',', (SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id}), IF(${regradeOpen}, ${REGRADE_REASON}, NULL))`,
+      >`CONCAT_WS(',', (SELECT GROUP_CONCAT(DISTINCT f.code ORDER BY f.code SEPARATOR ',') FROM ${submissionFlags} f WHERE f.submission_id = ${submissions.id}), IF(${recheckOpen}, ${RECHECK_REASON}, NULL))`,
     })
     .from(submissions)
     .innerJoin(users, eq(users.id, submissions.userId))

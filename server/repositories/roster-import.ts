@@ -1,4 +1,4 @@
-import { and, eq, gt, inArray, isNull } from 'drizzle-orm'
+import { and, eq, gt, inArray, isNull, sql } from 'drizzle-orm'
 import type { CourseRole } from '../../shared/schemas/auth'
 import type { Executor } from '../db/client'
 import { courses, enrollments, invitations, labGroups, sections, users } from '../db/schema'
@@ -37,9 +37,15 @@ export async function listCourseGroups(db: Executor, courseId: number): Promise<
 export async function findCourseTitle(
   db: Executor,
   courseId: number,
-): Promise<{ code: string; title: string; timeZone: string } | null> {
+): Promise<{ code: string; title: string; timeZone: string; slug: string } | null> {
   const rows = await db
-    .select({ code: courses.code, title: courses.title, timeZone: courses.timeZone })
+    // The slug is generated from code and term and never NULL (see the schema).
+    .select({
+      code: courses.code,
+      title: courses.title,
+      timeZone: courses.timeZone,
+      slug: sql<string>`${courses.slug}`,
+    })
     .from(courses)
     .where(eq(courses.id, courseId))
     .limit(1)

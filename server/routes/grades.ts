@@ -3,9 +3,9 @@ import type { CourseRole } from '../../shared/schemas/auth'
 import { CourseIdParamsSchema } from '../../shared/schemas/courses'
 import {
   GradebookQuerySchema,
-  RegradeAnswerSchema,
-  RegradeParamsSchema,
-  RegradeRequestSchema,
+  RecheckAnswerSchema,
+  RecheckParamsSchema,
+  RecheckRequestSchema,
   WeightSchema,
 } from '../../shared/schemas/grades'
 import { ModuleParamsSchema } from '../../shared/schemas/modules'
@@ -15,7 +15,7 @@ import { ANY_MEMBER, INSTRUCTOR, STAFF, courseMember, enrollmentOf } from '../mi
 import { valid, validate } from '../middleware/validate'
 import { gradebookCsv } from '../services/gradebook-csv'
 import { changeWeight, gradebook, myGrades, releaseGrades, withdrawRelease } from '../services/grades-service'
-import { answerRegrade, regradeStatus, requestRegrade } from '../services/regrade-service'
+import { answerRecheck, recheckStatus, requestRecheck } from '../services/recheck-service'
 
 interface Opts {
   appUrl: string
@@ -32,10 +32,10 @@ const STUDENT: readonly CourseRole[] = ['student']
  * - POST   /gradebook/modules/:moduleId/release         instructor (e-mails every student once; a repeat is a no-op; a draft → 409)
  * - DELETE /gradebook/modules/:moduleId/release         instructor (withdraws the release, no e-mail)
  * - GET    /my-grades                                   student (staff → 403: they use the gradebook)
- * - GET    /submissions/:submissionId/regrade           the student who handed it in (or their lab group for a group
+ * - GET    /submissions/:submissionId/recheck           the student who handed it in (or their lab group for a group
  *                                                       hand-in), or staff in scope as for review; others 404
- * - POST   /submissions/:submissionId/regrade           that student or group member (staff → 403; someone else's → 404)
- * - POST   /submissions/:submissionId/regrade/:requestId/answer   staff (a TA only for their own section; others 404)
+ * - POST   /submissions/:submissionId/recheck           that student or group member (staff → 403; someone else's → 404)
+ * - POST   /submissions/:submissionId/recheck/:requestId/answer   staff (a TA only for their own section; others 404)
  */
 export function gradeRoutes(db: Database, opts: Opts): Router {
   const r = Router({ mergeParams: true })
@@ -96,44 +96,44 @@ export function gradeRoutes(db: Database, opts: Opts): Router {
   })
 
   r.get(
-    '/submissions/:submissionId/regrade',
+    '/submissions/:submissionId/recheck',
     courseMember(db, ANY_MEMBER),
     validate('params', SubmissionParamsSchema),
     async (_req, res) => {
-      res.json(await regradeStatus(db, enrollmentOf(res), valid(res, 'params', SubmissionParamsSchema).submissionId))
+      res.json(await recheckStatus(db, enrollmentOf(res), valid(res, 'params', SubmissionParamsSchema).submissionId))
     },
   )
 
   r.post(
-    '/submissions/:submissionId/regrade',
+    '/submissions/:submissionId/recheck',
     courseMember(db, STUDENT),
     validate('params', SubmissionParamsSchema),
     jsonBody,
-    validate('body', RegradeRequestSchema),
+    validate('body', RecheckRequestSchema),
     async (_req, res) => {
       const { submissionId } = valid(res, 'params', SubmissionParamsSchema)
       res
         .status(201)
         .json(
-          await requestRegrade(db, enrollmentOf(res), submissionId, valid(res, 'body', RegradeRequestSchema).message),
+          await requestRecheck(db, enrollmentOf(res), submissionId, valid(res, 'body', RecheckRequestSchema).message),
         )
     },
   )
 
   r.post(
-    '/submissions/:submissionId/regrade/:requestId/answer',
+    '/submissions/:submissionId/recheck/:requestId/answer',
     courseMember(db, STAFF),
-    validate('params', RegradeParamsSchema),
+    validate('params', RecheckParamsSchema),
     jsonBody,
-    validate('body', RegradeAnswerSchema),
+    validate('body', RecheckAnswerSchema),
     async (_req, res) => {
-      const { submissionId, requestId } = valid(res, 'params', RegradeParamsSchema)
-      const result = await answerRegrade(
+      const { submissionId, requestId } = valid(res, 'params', RecheckParamsSchema)
+      const result = await answerRecheck(
         db,
         enrollmentOf(res),
         submissionId,
         requestId,
-        valid(res, 'body', RegradeAnswerSchema).answer,
+        valid(res, 'body', RecheckAnswerSchema).answer,
         opts.appUrl,
       )
       opts.onMailQueued()

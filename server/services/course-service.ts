@@ -1,11 +1,14 @@
 import type { SessionUser } from '../../shared/schemas/auth'
-import type { CourseHome, CourseSummary, CreateCourse, RosterEntry } from '../../shared/schemas/courses'
+import type { CourseHome, CourseKeys, CourseSummary, CreateCourse, RosterEntry } from '../../shared/schemas/courses'
 import type { Database } from '../db/client'
 import { AppError, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
+import { listModuleRows } from '../repositories/modules'
 import {
   countByRole,
+  findCourseIdBySlug,
   findCourseSummary,
+  findEnrollment,
   insertCourseWithInstructor,
   listCoursesForUser,
   listGroupMemberNames,
@@ -34,6 +37,26 @@ export async function courseHome(db: Database, enrollment: CourseEnrollment): Pr
   }
 }
 
+/**
+ * The page-address keys of a course this person is enrolled in, found by its slug or its id (old
+ * numeric addresses). Not enrolled, or no such course: 404, as for every course route.
+ */
+export async function courseKeys(
+  db: Database,
+  user: SessionUser,
+  key: { slug: string } | { courseId: number },
+): Promise<CourseKeys> {
+  const courseId = 'slug' in key ? await findCourseIdBySlug(db, key.slug) : key.courseId
+  const enrollment = courseId === null ? null : await findEnrollment(db, user.id, courseId)
+  if (!enrollment) throw notFound('That course')
+  const course = await findCourseSummary(db, user.id, enrollment.courseId)
+  if (!course) throw notFound('That course')
+  const staff = enrollment.role !== 'student'
+  // The same sheets the course home lists to this person.
+  const rows = await listModuleRows(db, enrollment.courseId, staff ? undefined : ['published', 'closed'])
+  return { courseId: course.id, slug: course.slug, sheets: rows.map((m) => ({ id: m.id, slug: m.slug })) }
+}
+
 export function roster(db: Database, enrollment: CourseEnrollment): Promise<RosterEntry[]> {
   return listRoster(db, enrollment.courseId)
 }
@@ -47,9 +70,13 @@ export async function createCourse(db: Database, user: SessionUser, input: Creat
     return summary
   } catch (err) {
     if (isDuplicate(err)) {
-      throw new AppError('course_exists', `A course ${input.code} already exists for ${input.term}.`, 409, {
-        fields: ['code', 'term'],
-      })
+      // The page-address key is unique too: code and term that differ only in case or punctuation clash.
+      throw new AppError(
+        'course_exists',
+        `A course ${input.code} already exists for ${input.term} (or one whose code and term differ only in case or punctuation).`,
+        409,
+        { fields: ['code', 'term'] },
+      )
     }
     throw err
   }

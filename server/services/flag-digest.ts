@@ -1,8 +1,8 @@
 import type { Database } from '../db/client'
+import { flagDigestMail, pageLinks } from '../mail/templates'
 import { listCourseStaff } from '../repositories/enrollments'
 import { enqueueMail } from '../repositories/outbox'
 import { claimUndigestedFlags, markFlagsDigested } from '../repositories/review'
-import { escapeHtml } from './text'
 
 /**
  * One e-mail per teaching assistant listing the flags raised in their section since the last
@@ -22,7 +22,7 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
 
     const perReader = new Map<
       string,
-      { email: string; name: string; code: string; courseId: number; items: typeof flags }
+      { email: string; name: string; code: string; courseSlug: string; courseId: number; items: typeof flags }
     >()
     for (const f of flags) {
       const tas = staff.filter(
@@ -35,6 +35,7 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
           email: r.email,
           name: r.name,
           code: r.code,
+          courseSlug: r.courseSlug,
           courseId: r.courseId,
           items: [],
         }
@@ -43,38 +44,25 @@ export async function queueFlagDigests(db: Database, appUrl: string, batch = 500
       }
     }
     const stamp = Date.now()
-    const base = appUrl.replace(/\/$/, '')
     await enqueueMail(
       tx,
       [...perReader.values()].map((r) => {
-        const lines = r.items.map(
-          (f) =>
-            `- ${f.student}, ${f.moduleTitle}: ${f.message}\n  ${base}/courses/${f.courseId}/review/${f.submissionId}`,
-        )
+        const links = pageLinks(appUrl, r.courseSlug)
         return {
           dedupeKey: `flag-digest:${r.courseId}:${stamp}:${r.items[0]!.id}`,
           toAddress: r.email,
           toName: r.name,
-          subject: `${r.code}: ${r.items.length} new flag${r.items.length === 1 ? '' : 's'} to review`,
-          textBody: [
-            `Hello ${r.name},`,
-            '',
-            `New flags in ${r.code} since the last summary:`,
-            '',
-            ...lines,
-            '',
-            `Review queue: ${base}/courses/${r.courseId}/review`,
-            '',
-            '— Isentrope',
-          ].join('\n'),
-          htmlBody: `<p>Hello ${escapeHtml(r.name)},</p><p>New flags in <strong>${escapeHtml(r.code)}</strong> since the last summary:</p><ul>${r.items
-            .map(
-              (f) =>
-                `<li><a href="${escapeHtml(`${base}/courses/${f.courseId}/review/${f.submissionId}`)}">${escapeHtml(f.student)}, ${escapeHtml(f.moduleTitle)}</a>: ${escapeHtml(f.message)}</li>`,
-            )
-            .join(
-              '',
-            )}</ul><p><a href="${escapeHtml(`${base}/courses/${r.courseId}/review`)}">Open the review queue</a></p><p style="color:#5d574c">— Isentrope</p>`,
+          ...flagDigestMail({
+            name: r.name,
+            courseCode: r.code,
+            items: r.items.map((f) => ({
+              student: f.student,
+              sheetTitle: f.moduleTitle,
+              message: f.message,
+              link: links.review(f.submissionId),
+            })),
+            queueLink: links.reviewQueue,
+          }),
         }
       }),
     )

@@ -1,6 +1,6 @@
 import { dueFor } from '../../shared/grading/due'
 import { histogram, mean, median, percentOf, weightedTotal } from '../../shared/grading/gradebook'
-import type { ModuleFrontMatter } from '../../shared/modules/schema'
+import { resultsVisibility, type ModuleFrontMatter } from '../../shared/modules/schema'
 import type {
   CheckFailures,
   Gradebook,
@@ -33,9 +33,9 @@ import {
 import { listExtensions } from '../repositories/due-extensions'
 import { courseTimeZone, findModule, findVersions, listModuleRows } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
-import { regradeViews } from './regrade-service'
+import { recheckViews } from './recheck-service'
 import { visibility } from './submission-service'
-import { escapeHtml } from './text'
+import { marksFinalMail, pageLinks } from '../mail/templates'
 
 /** A module that can carry grades: published or closed, with something to hand in. */
 interface GradedModule {
@@ -127,7 +127,7 @@ function cellOf(s: GradedRow): GradebookCell {
     isLate: s.isLate,
     daysLate: s.daysLate,
     reviewStatus: s.reviewStatus,
-    regradeOpen: s.regradeOpen,
+    recheckOpen: s.recheckOpen,
   }
 }
 
@@ -232,7 +232,7 @@ export async function gradebook(
     // The module's own due date; students with a later extension are listed in `extendedOpen`.
     pastDue: isPastDue(m, now, 0, NO_EXTENSIONS),
     releasedAt: m.releasedAt?.toISOString() ?? null,
-    results: m.fm.results,
+    results: resultsVisibility(m.fm.results),
     groupSubmission: m.fm.groupSubmission,
   }))
   const taSection = e.role === 'ta' ? e.sectionId : undefined
@@ -271,7 +271,11 @@ export async function releaseGrades(
     const m = await findModule(tx, e.courseId, moduleId, true)
     if (!m) throw notFound('That module')
     if (m.status === 'draft' || m.publishedVersionId === null) {
-      throw new AppError('module_draft', 'This module is a draft: publish it before releasing its grades.', 409)
+      throw new AppError(
+        'module_draft',
+        'This module is still being prepared: issue it to the class before making its marks final.',
+        409,
+      )
     }
     if (m.gradesReleasedAt) return { moduleId, releasedAt: m.gradesReleasedAt.toISOString(), emailed: 0 }
     await setGradesReleased(tx, moduleId, now)
@@ -281,7 +285,7 @@ export async function releaseGrades(
     const fm = version?.frontMatter as unknown as ModuleFrontMatter | null | undefined
     const students = await listStudents(tx, e.courseId)
     const graded = fm?.assignment ? await listGraded(tx, e.courseId, [moduleId]) : []
-    const base = appUrl.replace(/\/$/, '')
+    const links = pageLinks(appUrl, course.slug)
     const gm = fm ? { id: moduleId, fm } : null
     const when = formatInZone(now, course.timeZone)
     // A release withdrawn and made again mails nobody twice.
@@ -291,32 +295,19 @@ export async function releaseGrades(
       .filter((st) => !already.has(st.email))
       .map((st) => {
         const counted = gm ? countedFor(st, gm, graded) : null
-        const link = counted
-          ? `${base}/courses/${e.courseId}/submissions/${counted.id}`
-          : `${base}/courses/${e.courseId}/grades`
-        const what = counted ? 'See your result' : 'See your grades'
+        const link = counted ? links.handInResult(counted.id) : links.myMarks
         return {
           dedupeKey,
           toAddress: st.email,
           toName: st.name,
-          subject: `${course.code}: grades released — ${title}`,
-          textBody: [
-            `Hello ${st.name},`,
-            '',
-            `The grades for “${title}” in ${course.code} were released on ${when}.`,
-            counted
-              ? 'Your counted hand-in, its checks and any staff comments are on your result page.'
-              : 'There is no graded hand-in of yours for this module.',
-            '',
-            `${what}: ${link}`,
-            '',
-            '— Isentrope',
-          ].join('\n'),
-          htmlBody: `<p>Hello ${escapeHtml(st.name)},</p>
-<p>The grades for <strong>${escapeHtml(title)}</strong> in ${escapeHtml(course.code)} were released on ${escapeHtml(when)}.</p>
-<p>${counted ? 'Your counted hand-in, its checks and any staff comments are on your result page.' : 'There is no graded hand-in of yours for this module.'}</p>
-<p><a href="${escapeHtml(link)}">${what}</a></p>
-<p style="color:#5d574c">— Isentrope</p>`,
+          ...marksFinalMail({
+            name: st.name,
+            courseCode: course.code,
+            sheetTitle: title,
+            when,
+            counted: counted !== null,
+            link,
+          }),
         }
       })
     await enqueueMail(tx, mails)
@@ -336,10 +327,10 @@ export async function withdrawRelease(db: Database, e: CourseEnrollment, moduleI
 
 /**
  * A student's own grades: every module with something to hand in, what state its grade is in,
- * the counted score when it may be shown, and the latest regrade request on it.
+ * the counted score when it may be shown, and the latest re-check request on it.
  */
 export async function myGrades(db: Database, e: CourseEnrollment, now = new Date()): Promise<MyGrades> {
-  if (e.role !== 'student') throw forbidden('“My grades” is for students; staff see every grade in the gradebook.')
+  if (e.role !== 'student') throw forbidden('“My marks” is for students; staff see every mark on the Marks page.')
   const course = await courseTimeZone(db, e.courseId)
   const mods = await gradedModules(db, e.courseId)
   const [graded, attempts, ext] = await Promise.all([
@@ -357,7 +348,7 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
     const s = countedFor(me, m, graded)
     if (s) counted.set(m.id, s)
   }
-  const regrades = await regradeViews(
+  const rechecks = await recheckViews(
     db,
     [...counted.values()].map((s) => s.id),
   )
@@ -392,15 +383,15 @@ export async function myGrades(db: Database, e: CourseEnrollment, now = new Date
       maxScore: null,
       isLate: false,
       daysLate: 0,
-      regrade: null,
+      recheck: null,
     }
     if (!s) {
       if (!anyAttempt) return { ...base, state: 'not-handed-in' as const, submissionId: null, attempt: null }
       return { ...base, state: 'awaiting-grade' as const, submissionId: anyAttempt.id, attempt: anyAttempt.attempt }
     }
-    const mine = regrades.filter((r) => r.submissionId === s.id)
-    const regrade = mine.find((r) => r.status === 'open') ?? mine.at(-1) ?? null
-    const common = { ...base, submissionId: s.id, attempt: s.attempt, isLate: s.isLate, daysLate: s.daysLate, regrade }
+    const mine = rechecks.filter((r) => r.submissionId === s.id)
+    const recheck = mine.find((r) => r.status === 'open') ?? mine.at(-1) ?? null
+    const common = { ...base, submissionId: s.id, attempt: s.attempt, isLate: s.isLate, daysLate: s.daysLate, recheck }
     if (!vis.visible) return { ...common, state: 'hidden' as const, hiddenReason: vis.reason }
     return {
       ...common,

@@ -33,7 +33,7 @@ import {
   updateDraftVersion,
 } from '../repositories/modules'
 import { enqueueMail } from '../repositories/outbox'
-import { escapeHtml } from './text'
+import { pageLinks, sheetIssuedMail } from '../mail/templates'
 
 const isStaff = (e: CourseEnrollment) => e.role === 'instructor' || e.role === 'ta'
 
@@ -121,7 +121,11 @@ export async function readModule(db: Database, e: CourseEnrollment, moduleId: nu
   // A draft does not exist for students: same answer as a module that is not there.
   if (!m || (!staff && m.status === 'draft') || m.publishedVersionId === null) {
     if (m && staff)
-      throw new AppError('not_published', 'This module has not been published yet; open it in the editor.', 409)
+      throw new AppError(
+        'not_published',
+        'This module has not been issued to the class yet; open it in the editor.',
+        409,
+      )
     throw notFound('That module')
   }
   const v = await findVersion(db, m.publishedVersionId)
@@ -261,7 +265,7 @@ export async function publishModule(
     const m = await findModule(tx, e.courseId, moduleId, true)
     if (!m) throw notFound('That module')
     if (m.currentVersionId !== versionId) {
-      throw new AppError('edit_conflict', 'The module changed since you opened it; reload before publishing.', 409, {
+      throw new AppError('edit_conflict', 'The module changed since you opened it; reload before issuing it.', 409, {
         currentVersionId: m.currentVersionId,
       })
     }
@@ -275,26 +279,31 @@ export async function publishModule(
       }
       throw new AppError(
         'already_published',
-        `Version ${v.number} is already published. Edit the module to start a new version.`,
+        `Version ${v.number} is already issued. Edit the module to start a new version.`,
         409,
       )
     }
     if (!v.valid) {
       throw new AppError(
         'module_invalid',
-        `“${v.title}” has ${v.issues.length} problem${v.issues.length === 1 ? '' : 's'} to fix before it can be published.`,
+        `“${v.title}” has ${v.issues.length} problem${v.issues.length === 1 ? '' : 's'} to fix before it can be issued.`,
         422,
         { issues: v.issues },
       )
     }
     await markPublished(tx, m.id, v.id, m.publishedVersionId, e.userId)
     const students = await listStudents(tx, e.courseId)
-    const link = `${appUrl.replace(/\/$/, '')}/courses/${e.courseId}/modules/${m.id}`
+    const link = pageLinks(appUrl, course.slug).sheet(m.slug)
     const due = v.dueAt ? formatInZone(v.dueAt, course.timeZone) : null
     const update = m.publishedVersionId !== null
     await enqueueMail(
       tx,
-      students.map((s) => publishedMail({ to: s, course, title: v.title, due, link, update, versionId: v.id })),
+      students.map((s) => ({
+        dedupeKey: `module-published:${v.id}`,
+        toAddress: s.email,
+        toName: s.displayName,
+        ...sheetIssuedMail({ name: s.displayName, course, title: v.title, due, link, update }),
+      })),
     )
     return students.length
   })
@@ -304,49 +313,10 @@ export async function publishModule(
   return { module, emailed }
 }
 
-function publishedMail(p: {
-  to: { email: string; displayName: string }
-  course: { code: string; title: string }
-  title: string
-  due: string | null
-  link: string
-  update: boolean
-  versionId: number
-}) {
-  const what = p.update ? 'An updated lab module is' : 'A new lab module is'
-  const subject = `${p.course.code}: ${p.update ? 'updated' : 'new'} lab module “${p.title}”`
-  const dueLine = p.due ? `Due: ${p.due}` : 'No due date.'
-  const text = [
-    `Hello ${p.to.displayName},`,
-    '',
-    `${what} published in ${p.course.code} ${p.course.title}:`,
-    '',
-    `  ${p.title}`,
-    `  ${dueLine}`,
-    '',
-    `Read it here: ${p.link}`,
-    '',
-    '— Isentrope',
-  ].join('\n')
-  const html = `<p>Hello ${escapeHtml(p.to.displayName)},</p>
-<p>${what} published in <strong>${escapeHtml(p.course.code)} ${escapeHtml(p.course.title)}</strong>:</p>
-<p style="font-size:1.15em"><strong>${escapeHtml(p.title)}</strong><br>${escapeHtml(dueLine)}</p>
-<p><a href="${escapeHtml(p.link)}">Open the module</a></p>
-<p style="color:#5d574c">— Isentrope</p>`
-  return {
-    dedupeKey: `module-published:${p.versionId}`,
-    toAddress: p.to.email,
-    toName: p.to.displayName,
-    subject,
-    textBody: text,
-    htmlBody: html,
-  }
-}
-
 export async function unpublishModule(db: Database, e: CourseEnrollment, moduleId: number): Promise<ModuleListItem> {
   const m = await findModule(db, e.courseId, moduleId)
   if (!m) throw notFound('That module')
-  if (m.status === 'draft') throw new AppError('not_published', 'This module is not published.', 409)
+  if (m.status === 'draft') throw new AppError('not_published', 'This module is not issued to the class.', 409)
   await setModuleStatus(db, m.id, 'draft')
   const module = (await listModules(db, e)).find((x) => x.id === moduleId)
   if (!module) throw notFound('That module')

@@ -27,7 +27,7 @@ import {
 } from '../repositories/review'
 import { listSectionOptions } from '../repositories/grades'
 import { findSubmission } from '../repositories/submissions'
-import { REGRADE_REASON } from '../../shared/schemas/grades'
+import { RECHECK_REASON } from '../../shared/schemas/grades'
 
 /**
  * A TA works the submissions of their own section; the instructor sees every section. A
@@ -54,7 +54,10 @@ export async function reviewQueue(db: Database, e: CourseEnrollment, q: ReviewQu
     listFlagReasons(db, e.courseId),
   ])
   const sections = e.role === 'ta' ? allSections.filter((s) => s.id === e.sectionId) : allSections
-  const facets = { sections, reasons: [...reasons, { code: REGRADE_REASON, example: 'A student asked for a regrade' }] }
+  const facets = {
+    sections,
+    reasons: [...reasons, { code: RECHECK_REASON, example: 'A student asked for a re-check' }],
+  }
   if (e.role === 'ta') {
     if (e.sectionId === null) return { rows: [], total: 0, page: q.page, pageSize: q.pageSize, facets }
     q = { ...q, sectionId: e.sectionId }

@@ -6,6 +6,7 @@ import { AppError, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
 import { insertInvitations } from '../repositories/invitations'
 import type { NewMail } from '../repositories/outbox'
+import { invitationLink, pageLinks, rosterAddedMail, rosterInvitationMail } from '../mail/templates'
 import { enqueueMail } from '../repositories/outbox'
 import type { EnrollmentWrite } from '../repositories/roster-import'
 import {
@@ -20,7 +21,6 @@ import {
 } from '../repositories/roster-import'
 import type { PlannedRow, RosterInput } from './roster-import-plan'
 import { planRosterImport } from './roster-import-plan'
-import { escapeHtml } from './text'
 
 /**
  * Roster import: an instructor's CSV of students and TAs becomes accounts, enrolments, sections,
@@ -152,14 +152,14 @@ export async function confirmRosterImport(
           createdBy: e.userId,
         })),
       )
-      const base = opts.appUrl.replace(/\/$/, '')
+      const links = pageLinks(opts.appUrl, course.slug)
       const mails: NewMail[] = [
         ...invited.map((i) =>
           invitationMail({
             to: { email: i.r.parsed.email, displayName: i.r.person?.displayName ?? i.r.parsed.displayName },
             course,
             role: i.r.role,
-            link: `${base}/invitations/${i.token}`,
+            link: invitationLink(opts.appUrl, i.token),
             expires: formatInZone(expiresAt, course.timeZone),
             invitationId: ids.get(i.tokenHash)!,
           }),
@@ -171,7 +171,7 @@ export async function confirmRosterImport(
               to: { email: r.parsed.email, displayName: r.person?.displayName ?? r.parsed.displayName },
               course,
               role: r.role,
-              link: `${base}/courses/${e.courseId}`,
+              link: links.course,
               courseId: e.courseId,
             }),
           ),
@@ -220,31 +220,17 @@ function invitationMail(p: {
   expires: string
   invitationId: number
 }): NewMail {
-  const as = p.role === 'ta' ? 'a teaching assistant' : 'a student'
-  const text = [
-    `Hello ${p.to.displayName},`,
-    '',
-    `You have been added to ${p.course.code} ${p.course.title} on Isentrope as ${as}.`,
-    'Choose a password to sign in:',
-    '',
-    `  ${p.link}`,
-    '',
-    `The link works once, until ${p.expires}. If it has expired, ask your instructor for a new one.`,
-    '',
-    '— Isentrope',
-  ].join('\n')
-  const html = `<p>Hello ${escapeHtml(p.to.displayName)},</p>
-<p>You have been added to <strong>${escapeHtml(p.course.code)} ${escapeHtml(p.course.title)}</strong> on Isentrope as ${as}.</p>
-<p><a href="${escapeHtml(p.link)}">Choose your password</a></p>
-<p>The link works once, until ${escapeHtml(p.expires)}. If it has expired, ask your instructor for a new one.</p>
-<p style="color:#5d574c">— Isentrope</p>`
   return {
     dedupeKey: `invitation:${p.invitationId}`,
     toAddress: p.to.email,
     toName: p.to.displayName,
-    subject: `${p.course.code}: choose your Isentrope password`,
-    textBody: text,
-    htmlBody: html,
+    ...rosterInvitationMail({
+      name: p.to.displayName,
+      course: p.course,
+      role: p.role,
+      link: p.link,
+      expires: p.expires,
+    }),
   }
 }
 
@@ -255,25 +241,10 @@ function enrolledMail(p: {
   link: string
   courseId: number
 }): NewMail {
-  const as = p.role === 'ta' ? 'a teaching assistant' : 'a student'
-  const text = [
-    `Hello ${p.to.displayName},`,
-    '',
-    `You have been added to ${p.course.code} ${p.course.title} on Isentrope as ${as}.`,
-    `Sign in with your existing password to open it: ${p.link}`,
-    '',
-    '— Isentrope',
-  ].join('\n')
-  const html = `<p>Hello ${escapeHtml(p.to.displayName)},</p>
-<p>You have been added to <strong>${escapeHtml(p.course.code)} ${escapeHtml(p.course.title)}</strong> on Isentrope as ${as}.</p>
-<p><a href="${escapeHtml(p.link)}">Open the course</a> (sign in with your existing password).</p>
-<p style="color:#5d574c">— Isentrope</p>`
   return {
     dedupeKey: `course-enrolled:${p.courseId}`,
     toAddress: p.to.email,
     toName: p.to.displayName,
-    subject: `${p.course.code}: you have been added to ${p.course.title}`,
-    textBody: text,
-    htmlBody: html,
+    ...rosterAddedMail({ name: p.to.displayName, course: p.course, role: p.role, link: p.link }),
   }
 }

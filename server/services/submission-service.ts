@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto'
 import { logFingerprint } from '../../shared/grading/fingerprint'
 import { chartSeries } from '../../shared/grading/grade'
-import type { ModuleFrontMatter } from '../../shared/modules/schema'
+import { resultsVisibility, type ModuleFrontMatter } from '../../shared/modules/schema'
 import { GRADING_FAILED_MESSAGE } from '../../shared/schemas/submissions'
 import type {
   CheckUncertaintyView,
@@ -39,8 +39,8 @@ import { submitterSection } from '../repositories/review'
 import { findExtensionDue } from '../repositories/due-extensions'
 import { dueFor } from '../../shared/grading/due'
 import { findUserById } from '../repositories/users'
+import { handInReceivedMail, pageLinks } from '../mail/templates'
 import { commentsFor } from './review-service'
-import { escapeHtml } from './text'
 import { handInRefusal, validateHandIn } from './hand-in-validation'
 import type { UploadedTable } from './hand-in-validation'
 import { gradeNow, gradingInputOf } from './grading-service'
@@ -133,16 +133,16 @@ function lateness(
 
 /** Whether the student may see results now, and if not, why. */
 export function visibility(p: Published, now: Date, timeZone: string): { visible: boolean; reason: string | null } {
-  switch (p.fm.results) {
+  switch (resultsVisibility(p.fm.results)) {
     case 'after-due':
       if (p.dueAt && now.getTime() < p.dueAt.getTime()) {
         return { visible: false, reason: `Results are shown after the due date, ${formatInZone(p.dueAt, timeZone)}.` }
       }
       return { visible: true, reason: null }
-    case 'after-release':
+    case 'when-final':
       return p.gradesReleasedAt
         ? { visible: true, reason: null }
-        : { visible: false, reason: 'Results are shown once the course staff release the grades.' }
+        : { visible: false, reason: 'Results are shown once the course staff make the marks final.' }
     default:
       return { visible: true, reason: null }
   }
@@ -500,7 +500,7 @@ export async function handInReceipt(
     : me
       ? [{ email: me.email, displayName: me.displayName }]
       : []
-  const link = `${appUrl.replace(/\/$/, '')}/courses/${d.courseId}/submissions/${d.id}`
+  const link = pageLinks(appUrl, course.slug).handInResult(d.id)
   const when = formatInZone(new Date(d.submittedAt), course.timeZone)
   const scoreLine =
     d.status === 'grading-failed'
@@ -512,21 +512,17 @@ export async function handInReceipt(
     dedupeKey: `submission-receipt:${d.id}`,
     toAddress: p.email,
     toName: p.displayName,
-    subject: `${course.code}: hand-in received — ${d.moduleTitle} (attempt ${d.attempt})`,
-    textBody: [
-      `Hello ${p.displayName},`,
-      '',
-      `Isentrope received ${group && d.labGroupName ? `${d.labGroupName}'s` : 'your'} hand-in for “${d.moduleTitle}” (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${when}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.`,
+    ...handInReceivedMail({
+      name: p.displayName,
+      courseCode: course.code,
+      sheetTitle: d.moduleTitle,
+      groupName: group && d.labGroupName ? d.labGroupName : null,
+      attempt: d.attempt,
+      attemptsAllowed: d.attemptsAllowed,
+      when,
+      daysLate: d.isLate ? d.daysLate : null,
       scoreLine,
-      '',
-      `See the checks: ${link}`,
-      '',
-      '— Isentrope',
-    ].join('\n'),
-    htmlBody: `<p>Hello ${escapeHtml(p.displayName)},</p>
-<p>Isentrope received ${group && d.labGroupName ? `${escapeHtml(d.labGroupName)}'s` : 'your'} hand-in for <strong>${escapeHtml(d.moduleTitle)}</strong> (attempt ${d.attempt} of ${d.attemptsAllowed}) on ${escapeHtml(when)}${d.isLate ? `, ${d.daysLate} day(s) late` : ''}.</p>
-<p>${escapeHtml(scoreLine)}</p>
-<p><a href="${escapeHtml(link)}">See the checks</a></p>
-<p style="color:#5d574c">— Isentrope</p>`,
+      link,
+    }),
   }))
 }

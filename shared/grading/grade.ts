@@ -3,7 +3,7 @@
  * check within tolerance with its points, the score with any late penalty, and flags that put the
  * submission in the staff review queue (built-in data checks and the module's review rules).
  *
- * Pure and synchronous, shared by the server (grading on submit, regrades) and the browser (the
+ * Pure and synchronous, shared by the server (grading on submit, re-checks) and the browser (the
  * chart). Expected values always come from the module's expressions over this submission's data
  * (shared/modules/expressions.ts), never from a stored answer key.
  *

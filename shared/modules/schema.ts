@@ -609,7 +609,21 @@ export const ModuleTitleSchema = singleLineName({
   messages: { tooShort: 'the title must not be empty', tooLong: 'a title has at most 200 characters' },
 })
 
-export const RESULTS_VISIBILITY = ['immediately', 'after-due', 'after-release'] as const
+/**
+ * When students see their results: at once, after the due date, or once staff make the marks final
+ * (`when-final`). `after-release` is the older name of `when-final`, still read so that modules
+ * written with it keep loading.
+ */
+export const RESULTS_VISIBILITY = ['immediately', 'after-due', 'when-final'] as const
+const OLD_RESULTS_NAMES = { 'after-release': 'when-final' } as const
+
+/** A stored or written results setting in today's words (front matter saved before the rename). */
+export function resultsVisibility(v: string | undefined): (typeof RESULTS_VISIBILITY)[number] {
+  const now = v !== undefined && v in OLD_RESULTS_NAMES ? OLD_RESULTS_NAMES[v as keyof typeof OLD_RESULTS_NAMES] : v
+  return (RESULTS_VISIBILITY as readonly string[]).includes(now ?? '')
+    ? (now as (typeof RESULTS_VISIBILITY)[number])
+    : 'immediately'
+}
 
 export const FrontMatterSchema = z
   .strictObject({
@@ -624,7 +638,12 @@ export const FrontMatterSchema = z
       .default(3),
     late: LateSchema.optional(),
     /** When students see their graded results. */
-    results: z.enum(RESULTS_VISIBILITY).default('immediately'),
+    results: z
+      .enum([...RESULTS_VISIBILITY, ...(Object.keys(OLD_RESULTS_NAMES) as (keyof typeof OLD_RESULTS_NAMES)[])], {
+        error: `must be one of ${RESULTS_VISIBILITY.join(', ')}`,
+      })
+      .default('immediately')
+      .transform(resultsVisibility),
     /** Whether a student sees the expected value next to their own. */
     showExpected: z.boolean().default(false),
     /** One member submits for the whole lab group. */

@@ -7,7 +7,7 @@ export const SignInSchema = z.object({
     .trim()
     .min(1, 'Enter your e-mail address.')
     .max(254, 'That e-mail address is too long.')
-    .email('Enter a valid e-mail address, such as name@university.edu.')
+    .email('Enter a valid e-mail address, such as name@university.example.')
     .transform((s) => s.toLowerCase()),
   password: z
     .string({ error: 'Enter your password.' })

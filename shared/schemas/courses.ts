@@ -56,6 +56,8 @@ export interface CourseSummary {
   term: string
   institution: string
   timeZone: string
+  /** The course's key in page addresses: code and term, lower case, hyphenated. */
+  slug: string
   role: CourseRole
   sectionName: string | null
   labGroupName: string | null
@@ -87,4 +89,22 @@ export interface RosterEntry {
   labGroupName: string | null
   sectionId: number | null
   labGroupId: number | null
+}
+
+/** A course's readable key in page addresses, e.g. `/c/ae-4410-winter-2027`. */
+export const CourseSlugParamsSchema = z.object({
+  courseSlug: z
+    .string()
+    .max(80, 'courseSlug: at most 80 characters.')
+    .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, 'courseSlug: lower-case letters, digits and single hyphens.'),
+})
+
+/**
+ * How page addresses map to ids: the course and the lab sheets this person may open, each by its
+ * slug. Students get the sheets they can read (issued or closed); staff get every sheet.
+ */
+export interface CourseKeys {
+  courseId: number
+  slug: string
+  sheets: { id: number; slug: string }[]
 }

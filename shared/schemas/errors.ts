@@ -58,8 +58,8 @@ export const ERROR_CODES = [
   'not_released',
   // Review and re-checks
   'points_out_of_range',
-  'regrade_open',
-  'regrade_answered',
+  'recheck_open',
+  'recheck_answered',
 ] as const
 export type ErrorCode = (typeof ERROR_CODES)[number]
 

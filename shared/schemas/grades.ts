@@ -2,7 +2,7 @@ import { z } from 'zod'
 import type { ReviewState } from './review'
 
 /**
- * The gradebook, grade release, a student's own grades and regrade requests: request schemas
+ * The gradebook, grade release, a student's own grades and re-check requests: request schemas
  * (the browser checks forms with the same ones) and the shapes the API answers with.
  */
 
@@ -31,19 +31,19 @@ export const WeightSchema = z.object({
 })
 export type WeightChange = z.infer<typeof WeightSchema>
 
-export const REGRADE_MESSAGE_MAX = 2000
+export const RECHECK_MESSAGE_MAX = 2000
 
-/** A student's regrade request: what they think is wrong, in their own words. */
-export const RegradeRequestSchema = z.object({
+/** A student's re-check request: what they think is wrong, in their own words. */
+export const RecheckRequestSchema = z.object({
   message: z
     .string({ error: 'write what you would like the staff to look at again.' })
     .trim()
     .min(1, 'write what you would like the staff to look at again.')
-    .max(REGRADE_MESSAGE_MAX, `at most ${REGRADE_MESSAGE_MAX} characters.`),
+    .max(RECHECK_MESSAGE_MAX, `at most ${RECHECK_MESSAGE_MAX} characters.`),
 })
 
-/** The staff answer to a regrade request (Markdown; sanitised when rendered). */
-export const RegradeAnswerSchema = z.object({
+/** The staff answer to a re-check request (Markdown; sanitised when rendered). */
+export const RecheckAnswerSchema = z.object({
   answer: z
     .string({ error: 'write an answer to the student.' })
     .trim()
@@ -51,7 +51,7 @@ export const RegradeAnswerSchema = z.object({
     .max(10_000, 'at most 10 000 characters.'),
 })
 
-export const RegradeParamsSchema = z.object({
+export const RecheckParamsSchema = z.object({
   courseId: z.coerce.number().int().positive('courseId must be a positive whole number.'),
   submissionId: z.coerce.number().int().positive('submissionId must be a positive whole number.'),
   requestId: z.coerce.number().int().positive('requestId must be a positive whole number.'),
@@ -78,7 +78,7 @@ export interface GradebookCell {
   isLate: boolean
   daysLate: number
   reviewStatus: ReviewState
-  regradeOpen: boolean
+  recheckOpen: boolean
 }
 
 export interface GradebookModule {
@@ -89,7 +89,7 @@ export interface GradebookModule {
   dueAt: string | null
   pastDue: boolean
   releasedAt: string | null
-  results: 'immediately' | 'after-due' | 'after-release'
+  results: 'immediately' | 'after-due' | 'when-final'
   groupSubmission: boolean
 }
 
@@ -152,7 +152,7 @@ export interface ReleaseResult {
 
 export type MyGradeState = 'not-handed-in' | 'awaiting-grade' | 'hidden' | 'provisional' | 'released'
 
-export interface RegradeView {
+export interface RecheckView {
   id: number
   submissionId: number
   requestedBy: string
@@ -179,8 +179,8 @@ export interface MyGradeRow {
   maxScore: number | null
   isLate: boolean
   daysLate: number
-  /** The latest regrade request on the counted hand-in (open or answered), if any. */
-  regrade: RegradeView | null
+  /** The latest re-check request on the counted hand-in (open or answered), if any. */
+  recheck: RecheckView | null
 }
 
 export interface MyGrades {
@@ -189,12 +189,12 @@ export interface MyGrades {
   totalPercent: number | null
 }
 
-export interface RegradeStatus {
-  /** Whether the caller may ask for a regrade now; `reason` says why not. */
+export interface RecheckStatus {
+  /** Whether the caller may ask for a re-check now; `reason` says why not. */
   canRequest: boolean
   reason: string | null
-  requests: RegradeView[]
+  requests: RecheckView[]
 }
 
-/** The review queue's reason for hand-ins with an open regrade request (beside the flag codes). */
-export const REGRADE_REASON = 'regrade-requested'
+/** The review queue's reason for hand-ins with an open re-check request (beside the flag codes). */
+export const RECHECK_REASON = 'recheck-requested'

@@ -1,4 +1,4 @@
-import type { Gradebook, GradebookQuery, MyGrades, RegradeStatus, ReleaseResult } from '@shared/schemas/grades'
+import type { Gradebook, GradebookQuery, MyGrades, RecheckStatus, ReleaseResult } from '@shared/schemas/grades'
 import { http } from './http'
 
 const courseBase = (courseId: number) => `/api/courses/${courseId}`
@@ -31,13 +31,13 @@ export const deleteRelease = (courseId: number, moduleId: number) =>
 
 export const fetchMyGrades = (courseId: number) => http<MyGrades>('GET', `${courseBase(courseId)}/my-grades`)
 
-export const fetchRegrade = (courseId: number, submissionId: number) =>
-  http<RegradeStatus>('GET', `${courseBase(courseId)}/submissions/${submissionId}/regrade`)
+export const fetchRecheck = (courseId: number, submissionId: number) =>
+  http<RecheckStatus>('GET', `${courseBase(courseId)}/submissions/${submissionId}/recheck`)
 
-export const postRegrade = (courseId: number, submissionId: number, message: string) =>
-  http<RegradeStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/regrade`, { message })
+export const postRecheck = (courseId: number, submissionId: number, message: string) =>
+  http<RecheckStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/recheck`, { message })
 
-export const postRegradeAnswer = (courseId: number, submissionId: number, requestId: number, answer: string) =>
-  http<RegradeStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/regrade/${requestId}/answer`, {
+export const postRecheckAnswer = (courseId: number, submissionId: number, requestId: number, answer: string) =>
+  http<RecheckStatus>('POST', `${courseBase(courseId)}/submissions/${submissionId}/recheck/${requestId}/answer`, {
     answer,
   })

@@ -1,19 +1,19 @@
 /**
- * Grades: the staff gradebook (weights, release, CSV), a student's own grades, and regrade
+ * Grades: the staff gradebook (weights, release, CSV), a student's own grades, and re-check
  * requests. Views and components take everything from here; only this file talks to `api/grades.ts`.
  */
 import { computed, ref } from 'vue'
 import type { Ref } from 'vue'
-import type { GradebookQuery, MyGradeState, RegradeStatus } from '@shared/schemas/grades'
-import { RegradeAnswerSchema, RegradeRequestSchema, WeightSchema } from '@shared/schemas/grades'
+import type { GradebookQuery, MyGradeState, RecheckStatus } from '@shared/schemas/grades'
+import { RecheckAnswerSchema, RecheckRequestSchema, WeightSchema } from '@shared/schemas/grades'
 import {
   deleteRelease,
   fetchGradebook,
   fetchMyGrades,
-  fetchRegrade,
+  fetchRecheck,
   gradebookCsvUrl,
-  postRegrade,
-  postRegradeAnswer,
+  postRecheck,
+  postRecheckAnswer,
   postRelease,
   putWeight,
 } from '@/api/grades'
@@ -23,9 +23,9 @@ import { useResource } from './use-resource'
 export const MY_GRADE_STATE_WORDS: Record<MyGradeState, string> = {
   'not-handed-in': 'not handed in',
   'awaiting-grade': 'waiting for a grade',
-  hidden: 'hidden until release',
-  provisional: 'graded, provisional',
-  released: 'released',
+  hidden: 'shown once the marks are final',
+  provisional: 'marked, not final yet',
+  released: 'final',
 }
 
 /** A percentage for tables: one decimal, or a dash. */
@@ -84,20 +84,20 @@ export function useMyGrades(courseId: Ref<number>) {
 }
 
 /**
- * The regrade requests of one hand-in: the student asks, the staff answer. A 400 lands at the
+ * The re-check requests of one hand-in: the student asks, the staff answer. A 400 lands at the
  * form's field, anything else (409: not released, one already open) as a message above it.
  */
-export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
+export function useRecheck(courseId: Ref<number>, submissionId: Ref<number>) {
   const status = useResource(
-    () => fetchRegrade(courseId.value, submissionId.value),
+    () => fetchRecheck(courseId.value, submissionId.value),
     () => [courseId.value, submissionId.value],
   )
   const fieldError = ref<string | null>(null)
   // No toast: a 400 is the field's message, anything else shows above the form.
-  const action = useAction((write: () => Promise<RegradeStatus>) => write())
+  const action = useAction((write: () => Promise<RecheckStatus>) => write())
   const actionError = computed(() => (action.error.value?.status === 400 ? null : action.error.value))
 
-  async function send(write: () => Promise<RegradeStatus>): Promise<boolean> {
+  async function send(write: () => Promise<RecheckStatus>): Promise<boolean> {
     fieldError.value = null
     const next = await action.run(write)
     if (next) status.data.value = next
@@ -106,21 +106,21 @@ export function useRegrade(courseId: Ref<number>, submissionId: Ref<number>) {
   }
 
   async function ask(message: string): Promise<boolean> {
-    const parsed = RegradeRequestSchema.safeParse({ message })
+    const parsed = RecheckRequestSchema.safeParse({ message })
     if (!parsed.success) {
       fieldError.value = sentence(parsed.error.issues[0]?.message ?? '')
       return false
     }
-    return send(() => postRegrade(courseId.value, submissionId.value, parsed.data.message))
+    return send(() => postRecheck(courseId.value, submissionId.value, parsed.data.message))
   }
 
   async function answer(requestId: number, text: string): Promise<boolean> {
-    const parsed = RegradeAnswerSchema.safeParse({ answer: text })
+    const parsed = RecheckAnswerSchema.safeParse({ answer: text })
     if (!parsed.success) {
       fieldError.value = sentence(parsed.error.issues[0]?.message ?? '')
       return false
     }
-    return send(() => postRegradeAnswer(courseId.value, submissionId.value, requestId, parsed.data.answer))
+    return send(() => postRecheckAnswer(courseId.value, submissionId.value, requestId, parsed.data.answer))
   }
 
   return { status, busy: action.busy, fieldError, actionError, ask, answer }

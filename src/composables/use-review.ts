@@ -29,7 +29,7 @@ const FLAG_WORDS: Record<string, string> = {
   'identical-file': 'identical file',
   'near-copy': 'near-copy of another log',
   'thrust-below-ideal': 'thrust far below ideal',
-  'regrade-requested': 'regrade requested',
+  'recheck-requested': 're-check requested',
 }
 export const flagWords = (code: string) => FLAG_WORDS[code] ?? code
 

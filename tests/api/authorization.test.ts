@@ -9,7 +9,7 @@ import {
   enrollments,
   labGroups,
   modules,
-  regradeRequests,
+  recheckRequests,
   sections,
   users,
 } from '../../server/db/schema'
@@ -92,6 +92,16 @@ const CASES: Case[] = [
   {
     route: 'GET /api/courses/:courseId',
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/course-keys/:courseSlug',
+    call: (c, fx) => c.agent.get(`/api/course-keys/${fx.courseSlug}`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/course-keys/by-id/:courseId',
+    call: (c, fx) => c.agent.get(`/api/course-keys/by-id/${fx.courseId}`),
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
   {
@@ -452,7 +462,7 @@ const CASES: Case[] = [
     call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/export`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
-  // Gradebook, release, my grades, regrade requests
+  // Gradebook, release, my grades, re-check requests
   {
     route: 'GET /api/courses/:courseId/gradebook',
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/gradebook`),
@@ -490,29 +500,29 @@ const CASES: Case[] = [
     expect: { anon: 401, outsider: 404, student: 200, ta: 403, instructor: 403, admin: 404 },
   },
   {
-    route: 'GET /api/courses/:courseId/submissions/:submissionId/regrade',
-    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade`),
+    route: 'GET /api/courses/:courseId/submissions/:submissionId/recheck',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/recheck`),
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
   {
-    route: 'POST /api/courses/:courseId/submissions/:submissionId/regrade',
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/recheck',
     call: async (c, fx) => {
-      // A regrade needs released grades: release the hand-in's module first (as the instructor would).
+      // A re-check needs final marks: release the hand-in's module first (as the instructor would).
       await ctx.handle.db.update(modules).set({ gradesReleasedAt: new Date() }).where(eq(modules.id, mods.coldFlow!.id))
-      await ctx.handle.db.delete(regradeRequests).where(eq(regradeRequests.submissionId, handIn.submissionId!))
+      await ctx.handle.db.delete(recheckRequests).where(eq(recheckRequests.submissionId, handIn.submissionId!))
       return c.agent
-        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade`)
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/recheck`)
         .set('x-csrf-token', c.csrf)
-        .send({ message: 'Matrix regrade.' })
+        .send({ message: 'Matrix re-check.' })
     },
     expect: { anon: 401, outsider: 404, student: 201, ta: 403, instructor: 403, admin: 404 },
   },
   {
-    route: 'POST /api/courses/:courseId/submissions/:submissionId/regrade/:requestId/answer',
+    route: 'POST /api/courses/:courseId/submissions/:submissionId/recheck/:requestId/answer',
     call: async (c, fx) => {
       // A fresh open request for each caller, so every row answers an open one.
       const [row] = await ctx.handle.db
-        .insert(regradeRequests)
+        .insert(recheckRequests)
         .values({
           courseId: fx.courseId,
           submissionId: handIn.submissionId!,
@@ -521,7 +531,7 @@ const CASES: Case[] = [
         })
         .$returningId()
       return c.agent
-        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/regrade/${row!.id}/answer`)
+        .post(`/api/courses/${fx.courseId}/submissions/${handIn.submissionId}/recheck/${row!.id}/answer`)
         .set('x-csrf-token', c.csrf)
         .send({ answer: 'Matrix answer.' })
     },

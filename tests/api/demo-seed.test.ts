@@ -32,7 +32,7 @@ describe('the demo seed', () => {
     const found = await ctx.handle.db
       .select()
       .from(courses)
-      .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.term, DEMO_COURSE.term)))
+      .where(and(eq(courses.code, DEMO_COURSE.code), eq(courses.institution, DEMO_COURSE.institution)))
     expect(found).toHaveLength(1)
   })
 

@@ -16,10 +16,10 @@ import { pdfFonts, readPdf, readZip, squash } from '../helpers/pdf'
 const COLD = currentDueDates(
   readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
 )
-/** The same module, but its results wait for the staff to release the grades. */
+/** The same module, but its results wait until the staff make the marks final. */
 const COLD_AFTER_RELEASE = COLD.replace(/^title: .*$/m, 'title: Cold-flow run, results after release').replace(
   /^results: .*$/m,
-  'results: after-release',
+  'results: when-final',
 )
 
 let ctx: TestContext
@@ -255,12 +255,12 @@ describe('feedback report (PDF)', () => {
     expect((await download(taB, `${C()}/submissions/${subG2}/report.pdf`)).status).toBe(200)
   })
 
-  it('is refused to a student until the results are released, and served once they are', async () => {
+  it('is refused to a student until the marks are final, and served once they are', async () => {
     const url = `${C()}/submissions/${subHidden}/report.pdf`
     const before = await download(student, url)
     expect(before.status).toBe(409)
     expect(before.json().error.code).toBe('results_hidden')
-    expect(before.json().error.message).toContain('release')
+    expect(before.json().error.message).toContain('make the marks final')
     // Staff read it at once.
     expect((await download(inst, url)).status).toBe(200)
     await ctx.handle.db.update(modules).set({ gradesReleasedAt: new Date() }).where(eq(modules.id, hiddenMod.id))

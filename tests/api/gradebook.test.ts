@@ -121,7 +121,7 @@ beforeAll(async () => {
   taB = await signedInAs(ctx, tb.email)
   for (const k of ['s1', 's2', 's3', 's4', 's5'] as const) S[k].c = await signedInAs(ctx, S[k].email)
 
-  m1 = await createModuleAs(inst, fx.courseId, coldFlowModule(M1_TITLE, { results: 'after-release', group: false }))
+  m1 = await createModuleAs(inst, fx.courseId, coldFlowModule(M1_TITLE, { results: 'when-final', group: false }))
   await publishAs(inst, fx.courseId, m1)
   m2 = await createModuleAs(
     inst,
@@ -339,7 +339,7 @@ describe('releasing grades', () => {
     const res = await release(inst, draft.id)
     expect(res.status).toBe(409)
     expect(res.body.error.code).toBe('module_draft')
-    expect(res.body.error.message).toContain('draft')
+    expect(res.body.error.message).toContain('being prepared')
     expect((await release(inst, 999_999_999)).status).toBe(404)
     expect((await release(taA, m1.id)).status).toBe(403)
     expect((await release(S.s1.c!, m1.id)).status).toBe(403)
@@ -350,7 +350,7 @@ describe('releasing grades', () => {
     expect(row!.at).toBeNull()
   })
 
-  it('after-release results stay hidden until the release, then every student gets one e-mail, and a repeat sends nothing', async () => {
+  it('when-final results stay hidden until the marks are made final, then every student gets one e-mail, and a repeat sends nothing', async () => {
     const s2 = S.s2.c!
     const before = await s2.agent.get(`${R()}/submissions/${counted[S.s2.email]!.id}`).expect(200)
     expect(before.body.resultsVisible).toBe(false)
@@ -394,7 +394,7 @@ describe('releasing grades', () => {
     const all = await waitForMail((mails) =>
       Object.values(S).every((s) => mails.some((m) => m.subject.includes(M1_TITLE) && m.to[0]?.address === s.email)),
     )
-    const released = all.filter((m) => m.subject.includes(M1_TITLE) && m.subject.includes('grades released'))
+    const released = all.filter((m) => m.subject.includes(M1_TITLE) && m.subject.includes('marks are final'))
     for (const s of Object.values(S))
       expect(
         released.filter((m) => m.to[0]?.address === s.email),
@@ -402,9 +402,9 @@ describe('releasing grades', () => {
       ).toHaveLength(1)
     expect(released).toHaveLength(5)
     const toS2 = released.find((m) => m.to[0]?.address === S.s2.email)!
-    expect(toS2.text).toContain(`/courses/${fx.courseId}/submissions/${counted[S.s2.email]!.id}`)
+    expect(toS2.text).toContain(`/c/${fx.courseSlug}/hand-ins/${counted[S.s2.email]!.id}`)
     const toS5 = released.find((m) => m.to[0]?.address === S.s5.email)!
-    expect(toS5.text).toContain(`/courses/${fx.courseId}/grades`)
+    expect(toS5.text).toContain(`/c/${fx.courseSlug}/my-marks`)
   })
 })
 

@@ -57,7 +57,8 @@ describe('drafts and publishing', () => {
     expect(mail[0]!.subject).toContain('Nozzle flow for publishing')
     // The e-mail states the due date in the course's zone (UTC for this test course).
     expect(mail[0]!.textBody).toMatch(/Due: Wed, Feb 10, 2027, 00:00 UTC/)
-    expect(mail[0]!.textBody).toContain(`/courses/${fx.courseId}/modules/${m.id}`)
+    expect(mail[0]!.textBody).toContain(`/c/${fx.courseSlug}/sheets/${m.slug}`)
+    expect(mail[0]!.textBody).toContain('issued to the class')
   })
 
   it('editing a published module starts a new draft version; students keep reading the published one', async () => {

@@ -62,7 +62,7 @@ describe('review queue', () => {
     )
     const a = (await taA.agent.get(`${R()}/review?status=all`).expect(200)).body
     expect(a.facets.sections.map((s: { name: string }) => s.name)).toEqual([DEMO_SECTIONS[0].name])
-    // Every reason a row carries is offered, and nothing that no hand-in has (besides a regrade request).
+    // Every reason a row carries is offered, and nothing that no hand-in has (besides a re-check request).
     const codes = new Set(all.facets.reasons.map((r: { code: string }) => r.code))
     for (const r of all.rows as { flagCodes: string[] }[])
       for (const c of r.flagCodes) expect(codes.has(c), c).toBe(true)
@@ -75,7 +75,7 @@ describe('review queue', () => {
           .where(eq(submissions.courseId, courseId))
       ).map((f) => f.code),
     )
-    expect(new Set([...codes].filter((c) => c !== 'regrade-requested'))).toEqual(flagged)
+    expect(new Set([...codes].filter((c) => c !== 'recheck-requested'))).toEqual(flagged)
     const sectionB = all.facets.sections.find((s: { name: string }) => s.name === DEMO_SECTIONS[1].name)
     const onlyB = (await inst.agent.get(`${R()}/review?status=all&sectionId=${sectionB.id}`).expect(200)).body
     expect(onlyB.total).toBe((await firstOpen(taB)).total)

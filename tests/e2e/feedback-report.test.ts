@@ -91,8 +91,8 @@ describe('journey 4: a student downloads the graded feedback report', () => {
     const page = await ctx.newPage()
     await signIn(page, app.url, student.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
-    // My grades shows the module as released and leads to the counted result.
-    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My grades' }).click()
+    // My marks shows the module's marks as final and leads to the counted result.
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My marks' }).click()
     const row = page
       .getByTestId('my-grades-table')
       .locator('tr', { has: page.getByRole('rowheader', { name: COLD_FLOW_TITLE }) })

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import type { Gradebook } from '../../shared/schemas/grades'
-import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { launchBrowser, noSideways, openCourse, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -37,9 +37,10 @@ describe('the instructor’s gradebook', () => {
     const page = await ctx.newPage()
     await signIn(page, app.url, DEMO_INSTRUCTOR.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
-    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'Gradebook', exact: true }).click()
-    await page.getByRole('heading', { level: 1, name: 'Gradebook' }).waitFor()
-    const courseId = Number(/\/courses\/(\d+)\/gradebook/.exec(page.url())?.[1])
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'Marks', exact: true }).click()
+    await page.getByRole('heading', { level: 1, name: 'Marks' }).waitFor()
+    expect(new URL(page.url()).pathname).toMatch(/^\/c\/prl-341-[a-z]+-\d{4}\/marks$/)
+    const { courseId } = await openCourse(page)
     expect(courseId).toBeGreaterThan(0)
     await expect.poll(() => page.getByTestId('counting-rule').innerText()).toContain('latest graded attempt')
 
@@ -59,20 +60,20 @@ describe('the instructor’s gradebook', () => {
     await panel.getByTestId('gradebook-histogram').waitFor()
     await page.screenshot({ path: screenshotPath('gradebook-desktop'), fullPage: true })
 
-    // Another test may have released it already: withdraw first, so this one releases.
+    // Another test may have made them final already: reopen first, so this one makes them final.
     const state = panel.getByTestId(`release-state-${mod.id}`)
-    if ((await state.innerText()) === 'released') {
-      await panel.getByRole('button', { name: 'Withdraw release' }).click()
-      await page.getByRole('alertdialog').getByRole('button', { name: 'Withdraw' }).click()
-      await expect.poll(() => state.innerText()).toBe('not released')
+    if ((await state.innerText()) === 'final') {
+      await panel.getByRole('button', { name: 'Reopen the marks' }).click()
+      await page.getByRole('alertdialog').getByRole('button', { name: 'Reopen' }).click()
+      await expect.poll(() => state.innerText()).toBe('not final yet')
     }
-    await panel.getByRole('button', { name: 'Release grades' }).click()
+    await panel.getByRole('button', { name: 'Make marks final' }).click()
     const dialog = page.getByRole('alertdialog')
     await expect
       .poll(() => dialog.innerText())
       .toContain(`${book.body.enrolledStudents} students of the course will be e-mailed`)
-    await dialog.getByRole('button', { name: `Release and e-mail ${book.body.enrolledStudents}` }).click()
-    await expect.poll(() => state.innerText()).toBe('released')
+    await dialog.getByRole('button', { name: `Make final and e-mail ${book.body.enrolledStudents}` }).click()
+    await expect.poll(() => state.innerText()).toBe('final')
     const after = await api<Gradebook>(page, `/api/courses/${courseId}/gradebook`)
     expect(after.body.modules.find((m) => m.id === mod.id)!.releasedAt).not.toBeNull()
 
@@ -102,44 +103,45 @@ describe('the instructor’s gradebook', () => {
     await ctx.close()
   }, 120_000)
 
-  it('a student reads My grades, opens the released result and asks for a regrade', async () => {
-    // Group A3's demo hand-in is already flagged for review, so a regrade changes no other test's queue.
+  it('a student reads My marks, opens the final result and asks for a re-check', async () => {
+    // Group A3's demo hand-in is already flagged for review, so a re-check changes no other test's queue.
     const who = DEMO_STUDENTS.find((p) => p.labGroup === 'A3')!
     const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
     const page = await ctx.newPage()
     await signIn(page, app.url, who.email)
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
-    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My grades', exact: true }).click()
-    await page.getByRole('heading', { level: 1, name: 'My grades' }).waitFor()
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'My marks', exact: true }).click()
+    await page.getByRole('heading', { level: 1, name: 'My marks' }).waitFor()
+    expect(new URL(page.url()).pathname).toMatch(/^\/c\/prl-341-[a-z]+-\d{4}\/my-marks$/)
     const row = page.getByTestId('my-grades-table').locator('tbody tr').filter({ hasText: COLD_FLOW })
     await expect.poll(() => row.getAttribute('data-state')).toBe('released')
     await noSideways(page)
     await page.screenshot({ path: screenshotPath('my-grades-375'), fullPage: true })
 
     await row.getByRole('link', { name: /^See the result/ }).click()
-    await page.getByRole('heading', { level: 2, name: 'Regrade' }).waitFor()
-    const regrade = page.getByTestId('regrade')
-    if ((await regrade.getByRole('button', { name: 'Ask for a regrade' }).count()) > 0) {
-      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
-      await expect.poll(() => page.locator('#regrade-message-error').innerText()).toContain('look at again')
+    await page.getByRole('heading', { level: 2, name: 'Re-check' }).waitFor()
+    const recheck = page.getByTestId('recheck')
+    if ((await recheck.getByRole('button', { name: 'Ask for a re-check' }).count()) > 0) {
+      await recheck.getByRole('button', { name: 'Ask for a re-check' }).click()
+      await expect.poll(() => page.locator('#recheck-message-error').innerText()).toContain('look at again')
       const message = `Our peak thrust was read after the load cell was re-zeroed (${Date.now()}).`
       await page.getByLabel('What should the staff look at again?').fill(message)
-      await regrade.getByRole('button', { name: 'Ask for a regrade' }).click()
-      await expect.poll(() => regrade.locator('li.open').filter({ hasText: message }).count()).toBe(1)
+      await recheck.getByRole('button', { name: 'Ask for a re-check' }).click()
+      await expect.poll(() => recheck.locator('li.open').filter({ hasText: message }).count()).toBe(1)
     }
-    expect(await regrade.locator('li.open').count()).toBe(1)
+    expect(await recheck.locator('li.open').count()).toBe(1)
     await noSideways(page)
-    await page.screenshot({ path: screenshotPath('submission-regrade-375'), fullPage: true })
-    const submissionId = Number(/\/submissions\/(\d+)/.exec(page.url())?.[1])
-    const courseId = Number(/\/courses\/(\d+)/.exec(page.url())?.[1])
+    await page.screenshot({ path: screenshotPath('submission-recheck-375'), fullPage: true })
+    const submissionId = Number(/\/hand-ins\/(\d+)$/.exec(page.url())?.[1])
+    const { courseSlug } = await openCourse(page)
     await ctx.close()
 
     // The section's TA answers it from the review page; the request then reads as answered.
     const staff = await browser.newContext({ viewport: { width: 1280, height: 900 } })
     const tp = await staff.newPage()
     await signIn(tp, app.url, DEMO_SECTIONS[0].ta.email)
-    await tp.goto(`${app.url}/courses/${courseId}/review/${submissionId}`)
-    const answers = tp.getByTestId('regrade-review')
+    await tp.goto(`${app.url}/c/${courseSlug}/review/${submissionId}`)
+    const answers = tp.getByTestId('recheck-review')
     await answers.locator('li.open').waitFor()
     const answer = `We checked the zero: the **peak stands** (${Date.now()}).`
     await answers.getByLabel('Answer to the student (Markdown)').fill(answer)

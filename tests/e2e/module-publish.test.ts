@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
-import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { launchBrowser, noSideways, openCourse, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { waitForMail } from '../helpers/maildev'
 
 let app: Awaited<ReturnType<typeof serveApp>>
@@ -28,7 +28,7 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     const list = page.getByTestId('module-list')
     await list.waitFor()
     // The first draft module in the list.
-    const draft = list.locator('li').filter({ hasText: 'Draft' }).first()
+    const draft = list.locator('li').filter({ hasText: 'Being prepared' }).first()
     const title = (await draft.locator('a.title').innerText()).trim()
     await draft.getByRole('link', { name: /^Edit/ }).click()
     await page.getByRole('textbox', { name: 'Markdown with YAML front matter' }).waitFor()
@@ -47,12 +47,13 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     await expect.poll(() => preview.locator('.katex').count()).toBe(before + 1)
 
     await page.getByRole('button', { name: 'Save draft' }).click()
-    await page.getByText(/Saved as version \d+ \(draft\)/).waitFor()
-    await page.getByRole('button', { name: 'Publish…' }).click()
+    await page.getByText(/Saved as version \d+ \(being prepared\)/).waitFor()
+    await page.getByRole('button', { name: 'Issue to the class…' }).click()
     const dialog = page.getByRole('alertdialog').or(page.getByRole('dialog'))
     await dialog.getByText(/24 enrolled students will get an e-mail/).waitFor()
-    await dialog.getByRole('button', { name: 'Publish and e-mail 24' }).click()
+    await dialog.getByRole('button', { name: 'Issue and e-mail 24' }).click()
     await page.getByText('E-mail queued for 24 students.').waitFor()
+    await page.getByTestId('sheet-state').getByText('Issued to the class').waitFor()
     await page.screenshot({ path: screenshotPath('module-editor-published'), fullPage: false })
     await page.close()
 
@@ -64,7 +65,8 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     expect(mine!.text).toContain(DEMO_COURSE.code)
     expect(mine!.html).toContain(title.replace(/&/g, '&amp;'))
     const link = /Read it here: (\S+)/.exec(mine!.text)?.[1]
-    expect(link).toMatch(new RegExp(`^${app.url}/courses/\\d+/modules/\\d+$`))
+    // Readable addresses: the course by its code and term, the sheet by its own slug.
+    expect(link).toMatch(new RegExp(`^${app.url}/c/prl-341-[a-z]+-\\d{4}/sheets/[a-z0-9-]+$`))
 
     const ctx = await browser.newContext({ viewport: { width: 390, height: 844 } })
     const sp = await ctx.newPage()
@@ -76,6 +78,18 @@ describe('journey 1: an instructor publishes a module and students are e-mailed'
     const overflow = await sp.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)
     expect(overflow).toBeLessThanOrEqual(0)
     await sp.screenshot({ path: screenshotPath('student-reads-module-390'), fullPage: false })
+
+    // An old numeric address (from an e-mail sent before the readable ones) lands on the same page.
+    const { courseId, courseSlug } = await openCourse(sp)
+    const sheetSlug = link!.split('/').pop()!
+    const sheets = await sp.evaluate(async (s) => {
+      const keys = (await (await fetch(`/api/course-keys/${s}`)).json()) as { sheets: { id: number; slug: string }[] }
+      return keys.sheets
+    }, courseSlug)
+    const sheet = sheets.find((s) => s.slug === sheetSlug)!
+    await sp.goto(`${app.url}/courses/${courseId}/modules/${sheet.id}`)
+    await sp.waitForURL(link!)
+    await sp.getByRole('heading', { level: 1, name: title }).waitFor()
     await ctx.close()
   }, 120_000)
 

@@ -6,7 +6,7 @@ import { REGIME_CHOICES } from '../../shared/grading/regime'
 import type { ReviewPage } from '../../shared/schemas/review'
 import type { SubmissionDetail } from '../../shared/schemas/submissions'
 import { formatInZone } from '../../shared/time'
-import { choose, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { choose, launchBrowser, noSideways, openCourse, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -53,7 +53,7 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     await page.getByRole('link', { name: DEMO_COURSE.title }).click()
     await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'Review', exact: true }).click()
     await page.getByRole('heading', { level: 1, name: 'Review queue' }).waitFor()
-    const courseId = Number(/\/courses\/(\d+)\/review/.exec(page.url())?.[1])
+    const { courseId, courseSlug } = await openCourse(page)
     expect(courseId).toBeGreaterThan(0)
 
     // Other test files share the database and may have worked the demo submissions: show every status.
@@ -87,7 +87,7 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
 
     await rows.filter({ hasText: GROUP_NAME }).first().getByRole('link', { name: GROUP_NAME }).click()
     await page.getByRole('heading', { level: 1, name: new RegExp(`^Review: ${GROUP_NAME},`) }).waitFor()
-    expect(page.url()).toContain(`/courses/${courseId}/review/${row!.submissionId}`)
+    expect(page.url()).toContain(`/c/${courseSlug}/review/${row!.submissionId}`)
 
     const before = await api<SubmissionDetail>(page, `/api/courses/${courseId}/submissions/${row!.submissionId}`)
     const max = before.body.maxScore!

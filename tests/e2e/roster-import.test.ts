@@ -50,14 +50,15 @@ afterAll(async () => {
 
 describe('roster import in the browser', () => {
   it('an instructor imports a CSV, and an invited student chooses a password from the e-mail and lands signed in', async () => {
-    const mira = `mira.${tag}@univ.example`
-    const dag = `dag.${tag}@univ.example`
-    const csv = `Email,Name,Role,Section,Group\n${mira},Mira Okafor ${tag},student,Tue PM,Rig ${tag}\n${dag},Dag Lindqvist ${tag},ta,Tue PM,\n`
+    const mira = `merrin.${tag}@univ.example`
+    const dag = `dace.${tag}@univ.example`
+    const csv = `Email,Name,Role,Section,Group\n${mira},Merrin Saltmarsh ${tag},student,Tue PM,Rig ${tag}\n${dag},Dace Hollowmere ${tag},ta,Tue PM,\n`
 
     const ctx = await browser.newContext({ viewport: { width: 375, height: 812 } })
     const page = await ctx.newPage()
     await signIn(page, app.url, instructorEmail, PASSWORD)
-    await page.goto(`${app.url}/courses/${courseId}/roster`)
+    // The course's page address: its code and term, lower case and hyphenated.
+    await page.goto(`${app.url}/c/r${tag.toLowerCase()}-test-term/roster`)
     await page.getByRole('link', { name: 'Import roster' }).click()
     await page.getByRole('heading', { level: 1, name: 'Import roster' }).waitFor()
 
@@ -94,7 +95,7 @@ describe('roster import in the browser', () => {
     await done.getByText('2 invitations e-mailed').waitFor()
     await noSideways(page)
     await page.getByRole('link', { name: 'See the roster' }).click()
-    await page.getByTestId('roster-table').getByText(`Mira Okafor ${tag}`).waitFor()
+    await page.getByTestId('roster-table').getByText(`Merrin Saltmarsh ${tag}`).waitFor()
     await ctx.close()
 
     const all = await waitForMail((m) => m.some((x) => x.to[0]?.address === mira))

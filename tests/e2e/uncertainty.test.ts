@@ -1,3 +1,4 @@
+import { eq } from 'drizzle-orm'
 import request from 'supertest'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -7,11 +8,13 @@ import { dominantInputsText, expectedWithUncertaintyText } from '../../shared/gr
 import type { MySubmissions, SubmissionDetail } from '../../shared/schemas/submissions'
 import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { squash } from '../helpers/pdf'
+import { courses } from '../../server/db/schema'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
 let browser: Browser
 let courseId: number
+let courseSlug: string
 
 /** A2 is in section A; only this file reads its hand-in, and it changes nothing. */
 const GROUP = 'A2'
@@ -32,6 +35,8 @@ async function apiAs(email: string) {
 beforeAll(async () => {
   app = await serveApp()
   courseId = (await seedDemo(app.db.db)).courseId
+  const [keyed] = await app.db.db.select({ slug: courses.slug }).from(courses).where(eq(courses.id, courseId))
+  courseSlug = keyed!.slug!
   chrome = await launchBrowser()
   browser = chrome.browser
 }, 120_000)
@@ -63,7 +68,7 @@ describe('the uncertainty of the expected values on the result pages', () => {
     const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } })
     const page = await ctx.newPage()
     await signIn(page, app.url, student.email)
-    await page.goto(`${app.url}/courses/${courseId}/submissions/${id}`)
+    await page.goto(`${app.url}/c/${courseSlug}/hand-ins/${id}`)
     const sources = page.getByTestId('uncertainty-sources')
     await sources.waitFor()
     expect(await sources.getByRole('heading', { name: 'Where the uncertainty comes from' }).count()).toBe(1)
@@ -87,7 +92,7 @@ describe('the uncertainty of the expected values on the result pages', () => {
     const staff = await browser.newContext({ viewport: { width: 1280, height: 900 } })
     const review = await staff.newPage()
     await signIn(review, app.url, ta.email)
-    await review.goto(`${app.url}/courses/${courseId}/review/${id}`)
+    await review.goto(`${app.url}/c/${courseSlug}/review/${id}`)
     const checks = review.getByTestId('checks')
     await checks.waitFor()
     let withU = 0

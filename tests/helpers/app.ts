@@ -1,4 +1,5 @@
 import { randomUUID } from 'node:crypto'
+import { eq } from 'drizzle-orm'
 import request from 'supertest'
 import type TestAgent from 'supertest/lib/agent'
 import { createApp, gradingContext } from '../../server/app'
@@ -62,6 +63,8 @@ export const uniq = () => randomUUID().slice(0, 8)
 
 export interface Fixture {
   courseId: number
+  /** The course's key in page addresses (MariaDB derives it from code and term). */
+  courseSlug: string
   otherCourseId: number
   sectionA: number
   sectionB: number
@@ -127,8 +130,10 @@ export async function seedFixture(ctx: TestContext): Promise<Fixture> {
     { userId: student2.id, courseId, role: 'student', sectionId: sb!.id },
     { userId: outsider.id, courseId: other!.id, role: 'student' },
   ])
+  const [keyed] = await db.select({ slug: courses.slug }).from(courses).where(eq(courses.id, courseId))
   return {
     courseId,
+    courseSlug: keyed!.slug!,
     otherCourseId: other!.id,
     sectionA: sa!.id,
     sectionB: sb!.id,

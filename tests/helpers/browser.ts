@@ -171,3 +171,17 @@ export async function noSideways(page: Page): Promise<void> {
     .poll(() => page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth))
     .toBeLessThanOrEqual(0)
 }
+
+/**
+ * The course whose page is open (`/c/<course slug>/…`): its slug from the address, and its numeric id
+ * as the page-address lookup gives it to the signed-in person.
+ */
+export async function openCourse(page: Page): Promise<{ courseId: number; courseSlug: string }> {
+  const courseSlug = /^\/c\/([^/]+)/.exec(new URL(page.url()).pathname)?.[1]
+  if (!courseSlug) throw new Error(`not a course page: ${page.url()}`)
+  const courseId = await page.evaluate(async (s) => {
+    const res = await fetch(`/api/course-keys/${s}`, { headers: { Accept: 'application/json' } })
+    return ((await res.json()) as { courseId: number }).courseId
+  }, courseSlug)
+  return { courseId, courseSlug }
+}

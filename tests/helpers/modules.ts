@@ -8,12 +8,14 @@ export function moduleSource(title: string, body = 'Some text with $p/p_0$ inlin
 export interface CreatedModule {
   id: number
   versionId: number
+  /** The lab sheet's key in page addresses, unique within its course. */
+  slug: string
 }
 
 export async function createModuleAs(c: Client, courseId: number, source: string): Promise<CreatedModule> {
   const res = await c.agent.post(`/api/courses/${courseId}/modules`).set('x-csrf-token', c.csrf).send({ source })
   if (res.status !== 201) throw new Error(`create module failed: ${res.status} ${JSON.stringify(res.body)}`)
-  return { id: res.body.id, versionId: res.body.current.id }
+  return { id: res.body.id, versionId: res.body.current.id, slug: res.body.slug }
 }
 
 export async function publishAs(c: Client, courseId: number, m: CreatedModule): Promise<void> {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { currentDueDates } from '../../scripts/demo/seed-demo'
+import { currentDueDates, demoTerm } from '../../scripts/demo/seed-demo'
 
 const SOURCE = `---
 title: T
@@ -27,6 +27,18 @@ describe('demo due dates', () => {
     expect(due.endsWith('T17:00')).toBe(true)
     expect((Date.parse(`${until}:00Z`) - Date.parse(`${due}:00Z`)) / 86_400_000).toBe(3)
     expect(out).toContain('Body mentions 2027-02-23T17:00 in text, which stays.')
+  })
+
+  it('names the term after the weeks the shifted due dates fall in, not a fixed year', () => {
+    // Seeded on 1 December 2026: the first due date lands in mid-December.
+    expect(demoTerm(new Date('2026-12-01T12:00:00Z'))).toBe('Fall 2026')
+    // Seeded late in December: the first due date is already in the new year.
+    expect(demoTerm(new Date('2026-12-25T12:00:00Z'))).toBe('Winter 2027')
+    expect(demoTerm(new Date('2031-06-05T08:00:00Z'))).toBe('Summer 2031')
+    // The term and the shifted dates agree: the first due date is in the named year.
+    const now = new Date('2029-08-25T12:00:00Z')
+    const due = /at: (\S+)/.exec(currentDueDates(SOURCE, now))![1]!
+    expect(demoTerm(now)).toBe(`Fall ${due.slice(0, 4)}`)
   })
 
   it('is stable for a given day', () => {

@@ -117,7 +117,7 @@ describe('every title and name field uses it', () => {
 
   it('display names, sections and groups of a roster import', () => {
     const csv =
-      'email,name,section,group\na@x.example,Ada\u001b[2J Lovelace,A,G1\nb@x.example,Bo Li,A\u0000,G1\nc@x.example,Cy Ng,A,"G\n1"\nd@x.example,"Di\nNg",A,G1\n'
+      'email,name,section,group\na@x.example,Eluned\u001b[2J Marrowby,A,G1\nb@x.example,Bryn Lowmoor,A\u0000,G1\nc@x.example,Cade Nettlefold,A,"G\n1"\nd@x.example,"Dilys\nNettlefold",A,G1\n'
     const parsed = parseRosterCsv(csv)
     expect(parsed.ok).toBe(true)
     if (!parsed.ok) return
@@ -128,7 +128,7 @@ describe('every title and name field uses it', () => {
     expect(problems[1]!.join(' ')).toMatch(/^section: section: .*U\+0000/)
     expect(problems[2]!.join(' ')).toMatch(/^group: group: .*a line break/)
     // A line break inside a quoted name cell has always been read as a space.
-    expect(parsed.rows[3]!.displayName).toBe('Di Ng')
+    expect(parsed.rows[3]!.displayName).toBe('Dilys Nettlefold')
     expect(problems[3]).toEqual([])
   })
 })

@@ -1,3 +1,4 @@
+import { sql } from 'drizzle-orm'
 import { mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, timestamps } from './columns'
 
@@ -11,7 +12,19 @@ export const courses = mysqlTable(
     institution: varchar('institution', { length: 200 }).notNull(),
     /** IANA zone in which due dates are stated, e.g. America/Chicago. */
     timeZone: varchar('time_zone', { length: 64 }).notNull(),
+    /**
+     * The course's key in page addresses (`/c/<slug>`): code and term in lower case, runs of other
+     * characters as one hyphen. Computed by MariaDB, so every insert path (admin form, seeds, demo,
+     * backups) gets it and it cannot drift from code and term. Nullable only in the DDL: MariaDB refuses NOT NULL on a generated column, and
+     * the expression never yields NULL because code and term are NOT NULL.
+     */
+    slug: varchar('slug', { length: 80 }).generatedAlwaysAs(
+      sql`TRIM(BOTH '-' FROM REGEXP_REPLACE(LOWER(CONCAT(code, '-', term)), '[^a-z0-9]+', '-'))`,
+      {
+        mode: 'stored',
+      },
+    ),
     ...timestamps,
   },
-  (t) => [uniqueIndex('courses_code_term_uq').on(t.code, t.term)],
+  (t) => [uniqueIndex('courses_code_term_uq').on(t.code, t.term), uniqueIndex('courses_slug_uq').on(t.slug)],
 )

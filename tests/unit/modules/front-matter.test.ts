@@ -48,6 +48,18 @@ describe('parseModuleSource: splitting and defaults', () => {
     expect(parsed.bodyLine).toBe(4)
   })
 
+  it('reads results: when-final, and the older name after-release as when-final', () => {
+    for (const written of ['when-final', 'after-release']) {
+      const parsed = parseModuleSource(source(['title: Lab', `results: ${written}`]), 'lab')
+      expect(parsed.ok).toBe(true)
+      if (!parsed.ok) return
+      expect(parsed.frontMatter.results).toBe('when-final')
+    }
+    const wrong = parseModuleSource(source(['title: Lab', 'results: later']), 'lab')
+    expect(issueAt(wrong, 'results').message).toContain('when-final')
+    expect(issueAt(wrong, 'results').message).not.toContain('after-release')
+  })
+
   it('accepts Windows line endings and a byte-order mark', () => {
     const parsed = parseModuleSource('\uFEFF---\r\ntitle: Windows\r\n---\r\nBody\r\n', 'win')
     expect(parsed.ok).toBe(true)

@@ -76,12 +76,12 @@ describe('renderModule: XSS payloads', () => {
 describe('renderModule: links', () => {
   it('keeps http, https, mailto and relative links, and marks external ones nofollow', () => {
     const html = renderModule(
-      '[a](https://example.org/x) [b](mailto:lab@example.edu) [c](/courses/1/modules/2) [d](#top)',
+      '[a](https://example.org/x) [b](mailto:lab@calder-ridge.example) [c](/courses/1/modules/2) [d](#top)',
     )
     const links = scanTags(html).filter((t) => t.name === 'a')
     expect(links.map((l) => l.attributes.href)).toEqual([
       'https://example.org/x',
-      'mailto:lab@example.edu',
+      'mailto:lab@calder-ridge.example',
       '/courses/1/modules/2',
       '#top',
     ])

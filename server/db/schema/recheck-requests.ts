@@ -4,11 +4,11 @@ import { courses } from './courses'
 import { submissions } from './submissions'
 import { users } from './users'
 
-export const REGRADE_STATUSES = ['open', 'answered'] as const
+export const RECHECK_STATUSES = ['open', 'answered'] as const
 
 /** A student's request, on a released result, that the staff look at the grade again. */
-export const regradeRequests = mysqlTable(
-  'regrade_requests',
+export const recheckRequests = mysqlTable(
+  'recheck_requests',
   {
     id: id(),
     courseId: ref('course_id')
@@ -22,7 +22,7 @@ export const regradeRequests = mysqlTable(
       .references(() => users.id),
     /** The student's message (plain text, shown escaped). */
     message: text('message').notNull(),
-    status: mysqlEnum('status', REGRADE_STATUSES).notNull().default('open'),
+    status: mysqlEnum('status', RECHECK_STATUSES).notNull().default('open'),
     /** The staff answer (Markdown, sanitised when rendered), e-mailed to the student. */
     answer: text('answer'),
     answeredBy: ref('answered_by').references(() => users.id, { onDelete: 'set null' }),
@@ -30,7 +30,7 @@ export const regradeRequests = mysqlTable(
     ...timestamps,
   },
   (t) => [
-    index('regrade_requests_course_status_idx').on(t.courseId, t.status),
-    index('regrade_requests_submission_idx').on(t.submissionId),
+    index('recheck_requests_course_status_idx').on(t.courseId, t.status),
+    index('recheck_requests_submission_idx').on(t.submissionId),
   ],
 )

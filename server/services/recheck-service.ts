@@ -1,29 +1,29 @@
 import { renderModule } from '../../shared/modules/render'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
-import type { RegradeStatus, RegradeView } from '../../shared/schemas/grades'
+import type { RecheckStatus, RecheckView } from '../../shared/schemas/grades'
 import type { Database, Executor } from '../db/client'
 import { AppError, forbidden, notFound } from '../errors'
 import type { CourseEnrollment } from '../repositories/enrollments'
 import {
-  findRegradeForUpdate,
-  hasOpenRegrade,
-  insertRegrade,
-  listRegrades,
+  findRecheckForUpdate,
+  hasOpenRecheck,
+  insertRecheck,
+  listRechecks,
   lockSubmission,
   reopenForReview,
-  saveRegradeAnswer,
+  saveRecheckAnswer,
 } from '../repositories/grades'
 import { courseTimeZone, findModule, findVersion } from '../repositories/modules'
+import { pageLinks, recheckAnsweredMail } from '../mail/templates'
 import { enqueueMail } from '../repositories/outbox'
 import type { SubmissionRow } from '../repositories/submissions'
 import { findSubmission } from '../repositories/submissions'
 import { findUserById } from '../repositories/users'
 import { inScope } from './review-service'
-import { escapeHtml } from './text'
 
-/** Regrade requests of these hand-ins as the API shows them (the answer rendered and sanitised). */
-export async function regradeViews(db: Database, submissionIds: number[]): Promise<RegradeView[]> {
-  const rows = await listRegrades(db, submissionIds)
+/** Re-check requests of these hand-ins as the API shows them (the answer rendered and sanitised). */
+export async function recheckViews(db: Database, submissionIds: number[]): Promise<RecheckView[]> {
+  const rows = await listRechecks(db, submissionIds)
   return rows.map((r) => ({
     id: r.id,
     submissionId: r.submissionId,
@@ -56,17 +56,17 @@ async function ownSubmission(
   return { s, fm }
 }
 
-/** Why a regrade cannot be asked for now, or null when it can. */
+/** Why a re-check cannot be asked for now, or null when it can. */
 async function refusal(db: Executor, s: SubmissionRow): Promise<AppError | null> {
   const m = await findModule(db, s.courseId, s.moduleId)
   if (!m?.gradesReleasedAt) {
-    return new AppError('not_released', 'You can ask for a regrade once the grades of this module are released.', 409)
+    return new AppError('not_released', 'You can ask for a re-check once the marks of this module are final.', 409)
   }
   if (s.status !== 'graded') return new AppError('not_graded', 'This hand-in has no grade to look at again.', 409)
-  if (await hasOpenRegrade(db, s.id)) {
+  if (await hasOpenRecheck(db, s.id)) {
     return new AppError(
-      'regrade_open',
-      'A regrade request for this hand-in is already open; the staff will answer it first.',
+      'recheck_open',
+      'A re-check request for this hand-in is already open; the staff will answer it first.',
       409,
     )
   }
@@ -74,88 +74,80 @@ async function refusal(db: Executor, s: SubmissionRow): Promise<AppError | null>
 }
 
 /**
- * The regrade requests of a hand-in and whether the caller may ask for one. Students: their own
+ * The re-check requests of a hand-in and whether the caller may ask for one. Students: their own
  * (or their lab group's) hand-ins; staff: as the review routes (a TA, their own section).
  */
-export async function regradeStatus(db: Database, e: CourseEnrollment, submissionId: number): Promise<RegradeStatus> {
+export async function recheckStatus(db: Database, e: CourseEnrollment, submissionId: number): Promise<RecheckStatus> {
   const s = e.role === 'student' ? (await ownSubmission(db, e, submissionId)).s : await inScope(db, e, submissionId)
-  const requests = await regradeViews(db, [s.id])
-  if (e.role !== 'student') return { canRequest: false, reason: 'Only students ask for a regrade.', requests }
+  const requests = await recheckViews(db, [s.id])
+  if (e.role !== 'student') return { canRequest: false, reason: 'Only students ask for a re-check.', requests }
   const no = await refusal(db, s)
   return { canRequest: no === null, reason: no?.message ?? null, requests }
 }
 
 /**
  * A student asks the staff to look at a released grade again. The hand-in goes (back) into the
- * review queue, where "regrade requested" finds it.
+ * review queue, where "re-check requested" finds it.
  */
-export async function requestRegrade(
+export async function requestRecheck(
   db: Database,
   e: CourseEnrollment,
   submissionId: number,
   message: string,
-): Promise<RegradeStatus> {
-  if (e.role !== 'student') throw forbidden('Only students ask for a regrade; staff can change points in the review.')
+): Promise<RecheckStatus> {
+  if (e.role !== 'student') throw forbidden('Only students ask for a re-check; staff can change points in the review.')
   const { s } = await ownSubmission(db, e, submissionId)
   await db.transaction(async (tx) => {
     // Serialises two requests for the same hand-in; the checks run again under the lock.
     await lockSubmission(tx, s.id)
     const no = await refusal(tx, s)
     if (no) throw no
-    await insertRegrade(tx, { courseId: e.courseId, submissionId: s.id, requestedBy: e.userId, message })
+    await insertRecheck(tx, { courseId: e.courseId, submissionId: s.id, requestedBy: e.userId, message })
     await reopenForReview(tx, s.id)
   })
-  return regradeStatus(db, e, submissionId)
+  return recheckStatus(db, e, submissionId)
 }
 
-/** Staff answer a regrade request (Markdown); the answer is e-mailed to the student who asked. */
-export async function answerRegrade(
+/** Staff answer a re-check request (Markdown); the answer is e-mailed to the student who asked. */
+export async function answerRecheck(
   db: Database,
   e: CourseEnrollment,
   submissionId: number,
   requestId: number,
   answer: string,
   appUrl: string,
-): Promise<RegradeStatus> {
+): Promise<RecheckStatus> {
   const s = await inScope(db, e, submissionId)
   const course = await courseTimeZone(db, e.courseId)
   const staff = await findUserById(db, e.userId)
   const version = await findVersion(db, s.moduleVersionId)
   await db.transaction(async (tx) => {
-    const r = await findRegradeForUpdate(tx, submissionId, requestId)
-    if (!r) throw notFound('That regrade request')
+    const r = await findRecheckForUpdate(tx, submissionId, requestId)
+    if (!r) throw notFound('That re-check request')
     if (r.status !== 'open')
-      throw new AppError('regrade_answered', 'This regrade request has already been answered.', 409)
-    await saveRegradeAnswer(tx, requestId, answer, e.userId)
+      throw new AppError('recheck_answered', 'This re-check request has already been answered.', 409)
+    await saveRecheckAnswer(tx, requestId, answer, e.userId)
     const student = await findUserById(tx, r.requestedBy)
     if (!student) return
-    const link = `${appUrl.replace(/\/$/, '')}/courses/${e.courseId}/submissions/${submissionId}`
+    const link = pageLinks(appUrl, course.slug).handInResult(submissionId)
     const title = version?.title ?? 'your hand-in'
-    const by = staff?.displayName ?? 'The course staff'
     await enqueueMail(tx, [
       {
-        dedupeKey: `regrade-answer:${requestId}`,
+        dedupeKey: `recheck-answer:${requestId}`,
         toAddress: student.email,
         toName: student.displayName,
-        subject: `${course.code}: your regrade request was answered — ${title}`,
-        textBody: [
-          `Hello ${student.displayName},`,
-          '',
-          `${by} answered your regrade request on “${title}” (attempt ${s.attempt}):`,
-          '',
+        ...recheckAnsweredMail({
+          name: student.displayName,
+          courseCode: course.code,
+          sheetTitle: title,
+          attempt: s.attempt,
+          by: staff?.displayName ?? 'The course staff',
           answer,
-          '',
-          `See your result: ${link}`,
-          '',
-          '— Isentrope',
-        ].join('\n'),
-        htmlBody: `<p>Hello ${escapeHtml(student.displayName)},</p>
-<p>${escapeHtml(by)} answered your regrade request on <strong>${escapeHtml(title)}</strong> (attempt ${s.attempt}):</p>
-<div>${renderModule(answer)}</div>
-<p><a href="${escapeHtml(link)}">See your result</a></p>
-<p style="color:#5d574c">— Isentrope</p>`,
+          answerHtml: renderModule(answer),
+          link,
+        }),
       },
     ])
   })
-  return regradeStatus(db, e, submissionId)
+  return recheckStatus(db, e, submissionId)
 }

@@ -3,11 +3,11 @@ import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { currentDueDates } from '../../scripts/demo/seed-demo'
 import { hashPassword } from '../../server/auth/password'
-import { enrollments, labGroups, regradeRequests, submissions, users } from '../../server/db/schema'
+import { enrollments, labGroups, recheckRequests, submissions, users } from '../../server/db/schema'
 import { createLogger } from '../../server/logger'
 import { DEFAULT_OUTBOX_OPTIONS, drainOnce } from '../../server/mail/outbox-worker'
 import { createSmtpSender } from '../../server/mail/transport'
-import type { MyGrades, RegradeStatus } from '../../shared/schemas/grades'
+import type { MyGrades, RecheckStatus } from '../../shared/schemas/grades'
 import type { ReviewPage } from '../../shared/schemas/review'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
@@ -21,6 +21,7 @@ const COLD = currentDueDates(
 )
 const moduleText = (title: string, group: boolean) =>
   COLD.replace(/^title: .*$/m, `title: ${title}`)
+    // The older name of `results: when-final`, still read so that modules written with it load.
     .replace('results: immediately', 'results: after-release')
     .replace('groupSubmission: true', `groupSubmission: ${group}`)
 
@@ -39,9 +40,9 @@ let soloSub: number
 let groupSub: number
 const tag = uniq()
 const R = () => `/api/courses/${fx.courseId}`
-const regrade = (c: Client, id: number, body: unknown) =>
+const recheck = (c: Client, id: number, body: unknown) =>
   c.agent
-    .post(`${R()}/submissions/${id}/regrade`)
+    .post(`${R()}/submissions/${id}/recheck`)
     .set('x-csrf-token', c.csrf)
     .send(body as object)
 
@@ -85,9 +86,9 @@ beforeAll(async () => {
   partnerEmail = await addPerson('student', fx.sectionA, g!.id)
   partner = await signedInAs(ctx, partnerEmail)
   taB = await signedInAs(ctx, await addPerson('ta', fx.sectionB, null))
-  solo = await createModuleAs(inst, fx.courseId, moduleText(`Regrade solo ${tag}`, false))
+  solo = await createModuleAs(inst, fx.courseId, moduleText(`Recheck solo ${tag}`, false))
   await publishAs(inst, fx.courseId, solo)
-  group = await createModuleAs(inst, fx.courseId, moduleText(`Regrade group ${tag}`, true))
+  group = await createModuleAs(inst, fx.courseId, moduleText(`Recheck group ${tag}`, true))
   await publishAs(inst, fx.courseId, group)
   soloSub = await handIn(student, solo.id)
   groupSub = await handIn(student, group.id)
@@ -100,16 +101,16 @@ const openCount = async (submissionId: number) =>
   (
     await ctx.handle.db
       .select()
-      .from(regradeRequests)
-      .where(and(eq(regradeRequests.submissionId, submissionId), eq(regradeRequests.status, 'open')))
+      .from(recheckRequests)
+      .where(and(eq(recheckRequests.submissionId, submissionId), eq(recheckRequests.status, 'open')))
   ).length
 
-describe('asking for a regrade', () => {
+describe('asking for a re-check', () => {
   it('is refused before the grades are released (409), and the student is told why', async () => {
-    const status = (await student.agent.get(`${R()}/submissions/${soloSub}/regrade`).expect(200)).body as RegradeStatus
+    const status = (await student.agent.get(`${R()}/submissions/${soloSub}/recheck`).expect(200)).body as RecheckStatus
     expect(status.canRequest).toBe(false)
-    expect(status.reason).toContain('released')
-    const res = await regrade(student, soloSub, { message: 'Please look at my impulse again.' })
+    expect(status.reason).toContain('final')
+    const res = await recheck(student, soloSub, { message: 'Please look at my impulse again.' })
     expect(res.status).toBe(409)
     expect(res.body.error.code).toBe('not_released')
     expect(await openCount(soloSub)).toBe(0)
@@ -117,27 +118,27 @@ describe('asking for a regrade', () => {
 
   it('checks the message, refuses someone else’s hand-in (404) and staff (403)', async () => {
     await release(solo.id)
-    const long = await regrade(student, soloSub, { message: 'x'.repeat(2001) })
+    const long = await recheck(student, soloSub, { message: 'x'.repeat(2001) })
     expect(long.status).toBe(400)
     expect(long.body.error.message).toMatch(/^message: at most 2000/)
-    const empty = await regrade(student, soloSub, { message: '   ' })
+    const empty = await recheck(student, soloSub, { message: '   ' })
     expect(empty.status).toBe(400)
     expect(empty.body.error.message).toMatch(/^message: /)
-    const missing = await regrade(student, soloSub, {})
+    const missing = await recheck(student, soloSub, {})
     expect(missing.status).toBe(400)
-    expect((await regrade(student2, soloSub, { message: 'Not mine, but still.' })).status).toBe(404)
+    expect((await recheck(student2, soloSub, { message: 'Not mine, but still.' })).status).toBe(404)
     // A lab-group partner cannot ask on a hand-in of a module handed in one by one.
-    expect((await regrade(partner, soloSub, { message: 'My partner’s.' })).status).toBe(404)
-    expect((await student2.agent.get(`${R()}/submissions/${soloSub}/regrade`)).status).toBe(404)
-    expect((await regrade(inst, soloSub, { message: 'Staff asking.' })).status).toBe(403)
-    expect((await regrade(student, 999_999_999, { message: 'No such hand-in.' })).status).toBe(404)
+    expect((await recheck(partner, soloSub, { message: 'My partner’s.' })).status).toBe(404)
+    expect((await student2.agent.get(`${R()}/submissions/${soloSub}/recheck`)).status).toBe(404)
+    expect((await recheck(inst, soloSub, { message: 'Staff asking.' })).status).toBe(403)
+    expect((await recheck(student, 999_999_999, { message: 'No such hand-in.' })).status).toBe(404)
     expect(await openCount(soloSub)).toBe(0)
   })
 
-  it('a released result: one open request at a time; it reaches the review queue under "regrade requested"', async () => {
-    const ok = await regrade(student, soloSub, { message: `The impulse check used the wrong window (${tag}).` })
+  it('a released result: one open request at a time; it reaches the review queue under "re-check requested"', async () => {
+    const ok = await recheck(student, soloSub, { message: `The impulse check used the wrong window (${tag}).` })
     expect(ok.status).toBe(201)
-    const body = ok.body as RegradeStatus
+    const body = ok.body as RecheckStatus
     expect(body.canRequest).toBe(false)
     expect(body.requests).toHaveLength(1)
     expect(body.requests[0]).toMatchObject({
@@ -145,35 +146,35 @@ describe('asking for a regrade', () => {
       message: `The impulse check used the wrong window (${tag}).`,
       answerHtml: null,
     })
-    const dup = await regrade(student, soloSub, { message: 'Again, please.' })
+    const dup = await recheck(student, soloSub, { message: 'Again, please.' })
     expect(dup.status).toBe(409)
-    expect(dup.body.error.code).toBe('regrade_open')
+    expect(dup.body.error.code).toBe('recheck_open')
     expect(await openCount(soloSub)).toBe(1)
 
-    const q = (await inst.agent.get(`${R()}/review?status=all&reason=regrade-requested`).expect(200)).body as ReviewPage
+    const q = (await inst.agent.get(`${R()}/review?status=all&reason=recheck-requested`).expect(200)).body as ReviewPage
     expect(q.rows.map((r) => r.submissionId)).toEqual([soloSub])
-    expect(q.rows[0]!.flagCodes).toContain('regrade-requested')
+    expect(q.rows[0]!.flagCodes).toContain('recheck-requested')
     const [s] = await ctx.handle.db
       .select({ reviewStatus: submissions.reviewStatus })
       .from(submissions)
       .where(eq(submissions.id, soloSub))
     expect(s!.reviewStatus).toBe('open')
     // The TA of the student's section sees it; the TA of the other section does not.
-    const qa = (await ta.agent.get(`${R()}/review?status=all&reason=regrade-requested`).expect(200)).body as ReviewPage
+    const qa = (await ta.agent.get(`${R()}/review?status=all&reason=recheck-requested`).expect(200)).body as ReviewPage
     expect(qa.rows.map((r) => r.submissionId)).toEqual([soloSub])
-    const qb = (await taB.agent.get(`${R()}/review?status=all&reason=regrade-requested`).expect(200)).body as ReviewPage
+    const qb = (await taB.agent.get(`${R()}/review?status=all&reason=recheck-requested`).expect(200)).body as ReviewPage
     expect(qb.rows).toEqual([])
-    // The student sees the open request on "my grades".
+    // The student sees the open request on "my marks".
     const mine = (await student.agent.get(`${R()}/my-grades`).expect(200)).body as MyGrades
-    expect(mine.rows.find((r) => r.moduleId === solo.id)!.regrade).toMatchObject({ status: 'open' })
+    expect(mine.rows.find((r) => r.moduleId === solo.id)!.recheck).toMatchObject({ status: 'open' })
   })
 
   it('staff answer in Markdown (sanitised); the student reads it and gets it by e-mail; a second answer is refused', async () => {
-    const status = (await ta.agent.get(`${R()}/submissions/${soloSub}/regrade`).expect(200)).body as RegradeStatus
+    const status = (await ta.agent.get(`${R()}/submissions/${soloSub}/recheck`).expect(200)).body as RecheckStatus
     const id = status.requests[0]!.id
     const answer = (c: Client, body: unknown) =>
       c.agent
-        .post(`${R()}/submissions/${soloSub}/regrade/${id}/answer`)
+        .post(`${R()}/submissions/${soloSub}/recheck/${id}/answer`)
         .set('x-csrf-token', c.csrf)
         .send(body as object)
     expect((await answer(taB, { answer: 'Not my section.' })).status).toBe(404)
@@ -184,21 +185,21 @@ describe('asking for a regrade', () => {
     const text = `Checked the window ${tag}: **the grade stands**. <script>alert(1)</script>`
     const ok = await answer(ta, { answer: text })
     expect(ok.status).toBe(200)
-    const r = (ok.body as RegradeStatus).requests[0]!
+    const r = (ok.body as RecheckStatus).requests[0]!
     expect(r.status).toBe('answered')
     expect(r.answerHtml).toContain('<strong>the grade stands</strong>')
     expect(r.answerHtml).not.toMatch(/<script/i)
     expect(r.answeredBy).toBe(`ta ${fx.ta.email.split('.')[1]!.split('@')[0]}`)
     const again = await answer(inst, { answer: 'A second answer.' })
     expect(again.status).toBe(409)
-    expect(again.body.error.code).toBe('regrade_answered')
-    expect((await ctx.handle.db.select().from(regradeRequests).where(eq(regradeRequests.id, id)))[0]!.answer).toBe(text)
+    expect(again.body.error.code).toBe('recheck_answered')
+    expect((await ctx.handle.db.select().from(recheckRequests).where(eq(recheckRequests.id, id)))[0]!.answer).toBe(text)
 
-    const seen = (await student.agent.get(`${R()}/submissions/${soloSub}/regrade`).expect(200)).body as RegradeStatus
+    const seen = (await student.agent.get(`${R()}/submissions/${soloSub}/recheck`).expect(200)).body as RecheckStatus
     expect(seen.requests[0]!.answerHtml).toContain('the grade stands')
     expect(seen.canRequest).toBe(true)
     expect(
-      (await ctx.handle.db.select().from(regradeRequests).where(eq(regradeRequests.submissionId, soloSub))).length,
+      (await ctx.handle.db.select().from(recheckRequests).where(eq(recheckRequests.submissionId, soloSub))).length,
     ).toBe(1)
 
     const sender = createSmtpSender(ctx.config)
@@ -209,25 +210,25 @@ describe('asking for a regrade', () => {
       sender.close()
     }
     const mail = await waitForMail((all) =>
-      all.some((m) => m.to[0]?.address === fx.student.email && m.subject.includes('regrade request was answered')),
+      all.some((m) => m.to[0]?.address === fx.student.email && m.subject.includes('re-check request was answered')),
     )
     const mine = mail.filter(
-      (m) => m.to[0]?.address === fx.student.email && m.subject.includes('regrade request was answered'),
+      (m) => m.to[0]?.address === fx.student.email && m.subject.includes('re-check request was answered'),
     )
     expect(mine).toHaveLength(1)
     expect(mine[0]!.text).toContain(`Checked the window ${tag}`)
-    expect(mine[0]!.text).toContain(`/courses/${fx.courseId}/submissions/${soloSub}`)
+    expect(mine[0]!.text).toContain(`/c/${fx.courseSlug}/hand-ins/${soloSub}`)
     expect(mine[0]!.html).not.toMatch(/<script/i)
   })
 
   it('a lab-group partner may ask on the group’s hand-in; someone outside the group may not', async () => {
     await release(group.id)
-    expect((await regrade(student2, groupSub, { message: 'Not my group.' })).status).toBe(404)
-    const ok = await regrade(partner, groupSub, { message: 'Our peak thrust was read from the wrong column.' })
+    expect((await recheck(student2, groupSub, { message: 'Not my group.' })).status).toBe(404)
+    const ok = await recheck(partner, groupSub, { message: 'Our peak thrust was read from the wrong column.' })
     expect(ok.status).toBe(201)
     // The group's open request is visible to the member who handed in, and blocks a second one.
-    const st = (await student.agent.get(`${R()}/submissions/${groupSub}/regrade`).expect(200)).body as RegradeStatus
+    const st = (await student.agent.get(`${R()}/submissions/${groupSub}/recheck`).expect(200)).body as RecheckStatus
     expect(st.requests.map((r) => r.requestedBy)).toEqual([`student ${tag}`])
-    expect((await regrade(student, groupSub, { message: 'Me too.' })).status).toBe(409)
+    expect((await recheck(student, groupSub, { message: 'Me too.' })).status).toBe(409)
   })
 })

@@ -1,0 +1,2 @@
+ALTER TABLE `courses` ADD `slug` varchar(80) GENERATED ALWAYS AS (TRIM(BOTH '-' FROM REGEXP_REPLACE(LOWER(CONCAT(code, '-', term)), '[^a-z0-9]+', '-'))) STORED;--> statement-breakpoint
+ALTER TABLE `courses` ADD CONSTRAINT `courses_slug_uq` UNIQUE(`slug`);
