@@ -212,8 +212,8 @@ describe('the module source editor', () => {
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
     const { source, preview } = await openEditor(page)
     await preview.locator('[data-source-line]').first().waitFor()
-    // Calculators mount when scrolled into view and change the height; let the first one settle.
-    await preview.locator('.isentrope-calculator').first().locator('input').first().waitFor()
+    // Calculators mount as they are scrolled into view and change the height as they do: every
+    // check below polls until the preview has settled.
     const scrollTop = () => preview.evaluate((el) => el.scrollTop)
     expect(await scrollTop()).toBe(0)
     expect(await preview.evaluate((el) => el.scrollHeight > el.clientHeight)).toBe(true)

@@ -4,6 +4,7 @@ import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import { DEFAULT_DEMO_PASSWORD, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { REGIME_CHOICES } from '../../shared/grading/regime'
 import { dominantInputsText, expectedWithUncertaintyText } from '../../shared/grading/uncertainty-text'
 import type { MySubmissions, SubmissionDetail } from '../../shared/schemas/submissions'
 import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
@@ -98,12 +99,16 @@ describe('the uncertainty of the expected values on the result pages', () => {
     let withU = 0
     for (const c of asTa.checks) {
       const cell = checks.locator(`tr[data-check="${c.key}"] td[data-label="Expected"]`)
-      const text = expectedWithUncertaintyText(
-        c.expected,
-        c.uncertainty?.expanded ?? null,
-        c.uncertainty?.coverage ?? null,
-        c.unit,
-      )
+      // A regime code is shown by its name, as on the student's page.
+      const regime = c.regime ? REGIME_CHOICES.find((r) => r.code === c.expected) : undefined
+      const text = regime
+        ? `${regime.label} (${regime.code})`
+        : expectedWithUncertaintyText(
+            c.expected,
+            c.uncertainty?.expanded ?? null,
+            c.uncertainty?.coverage ?? null,
+            c.unit,
+          )
       expect(squash(await cell.innerText()), c.key).toBe(squash(text))
       if (text.includes('(k = 2)')) withU++
     }
