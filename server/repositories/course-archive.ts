@@ -58,7 +58,7 @@ export async function pageSubmissions(db: Executor, courseId: number, afterId: n
     .limit(limit)
 }
 
-/** The files' descriptions and parsed values, without their bytes. */
+/** The files' descriptions, without their bytes or parsed values. */
 export async function pageFiles(db: Executor, courseId: number, afterId: number, limit = ARCHIVE_PAGE_SIZE) {
   return db
     .select({
@@ -71,8 +71,25 @@ export async function pageFiles(db: Executor, courseId: number, afterId: number,
       sha256: submissionFiles.sha256,
       mapping: submissionFiles.mapping,
       rowCount: submissionFiles.rowCount,
-      parsed: submissionFiles.parsed,
       createdAt: submissionFiles.createdAt,
+    })
+    .from(submissionFiles)
+    .where(and(eq(submissionFiles.courseId, courseId), gt(submissionFiles.id, afterId)))
+    .orderBy(asc(submissionFiles.id))
+    .limit(limit)
+}
+
+/**
+ * The files' parsed columns (SI values). A parsed log can run to many thousand samples per column,
+ * so these pages are small.
+ */
+export async function pageParsedValues(db: Executor, courseId: number, afterId: number, limit = 10) {
+  return db
+    .select({
+      id: submissionFiles.id,
+      submissionId: submissionFiles.submissionId,
+      tableKey: submissionFiles.tableKey,
+      parsed: submissionFiles.parsed,
     })
     .from(submissionFiles)
     .where(and(eq(submissionFiles.courseId, courseId), gt(submissionFiles.id, afterId)))

@@ -21,6 +21,7 @@ import {
   pageFiles,
   pageFlags,
   pageGradeChanges,
+  pageParsedValues,
   pageGradedSubmissionIds,
   pageRechecks,
   pageSubmissions,
@@ -200,14 +201,11 @@ export async function courseArchiveZip(
 
     // The files' descriptions (without the parsed columns), then each raw file byte for byte.
     const files = await addTable('files', async (after) =>
-      (await pageFiles(db, courseId, after)).map(({ parsed: _parsed, ...f }) => ({
-        ...f,
-        archivePath: rawPath(f),
-      })),
+      (await pageFiles(db, courseId, after)).map((f) => ({ ...f, archivePath: rawPath(f) })),
     )
     await addEntry('parsed-values.jsonl', async (put) => {
       for (let after = 0; ;) {
-        const batch = await pageFiles(db, courseId, after)
+        const batch = await pageParsedValues(db, courseId, after)
         if (batch.length === 0) break
         await put(
           batch
