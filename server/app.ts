@@ -23,6 +23,7 @@ import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseAdminRoutes } from './routes/course-admin'
+import { courseArchiveRoutes } from './routes/course-archive'
 import { courseKeyRoutes } from './routes/course-keys'
 import { courseRoutes } from './routes/courses'
 import { gradeRoutes } from './routes/grades'
@@ -195,6 +196,7 @@ export function createApp({
     moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }),
   )
   api.use('/courses/:courseId', courseAdminRoutes(db))
+  api.use('/courses/:courseId', courseArchiveRoutes(db))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
   api.use(

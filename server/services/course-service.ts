@@ -50,8 +50,9 @@ export async function courseKeys(
   const enrollment = courseId === null ? null : await findEnrollment(db, user.id, courseId)
   if (!enrollment) throw notFound('That course')
   const course = await findCourseSummary(db, user.id, enrollment.courseId)
-  if (!course) throw notFound('That course')
   const staff = enrollment.role !== 'student'
+  // A closed course is gone from a student's view (as the route guard has it).
+  if (!course || (course.closedAt !== null && !staff)) throw notFound('That course')
   // The same sheets the course home lists to this person.
   const rows = await listModuleRows(db, enrollment.courseId, staff ? undefined : ['published', 'closed'])
   return { courseId: course.id, slug: course.slug, sheets: rows.map((m) => ({ id: m.id, slug: m.slug })) }

@@ -58,6 +58,8 @@ export interface CourseSummary {
   timeZone: string
   /** The course's key in page addresses: code and term, lower case, hyphenated. */
   slug: string
+  /** When the course was closed at the end of its term (ISO time), or null while it is open. */
+  closedAt: string | null
   role: CourseRole
   sectionName: string | null
   labGroupName: string | null

@@ -37,6 +37,9 @@ export const ERROR_CODES = [
   'roster_file_refused',
   'roster_rows_invalid',
   'roster_skip_invalid',
+  'course_closed',
+  'course_not_closed',
+  'confirmation_mismatch',
   // Modules
   'module_invalid',
   'edit_conflict',

@@ -5,3 +5,4 @@
  */
 export { feedbackReportUrl, moduleReportsZipUrl } from '@/api/reports'
 export { submissionFileUrl } from '@/api/submissions'
+export { courseArchiveUrl } from '@/api/course-closing'

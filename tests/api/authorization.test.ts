@@ -5,6 +5,7 @@ import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
 import { and, eq } from 'drizzle-orm'
 import {
+  courses,
   dueExtensions,
   enrollments,
   labGroups,
@@ -51,6 +52,12 @@ async function groupG1(fx: Fixture): Promise<number> {
     .from(labGroups)
     .where(and(eq(labGroups.courseId, fx.courseId), eq(labGroups.name, 'G1')))
   return g!.id
+}
+
+/** Reads a binary body and throws it away (the matrix checks only the status). */
+function ignoreBody(res: NodeJS.ReadableStream, cb: (err: Error | null, body: null) => void) {
+  res.on('data', () => {})
+  res.on('end', () => cb(null, null))
 }
 
 const CASES: Case[] = [
@@ -108,6 +115,40 @@ const CASES: Case[] = [
     route: 'GET /api/courses/:courseId/roster',
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/roster`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  // End of term: the archive, closing and reopening. Each success is undone at once, so the
+  // fixture course stays open for the cases that follow.
+  {
+    route: 'GET /api/courses/:courseId/archive.zip',
+    call: (c, fx) =>
+      c.agent
+        .get(`${C(fx)}/archive.zip`)
+        .buffer(true)
+        .parse(ignoreBody as never),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 200 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/close',
+    call: async (c, fx) => {
+      const [row] = await ctx.handle.db.select({ code: courses.code }).from(courses).where(eq(courses.id, fx.courseId))
+      const res = await c.agent
+        .post(`${C(fx)}/close`)
+        .set('x-csrf-token', c.csrf)
+        .send({ confirmCode: row!.code })
+      await ctx.handle.db.update(courses).set({ closedAt: null }).where(eq(courses.id, fx.courseId))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/reopen',
+    call: async (c, fx) => {
+      await ctx.handle.db.update(courses).set({ closedAt: new Date() }).where(eq(courses.id, fx.courseId))
+      const res = await c.agent.post(`${C(fx)}/reopen`).set('x-csrf-token', c.csrf)
+      await ctx.handle.db.update(courses).set({ closedAt: null }).where(eq(courses.id, fx.courseId))
+      return res
+    },
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
   },
   // Roster import and invitations
   {

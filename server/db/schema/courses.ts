@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import { mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, timestamps } from './columns'
 
 export const courses = mysqlTable(
@@ -24,6 +24,11 @@ export const courses = mysqlTable(
         mode: 'stored',
       },
     ),
+    /**
+     * When the instructor closed the course at the end of its term: from then on it is read-only for
+     * everyone, hidden from students, and still listed (marked closed) and readable for staff. Null: open.
+     */
+    closedAt: timestamp('closed_at', { fsp: 3, mode: 'date' }),
     ...timestamps,
   },
   (t) => [uniqueIndex('courses_code_term_uq').on(t.code, t.term), uniqueIndex('courses_slug_uq').on(t.slug)],

@@ -1,0 +1,1 @@
+ALTER TABLE `courses` ADD `closed_at` timestamp(3);
