@@ -92,6 +92,17 @@ describe('the client build', () => {
     }
   })
 
+  it('sends hashed assets with nosniff but without the page policies (CSP, frame rules)', async () => {
+    const res = await raw(request(app()).get('/assets/app-Bq3xZ9kd.js').set('Accept-Encoding', 'br'))
+    expect(res.status).toBe(200)
+    expect(res.headers['x-content-type-options']).toBe('nosniff')
+    expect(res.headers['cross-origin-resource-policy']).toBe('same-origin')
+    expect(res.headers['content-security-policy']).toBeUndefined()
+    expect(res.headers['x-frame-options']).toBeUndefined()
+    const page = await request(app()).get('/').set('Accept', 'text/html')
+    expect(page.headers['content-security-policy']).toContain("default-src 'self'")
+  })
+
   it('compresses an asset that has no pre-compressed file on the fly', async () => {
     const res = await raw(request(app()).get('/assets/plain-C4v8Tq1e.css').set('Accept-Encoding', 'gzip'))
     expect(res.headers['content-encoding']).toBe('gzip')
