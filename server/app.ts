@@ -24,6 +24,7 @@ import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseAdminRoutes } from './routes/course-admin'
 import { courseKeyRoutes } from './routes/course-keys'
+import { courseRolloverRoutes } from './routes/course-rollover'
 import { courseRoutes } from './routes/courses'
 import { gradeRoutes } from './routes/grades'
 import { healthRoutes } from './routes/health'
@@ -195,6 +196,7 @@ export function createApp({
     moduleRoutes(db, { appUrl: config.APP_URL, onPublished: () => onMailQueued?.() }),
   )
   api.use('/courses/:courseId', courseAdminRoutes(db))
+  api.use('/courses/:courseId', courseRolloverRoutes(db))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
   api.use(
