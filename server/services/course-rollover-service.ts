@@ -160,7 +160,11 @@ function isDuplicate(err: unknown): boolean {
 }
 
 /** Creates next term's course from this one, in one transaction. */
-export async function confirmRollover(db: Database, e: CourseEnrollment, input: RolloverInput): Promise<RolloverResult> {
+export async function confirmRollover(
+  db: Database,
+  e: CourseEnrollment,
+  input: RolloverInput,
+): Promise<RolloverResult> {
   let created: { courseId: number; plan: RolloverPlan }
   try {
     created = await db.transaction(async (tx) => {

@@ -75,13 +75,23 @@ export function shiftFrontMatterDates(source: string, weeks: number): ShiftResul
     const from = String(node.value)
     const to = typeof node.value === 'string' ? shiftLocalDateTime(from, weeks) : null
     if (to === null || !node.range) {
-      dates.push({ path: key, from, to: null, problem: `${key} “${from}” is not a date like 2027-02-09T17:00; not moved` })
+      dates.push({
+        path: key,
+        from,
+        to: null,
+        problem: `${key} “${from}” is not a date like 2027-02-09T17:00; not moved`,
+      })
       continue
     }
     const raw = yaml.slice(node.range[0], node.range[1])
     const at = raw.indexOf(from)
     if (at < 0) {
-      dates.push({ path: key, from, to: null, problem: `${key} “${from}” is written in a way that cannot be edited; not moved` })
+      dates.push({
+        path: key,
+        from,
+        to: null,
+        problem: `${key} “${from}” is written in a way that cannot be edited; not moved`,
+      })
       continue
     }
     edits.push({ start: yamlStart + node.range[0] + at, end: yamlStart + node.range[0] + at + from.length, text: to })
