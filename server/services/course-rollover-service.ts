@@ -95,6 +95,13 @@ async function buildPlan(db: Executor, e: CourseEnrollment, input: RolloverInput
     const late = shifted.dates.find((d) => d.path === 'late.acceptUntil')
     const fm = version.frontMatter as { due?: { timeZone?: string } } | null
     const problems = [...shifted.problems, ...shifted.dates.flatMap((d) => (d.problem ? [d.problem] : []))]
+    if (!version.valid) {
+      // The sheet was issued under older rules, or a moved date now breaks one (late limit order).
+      const n = version.issues.length
+      problems.push(
+        `the copy has ${n} problem${n === 1 ? '' : 's'} to fix before it can be issued (first: ${version.issues[0]?.message ?? '?'})`,
+      )
+    }
     if (due?.to && due.to.slice(0, 10) < input.startDate) {
       problems.push(`the moved due date ${due.to.replace('T', ' ')} is before the new term starts (${input.startDate})`)
     }
