@@ -8,6 +8,8 @@ import { anonymous, seedFixture, signedInAs, startTestApp, uniq } from '../helpe
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
+import { insertModuleWithVersion, markPublished } from '../../server/repositories/modules'
+import { toVersion } from '../../server/services/module-service'
 
 let ctx: TestContext
 let fx: Fixture
@@ -278,5 +280,36 @@ describe('roll-over refusals', () => {
       .from(enrollments)
       .where(and(eq(enrollments.courseId, fx.courseId), eq(enrollments.userId, fx.outsider.id)))
     expect(other!.n).toBe(0)
+  })
+})
+
+describe('sheets whose dates cannot be moved', () => {
+  it('are copied as they are and listed with what to check', async () => {
+    // An issued version stored before today's checks: its due date is not a real date.
+    const own = await seedFixture(ctx)
+    const me = await signedInAs(ctx, own.instructor.email)
+    const source = moduleSource('Old sheet').replace('"2027-02-09T17:00"', '"2027-02-30T17:00"')
+    const v = toVersion(source, 'old-sheet', 'UTC')
+    const m = await insertModuleWithVersion(
+      ctx.handle.db,
+      { courseId: own.courseId, slug: 'old-sheet', position: 1, createdBy: own.instructor.id },
+      v,
+    )
+    await markPublished(ctx.handle.db, m.moduleId, m.versionId, null, own.instructor.id)
+    const res = await me.agent
+      .post(`/api/courses/${own.courseId}/rollover`)
+      .set('x-csrf-token', me.csrf)
+      .send(request())
+    expect(res.status).toBe(201)
+    const sheet = (res.body as RolloverResult).sheets[0]!
+    expect(sheet).toMatchObject({ oldDue: '2027-02-30T17:00', newDue: null })
+    expect(sheet.problems.join(' ')).toMatch(/due\.at “2027-02-30T17:00” is not a date .* not moved/)
+    expect(sheet.problems.join(' ')).toMatch(/problem.* to fix before it can be issued/)
+    const [copy] = await ctx.handle.db
+      .select({ source: moduleVersions.source, valid: moduleVersions.valid })
+      .from(moduleVersions)
+      .innerJoin(modules, eq(modules.currentVersionId, moduleVersions.id))
+      .where(eq(modules.courseId, (res.body as RolloverResult).courseId))
+    expect(copy).toEqual({ source, valid: false })
   })
 })
