@@ -25,6 +25,7 @@ import { SESSION_COOKIE, authRoutes } from './routes/auth'
 import { courseAdminRoutes } from './routes/course-admin'
 import { courseArchiveRoutes } from './routes/course-archive'
 import { courseKeyRoutes } from './routes/course-keys'
+import { courseRolloverRoutes } from './routes/course-rollover'
 import { courseRoutes } from './routes/courses'
 import { gradeRoutes } from './routes/grades'
 import { healthRoutes } from './routes/health'
@@ -205,6 +206,7 @@ export function createApp({
   )
   api.use('/courses/:courseId', courseAdminRoutes(db))
   api.use('/courses/:courseId', courseArchiveRoutes(db))
+  api.use('/courses/:courseId', courseRolloverRoutes(db))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
   api.use(

@@ -32,6 +32,7 @@ export function useCourseLinks(courseId: MaybeRefOrGetter<number>) {
     roster: () => page('course-roster', '/roster'),
     rosterImport: () => page('roster-import', '/roster/import'),
     sections: () => page('course-sections', '/sections'),
+    rollover: () => page('course-rollover', '/next-term'),
     reviewQueue: () => page('review-queue', '/review'),
     marks: () => page('marks', '/gradebook'),
     myMarks: () => page('my-marks', '/grades'),

@@ -34,6 +34,7 @@ async function oldAddress(to: RouteLocationNormalized): Promise<RouteLocationRaw
     roster: 'course-roster',
     'roster/import': 'roster-import',
     sections: 'course-sections',
+    'next-term': 'course-rollover',
     review: 'review-queue',
     gradebook: 'marks',
     grades: 'my-marks',
@@ -105,6 +106,13 @@ const router = createRouter({
       component: () => import('@/views/SectionsView.vue'),
       props: (r) => ({ courseId: courseIdOf(r) }),
       meta: { title: 'Sections & groups' },
+    },
+    {
+      path: '/c/:course/next-term',
+      name: 'course-rollover',
+      component: () => import('@/views/CourseRolloverView.vue'),
+      props: (r) => ({ courseId: courseIdOf(r) }),
+      meta: { title: 'Start next term' },
     },
     {
       path: '/c/:course/review',

@@ -578,6 +578,25 @@ const CASES: Case[] = [
     },
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
   },
+  // Starting next term's course from this one: a fresh code each call, so the instructor's succeeds.
+  {
+    route: 'POST /api/courses/:courseId/rollover/preview',
+    call: (c, fx) =>
+      c.agent
+        .post(`${C(fx)}/rollover/preview`)
+        .set('x-csrf-token', c.csrf)
+        .send({ ...newCourse(), startDate: '2027-08-30', shiftWeeks: 27 }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/rollover',
+    call: (c, fx) =>
+      c.agent
+        .post(`${C(fx)}/rollover`)
+        .set('x-csrf-token', c.csrf)
+        .send({ ...newCourse(), startDate: '2027-08-30', shiftWeeks: 27 }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
+  },
 ]
 
 /** The revision the caller would have on screen (0 when they may not see it). */
