@@ -24,7 +24,25 @@ export function backoffMs(attempts: number, o: Pick<OutboxWorkerOptions, 'baseBa
   return Math.min(o.maxBackoffMs, o.baseBackoffMs * 2 ** Math.max(0, attempts - 1))
 }
 
-/** Sends one batch of due mail; returns how many were sent. Usable from a script or a test. */
+/** Tries a bookkeeping write a few times (the database may be slow for a moment); throws the last error. */
+async function persist(write: () => Promise<void>, tries = 5, pauseMs = 250): Promise<void> {
+  for (let i = 1; ; i++) {
+    try {
+      return await write()
+    } catch (err) {
+      if (i >= tries) throw err
+      await new Promise((r) => setTimeout(r, pauseMs * i))
+    }
+  }
+}
+
+/**
+ * Sends one batch of due mail; returns how many were sent. Usable from a script or a test.
+ *
+ * A message the mail server accepted is never put back in the queue: if recording it as sent fails
+ * even after retries, it stays claimed ('sending'), so it is sent again only by the stale-claim
+ * release, the same as after a crash. Only a failed send schedules a retry.
+ */
 export async function drainOnce(
   db: Database,
   sender: MailSender,
@@ -36,13 +54,18 @@ export async function drainOnce(
   for (const m of batch) {
     try {
       await sender.send({ to: m.toAddress, toName: m.toName, subject: m.subject, text: m.textBody, html: m.htmlBody })
-      await markSent(db, m.id)
-      sent++
     } catch (err) {
       const message = err instanceof Error ? err.message : String(err)
       const retryAt = m.attempts < o.maxAttempts ? new Date(Date.now() + backoffMs(m.attempts, o)) : null
-      await markFailed(db, m.id, message, retryAt)
       logger.warn({ mailId: m.id, attempts: m.attempts, retryAt, err: message }, 'mail send failed')
+      await persist(() => markFailed(db, m.id, message, retryAt))
+      continue
+    }
+    sent++
+    try {
+      await persist(() => markSent(db, m.id))
+    } catch (err) {
+      logger.error({ mailId: m.id, err }, 'mail sent but not recorded as sent; it stays claimed')
     }
   }
   return sent
@@ -60,6 +83,7 @@ export function startOutboxWorker(
 ) {
   let timer: NodeJS.Timeout | null = null
   let running: Promise<void> | null = null
+  let again = false
   let stopped = false
 
   const tick = async () => {
@@ -73,21 +97,30 @@ export function startOutboxWorker(
       logger.warn({ err }, 'outbox worker cycle failed; will retry')
     }
   }
+  /** Runs a cycle unless one is running; a request made during a cycle runs one more after it. */
+  const run = (): Promise<void> => {
+    if (stopped) return Promise.resolve()
+    if (running) {
+      again = true
+      return running
+    }
+    running = tick().finally(() => {
+      running = null
+      if (again && !stopped) {
+        again = false
+        void run()
+      }
+    })
+    return running
+  }
   const schedule = () => {
     if (stopped) return
-    timer = setTimeout(() => {
-      running = tick().finally(() => {
-        running = null
-        schedule()
-      })
-    }, o.pollMs)
+    timer = setTimeout(() => void run().finally(schedule), o.pollMs)
   }
   schedule()
   return {
     /** Runs a cycle now (used after a publish so mail does not wait for the next poll). */
-    kick: () => {
-      if (!running && !stopped) running = tick().finally(() => (running = null))
-    },
+    kick: () => void run(),
     stop: async () => {
       stopped = true
       if (timer) clearTimeout(timer)

@@ -12,8 +12,14 @@ import { AppError } from '../errors'
  *   when its part header arrives, before a byte of it is kept;
  * - a body that is cut off or is not multipart at all is the sender's fault: a 400, not a 500.
  *
- * A refusal is answered at once, with `Connection: close`, so the rest of a large body is not read;
- * multer's own callback, which comes only after it has drained the body, is then ignored.
+ * A refusal is answered at once; multer's own callback, which comes only after it has drained the
+ * body, is then ignored. What happens to the rest of the body depends on whether it is bounded:
+ * - a body with a Content-Length within the limit is read and discarded after the answer, so the
+ *   connection is closed by nobody and the sender always receives the whole answer (closing a socket
+ *   with unread bytes makes the kernel reset it, and the answer can be lost with the reset: a student
+ *   handing in while the database is down would see "connection reset" instead of the 503);
+ * - a body without a length, or over the limit, is not read further: the answer carries
+ *   `Connection: close`.
  */
 
 /** Room for the form's text fields (the JSON payload) and the multipart framing, beyond the files. */
@@ -41,17 +47,18 @@ export function handInUpload(opts: HandInUploadOptions): RequestHandler {
     })
 
   return async (req: Request, res: Response, next: NextFunction) => {
+    // Refused from its Content-Length before any of it is read (and before the database is asked).
+    const declared = Number(req.headers['content-length'] ?? 0)
     try {
-      // Refused from its Content-Length before any of it is read (and before the database is asked).
-      const declared = Number(req.headers['content-length'] ?? 0)
       if (declared > requestLimit) throw tooLarge()
       const fields = await opts.fileFields(req, res)
       // Anything but a form upload would be left unread by the parser; say so instead.
       if (!req.is('multipart/form-data')) throw new AppError('bad_upload', MALFORMED, 400)
       await readForm(req, res, { fields, fileLimit, requestLimit, tooLarge, limitMb: opts.limitMb })
     } catch (error) {
-      // The body may still be arriving: stop reading it once the answer is sent.
-      if (!req.complete) res.set('Connection', 'close')
+      // The body may still be arriving: an unbounded one is not read further once the answer is
+      // sent; a bounded one is left to Node, which reads and discards it after the answer.
+      if (!req.complete && !(declared > 0 && declared <= requestLimit)) res.set('Connection', 'close')
       throw error
     }
     next()

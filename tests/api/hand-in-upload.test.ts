@@ -303,3 +303,68 @@ describe('a broken form upload is a 400 with a plain message, not a 500', () => 
     expect(res.body.error.message).toBe(MESSAGE)
   })
 })
+
+describe('a refused hand-in whose body has a length within the limit', () => {
+  /**
+   * One request over a keep-alive agent with a single socket: the status, the Connection header
+   * of the answer, and whether the request went out on a socket an earlier request had used.
+   */
+  function sendOnAgent(
+    agent: http.Agent,
+    session: { cookie: string; csrf: string },
+    path: string,
+    body: Buffer,
+  ): Promise<{ status: number; connection: string | undefined; reused: boolean; code?: string }> {
+    return new Promise((resolve, reject) => {
+      const req = http.request(`${base}${path}`, {
+        agent,
+        method: 'POST',
+        headers: {
+          cookie: session.cookie,
+          'x-csrf-token': session.csrf,
+          'content-type': `multipart/form-data; boundary=${BOUNDARY}`,
+          'content-length': String(body.length),
+        },
+      })
+      req.on('response', (res) => {
+        const chunks: Buffer[] = []
+        res.on('data', (c: Buffer) => chunks.push(c))
+        res.on('end', () => {
+          const parsed = JSON.parse(Buffer.concat(chunks).toString('utf8')) as { error?: { code: string } }
+          resolve({
+            status: res.statusCode ?? 0,
+            connection: res.headers.connection,
+            reused: req.reusedSocket,
+            code: parsed.error?.code,
+          })
+        })
+      })
+      req.on('error', reject)
+      req.end(body)
+    })
+  }
+
+  it('is answered without closing the connection, so the answer cannot be lost to a reset and the next request reuses it', async () => {
+    const session = await httpSession(fx.student2.email)
+    // A hand-in of 1.5 MB (under the limit) to a module that is not there: refused before the body is read.
+    const body = Buffer.concat([
+      fieldPart('payload', JSON.stringify(coldFlowPayload(log))),
+      fileHead('table:run', 'run.csv'),
+      ...filler(Math.round(1.5 * MB)),
+      Buffer.from('\r\n'),
+      CLOSE,
+    ])
+    const agent = new http.Agent({ keepAlive: true, maxSockets: 1 })
+    try {
+      const missing = `/api/courses/${fx.courseId}/modules/${mod.id + 100_000}/submissions`
+      const first = await sendOnAgent(agent, session, missing, body)
+      expect(first.status).toBe(404)
+      expect(first.connection).not.toBe('close')
+      const second = await sendOnAgent(agent, session, missing, body)
+      expect(second.status).toBe(404)
+      expect(second.reused).toBe(true)
+    } finally {
+      agent.destroy()
+    }
+  })
+})

@@ -123,6 +123,47 @@ describe('mail outbox', () => {
     expect((await caughtMail()).some((m) => m.subject.includes(tag))).toBe(false)
   })
 
+  it('a message the mail server accepted is not queued again when recording it as sent is slow for a moment', async () => {
+    const tag = uniq()
+    await enqueueMail(ctx.handle.db, mails(tag, 1))
+    // The drainer's statements give up after 0.5 s, as a loaded server's might.
+    const impatient = startTestApp({ DB_QUERY_TIMEOUT_MS: '500' })
+    const smtp = createSmtpSender(ctx.config)
+    let held: Promise<void> | undefined
+    const slowAfterSend: MailSender = {
+      send: async (m) => {
+        await smtp.send(m)
+        // Another connection locks the row for 2 s: the first tries to record the send time out.
+        const conn = await ctx.handle.pool.getConnection()
+        await conn.beginTransaction()
+        await conn.query('SELECT id FROM mail_outbox WHERE dedupe_key = ? AND to_address = ? FOR UPDATE', [
+          `test:${tag}`,
+          m.to,
+        ])
+        held = new Promise<void>((r) => setTimeout(r, 2000)).then(async () => {
+          await conn.commit()
+          conn.release()
+        })
+      },
+      close: () => smtp.close(),
+    }
+    try {
+      const sent = await drainOnce(impatient.handle.db, slowAfterSend, logger, opts)
+      expect(sent).toBeGreaterThanOrEqual(1)
+      await held
+    } finally {
+      smtp.close()
+      await impatient.close()
+    }
+    const [row] = await ctx.handle.db
+      .select()
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `test:${tag}`))
+    expect(row).toMatchObject({ status: 'sent', attempts: 1, lastError: null })
+    const caught = await waitForMail((all) => all.some((m) => m.subject.includes(tag)))
+    expect(caught.filter((m) => m.subject.includes(tag))).toHaveLength(1)
+  })
+
   it('back-off doubles per attempt up to the cap', () => {
     expect([1, 2, 3, 4, 5, 6].map((a) => backoffMs(a, opts))).toEqual([
       60_000, 120_000, 240_000, 480_000, 600_000, 600_000,
