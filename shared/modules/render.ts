@@ -25,7 +25,7 @@ import { EXTERNAL_LINK_REL, MODULE_HTML, isExternalLink } from './html-allow-lis
 import type { ModuleIssue } from './front-matter'
 
 /** The live calculators a module can embed. */
-export const CALCULATOR_KINDS = ['isentropic', 'normal-shock', 'nozzle', 'blowdown'] as const
+export const CALCULATOR_KINDS = ['isentropic', 'normal-shock', 'nozzle', 'blowdown', 'combustion'] as const
 export type CalculatorKind = (typeof CALCULATOR_KINDS)[number]
 
 /** Starting inputs of an embedded calculator. */

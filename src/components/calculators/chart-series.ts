@@ -8,4 +8,6 @@ export interface ChartSeries {
   /** A colour role of Isentrope's palette. */
   colour: 'ink' | 'copper' | 'muted'
   dashed?: boolean
+  /** Draw the points as dots with no line between them (e.g. the operating point on a curve). */
+  marker?: boolean
 }

@@ -167,7 +167,7 @@ describe('renderModule: calculator blocks', () => {
   })
 
   it('accepts every calculator kind and an empty block', () => {
-    for (const kind of ['isentropic', 'normal-shock', 'nozzle', 'blowdown']) {
+    for (const kind of ['isentropic', 'normal-shock', 'nozzle', 'blowdown', 'combustion']) {
       const [div] = calculatorDivs(renderModule(`\`\`\`calculator ${kind}\n\`\`\``))
       expect(div?.attributes['data-kind']).toBe(kind)
       expect(div?.attributes['data-defaults']).toBe('{}')
