@@ -11,7 +11,14 @@ import type { ComputedRef } from 'vue'
 import { computed } from 'vue'
 import { areaFromDiameter, nozzleFlow } from '@shared/physics'
 import type { NozzleFlow } from '@shared/physics'
-import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '@shared/thermo'
+import {
+  EQUIVALENCE_RATIO_RANGE,
+  FUELS,
+  combustion,
+  equivalenceRatioFromMixtureRatio,
+  mixtureRatioFromEquivalenceRatio,
+} from '@shared/thermo'
+import type { CombustionResult as FlameProducts, Fuel } from '@shared/thermo'
 import { fromSI, toSI } from '@shared/units'
 import type { UnitSymbol } from '@shared/units'
 import {
@@ -32,12 +39,7 @@ export const TEMPERATURE_UNITS = ['K', 'degC'] as const satisfies readonly UnitS
 export const LENGTH_UNITS = ['mm', 'in'] as const satisfies readonly UnitSymbol[]
 
 /** The fuels the thermochemistry library burns with air. */
-export const FUEL_CHOICES = [
-  { label: 'methane', value: 'methane' },
-  { label: 'propane', value: 'propane' },
-  { label: 'hydrogen', value: 'hydrogen' },
-] as const
-export type Fuel = (typeof FUEL_CHOICES)[number]['value']
+const FUEL_CHOICES = FUELS.map((value) => ({ label: value, value })) as readonly { label: Fuel; value: Fuel }[]
 
 /** Which of the two ways of giving the mixture the person types; the other is shown as a result. */
 const MIXTURE_CHOICES = [
@@ -123,7 +125,7 @@ export const COMBUSTION_FIELDS = [
 export type CombustionForm = CalculatorForm<InputsOf<typeof COMBUSTION_FIELDS>>
 
 /** The equilibrium products as the library gives them (see `combustion` in shared/thermo). */
-export type CombustionGas = ReturnType<typeof combustion>
+export type CombustionGas = FlameProducts
 
 /** One point of the chart: flame temperature (K) and c* (m/s) at an equivalence ratio. */
 export interface SweepPoint {
@@ -180,11 +182,13 @@ function sweep(fuel: Fuel, pressure: number, reactantTemperature: number, equiva
   return points
 }
 
+const { min: PHI_MIN, max: PHI_MAX } = EQUIVALENCE_RATIO_RANGE
+
 /** The air-to-fuel ratios that bound the library's equivalence ratios for a fuel, as words ("from 6.2 to 39"). */
 function mixtureRatioSpan(fuel: Fuel): string {
   try {
-    const rich = mixtureRatioFromEquivalenceRatio(fuel, 2.5)
-    const lean = mixtureRatioFromEquivalenceRatio(fuel, 0.4)
+    const rich = mixtureRatioFromEquivalenceRatio(fuel, PHI_MAX)
+    const lean = mixtureRatioFromEquivalenceRatio(fuel, PHI_MIN)
     return ` (for ${fuel}, from ${formatCompact(rich, 3)} to ${formatCompact(lean, 3)} kg of air per kg of fuel)`
   } catch {
     return ''
@@ -230,9 +234,9 @@ export function computeCombustion(form: CombustionForm): CombustionResult {
   const outOfRange =
     mixtureField === 'equivalenceRatio'
       ? () =>
-          'The equivalence ratio φ must be between 0.4 (very lean) and 2.5 (very rich): the combustion library covers that range.'
+          `The equivalence ratio φ must be between ${PHI_MIN} (very lean) and ${PHI_MAX} (very rich): the combustion library covers that range.`
       : () =>
-          `The air-to-fuel ratio must give an equivalence ratio between 0.4 and 2.5${mixtureRatioSpan(fuel)}: the combustion library covers that range.`
+          `The air-to-fuel ratio must give an equivalence ratio between ${PHI_MIN} and ${PHI_MAX}${mixtureRatioSpan(fuel)}: the combustion library covers that range.`
   let equivalenceRatio: number
   if (mixtureField === 'equivalenceRatio') {
     equivalenceRatio = readNumber('equivalenceRatio', form.equivalenceRatio, 'equivalence ratio')

@@ -124,8 +124,8 @@ describe('the combustion calculator in Chromium', () => {
       chamberPressure: chamber,
       chamberTemperature: gas.temperature,
       ambientPressure: ambient,
-      throatArea: areaFromDiameter(0.006),
-      exitArea: areaFromDiameter(0.01),
+      throatArea: areaFromDiameter(toSI(6, 'mm')),
+      exitArea: areaFromDiameter(toSI(10, 'mm')),
       gamma: gas.gamma,
       gasConstant: (gas.cp * (gas.gamma - 1)) / gas.gamma,
     })

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { areaFromDiameter, nozzleFlow } from '@shared/physics'
 import { combustion, equivalenceRatioFromMixtureRatio } from '@shared/thermo'
-import { gaugeToAbsolute } from '@shared/units'
+import { gaugeToAbsolute, toSI } from '@shared/units'
 import { FieldError, calculatorForm } from '@/composables/use-calculator'
 import { CHART_POINTS, CHART_SPAN, COMBUSTION_FIELDS, computeCombustion } from '@/composables/use-combustion-calculator'
 import type { CombustionForm } from '@/composables/use-combustion-calculator'
@@ -71,8 +71,8 @@ describe('the combustion calculator', () => {
       chamberPressure: gaugeToAbsolute(5e5, 101325),
       chamberTemperature: r.gas.temperature,
       ambientPressure: 101325,
-      throatArea: areaFromDiameter(0.006),
-      exitArea: areaFromDiameter(0.009),
+      throatArea: areaFromDiameter(toSI(6, 'mm')),
+      exitArea: areaFromDiameter(toSI(9, 'mm')),
       gamma: r.gas.gamma,
       gasConstant: r.gasConstant,
     })
