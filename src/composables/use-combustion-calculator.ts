@@ -6,9 +6,8 @@
  * with those gas properties through the formula library's nozzleFlow, the same code the nozzle
  * calculator runs; and the flame temperature and c* against the equivalence ratio for the chart.
  */
-import { watch } from 'vue'
+import { computed, watch } from 'vue'
 import type { ComputedRef } from 'vue'
-import { computed } from 'vue'
 import { areaFromDiameter, nozzleFlow } from '@shared/physics'
 import type { NozzleFlow } from '@shared/physics'
 import {
@@ -23,6 +22,7 @@ import { fromSI, toSI } from '@shared/units'
 import type { UnitSymbol } from '@shared/units'
 import {
   absolutePressure,
+  calculatorForm,
   forField,
   formatCompact,
   formatPressure,
@@ -332,9 +332,12 @@ export function computeCombustion(form: CombustionForm): CombustionResult {
   }
 }
 
-/** A number to put back in a box the person will read and may edit: five figures, no grouping. */
+/**
+ * A number to put back in a box the person will read and may edit: six figures (one more than the
+ * results show, so a value carried over prints the same), no grouping.
+ */
 function typedText(value: number): string {
-  return formatCompact(value, 5).replace(/,/g, '')
+  return formatCompact(value, 6).replace(/,/g, '')
 }
 
 /** The keys hidden for each choice: the way of giving the mixture or exit that is not in use. */
@@ -343,6 +346,56 @@ function hiddenKeys(form: CombustionForm): Set<string> {
     form.mixtureBy === 'equivalenceRatio' ? 'mixtureRatio' : 'equivalenceRatio',
     form.exitBy === 'exitDiameter' ? 'areaRatio' : 'exitDiameter',
   ])
+}
+
+/**
+ * The starting values with the typed box of each choice filled in: a module may start on the
+ * air-to-fuel ratio (or the area ratio) without giving one, and the box then starts at the
+ * equivalent of the φ (or the diameters) given or built in, rather than empty.
+ */
+export function startingDefaults(defaults: CalculatorDefaults | undefined): CalculatorDefaults {
+  const start = calculatorForm(COMBUSTION_FIELDS, defaults)
+  const filled: CalculatorDefaults = { ...defaults }
+  try {
+    if (start.mixtureBy === 'mixtureRatio' && start.mixtureRatio === '') {
+      const phi = readNumber('equivalenceRatio', start.equivalenceRatio, 'equivalence ratio')
+      filled.mixtureRatio = typedText(mixtureRatioFromEquivalenceRatio(start.fuel, phi))
+    }
+  } catch {
+    // Left empty: the box then asks for a value.
+  }
+  try {
+    if (start.exitBy === 'areaRatio' && start.areaRatio === '') {
+      const throat = toSI(readNumber('throatDiameter', start.throatDiameter, ''), start.throatDiameterUnit)
+      const exit = toSI(readNumber('exitDiameter', start.exitDiameter, ''), start.exitDiameterUnit)
+      const ratio = (exit / throat) ** 2
+      if (Number.isFinite(ratio)) filled.areaRatio = typedText(ratio)
+    }
+  } catch {
+    // Left empty, as above.
+  }
+  return filled
+}
+
+/**
+ * After the person switches which way of giving the mixture (or the exit) is typed: the box now
+ * shown starts at the equivalent of the last results, so they stay where they were. Nothing
+ * changes while there are no results (the box keeps what it had).
+ */
+export function carryOver(form: CombustionForm, last: CombustionResult | null, choice: 'mixtureBy' | 'exitBy'): void {
+  if (!last) return
+  if (choice === 'mixtureBy') {
+    if (form.mixtureBy === 'mixtureRatio') form.mixtureRatio = typedText(last.mixtureRatio)
+    else form.equivalenceRatio = typedText(last.equivalenceRatio)
+    return
+  }
+  if (form.exitBy === 'areaRatio') {
+    form.areaRatio = typedText(last.flow.areaRatio)
+    return
+  }
+  const throat = toSI(Number(form.throatDiameter), form.throatDiameterUnit)
+  const exit = fromSI(throat * Math.sqrt(last.flow.areaRatio), form.exitDiameterUnit)
+  if (Number.isFinite(exit)) form.exitDiameter = typedText(exit)
 }
 
 /** What {@link useCombustionCalculator} gives the component: the fieldsets, the form to bind and the live results. */
@@ -358,42 +411,17 @@ export interface CombustionCalculator extends Calculator<typeof COMBUSTION_FIELD
  * shown at the equivalent of what was typed before, so the results stay where they were.
  */
 export function useCombustionCalculator(defaults: CalculatorDefaults | undefined): CombustionCalculator {
-  const calculator = useCalculator(COMBUSTION_FIELDS, defaults, computeCombustion)
+  const calculator = useCalculator(COMBUSTION_FIELDS, startingDefaults(defaults), computeCombustion)
   const { form, result } = calculator
-
-  // A module may start on the air-to-fuel ratio without giving one: start it at the φ given.
-  if (form.mixtureBy === 'mixtureRatio' && form.mixtureRatio.trim() === '') {
-    try {
-      const phi = readNumber('equivalenceRatio', form.equivalenceRatio, 'equivalence ratio')
-      form.mixtureRatio = typedText(mixtureRatioFromEquivalenceRatio(form.fuel, phi))
-    } catch {
-      // Left empty: the field then asks for a value.
-    }
-  }
-
+  // Synchronous, so the carry-over reads the results of the inputs before the switch.
   watch(
     () => form.mixtureBy,
-    (by) => {
-      const r = result.value
-      if (!r) return
-      if (by === 'mixtureRatio') form.mixtureRatio = typedText(r.mixtureRatio)
-      else form.equivalenceRatio = typedText(r.equivalenceRatio)
-    },
+    () => carryOver(form, result.value, 'mixtureBy'),
     { flush: 'sync' },
   )
   watch(
     () => form.exitBy,
-    (by) => {
-      const r = result.value
-      if (!r) return
-      if (by === 'areaRatio') {
-        form.areaRatio = typedText(r.flow.areaRatio)
-      } else {
-        const throat = toSI(Number(form.throatDiameter), form.throatDiameterUnit)
-        const exit = throat * Math.sqrt(r.flow.areaRatio)
-        if (Number.isFinite(exit)) form.exitDiameter = typedText(fromSI(exit, form.exitDiameterUnit))
-      }
-    },
+    () => carryOver(form, result.value, 'exitBy'),
     { flush: 'sync' },
   )
 

@@ -1,9 +1,16 @@
 import { describe, expect, it } from 'vitest'
 import { areaFromDiameter, nozzleFlow } from '@shared/physics'
-import { combustion, equivalenceRatioFromMixtureRatio } from '@shared/thermo'
+import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '@shared/thermo'
 import { gaugeToAbsolute, toSI } from '@shared/units'
 import { FieldError, calculatorForm } from '@/composables/use-calculator'
-import { CHART_POINTS, CHART_SPAN, COMBUSTION_FIELDS, computeCombustion } from '@/composables/use-combustion-calculator'
+import {
+  CHART_POINTS,
+  CHART_SPAN,
+  COMBUSTION_FIELDS,
+  carryOver,
+  computeCombustion,
+  startingDefaults,
+} from '@/composables/use-combustion-calculator'
 import type { CombustionForm } from '@/composables/use-combustion-calculator'
 import { expectClose } from '../../helpers/expect-close'
 
@@ -144,5 +151,48 @@ describe('the combustion calculator', () => {
     const rich = computeCombustion(form({ fuel: 'methane', equivalenceRatio: 2.3 }))
     expect(rich.sweep[0]?.equivalenceRatio).toBe(CHART_SPAN[0])
     expect(rich.sweep[CHART_POINTS - 1]?.equivalenceRatio).toBeCloseTo(2.3, 12)
+  })
+
+  it('a module that starts on the air-to-fuel ratio or the area ratio without one gets the equivalent of φ or the diameters', () => {
+    const d = startingDefaults({
+      fuel: 'hydrogen',
+      mixtureBy: 'mixtureRatio',
+      equivalenceRatio: 0.6,
+      exitBy: 'areaRatio',
+    })
+    expect(Number(d.mixtureRatio)).toBeCloseTo(mixtureRatioFromEquivalenceRatio('hydrogen', 0.6), 3)
+    // Built-in diameters 6 mm and 9 mm: (9/6)² = 2.25.
+    expect(d.areaRatio).toBe('2.25')
+    // What a module gives is kept; nothing is added when the box in use has a value or is not in use.
+    expect(startingDefaults({ mixtureBy: 'mixtureRatio', mixtureRatio: 20 })).toEqual({
+      mixtureBy: 'mixtureRatio',
+      mixtureRatio: 20,
+    })
+    expect(startingDefaults(undefined)).toEqual({})
+  })
+
+  it('switching the way the mixture or exit is given starts the new box at the equivalent of the last results', () => {
+    const f = form({ fuel: 'methane', equivalenceRatio: 1.3, throatDiameter: 0.25, throatDiameterUnit: 'in' })
+    const last = computeCombustion(f)
+    f.mixtureBy = 'mixtureRatio'
+    carryOver(f, last, 'mixtureBy')
+    expect(Number(f.mixtureRatio)).toBeCloseTo(mixtureRatioFromEquivalenceRatio('methane', 1.3), 3)
+    const again = computeCombustion(f)
+    expectClose(again.equivalenceRatio, 1.3, 1e-5, 'φ after the switch')
+
+    f.exitBy = 'areaRatio'
+    carryOver(f, again, 'exitBy')
+    expectClose(Number(f.areaRatio), (9 / 6.35) ** 2, 1e-5, 'area ratio of a 9 mm exit on a 0.25 in throat')
+    const byRatio = computeCombustion(f)
+    f.exitBy = 'exitDiameter'
+    f.exitDiameter = ''
+    carryOver(f, byRatio, 'exitBy')
+    expectClose(Number(f.exitDiameter), 9, 1e-5, 'exit diameter back from the area ratio, mm')
+
+    // Without results (an input out of range) the box keeps what it had.
+    f.mixtureBy = 'equivalenceRatio'
+    f.equivalenceRatio = '7'
+    carryOver(f, null, 'mixtureBy')
+    expect(f.equivalenceRatio).toBe('7')
   })
 })
