@@ -45,8 +45,9 @@ function expectMatches(name: SpeciesName, t: number, reference: Reference, toler
  * of NASA's CEA program; 1-bar standard state, h absolute with Δhf(298.15 K)). Per range: a1…a7, b1, b2.
  * Read from public copies of that file: CO2, H2O, N2, O2 from MIT-LAE/IdealGases.jl `thermo.inp`;
  * H2 and CH4 from a pinned copy of nasa/cea `data/thermo.inp` (v3.3.3); CO from the ThermoBuild example
- * printed in Cantera's documentation. These fits were made independently of GRI-Mech's, from the
- * Gurvich and Cox tables.
+ * printed in Cantera's documentation; O, OH, N, NO, H as noted below. C3H8 has no Glenn entry here:
+ * it is checked at 298.15 K only (below), being a reactant. These fits were made independently of
+ * GRI-Mech's, from the Gurvich and Cox tables.
  */
 const GLENN: Partial<Record<SpeciesName, { low: number[]; high: number[] }>> = {
   CO2: {
@@ -107,6 +108,50 @@ const GLENN: Partial<Record<SpeciesName, { low: number[]; high: number[] }>> = {
     high: [
       3.73004276e6, -1.383501485e4, 2.049107091e1, -1.961974759e-3, 4.72731304e-7, -3.72881469e-11, 1.623737207e-15,
       7.53206691e4, -1.219124889e2,
+    ],
+  },
+  // O, OH, N, NO, H: the NASA-9 entries ("Converted from NASA 9-coefficient format", 8 significant
+  // figures) in alongd/RMG-database, input/thermo/libraries/plasma.py.
+  O: {
+    low: [
+      -7953.6113, 160.71778, 1.9662264, 0.0010136703, -1.1104154e-6, 6.5175075e-10, -1.5847793e-13, 28403.624,
+      8.4042418,
+    ],
+    high: [
+      261902.03, -729.8722, 3.3171773, -0.00042813344, 1.0361046e-7, -9.4383043e-12, 2.7250383e-16, 33924.281,
+      -0.66795854,
+    ],
+  },
+  OH: {
+    low: [
+      -1998.859, 93.001362, 3.0508542, 0.0015295293, -3.157891e-6, 3.3154462e-9, -1.1387627e-12, 3239.6835, 4.6741108,
+    ],
+    high: [
+      1017393.4, -2509.9573, 5.1165479, 0.00013052999, -8.2843223e-8, 2.0064759e-11, -1.5569937e-15, 20444.871,
+      -11.012823,
+    ],
+  },
+  N: {
+    low: [0, 0, 2.5, 0, 0, 0, 0, 56104.638, 4.1939093],
+    high: [
+      88765.014, -107.12315, 2.3621883, 0.00029167201, -1.7295151e-7, 4.0126579e-11, -2.6772276e-15, 56973.513,
+      4.8652358,
+    ],
+  },
+  NO: {
+    low: [
+      -11439.165, 153.64676, 3.4314687, -0.0026685924, 8.4813991e-6, -7.6851111e-9, 2.3867977e-12, 9098.2144, 6.7287275,
+    ],
+    high: [
+      223901.87, -1289.6516, 5.433936, -0.00036560349, 9.8809664e-8, -1.4160769e-11, 9.3801846e-16, 17503.177,
+      -8.5016671,
+    ],
+  },
+  H: {
+    low: [0, 0, 2.5, 0, 0, 0, 0, 25473.708, -0.44668285],
+    high: [
+      60.787743, -0.18193544, 2.5002118, -1.2265129e-7, 3.7328763e-11, -5.6877446e-15, 3.4102102e-19, 25474.864,
+      -0.44819178,
     ],
   },
   CO: {
