@@ -236,6 +236,9 @@ describe('combustion: bad input', () => {
     expectRangeError(() => combustion({ ...ok, reactantTemperature: 0 }), 'reactantTemperature')
     expectRangeError(() => combustion({ ...ok, reactantTemperature: Number.NaN }), 'reactantTemperature')
     expectRangeError(() => combustion({ ...ok, reactantTemperature: -300 }), 'reactantTemperature')
+    expectRangeError(() => combustion({ ...ok, reactantTemperature: Infinity }), 'reactantTemperature')
+    // Above 3000 K the flame would leave the species data's ranges.
+    expectRangeError(() => combustion({ ...ok, reactantTemperature: 3001 }), 'reactantTemperature', '3000')
     expectRangeError(() => combustion(null as never), 'input')
     expectRangeError(() => mixtureRatioFromEquivalenceRatio('kerosene' as Fuel, 1), 'fuel')
     expectRangeError(() => mixtureRatioFromEquivalenceRatio('methane', 0), 'equivalenceRatio')
@@ -243,7 +246,10 @@ describe('combustion: bad input', () => {
     expectRangeError(() => equivalenceRatioFromMixtureRatio('methane', Number.NaN), 'mixtureRatio')
   })
 
-  it('accepts the ends of the φ range', () => {
+  it('accepts the ends of the φ range and reactants up to 3000 K', () => {
+    expect(
+      combustion({ fuel: 'methane', equivalenceRatio: 1, pressure: ATM, reactantTemperature: 3000 }).temperature,
+    ).toBeGreaterThan(3000)
     expect(combustion({ fuel: 'hydrogen', equivalenceRatio: 0.4, pressure: ATM }).temperature).toBeGreaterThan(1000)
     expect(combustion({ fuel: 'hydrogen', equivalenceRatio: 2.5, pressure: ATM }).temperature).toBeGreaterThan(1000)
   })
