@@ -3,15 +3,9 @@ import { areaFromDiameter, nozzleFlow } from '@shared/physics'
 import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '@shared/thermo'
 import { gaugeToAbsolute, toSI } from '@shared/units'
 import { FieldError, calculatorForm } from '@/composables/use-calculator'
-import {
-  CHART_POINTS,
-  CHART_SPAN,
-  COMBUSTION_FIELDS,
-  carryOver,
-  computeCombustion,
-  startingDefaults,
-} from '@/composables/use-combustion-calculator'
-import type { CombustionForm } from '@/composables/use-combustion-calculator'
+import { COMBUSTION_FIELDS, carryOver, startingDefaults } from '@/composables/combustion-form'
+import type { CombustionForm } from '@/composables/combustion-form'
+import { CHART_POINTS, CHART_SPAN, computeCombustion } from '@/composables/use-combustion-calculator'
 import { expectClose } from '../../helpers/expect-close'
 
 /** The calculator's form with its built-in values, then the changes given (as a module's YAML or a person would type them). */
@@ -126,6 +120,10 @@ describe('the combustion calculator', () => {
 
     const cold = fieldError(() => computeCombustion(form({ reactantTemperature: -300 })))
     expect(cold.field).toBe('reactantTemperature')
+    expect(cold.message).toMatch(/above absolute zero/)
+    const hot = fieldError(() => computeCombustion(form({ reactantTemperature: 3100, reactantTemperatureUnit: 'K' })))
+    expect(hot.field).toBe('reactantTemperature')
+    expect(hot.message).toMatch(/^The reactant temperature must be at most 3000 K/)
 
     const narrow = fieldError(() => computeCombustion(form({ exitBy: 'areaRatio', areaRatio: 0.8 })))
     expect(narrow.field).toBe('areaRatio')
