@@ -4,8 +4,8 @@ import { areaFromDiameter, nozzleFlow } from '../../shared/physics'
 import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '../../shared/thermo'
 import { gaugeToAbsolute, toSI } from '../../shared/units'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_STUDENT } from '../../scripts/demo/scenario'
-import { launchBrowser, screenshotPath, serveApp } from '../helpers/browser'
+import { DEFAULT_DEMO_PASSWORD, DEMO_INSTRUCTOR, DEMO_STUDENT } from '../../scripts/demo/scenario'
+import { launchBrowser, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { expectPrinted } from '../helpers/printed'
 
 let app: Awaited<ReturnType<typeof serveApp>>
@@ -240,4 +240,46 @@ describe('the combustion calculator in Chromium', () => {
     await section.screenshot({ path: screenshotPath('combustion-calculator-375') })
     await page.close()
   })
+
+  it('a module embeds it with its starting values: hydrogen at an air-to-fuel ratio of 40 and 300 kPa gauge', async () => {
+    const page = await browser.newPage({ viewport: { width: 1400, height: 900 } })
+    await signIn(page, app.url, DEMO_INSTRUCTOR.email)
+    const courses = (await (await page.request.get(`${app.url}/api/courses`)).json()) as { id: number }[]
+    const courseId = courses[0]!.id
+    const modules = (await (await page.request.get(`${app.url}/api/courses/${courseId}/modules`)).json()) as {
+      id: number
+      status: string
+    }[]
+    const moduleId = modules.find((m) => m.status === 'published')!.id
+    await page.goto(`${app.url}/courses/${courseId}/modules/${moduleId}/edit`)
+    const preview = page.getByTestId('module-preview')
+    await preview.locator('[data-source-line]').first().waitFor()
+
+    const source = page.getByLabel('Markdown with YAML front matter')
+    await source.press('ControlOrMeta+End')
+    await source.pressSequentially(
+      '\n\n```calculator combustion\nfuel: hydrogen\nmixtureBy: mixtureRatio\nmixtureRatio: 40\nchamberPressure: 300\nchamberPressureUnit: kPa\n```\n',
+      { delay: 2 },
+    )
+    const host = preview.locator('.isentrope-calculator[data-kind="combustion"]')
+    await host.scrollIntoViewIfNeeded()
+    const results = host.getByTestId('combustion-results')
+    await results.locator('[data-quantity="temperature"]').waitFor()
+    await settled(results)
+
+    const pressed = host.getByRole('group', { name: 'Fuel, burned with air' }).getByRole('button', { name: 'hydrogen' })
+    expect(await pressed.getAttribute('aria-pressed')).toBe('true')
+    expect(await host.getByRole('textbox', { name: 'Air-to-fuel mass ratio', exact: true }).inputValue()).toBe('40')
+    const phi = equivalenceRatioFromMixtureRatio('hydrogen', 40)
+    expectPrinted(phi, await printedNumber(results.locator('[data-quantity="equivalenceRatio"]')), 'φ at 40 kg/kg')
+    const gas = combustion({
+      fuel: 'hydrogen',
+      equivalenceRatio: phi,
+      pressure: gaugeToAbsolute(toSI(300, 'kPa'), 101325),
+      reactantTemperature: 298.15,
+    })
+    expectPrinted(gas.temperature, await printedNumber(results.locator('[data-quantity="temperature"]')), 'T, K')
+    expect(await host.getByTestId('combustion-safety').count()).toBe(1)
+    await page.close()
+  }, 90_000)
 })
