@@ -84,14 +84,19 @@ export const HOT_FIRE_STAND = {
  *   (which allows ±5 kPa for each transducer) both see it. The peak thrust is read through the
  *   5-sample moving median, which the three or four spiking samples barely move.
  * - B1: typed 30 L for the 40 L receiver, so the air mass is 3/4 of the true one and the c* worked
- *   out from the data 4/3 of the true one: a c* efficiency of about 1.2 ('cstar_above_theory').
+ *   out from the data 4/3 of the true one (the mixture worked out moves richer too): a c* efficiency
+ *   of about 1.1 ('cstar_above_theory').
  * - B4: weighed the cold bottle after the run with frost and condensate on it, so the fuel used comes
  *   out 0.55 of the true mass: φ 0.85 burnt, φ 0.47 worked out. The mixture worked out from the masses lies lean of propane's
  *   flammable range ('outside_flammable_range'); its equilibrium c* is much lower than that of the
  *   mixture that burned, so the c* efficiency is above 1 too ('cstar_above_theory').
  */
 export const HOT_FIRE_WRONG_RUNS: readonly DemoWrongRun[] = [
-  { group: 'A4', problem: 'hard start: chamber pressure spike above the receiver at ignition', flags: ['rule:hard_start', 'chamber-above-receiver'] },
+  {
+    group: 'A4',
+    problem: 'hard start: chamber pressure spike above the receiver at ignition',
+    flags: ['rule:hard_start', 'chamber-above-receiver'],
+  },
   {
     group: 'B1',
     problem: 'receiver volume typed as 30 L for the 40 L receiver: c* efficiency above 1',
@@ -195,7 +200,8 @@ function simulateHot(c: HotConditions, noise: () => number): { csv: string; trut
     thrust: [],
     chamberGauge: [],
     closeGauge: receiverClosed - c.ambient,
-    fuelMass: ((initialPressure - receiverClosed) * s.receiverVolume) / (s.gasConstant * c.roomTemperature) / mixtureRatio,
+    fuelMass:
+      ((initialPressure - receiverClosed) * s.receiverVolume) / (s.gasConstant * c.roomTemperature) / mixtureRatio,
   }
   const smoothstep = (x: number) => {
     const u = Math.min(1, Math.max(0, x))
@@ -204,7 +210,12 @@ function simulateHot(c: HotConditions, noise: () => number): { csv: string; trut
   for (let i = 0; i <= samples; i++) {
     const t = i * step
     const sinceOpen = t - s.preRoll
-    const receiver = sinceOpen <= 0 ? initialPressure : sinceOpen >= closeAt ? receiverClosed : linearAt(tank.time, tank.pressure, sinceOpen)
+    const receiver =
+      sinceOpen <= 0
+        ? initialPressure
+        : sinceOpen >= closeAt
+          ? receiverClosed
+          : linearAt(tank.time, tank.pressure, sinceOpen)
     // Air and fuel valves open together over valveOpening and close together once the receiver is down.
     const open = smoothstep(sinceOpen / s.valveOpening) * (1 - smoothstep((sinceOpen - closeAt) / s.valveOpening))
     const sinceIgnition = sinceOpen - s.valveOpening
@@ -351,7 +362,8 @@ export function hotFireRuns(assignment: Assignment = hotFireAssignment(), coldFl
     const reported: Record<string, number> = {}
     for (const r of assignment.results) {
       const value = careful[r.key]
-      if (value === undefined) throw new Error(`hot-fire demo ${group}: the careful reduction has no value for ${r.key}`)
+      if (value === undefined)
+        throw new Error(`hot-fire demo ${group}: the careful reduction has no value for ${r.key}`)
       // Small human error: within 30 % of the tolerance, then 4 significant figures.
       const relative = r.tolerance.relative ?? 0
       reported[r.key] = significant(value * (1 + 0.3 * relative * uniform(-1, 1)), 4)

@@ -24,7 +24,11 @@ beforeAll(async () => {
   await insertModuleWithVersion(
     app.db.db,
     { courseId, slug: `nozzle-flow-revision-${tag}`, position: 9, createdBy: inst!.id },
-    toVersion(reading.replace('title: Nozzle flow fundamentals', `title: Nozzle flow revision ${tag}`), 'r', DEMO_COURSE.timeZone),
+    toVersion(
+      reading.replace('title: Nozzle flow fundamentals', `title: Nozzle flow revision ${tag}`),
+      'r',
+      DEMO_COURSE.timeZone,
+    ),
   )
   chrome = await launchBrowser()
   browser = chrome.browser
