@@ -31,6 +31,12 @@ export const EQUIVALENCE_RATIO_RANGE = { min: 0.4, max: 2.5 } as const
 /** Reactant temperature when none is given, K. */
 export const DEFAULT_REACTANT_TEMPERATURE = 298.15
 
+/**
+ * Highest reactant temperature accepted, K. Hotter reactants would put the flame beyond the species
+ * data (fitted to 3500–6000 K); the lab's reactants are near room temperature.
+ */
+export const MAX_REACTANT_TEMPERATURE = 3000
+
 /** Moles of N2 per mole of O2 in air. */
 export const NITROGEN_PER_OXYGEN = 3.76
 
@@ -43,7 +49,7 @@ export interface CombustionInput {
   equivalenceRatio: number
   /** Pa (absolute), > 0. */
   pressure: number
-  /** K, > 0; 298.15 when left out. Fuel and air enter at this temperature. */
+  /** K, > 0 and at most 3000; 298.15 when left out. Fuel and air enter at this temperature. */
   reactantTemperature?: number
 }
 
@@ -219,7 +225,7 @@ function copyResult(result: CombustionResult): CombustionResult {
  * the rounded values, so a cached and a fresh result are identical. Each call returns a new object.
  *
  * @param input - fuel; equivalenceRatio 0.4–2.5; pressure in Pa, > 0; reactantTemperature in K,
- *   > 0 (default 298.15)
+ *   > 0 and at most 3000 (default 298.15)
  * @returns temperature K, molarMass kg/mol, gamma, cp J/(kg·K), characteristicVelocity m/s,
  *   mixtureRatio (air/fuel by mass), moleFractions
  * @example
@@ -236,7 +242,12 @@ export function combustion(input: CombustionInput): CombustionResult {
   )
   requirePositive('pressure', input.pressure)
   const reactantTemperature = input.reactantTemperature ?? DEFAULT_REACTANT_TEMPERATURE
-  requirePositive('reactantTemperature', reactantTemperature)
+  requireInterval(
+    'reactantTemperature',
+    reactantTemperature,
+    { value: 0, open: true },
+    { value: MAX_REACTANT_TEMPERATURE, open: false },
+  )
 
   const phi = Number(input.equivalenceRatio.toPrecision(12))
   const pressure = Number(input.pressure.toPrecision(9))

@@ -7,9 +7,9 @@
  * - the reduced Newton equations in the element potentials πᵢ, Δln n and Δln T, ch. 2,
  *   eq. 2.24 (elements), 2.26 (total moles) and 2.27 (enthalpy, for the assigned-enthalpy
  *   problem); the species corrections from eq. 2.18 (with the Δln T term of §2.4);
- * - the control factor λ and the trace-species limit, §3.3 (eq. 3.1–3.2): no variable may change
- *   by more than a factor e² in one step, and a species below mole fraction 1e-8 may rise to at most
- *   1e-4 in one step;
+ * - the control factor λ and the trace-species limit, §3.3 (eq. 3.1–3.2): in one step a species may
+ *   grow by at most a factor e² and T and n by e^0.4, and a species below mole fraction 1e-8 may rise
+ *   to at most 1e-4;
  * - the initial estimates, §3.4 (0.1 mol/g spread evenly over the species).
  * Only gaseous species; amounts are per gram of mixture (mol/g), so Σ nⱼ·Mⱼ = 1 g.
  *

@@ -8,7 +8,7 @@
  * Outside a species' fitted range the polynomial of the nearer range is extrapolated; the
  * combustion functions stay inside the ranges for every input they accept at ordinary conditions.
  */
-import { requirePositive } from '../physics/validate'
+import { requireOneOf, requirePositive } from '../physics/validate'
 import { SPECIES } from './species-data'
 import type { NasaCoefficients, SpeciesData, SpeciesName } from './species-data'
 
@@ -40,10 +40,10 @@ export function entropyOverRUnchecked(species: SpeciesData, t: number): number {
   return a[0] * Math.log(t) + t * (a[1] + t * (a[2] / 2 + t * (a[3] / 3 + (t * a[4]) / 4))) + a[6]
 }
 
-function speciesNamed(name: SpeciesName): SpeciesData {
-  const species = (SPECIES as Readonly<Record<string, SpeciesData>>)[name]
-  if (!species) throw new RangeError(`species must be one of ${Object.keys(SPECIES).join(', ')} (got ${String(name)})`)
-  return species
+const SPECIES_NAMES = Object.keys(SPECIES) as SpeciesName[]
+
+function speciesNamed(name: SpeciesName, argument = 'species'): SpeciesData {
+  return SPECIES[requireOneOf(argument, name, SPECIES_NAMES)]
 }
 
 /**
@@ -105,7 +105,7 @@ function eachFraction(composition: Composition, visit: (species: SpeciesData, x:
     if (!(typeof x === 'number' && Number.isFinite(x) && x >= 0)) {
       throw new RangeError(`composition.${name} must be a finite number of at least 0 (got ${String(x)})`)
     }
-    visit(speciesNamed(name as SpeciesName), x)
+    visit(speciesNamed(name as SpeciesName, 'composition'), x)
   }
 }
 
