@@ -130,6 +130,13 @@ export const DEMO_WRONG_RUNS: readonly DemoWrongRun[] = [
   },
 ]
 
+/**
+ * Load-cell calibration factor of a group's cold-flow log when it is not 1 (B4's, see
+ * {@link DEMO_WRONG_RUNS}); the hot-fire demo divides it out of the cold-flow specific impulse the
+ * group carries over, as the group would once a teaching assistant had found it.
+ */
+export const DEMO_COLD_FLOW_THRUST_SCALE: Readonly<Record<string, number>> = { B4: 1.6 }
+
 /** Reporting mistakes of groups whose data are fine: the named results fall outside their tolerance. */
 export const DEMO_REPORTING_MISTAKES: readonly { group: string; results: readonly string[]; mistake: string }[] = [
   {
@@ -154,7 +161,7 @@ export interface DemoRun {
 }
 
 /** mulberry32: a small seeded PRNG, uniform in [0, 1). */
-function seeded(seed: number): () => number {
+export function seeded(seed: number): () => number {
   let a = seed >>> 0
   return () => {
     a = (a + 0x6d2b79f5) >>> 0
@@ -166,7 +173,7 @@ function seeded(seed: number): () => number {
 }
 
 /** Standard normal deviates by the Box–Muller transform. */
-function gaussian(random: () => number): () => number {
+export function gaussian(random: () => number): () => number {
   return () => {
     const u = 1 - random()
     return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random())
@@ -217,7 +224,7 @@ interface SimulatedRun {
   truth: TrueRun
 }
 
-function linearAt(xs: readonly number[], ys: readonly number[], x: number): number {
+export function linearAt(xs: readonly number[], ys: readonly number[], x: number): number {
   if (x <= (xs[0] as number)) return ys[0] as number
   const last = xs.length - 1
   if (x >= (xs[last] as number)) return ys[last] as number
@@ -349,7 +356,7 @@ export function demoLog(sampleRate: number, seed = 7): { csv: string; measuremen
 }
 
 /** Rounds to a number of significant figures, as a person copies a result off a calculator. */
-function significant(x: number, figures: number): number {
+export function significant(x: number, figures: number): number {
   return x === 0 ? 0 : Number(x.toPrecision(figures))
 }
 
@@ -360,7 +367,7 @@ function tableOf(assignment: Assignment): TableSpec {
 }
 
 /** Trapezoid integral of x over [a, b], with x interpolated linearly at a and b. */
-function integralBetween(t: readonly number[], x: readonly number[], a: number, b: number): number {
+export function integralBetween(t: readonly number[], x: readonly number[], a: number, b: number): number {
   let sum = 0
   for (let i = 1; i < t.length; i++) {
     const t0 = Math.max(t[i - 1] as number, a)
@@ -373,7 +380,7 @@ function integralBetween(t: readonly number[], x: readonly number[], a: number, 
 }
 
 /** Where x first rises through `level` and last falls through it, interpolated between samples. */
-function crossingsOf(t: readonly number[], x: readonly number[], level: number): { start: number; end: number } {
+export function crossingsOf(t: readonly number[], x: readonly number[], level: number): { start: number; end: number } {
   const first = x.findIndex((v) => v >= level)
   let last = x.length - 1
   while ((x[last] as number) < level) last--
@@ -454,7 +461,7 @@ export function demoRuns(assignment: Assignment = coldFlowAssignment()): DemoRun
       ambient: (1000 * Math.round(10 * uniform(83.4, 84.8))) / 10,
       roomTemperature: 273.15 + uniform(16, 22),
       chargeGauge: 1000 * Math.round(uniform(780, 820)),
-      thrustScale: group === 'B4' ? 1.6 : 1,
+      thrustScale: DEMO_COLD_FLOW_THRUST_SCALE[group] ?? 1,
       zeroOffset: uniform(s.loadCellOffset[0], s.loadCellOffset[1]),
       zeroDrift: uniform(-s.zeroDrift, s.zeroDrift),
       ringAmplitude: uniform(s.ringAmplitude[0], s.ringAmplitude[1]),

@@ -12,6 +12,8 @@ import { createLogger } from '../../server/logger'
 import type { GradingContext } from '../../server/services/grading-service'
 import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { demoRuns } from './demo-runs'
+import type { DemoRun } from './demo-runs'
+import { hotFireRuns } from './hot-fire-runs'
 import {
   DEMO_GROUP_WITHOUT_HAND_IN,
   DEFAULT_DEMO_PASSWORD,
@@ -110,14 +112,14 @@ export async function seedDemo(
   return { created: true, users: people.length, courseId }
 }
 
-/** The first two modules (fundamentals, cold flow) are published; the hot-fire one stays a draft. */
-const PUBLISHED_MODULES = 2
+/** The three modules (fundamentals, cold flow, hot fire) are published. */
+const PUBLISHED_MODULES = 3
 
 const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
 
 /**
- * The demo course's modules from content/*.md, in file-name order. The first two are published
- * (without e-mail: nobody is waiting for them at seed time); the others stay drafts.
+ * The demo course's modules from content/*.md, in file-name order. The first three are published
+ * (without e-mail: nobody is waiting for them at seed time); any later ones stay drafts.
  */
 async function seedModules(
   tx: Parameters<Parameters<Database['transaction']>[0]>[0],
@@ -145,24 +147,12 @@ async function seedModules(
 }
 
 /**
- * One cold-flow hand-in per demo lab group (but one group, left for people to try the form),
- * made through the real hand-in service so they are stored and graded like any other. Some runs
- * are wrong on purpose (scripts/demo/demo-runs.ts), so the review queue has work.
+ * One cold-flow and one hot-fire hand-in per demo lab group (but one group, left for people to try
+ * the forms), made through the real hand-in service so they are stored and graded like any other.
+ * Some runs are wrong on purpose (scripts/demo/demo-runs.ts, hot-fire-runs.ts), so the review queue
+ * has work.
  */
 async function seedHandIns(db: Database, courseId: number) {
-  const [mod] = await db
-    .select({ id: modules.id, versionId: modules.publishedVersionId })
-    .from(modules)
-    .where(and(eq(modules.courseId, courseId), eq(modules.slug, 'cold-flow-characterisation')))
-  if (!mod?.versionId) return
-  const [version] = await db
-    .select({ fm: moduleVersions.frontMatter })
-    .from(moduleVersions)
-    .where(eq(moduleVersions.id, mod.versionId))
-  const fm = version?.fm as unknown as ModuleFrontMatter | undefined
-  if (!fm?.assignment) return
-  const a = fm.assignment
-  const table = a.tables[0]!
   // The seeded hand-ins go through the real service and are graded as a student's would be.
   const appUrl = process.env.APP_URL ?? 'http://127.0.0.1:3000'
   const grader = createGrader()
@@ -172,10 +162,37 @@ async function seedHandIns(db: Database, courseId: number) {
     receipt: (id, outcome) => handInReceipt(db, id, appUrl, outcome),
   }
   try {
-    await seedGroupRuns(db, courseId, mod.id, a, table, grading)
+    const cold = await publishedAssignment(db, courseId, 'cold-flow-characterisation')
+    const coldRuns = cold ? demoRuns(cold.assignment) : demoRuns()
+    if (cold) await seedGroupRuns(db, courseId, cold.moduleId, cold.assignment, coldRuns, 'run', grading)
+    // Each group carries its cold-flow specific impulse over to the hot-fire report.
+    const hot = await publishedAssignment(db, courseId, 'hot-fire')
+    if (hot) {
+      const runs = hotFireRuns(hot.assignment, coldRuns)
+      await seedGroupRuns(db, courseId, hot.moduleId, hot.assignment, runs, 'hot-fire', grading)
+    }
   } finally {
     await grader.close()
   }
+}
+
+/** The published assignment of the demo course's module with this slug, if it has one. */
+async function publishedAssignment(
+  db: Database,
+  courseId: number,
+  slug: string,
+): Promise<{ moduleId: number; assignment: NonNullable<ModuleFrontMatter['assignment']> } | undefined> {
+  const [mod] = await db
+    .select({ id: modules.id, versionId: modules.publishedVersionId })
+    .from(modules)
+    .where(and(eq(modules.courseId, courseId), eq(modules.slug, slug)))
+  if (!mod?.versionId) return undefined
+  const [version] = await db
+    .select({ fm: moduleVersions.frontMatter })
+    .from(moduleVersions)
+    .where(eq(moduleVersions.id, mod.versionId))
+  const fm = version?.fm as unknown as ModuleFrontMatter | undefined
+  return fm?.assignment ? { moduleId: mod.id, assignment: fm.assignment } : undefined
 }
 
 async function seedGroupRuns(
@@ -183,10 +200,12 @@ async function seedGroupRuns(
   courseId: number,
   moduleId: number,
   a: NonNullable<ModuleFrontMatter['assignment']>,
-  table: NonNullable<ModuleFrontMatter['assignment']>['tables'][number],
+  runs: readonly DemoRun[],
+  filePrefix: string,
   grading: GradingContext,
 ) {
-  for (const run of demoRuns(a)) {
+  const table = a.tables[0]!
+  for (const run of runs) {
     if (run.group === DEMO_GROUP_WITHOUT_HAND_IN) continue
     const member = DEMO_STUDENTS.find((s) => s.labGroup === run.group)
     if (!member) continue
@@ -213,7 +232,7 @@ async function seedGroupRuns(
       [
         {
           field: `table:${table.key}`,
-          filename: `run-${run.group.toLowerCase()}.csv`,
+          filename: `${filePrefix}-${run.group.toLowerCase()}.csv`,
           contentType: 'text/csv',
           bytes: Buffer.from(run.csv, 'utf8'),
         },

@@ -16,6 +16,11 @@ import type {
   ThrustRun,
   ThrustRunOptions,
 } from '../physics'
+import type { combustion } from '../thermo'
+
+/** The thermochemistry library's result and input (shared/thermo), by the function's own types. */
+type Combustion = ReturnType<typeof combustion>
+type CombustionInput = Parameters<typeof combustion>[0]
 
 /** Smallest and largest argument count; `max` is Infinity for variadic functions. */
 export interface Arity {
@@ -51,6 +56,10 @@ export const LIBRARY_FUNCTIONS: Readonly<Record<string, Arity>> = {
   windowMean: exactly(4),
   windowIntegral: exactly(4),
   idealSpecificImpulse: exactly(5),
+  // The thermochemistry library (shared/thermo): equilibrium products of a fuel burnt with air.
+  combustion: exactly(1),
+  mixtureRatioFromEquivalenceRatio: exactly(2),
+  equivalenceRatioFromMixtureRatio: exactly(2),
 }
 
 /**
@@ -228,6 +237,28 @@ export const RESULT_FIELDS: Readonly<Record<string, FieldTree>> = {
     peakThrust: true,
     meanThrust: true,
   } satisfies Record<keyof ThrustRun, true>,
+  combustion: {
+    temperature: true,
+    molarMass: true,
+    gamma: true,
+    cp: true,
+    characteristicVelocity: true,
+    mixtureRatio: true,
+    // The equilibrium products' mole fractions, one species each: `.moleFractions.CO2`.
+    moleFractions: {
+      N2: true,
+      O2: true,
+      CO2: true,
+      H2O: true,
+      CO: true,
+      H2: true,
+      OH: true,
+      H: true,
+      O: true,
+      NO: true,
+      N: true,
+    } satisfies Record<keyof Combustion['moleFractions'], true>,
+  } satisfies Record<keyof Combustion, true | FieldTree>,
 }
 
 /** Library functions that take one object of named inputs, with the names it must contain. */
@@ -241,6 +272,23 @@ export const OBJECT_ARGUMENTS: Readonly<Record<string, readonly string[]>> = {
     gamma: true,
     gasConstant: true,
   } satisfies Record<keyof NozzleInput, true>),
+  combustion: Object.keys({
+    fuel: true,
+    equivalenceRatio: true,
+    pressure: true,
+  } satisfies Record<Exclude<keyof CombustionInput, 'reactantTemperature'>, true>),
+}
+
+/**
+ * Inputs of an {@link OBJECT_ARGUMENTS} function that may be left out (the library has a default):
+ * `combustion({fuel: "propane", equivalenceRatio: 0.8, pressure: 5e5, reactantTemperature: t_air})`,
+ * without the last one from 298.15 K.
+ */
+export const OPTIONAL_OBJECT_ARGUMENTS: Readonly<Record<string, readonly string[]>> = {
+  combustion: Object.keys({ reactantTemperature: true } satisfies Record<
+    Extract<keyof CombustionInput, 'reactantTemperature'>,
+    true
+  >),
 }
 
 /**

@@ -18,7 +18,9 @@
  *   criticalPressureRatio, normalShock, prandtlMeyer, nozzleFlow, nozzlePressureRatios,
  *   chokedMassFlow, idealThrust, machDiskDistance, totalImpulse, specificImpulse,
  *   characteristicVelocity, thrustCoefficient, meanValue, peakValue, areaFromDiameter,
- *   reduceThrustRun, windowMean, windowIntegral), the constant
+ *   reduceThrustRun, windowMean, windowIntegral, idealSpecificImpulse), the thermochemistry library
+ *   (combustion, mixtureRatioFromEquivalenceRatio, equivalenceRatioFromMixtureRatio; shared/thermo),
+ *   the constant
  *   G0, the helpers at, argmax, argmin, interp, select and regimeCode defined below, and the plain
  *   mathematics listed in `expression-names.ts` (sqrt, exp, log, min, max, mean, sum, …).
  *   Arithmetic on arrays is element-wise with the dotted operators (`F ./ pc`); comparisons of an
@@ -32,6 +34,15 @@
  *   over the run window are `windowMean(t, x, start, end)` and `windowIntegral(t, x, start, end)`,
  *   e.g. `windowMean(t, p_chamber, reduceThrustRun(t, thrust).start, reduceThrustRun(t, thrust).end)`
  *   (the run is reduced once however often it is named).
+ * - **Combustion:** `combustion({fuel: "propane", equivalenceRatio: phi, pressure: pc})` (and
+ *   optionally `reactantTemperature: t_air`, else 298.15 K) gives the equilibrium products of the
+ *   fuel burnt with air (O2 + 3.76 N2) at constant pressure: `.temperature` (K), `.molarMass`
+ *   (kg/mol), `.gamma`, `.cp`, `.characteristicVelocity` (m/s), `.mixtureRatio` (air–fuel mass
+ *   ratio) and `.moleFractions.CO2` (one species). The fuel is written as text in quotes: "methane",
+ *   "propane" or "hydrogen". `mixtureRatioFromEquivalenceRatio("propane", phi)` and
+ *   `equivalenceRatioFromMixtureRatio("propane", m_air / m_fuel)` convert between the two. The
+ *   library keeps recent results keyed on the inputs, so a module that names the same mixture in
+ *   several results works it out once.
  *
  * ## What is refused
  * Assignments, function definitions, several statements, ranges, indexing with brackets (use
@@ -68,6 +79,7 @@ import {
   windowMean,
 } from '../physics'
 import type { ThrustRun, ThrustRunOptions } from '../physics'
+import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '../thermo'
 import { runResult } from '../physics/thrust-run'
 import { cachedThrustRun } from './run-cache'
 import {
@@ -76,6 +88,7 @@ import {
   FUNCTIONS,
   OBJECT_ARGUMENTS,
   OPERATORS,
+  OPTIONAL_OBJECT_ARGUMENTS,
   OPTION_ARGUMENTS,
   RESULT_FIELDS,
 } from './expression-names'
@@ -226,6 +239,9 @@ const scopeFunctions = {
   windowMean,
   windowIntegral,
   idealSpecificImpulse,
+  combustion,
+  mixtureRatioFromEquivalenceRatio,
+  equivalenceRatioFromMixtureRatio,
   at,
   argmax,
   argmin,
@@ -513,7 +529,7 @@ class Checker {
       this.refuse('ranges (a:b) are not supported in module expressions')
     } else if (math.isObjectNode(node)) {
       this.refuse(
-        'an object {…} is allowed only as the input of nozzleFlow({…}) and as the options of reduceThrustRun(t, thrust, {threshold: …})',
+        'an object {…} is allowed only as the input of nozzleFlow({…}) or combustion({…}) and as the options of reduceThrustRun(t, thrust, {threshold: …})',
       )
     } else {
       this.refuse(`"${node.toString()}" (${node.type}) is not supported in module expressions`)
@@ -557,11 +573,14 @@ class Checker {
       const input = node.args[0]
       if (input && math.isObjectNode(input)) {
         const given = Object.keys(input.properties)
+        const optional = OPTIONAL_OBJECT_ARGUMENTS[name] ?? []
         const missing = keys.filter((k) => !given.includes(k))
-        const extra = given.filter((k) => !keys.includes(k))
+        const extra = given.filter((k) => !keys.includes(k) && !optional.includes(k))
         if (missing.length > 0) this.refuse(`${name}({…}) needs ${missing.join(', ')}`)
         if (extra.length > 0)
-          this.refuse(`${name}({…}) has no input named ${extra.join(', ')}; its inputs are ${keys.join(', ')}`)
+          this.refuse(
+            `${name}({…}) has no input named ${extra.join(', ')}; its inputs are ${[...keys, ...optional].join(', ')}`,
+          )
         for (const value of Object.values(input.properties)) this.check(value)
       } else if (input) {
         this.refuse(`${name} takes one object of named inputs: ${name}({${keys.map((k) => `${k}: …`).join(', ')}})`)

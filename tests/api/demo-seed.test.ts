@@ -1,6 +1,7 @@
 import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_WRONG_RUNS } from '../../scripts/demo/demo-runs'
+import { HOT_FIRE_STAND, HOT_FIRE_WRONG_RUNS } from '../../scripts/demo/hot-fire-runs'
 import {
   DEFAULT_DEMO_PASSWORD,
   DEMO_COURSE,
@@ -9,7 +10,15 @@ import {
   DEMO_STUDENT,
 } from '../../scripts/demo/scenario'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { courses, labGroups, moduleVersions, modules, submissionFlags, submissions } from '../../server/db/schema'
+import {
+  courses,
+  labGroups,
+  moduleVersions,
+  modules,
+  submissionChecks,
+  submissionFlags,
+  submissions,
+} from '../../server/db/schema'
 import type { TestContext } from '../helpers/app'
 import { signedInAs, startTestApp } from '../helpers/app'
 
@@ -36,7 +45,7 @@ describe('the demo seed', () => {
     expect(found).toHaveLength(1)
   })
 
-  it('publishes the fundamentals and cold-flow modules and leaves the hot-fire module a draft', async () => {
+  it('publishes the fundamentals, cold-flow and hot-fire modules', async () => {
     const rows = await ctx.handle.db
       .select({
         slug: modules.slug,
@@ -51,12 +60,11 @@ describe('the demo seed', () => {
       .where(eq(modules.courseId, courseId))
     const bySlug = Object.fromEntries(rows.map((r) => [r.slug, r]))
     expect(Object.keys(bySlug).sort()).toEqual(['cold-flow-characterisation', 'hot-fire', 'nozzle-flow-fundamentals'])
-    // Version 1 of each: published at seed time for the first two. (The browser journey may later
-    // publish the hot-fire module; its version 1 was then published after the seed, not at it.)
-    const seededAt = bySlug['nozzle-flow-fundamentals']!.publishedAt!.getTime()
-    expect(bySlug['cold-flow-characterisation']!.publishedAt).not.toBeNull()
-    const hot = bySlug['hot-fire']!
-    expect(hot.publishedAt === null || hot.publishedAt.getTime() > seededAt + 100).toBe(true)
+    // Version 1 of each, published at seed time.
+    for (const slug of ['nozzle-flow-fundamentals', 'cold-flow-characterisation', 'hot-fire']) {
+      expect(bySlug[slug]!.publishedAt, slug).not.toBeNull()
+      expect(bySlug[slug]!.status, slug).toBe('published')
+    }
   })
 
   it('hands in one graded cold-flow run per lab group but one, and the wrong-on-purpose runs carry their flags', async () => {
@@ -69,7 +77,8 @@ describe('the demo seed', () => {
       })
       .from(submissions)
       .innerJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
-      .where(eq(submissions.courseId, courseId))
+      .innerJoin(modules, eq(modules.id, submissions.moduleId))
+      .where(and(eq(submissions.courseId, courseId), eq(modules.slug, 'cold-flow-characterisation')))
     // The group left without a seeded hand-in may have one from the browser journey by now.
     const seeded = rows.filter((r) => r.group !== `Group ${DEMO_GROUP_WITHOUT_HAND_IN}`)
     expect(seeded).toHaveLength(7)
@@ -103,5 +112,54 @@ describe('the demo seed', () => {
     const st = await signedInAs(ctx, DEMO_STUDENT.email, DEFAULT_DEMO_PASSWORD)
     const mine = await st.agent.get(`/api/courses/${courseId}/modules`).expect(200)
     expect(mine.body.every((m: { submissionCount?: number }) => m.submissionCount === undefined)).toBe(true)
+  })
+
+  it('hands in one hot-fire run per lab group but one, graded with c* efficiency, and the faulty runs carry their flags', async () => {
+    const db = ctx.handle.db
+    const rows = await db
+      .select({
+        id: submissions.id,
+        status: submissions.status,
+        group: labGroups.name,
+        review: submissions.reviewStatus,
+      })
+      .from(submissions)
+      .innerJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+      .innerJoin(modules, eq(modules.id, submissions.moduleId))
+      .where(and(eq(submissions.courseId, courseId), eq(modules.slug, 'hot-fire')))
+    const seeded = rows.filter((r) => r.group !== `Group ${DEMO_GROUP_WITHOUT_HAND_IN}`)
+    expect(seeded).toHaveLength(7)
+    expect(rows.every((r) => r.status === 'graded')).toBe(true)
+    // Groups from both sections.
+    expect(new Set(seeded.map((r) => r.group.slice(-2, -1)))).toEqual(new Set(['A', 'B']))
+    const faulty = new Map(HOT_FIRE_WRONG_RUNS.map((w) => [`Group ${w.group}`, w]))
+    for (const row of seeded) {
+      const checks = await db
+        .select({
+          key: submissionChecks.resultKey,
+          outcome: submissionChecks.outcome,
+          expected: submissionChecks.expected,
+        })
+        .from(submissionChecks)
+        .where(eq(submissionChecks.submissionId, row.id))
+      const efficiency = checks.find((c) => c.key === 'cstar_efficiency')
+      // Graded with c* efficiency, recomputed from the group's own data by the combustion library.
+      expect(efficiency?.outcome, row.group).toBe('pass')
+      const codes = (
+        await db
+          .select({ code: submissionFlags.code })
+          .from(submissionFlags)
+          .where(eq(submissionFlags.submissionId, row.id))
+      ).map((f) => f.code)
+      const wrong = faulty.get(row.group)
+      if (!wrong) {
+        expect(efficiency!.expected!, row.group).toBeGreaterThan(HOT_FIRE_STAND.cstarEfficiency[0] - 0.02)
+        expect(efficiency!.expected!, row.group).toBeLessThan(1)
+        expect(codes, row.group).toEqual([])
+        continue
+      }
+      for (const f of wrong.flags) expect(codes, `${wrong.group} ${f}`).toContain(f)
+      expect(row.review, row.group).not.toBe('none')
+    }
   })
 })

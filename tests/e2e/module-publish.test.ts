@@ -1,6 +1,11 @@
+import { readFileSync } from 'node:fs'
+import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { seedDemo } from '../../scripts/demo/seed-demo'
+import { users } from '../../server/db/schema'
+import { insertModuleWithVersion } from '../../server/repositories/modules'
+import { toVersion } from '../../server/services/module-service'
 import { DEMO_COURSE, DEMO_INSTRUCTOR, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import { launchBrowser, noSideways, openCourse, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { waitForMail } from '../helpers/maildev'
@@ -11,7 +16,20 @@ let browser: Browser
 
 beforeAll(async () => {
   app = await serveApp()
-  await seedDemo(app.db.db)
+  const { courseId } = await seedDemo(app.db.db)
+  // The demo issues all its sheets; the journey needs one being prepared: a second reading sheet.
+  const tag = Date.now().toString(36)
+  const [inst] = await app.db.db.select({ id: users.id }).from(users).where(eq(users.email, DEMO_INSTRUCTOR.email))
+  const reading = readFileSync(new URL('../../content/01-nozzle-flow-fundamentals.md', import.meta.url), 'utf8')
+  await insertModuleWithVersion(
+    app.db.db,
+    { courseId, slug: `nozzle-flow-revision-${tag}`, position: 9, createdBy: inst!.id },
+    toVersion(
+      reading.replace('title: Nozzle flow fundamentals', `title: Nozzle flow revision ${tag}`),
+      'r',
+      DEMO_COURSE.timeZone,
+    ),
+  )
   chrome = await launchBrowser()
   browser = chrome.browser
 })

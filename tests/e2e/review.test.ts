@@ -85,7 +85,13 @@ describe('journey 3: a teaching assistant reviews a flagged submission', () => {
     await settled(page)
     await page.screenshot({ path: screenshotPath('review-queue-desktop'), fullPage: true })
 
-    await rows.filter({ hasText: GROUP_NAME }).first().getByRole('link', { name: GROUP_NAME }).click()
+    // The group has a hot-fire hand-in in the queue too: open the row of this one's module.
+    await rows
+      .filter({ hasText: GROUP_NAME })
+      .filter({ hasText: row!.moduleTitle })
+      .first()
+      .getByRole('link', { name: GROUP_NAME })
+      .click()
     await page.getByRole('heading', { level: 1, name: new RegExp(`^Review: ${GROUP_NAME},`) }).waitFor()
     expect(page.url()).toContain(`/c/${courseSlug}/review/${row!.submissionId}`)
 
