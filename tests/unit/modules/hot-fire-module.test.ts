@@ -4,6 +4,7 @@ import { describe, expect, it } from 'vitest'
 import { gradeSubmission } from '../../../shared/grading/grade'
 import { evaluateExpression } from '../../../shared/modules/expressions'
 import { parseModuleSource } from '../../../shared/modules/front-matter'
+import { lintModuleBody, renderModule } from '../../../shared/modules/render'
 import type { Assignment } from '../../../shared/modules/schema'
 import { buildExpressionScope } from '../../../shared/modules/scope'
 import type { SubmissionData } from '../../../shared/modules/scope'
@@ -287,5 +288,14 @@ describe('the hot-fire module text', () => {
     ]) {
       expect(body, phrase).toContain(phrase)
     }
+  })
+
+  it('embeds the combustion calculator with the stand’s mixture, pressure and nozzle, and nothing in the body is wrong', () => {
+    expect(lintModuleBody(body)).toEqual([])
+    const html = renderModule(body)
+    const placeholder = /<div class="isentrope-calculator" data-kind="combustion" data-defaults="([^"]*)"/.exec(html)
+    expect(placeholder).not.toBeNull()
+    const defaults = JSON.parse(placeholder![1]!.replaceAll('&quot;', '"')) as Record<string, unknown>
+    expect(defaults).toMatchObject({ fuel: 'propane', equivalenceRatio: 0.85, throatDiameter: 6, exitDiameter: 9 })
   })
 })
