@@ -57,8 +57,12 @@ export const HOT_FIRE_STAND = {
   closeGauge: 200e3,
   /** Equivalence ratio the fuel regulator is set to; each group's lies in this range. */
   equivalenceRatio: [0.7, 0.95],
-  /** c* efficiency of the small combustor; each group's lies in this range. */
-  cstarEfficiency: [0.86, 0.94],
+  /**
+   * c* efficiency of the small combustor; each group's lies in this range. A short, small air-fed
+   * combustor loses much to its walls and to mixing, so this is well below 1 (a model choice, chosen
+   * so the hot specific impulse lands near the 60 s such stands are said to reach, common practice).
+   */
+  cstarEfficiency: [0.62, 0.76],
   /** Fuel bottle mass before the run, g; each group's lies in this range. */
   bottleMass: [850, 1150],
   /**
@@ -68,7 +72,7 @@ export const HOT_FIRE_STAND = {
   hardStartRise: 0.25,
   hardStartDecay: 0.04,
   /** B1 typed the volume of the stand's smaller receiver, L, for the 40 L one it used. */
-  wrongVolume: 30,
+  wrongVolume: 20,
   /**
    * B4 ran at this equivalence ratio, and the frost and condensate on its cold bottle at the second
    * weighing came to this fraction of the fuel it had burnt (about 7 g).
@@ -83,13 +87,14 @@ export const HOT_FIRE_STAND = {
  *   samples at ignition: the module's `hard_start` rule and the built-in chamber-above-receiver check
  *   (which allows ±5 kPa for each transducer) both see it. The peak thrust is read through the
  *   5-sample moving median, which the three or four spiking samples barely move.
- * - B1: typed 30 L for the 40 L receiver, so the air mass is 3/4 of the true one and the c* worked
- *   out from the data 4/3 of the true one (the mixture worked out moves richer too): a c* efficiency
- *   of about 1.1 ('cstar_above_theory').
+ * - B1: typed 20 L for the 40 L receiver, so the air mass is half the true one and the c* worked
+ *   out from the data about twice the true one (the mixture worked out moves richer too): a c*
+ *   efficiency well above 1 ('cstar_above_theory').
  * - B4: weighed the cold bottle after the run with frost and condensate on it, so the fuel used comes
- *   out 0.55 of the true mass: φ 0.85 burnt, φ 0.47 worked out. The mixture worked out from the masses lies lean of propane's
- *   flammable range ('outside_flammable_range'); its equilibrium c* is much lower than that of the
- *   mixture that burned, so the c* efficiency is above 1 too ('cstar_above_theory').
+ *   out 0.55 of the true mass: φ 0.85 burnt, φ 0.47 worked out. The mixture worked out from the
+ *   masses lies lean of propane's flammable range ('outside_flammable_range'). Its equilibrium c* is
+ *   lower than that of the mixture that burned, so the c* efficiency worked out comes out higher than
+ *   the combustor's, though still below 1.
  */
 export const HOT_FIRE_WRONG_RUNS: readonly DemoWrongRun[] = [
   {
@@ -99,13 +104,13 @@ export const HOT_FIRE_WRONG_RUNS: readonly DemoWrongRun[] = [
   },
   {
     group: 'B1',
-    problem: 'receiver volume typed as 30 L for the 40 L receiver: c* efficiency above 1',
+    problem: 'receiver volume typed as 20 L for the 40 L receiver: c* efficiency above 1',
     flags: ['rule:cstar_above_theory'],
   },
   {
     group: 'B4',
     problem: 'bottle weighed with frost on it after the run: fuel mass too small, mixture outside the flammable range',
-    flags: ['rule:outside_flammable_range', 'rule:cstar_above_theory'],
+    flags: ['rule:outside_flammable_range'],
   },
 ]
 

@@ -118,7 +118,7 @@ describe('the hot-fire module grades a run worked out by hand', () => {
     expectClose(expected('isp_ratio_estimate'), Math.sqrt(flame.temperature / 293.15), 1e-3)
   })
 
-  // Common practice, no source (the issue's figures from one experimenter's account): 110.9 N·s of
+  // Common practice, no source (figures given with the issue): 110.9 N·s of
   // hot-fire impulse from 189 g of propellant is a specific impulse of 59.8 s; 38.8 N·s cold at
   // 23.2 s is 170.5 g of air, so the hot run burnt about 18.5 g of propane with that air.
   it('check values: 110.9 N·s from 189 g of air and propane is 59.8 s, a rich mixture inside the flammable range', () => {
