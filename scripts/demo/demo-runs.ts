@@ -184,7 +184,11 @@ const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
 
 /** The demo cold-flow module's assignment, read from content/. */
 export function coldFlowAssignment(): Assignment {
-  const file = '02-cold-flow-characterisation.md'
+  return contentAssignment('02-cold-flow-characterisation.md')
+}
+
+/** The assignment of a module in content/ (the demo's own sheets); throws if it does not parse or has none. */
+export function contentAssignment(file: string): Assignment {
   const parsed = parseModuleSource(readFileSync(path.join(CONTENT, file), 'utf8'), file)
   if (!parsed.ok) throw new Error(`content/${file}: ${parsed.errors.map((e) => e.message).join('; ')}`)
   if (!parsed.frontMatter.assignment) throw new Error(`content/${file} has no assignment`)

@@ -25,11 +25,10 @@
  * Usage: `npx tsx scripts/demo/hot-fire-runs.ts [outDir]` writes one CSV per group; the seed imports
  * {@link hotFireRuns}.
  */
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { mkdirSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { suggestMapping } from '../../shared/grading/csv'
-import { parseModuleSource } from '../../shared/modules/front-matter'
 import type { Assignment } from '../../shared/modules/schema'
 import { G0, areaFromDiameter, nozzleFlow, tankBlowdown } from '../../shared/physics'
 import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '../../shared/thermo'
@@ -37,6 +36,7 @@ import {
   DEMO_COLD_FLOW_THRUST_SCALE,
   DEMO_GROUPS,
   DEMO_STAND,
+  contentAssignment,
   crossingsOf,
   demoRuns,
   gaussian,
@@ -114,15 +114,9 @@ export const HOT_FIRE_WRONG_RUNS: readonly DemoWrongRun[] = [
   },
 ]
 
-const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
-
 /** The demo hot-fire module's assignment, read from content/. */
 export function hotFireAssignment(): Assignment {
-  const file = '03-hot-fire.md'
-  const parsed = parseModuleSource(readFileSync(path.join(CONTENT, file), 'utf8'), file)
-  if (!parsed.ok) throw new Error(`content/${file}: ${parsed.errors.map((e) => e.message).join('; ')}`)
-  if (!parsed.frontMatter.assignment) throw new Error(`content/${file} has no assignment`)
-  return parsed.frontMatter.assignment
+  return contentAssignment('03-hot-fire.md')
 }
 
 interface HotConditions {

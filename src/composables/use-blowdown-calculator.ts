@@ -10,7 +10,8 @@ import type { Blowdown, BlowdownProcess } from '@shared/physics'
 import { toSI } from '@shared/units'
 import type { UnitSymbol } from '@shared/units'
 import {
-  absolutePressure,
+  AMBIENT_NEGATIVE,
+  absolutePressureAt,
   forField,
   formatPressure,
   readNumber,
@@ -140,21 +141,13 @@ function compute(form: BlowdownForm): BlowdownResult {
   const volume = toSI(volumeTyped, form.volumeUnit)
   const ambientTyped = readNumber('ambientPressure', form.ambientPressure, 'ambient pressure')
   const ambient = toSI(ambientTyped, form.ambientPressureUnit)
-  const ambientNegative = {
-    field: 'ambientPressure',
-    message: () => 'The ambient pressure cannot be negative: it is an absolute pressure (about 101 kPa at sea level).',
-  }
   const initialTyped = readNumber('initialPressure', form.initialPressure, 'initial pressure')
-  const initial = withArgumentFields(
-    {
-      ambient: ambientNegative,
-      gauge: {
-        field: 'initialPressure',
-        message: () =>
-          `A gauge reading cannot be below −${formatPressure(ambient, pressureUnit)} (the ambient pressure): that would be less than a perfect vacuum.`,
-      },
-    },
-    () => absolutePressure(initialTyped, pressureUnit, form.initialPressureReading, ambient),
+  const initial = absolutePressureAt(
+    'initialPressure',
+    initialTyped,
+    pressureUnit,
+    form.initialPressureReading,
+    ambient,
   )
   const temperatureTyped = readNumber('initialTemperature', form.initialTemperature, 'initial temperature')
   const temperatureMessage = 'The initial temperature must be above absolute zero (0 K, −273.15 °C).'
@@ -185,7 +178,7 @@ function compute(form: BlowdownForm): BlowdownResult {
       initialPressure: { field: 'initialPressure', message: () => 'The initial pressure must be above 0 (absolute).' },
       ambientPressure:
         ambient < 0
-          ? ambientNegative
+          ? AMBIENT_NEGATIVE
           : {
               field: 'initialPressure',
               message: () =>

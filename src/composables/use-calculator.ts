@@ -104,6 +104,37 @@ export function absolutePressure(value: number, unit: UnitSymbol, reading: Press
   return reading === 'gauge' ? gaugeToAbsolute(si, ambient) : si
 }
 
+/** Where a negative ambient pressure is shown, and what it says (it is an absolute pressure). */
+export const AMBIENT_NEGATIVE = {
+  field: 'ambientPressure',
+  message: () => 'The ambient pressure cannot be negative: it is an absolute pressure (about 101 kPa at sea level).',
+}
+
+/**
+ * {@link absolutePressure} for a pressure input `field` read as gauge or absolute: a reading the
+ * library refuses is shown at that input (a gauge reading below −ambient) or at the ambient
+ * pressure (a negative ambient), in plain words.
+ */
+export function absolutePressureAt(
+  field: string,
+  value: number,
+  unit: UnitSymbol,
+  reading: PressureSense,
+  ambient: number,
+): number {
+  return withArgumentFields(
+    {
+      ambient: AMBIENT_NEGATIVE,
+      gauge: {
+        field,
+        message: () =>
+          `A gauge reading cannot be below −${formatPressure(ambient, unit)} (the ambient pressure): that would be less than a perfect vacuum.`,
+      },
+    },
+    () => absolutePressure(value, unit, reading, ambient),
+  )
+}
+
 /** Options of a unit picker: the symbols given, each with its written label and its name as a hint. */
 export function unitOptions(units: readonly UnitSymbol[]): { label: string; value: UnitSymbol; name: string }[] {
   return units.map((u) => ({ label: unitLabel(u), value: u, name: UNITS[u].name }))

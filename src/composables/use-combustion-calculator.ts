@@ -23,7 +23,8 @@ import type { UnitSymbol } from '@shared/units'
 import { COMBUSTION_FIELDS, carryOver, startingDefaults, visibleFieldGroups } from './combustion-form'
 import type { CombustionForm, MixtureBy } from './combustion-form'
 import {
-  absolutePressure,
+  AMBIENT_NEGATIVE,
+  absolutePressureAt,
   forField,
   formatCompact,
   formatPressure,
@@ -121,21 +122,13 @@ export function computeCombustion(form: CombustionForm): CombustionResult {
 
   const ambientTyped = readNumber('ambientPressure', form.ambientPressure, 'ambient pressure')
   const ambient = toSI(ambientTyped, form.ambientPressureUnit)
-  const ambientNegative = {
-    field: 'ambientPressure',
-    message: () => 'The ambient pressure cannot be negative: it is an absolute pressure (about 101 kPa at sea level).',
-  }
   const chamberTyped = readNumber('chamberPressure', form.chamberPressure, 'chamber pressure')
-  const chamber = withArgumentFields(
-    {
-      ambient: ambientNegative,
-      gauge: {
-        field: 'chamberPressure',
-        message: () =>
-          `A gauge reading cannot be below −${formatPressure(ambient, pressureUnit)} (the ambient pressure): that would be less than a perfect vacuum.`,
-      },
-    },
-    () => absolutePressure(chamberTyped, pressureUnit, form.chamberPressureReading, ambient),
+  const chamber = absolutePressureAt(
+    'chamberPressure',
+    chamberTyped,
+    pressureUnit,
+    form.chamberPressureReading,
+    ambient,
   )
 
   const temperatureTyped = readNumber('reactantTemperature', form.reactantTemperature, 'reactant temperature')
@@ -211,7 +204,7 @@ export function computeCombustion(form: CombustionForm): CombustionResult {
     {
       ambientPressure:
         ambient < 0
-          ? ambientNegative
+          ? AMBIENT_NEGATIVE
           : {
               field: 'chamberPressure',
               message: () =>

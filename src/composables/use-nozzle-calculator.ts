@@ -18,7 +18,8 @@ import type { NozzleFlow } from '@shared/physics'
 import { fromSI, toSI } from '@shared/units'
 import type { PressureSense, UnitSymbol } from '@shared/units'
 import {
-  absolutePressure,
+  AMBIENT_NEGATIVE,
+  absolutePressureAt,
   forField,
   formatPressure,
   readNumber,
@@ -192,20 +193,12 @@ function compute(form: NozzleForm): NozzleResult {
   const ambientTyped = readNumber('ambientPressure', form.ambientPressure, 'ambient pressure')
   const ambient = toSI(ambientTyped, form.ambientPressureUnit)
   const chamberTyped = readNumber('chamberPressure', form.chamberPressure, 'chamber pressure')
-  const ambientNegative = {
-    field: 'ambientPressure',
-    message: () => 'The ambient pressure cannot be negative: it is an absolute pressure (about 101 kPa at sea level).',
-  }
-  const chamber = withArgumentFields(
-    {
-      ambient: ambientNegative,
-      gauge: {
-        field: 'chamberPressure',
-        message: () =>
-          `A gauge reading cannot be below −${formatPressure(ambient, pressureUnit)} (the ambient pressure): that would be less than a perfect vacuum.`,
-      },
-    },
-    () => absolutePressure(chamberTyped, pressureUnit, form.chamberPressureReading, ambient),
+  const chamber = absolutePressureAt(
+    'chamberPressure',
+    chamberTyped,
+    pressureUnit,
+    form.chamberPressureReading,
+    ambient,
   )
 
   const temperatureTyped = readNumber('chamberTemperature', form.chamberTemperature, 'chamber temperature')
@@ -236,7 +229,7 @@ function compute(form: NozzleForm): NozzleResult {
       chamberTemperature: { field: 'chamberTemperature', message: () => temperatureMessage },
       ambientPressure:
         ambient < 0
-          ? ambientNegative
+          ? AMBIENT_NEGATIVE
           : {
               field: 'chamberPressure',
               message: () =>
