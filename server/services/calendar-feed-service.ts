@@ -119,7 +119,6 @@ export async function calendarFeed(db: Database, token: string, appUrl: string):
       summary: e.summary,
       start: e.start,
       end: null,
-      stamp: e.start,
       description: e.description,
       url: e.url,
     })
