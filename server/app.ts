@@ -22,6 +22,7 @@ import type { GradingContext } from './services/grading-service'
 import type { Logger } from './logger'
 import { apiNotFound, errorHandler } from './middleware/error-handler'
 import { SESSION_COOKIE, authRoutes } from './routes/auth'
+import { calendarFeedRoutes, myCalendarFeedRoutes } from './routes/calendar-feed'
 import { courseAdminRoutes } from './routes/course-admin'
 import { courseArchiveRoutes } from './routes/course-archive'
 import { courseKeyRoutes } from './routes/course-keys'
@@ -200,10 +201,13 @@ export function createApp({
   const csrf = createCsrf(config.SESSION_SECRET, secureCookies)
   const api = express.Router()
   api.use('/health', healthRoutes(db))
+  // Calendar apps fetch feeds without a session or CSRF token; the address's token is the credential.
+  api.use('/calendar', calendarFeedRoutes(db, { appUrl: config.APP_URL }))
   // Every state-changing request below needs the CSRF header (GET/HEAD/OPTIONS do not).
   api.use(csrf.protect)
   api.use('/auth', authRoutes(passport, csrf))
   api.use('/course-keys', courseKeyRoutes(db))
+  api.use('/me', myCalendarFeedRoutes(db, { appUrl: config.APP_URL }))
   // Hand-ins first: their multipart bodies must not meet the module router's JSON parser.
   api.use(
     '/courses/:courseId',

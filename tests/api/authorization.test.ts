@@ -292,6 +292,28 @@ const CASES: Case[] = [
     },
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 204, admin: 404 },
   },
+  // Calendar feeds: /api/me/* is about the caller only; the feed itself needs its token, not a session.
+  {
+    route: 'GET /api/me/calendar-feed',
+    call: (c) => c.agent.get('/api/me/calendar-feed'),
+    expect: { anon: 401, outsider: 200, student: 200, ta: 200, instructor: 200, admin: 200 },
+  },
+  {
+    route: 'POST /api/me/calendar-feed',
+    call: (c) => c.agent.post('/api/me/calendar-feed').set('x-csrf-token', c.csrf),
+    expect: { anon: 401, outsider: 201, student: 201, ta: 201, instructor: 201, admin: 201 },
+  },
+  {
+    route: 'DELETE /api/me/calendar-feed',
+    call: (c) => c.agent.delete('/api/me/calendar-feed').set('x-csrf-token', c.csrf),
+    expect: { anon: 401, outsider: 204, student: 204, ta: 204, instructor: 204, admin: 204 },
+  },
+  {
+    route: 'GET /api/calendar/:token.ics',
+    // A well-formed token nobody holds: the same 404 whoever asks (a session grants nothing here).
+    call: (c) => c.agent.get(`/api/calendar/${'A'.repeat(43)}.ics`),
+    expect: { anon: 404, outsider: 404, student: 404, ta: 404, instructor: 404, admin: 404 },
+  },
   {
     route: 'GET /api/courses/:courseId/extensions',
     call: (c, fx) => c.agent.get(`${C(fx)}/extensions`),
