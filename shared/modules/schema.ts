@@ -14,6 +14,7 @@ import { z } from 'zod'
 import { RESERVED_NAMES } from './expression-names'
 import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, isDataUnit, isPressureUnit, isResultUnit } from './quantities'
 import { singleLineName } from '../schemas/names'
+import { checkStandFrontMatter, standFrontMatter } from './stand-schema'
 import { PRESSURE_SENSES, UNITS, type PressureSense } from '../units'
 
 /**
@@ -649,8 +650,10 @@ export const FrontMatterSchema = z
     /** One member submits for the whole lab group. */
     groupSubmission: z.boolean().default(false),
     assignment: AssignmentSchema.optional(),
+    ...standFrontMatter,
   })
   .superRefine((fm, ctx) => {
+    checkStandFrontMatter(fm, ctx)
     if (fm.late && !fm.due) {
       ctx.addIssue({
         code: 'custom',

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import { int, mysqlTable, timestamp, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, timestamps } from './columns'
 
 export const courses = mysqlTable(
@@ -29,6 +29,8 @@ export const courses = mysqlTable(
      * everyone, hidden from students, and still listed (marked closed) and readable for staff. Null: open.
      */
     closedAt: timestamp('closed_at', { fsp: 3, mode: 'date' }),
+    /** Groups book and cancel stand slots until this many hours before a slot starts; staff are not bound by it. */
+    bookingCutoffHours: int('booking_cutoff_hours').notNull().default(24),
     ...timestamps,
   },
   (t) => [uniqueIndex('courses_code_term_uq').on(t.code, t.term), uniqueIndex('courses_slug_uq').on(t.slug)],

@@ -6,6 +6,7 @@ import { labGroups } from './lab-groups'
 import { moduleVersions } from './module-versions'
 import { modules } from './modules'
 import { users } from './users'
+import { runRecords } from './run-records'
 import { SUBMISSION_STATUSES } from '../../../shared/schemas/submissions'
 import { REVIEW_STATES } from '../../../shared/schemas/review'
 import type { PressureSense } from '../../../shared/units'
@@ -68,6 +69,8 @@ export const submissions = mysqlTable(
     gradeAttempts: int('grade_attempts').notNull().default(0),
     gradeAfter: timestamp('grade_after', { fsp: 3, mode: 'date' }),
     gradeClaimedAt: timestamp('grade_claimed_at', { fsp: 3, mode: 'date' }),
+    /** The signed-off stand run this hand-in reports (lab sheets with `requiresSignedRun`). */
+    runRecordId: ref('run_record_id').references(() => runRecords.id, { onDelete: 'set null' }),
     ...timestamps,
   },
   (t) => [

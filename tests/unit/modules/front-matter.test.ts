@@ -42,6 +42,8 @@ describe('parseModuleSource: splitting and defaults', () => {
       results: 'immediately',
       showExpected: false,
       groupSubmission: false,
+      standRuns: 0,
+      requiresSignedRun: false,
     })
     expect(parsed.body).toBe('# Heading\n\nText.')
     // ---, title, --- → the body starts on line 4.
