@@ -1,11 +1,97 @@
 /**
- * The free jet outside a nozzle: where the Mach disk of an under-expanded jet stands.
+ * The free jet outside a nozzle: the fully expanded jet, the spacing of its shock cells, and where
+ * the Mach disk of an under-expanded jet stands.
  *
  * Sources: H. Ashkenas & F. S. Sherman (1966); C. H. Lewis Jr. & D. J. Carlson (1964); both
- * empirical fits, cited below (coefficients and ranges from memory).
+ * empirical fits, cited below (coefficients and ranges from memory). D. C. Pack (1950) for the
+ * shock-cell spacing.
  */
+import { areaRatioUnchecked, criticalPressureRatio, machFromPressureRatioUnchecked } from './isentropic'
 import { IDEAL_EXPANSION_BAND } from './nozzle'
 import { requireAtLeast, requireGamma, requireGreaterThan, requireInterval, requirePositive } from './validate'
+
+/**
+ * First zero of the Bessel function J0 (Abramowitz & Stegun, Handbook of Mathematical Functions,
+ * Table 9.5: 2.4048255577). Prandtl's and Pack's shock-cell wavelength is π·Dj·√(Mj²−1)/j0,1.
+ */
+export const BESSEL_J0_FIRST_ZERO = 2.404825557695773
+
+/** Coefficient of the shock-cell spacing L = k·Dj·√(Mj² − 1): k = π / j0,1 ≈ 1.306 (usually quoted as 1.31). */
+export const SHOCK_CELL_COEFFICIENT = Math.PI / BESSEL_J0_FIRST_ZERO
+
+/** The jet as if it had expanded isentropically to the ambient pressure. */
+export interface FullyExpandedJet {
+  /** Fully expanded jet Mach number Mj, dimensionless, ≥ 1. */
+  mach: number
+  /** Fully expanded jet diameter Dj, m: the area that carries the nozzle's choked mass flow at Mj and pa. */
+  diameter: number
+}
+
+/**
+ * The fully expanded jet of a choked nozzle: the Mach number and diameter the jet would have if it
+ * expanded isentropically to the ambient pressure. Shock-cell models scale with these, not with the
+ * nozzle's exit, so an under- or over-expanded jet from any nozzle is described alike.
+ *
+ * Mj = √( 2/(γ−1)·((p0/pa)^((γ−1)/γ) − 1) ) (isentropic relation, NACA Report 1135 eq. 44 solved for M);
+ * Dj = Dt·√(A/A*(Mj)), from mass conservation: the throat passes the choked mass flow, and the
+ * fully expanded stream carries the same flow at Mj and pa (NACA Report 1135 eq. 80 for A/A*,
+ * equation numbers from memory). For an ideally expanded nozzle Dj equals the exit diameter.
+ *
+ * @param throatDiameter - nozzle throat diameter Dt, m, finite, > 0
+ * @param chamberPressure - stagnation pressure p0, Pa absolute, finite, at least pa divided by the critical ratio
+ *   p* over p0, so the jet is sonic or supersonic (p0/pa ≥ 1.893 for γ = 1.4)
+ * @param ambientPressure - ambient pressure pa, Pa absolute, finite, > 0
+ * @param gamma - ratio of specific heats of the jet, dimensionless, finite, > 1
+ * @returns the fully expanded jet's Mach number and diameter (m)
+ * @throws RangeError naming the argument; `chamberPressure` when the jet would be subsonic
+ * @example
+ * fullyExpandedJet(0.005, 1e5 / 0.12780452546295096, 1e5, 1.4) // { mach: ≈ 2, diameter: ≈ 0.005·√1.6875 }
+ */
+export function fullyExpandedJet(
+  throatDiameter: number,
+  chamberPressure: number,
+  ambientPressure: number,
+  gamma: number,
+): FullyExpandedJet {
+  requirePositive('throatDiameter', throatDiameter)
+  requirePositive('ambientPressure', ambientPressure)
+  requireGamma(gamma)
+  const sonic = ambientPressure / criticalPressureRatio(gamma)
+  // A relative 1e-9 of slack, so the sonic limit computed another way (1e5 / 0.528282…) is accepted.
+  requireAtLeast(
+    'chamberPressure',
+    chamberPressure,
+    sonic * (1 - 1e-9),
+    `ambientPressure / (p*/p0) (${Number(sonic.toPrecision(6))}), so that the jet is sonic or supersonic: a subsonic jet has no shock cells`,
+  )
+  // At the sonic limit rounding can put the ratio a hair above p*/p0; Mj is 1 there.
+  const mach = Math.max(1, machFromPressureRatioUnchecked(ambientPressure / chamberPressure, gamma))
+  return { mach, diameter: throatDiameter * Math.sqrt(areaRatioUnchecked(mach, gamma)) }
+}
+
+/**
+ * Spacing of the shock cells of a supersonic jet, by Prandtl's wavelength as corrected by Pack.
+ *
+ * L = (π / j0,1)·Dj·√(Mj² − 1) ≈ 1.31·Dj·√(Mj² − 1), with j0,1 the first zero of the Bessel function J0.
+ *
+ * Source: D. C. Pack, "A note on Prandtl's formula for the wave-length of a supersonic gas jet",
+ * Quarterly Journal of Mechanics and Applied Mathematics 3 (1950) 173–181 (citation from memory). It is
+ * the linear, vortex-sheet model of a slightly imperfectly expanded jet; real cells shorten downstream
+ * and for strongly under-expanded jets the first cell is longer. Measured spacings within 10–20 % are
+ * usual for moderately under-expanded jets (from memory).
+ *
+ * @param jetDiameter - fully expanded jet diameter Dj, m, finite, > 0 (see {@link fullyExpandedJet})
+ * @param jetMach - fully expanded jet Mach number Mj, dimensionless, finite, > 1
+ * @returns shock-cell spacing, m
+ * @throws RangeError naming the argument
+ * @example
+ * shockCellSpacing(0.01, 2) // ≈ 0.022621 m (1.3063 · 0.01 · √3)
+ */
+export function shockCellSpacing(jetDiameter: number, jetMach: number): number {
+  requirePositive('jetDiameter', jetDiameter)
+  requireGreaterThan('jetMach', jetMach, 1, '1 (a supersonic jet; a sonic or subsonic one has no shock cells)')
+  return SHOCK_CELL_COEFFICIENT * jetDiameter * Math.sqrt(jetMach * jetMach - 1)
+}
 
 /** Coefficient of the Mach-disk fit of Ashkenas and Sherman (1966): x/D = 0.67·√(p0/pa). */
 export const MACH_DISK_COEFFICIENT = 0.67

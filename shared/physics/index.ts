@@ -29,9 +29,14 @@ export { SEPARATION_PRESSURE_RATIO } from './nozzle'
 export {
   machDiskDistance,
   machDiskDistanceLewisCarlson,
+  fullyExpandedJet,
+  shockCellSpacing,
   MACH_DISK_COEFFICIENT,
   LEWIS_CARLSON_COEFFICIENT,
+  SHOCK_CELL_COEFFICIENT,
+  BESSEL_J0_FIRST_ZERO,
 } from './free-jet'
+export type { FullyExpandedJet } from './free-jet'
 export {
   tankBlowdown,
   dischargeMassFlow,

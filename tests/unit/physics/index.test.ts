@@ -14,6 +14,8 @@ describe('the formula library barrel', () => {
       'nozzleFlow',
       'nozzlePressureRatios',
       'machDiskDistance',
+      'fullyExpandedJet',
+      'shockCellSpacing',
       'tankBlowdown',
       'totalImpulse',
       'specificImpulse',
