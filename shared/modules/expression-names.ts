@@ -8,6 +8,7 @@
  * `expressions.ts` enforces these lists; `schema.ts` uses {@link RESERVED_NAMES}.
  */
 import type {
+  FullyExpandedJet,
   IsentropicRatios,
   NormalShock,
   NozzleFlow,
@@ -45,6 +46,9 @@ export const LIBRARY_FUNCTIONS: Readonly<Record<string, Arity>> = {
   chokedMassFlow: exactly(5),
   idealThrust: exactly(5),
   machDiskDistance: exactly(3),
+  machDiskDistanceLewisCarlson: exactly(5),
+  fullyExpandedJet: exactly(4),
+  shockCellSpacing: exactly(2),
   totalImpulse: exactly(2),
   specificImpulse: exactly(2),
   characteristicVelocity: exactly(3),
@@ -237,6 +241,7 @@ export const RESULT_FIELDS: Readonly<Record<string, FieldTree>> = {
     peakThrust: true,
     meanThrust: true,
   } satisfies Record<keyof ThrustRun, true>,
+  fullyExpandedJet: { mach: true, diameter: true } satisfies Record<keyof FullyExpandedJet, true>,
   combustion: {
     temperature: true,
     molarMass: true,
