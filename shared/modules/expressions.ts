@@ -102,6 +102,7 @@ import type { Assignment } from './schema'
 import { buildExpressionScope, syntheticSubmission, ScopeError } from './scope'
 import type { ExpressionScope, ExpressionValue } from './scope'
 import { valueFromSI } from './quantities'
+import { imageNames } from './image-spec'
 
 /** An expression that cannot be parsed, is refused, or fails when evaluated. */
 export class ExpressionError extends Error {
@@ -848,6 +849,9 @@ export function assignmentContexts(assignment: Assignment): AssignmentContexts {
   const dataNames: ScopeName[] = [
     ...assignment.tables.flatMap((t) => t.columns.map((c) => ({ name: c.key, shape: 'array' as const }))),
     ...assignment.measurements.map((m) => ({ name: m.key, shape: 'scalar' as const })),
+    ...assignment.images.flatMap((img) =>
+      Object.values(imageNames(img.key)).map((name) => ({ name, shape: 'scalar' as const })),
+    ),
   ].map((n) => (dataScope[n.name] === undefined ? n : { ...n, sample: dataScope[n.name] as ExpressionValue }))
 
   const results: Record<string, number> = {}

@@ -11,8 +11,9 @@
  * words; `front-matter.ts` adds the module name, the path and the line.
  */
 import { z } from 'zod'
-import { RESERVED_NAMES } from './expression-names'
 import { DIMENSIONLESS, RESULT_ONLY_UNITS, dataUnitKind, isDataUnit, isPressureUnit, isResultUnit } from './quantities'
+import { ImageSpecSchema, MAX_IMAGES, imageNames } from './image-spec'
+import { KeySchema, LabelSchema, TableKeySchema } from './spec-names'
 import { singleLineName } from '../schemas/names'
 import { checkStandFrontMatter, standFrontMatter } from './stand-schema'
 import { PRESSURE_SENSES, UNITS, type PressureSense } from '../units'
@@ -33,32 +34,6 @@ export const MAX_LIST_VALUES = 64
 export const MAX_RESULTS = 40
 /** Most review rules one assignment has. */
 export const MAX_REVIEW_RULES = 40
-
-const KEY_PATTERN = /^[a-z][a-zA-Z0-9_]*$/
-
-const KeySchema = z
-  .string()
-  .max(40, 'a key has at most 40 characters')
-  .regex(
-    KEY_PATTERN,
-    'a key starts with a lower-case letter and has only letters, digits and _ (for example chamber_pressure)',
-  )
-  .refine((k) => !RESERVED_NAMES.has(k), {
-    message:
-      'this key is the name of a function, constant or keyword of the expressions; choose another (for example add a suffix)',
-  })
-
-const TableKeySchema = z
-  .string()
-  .max(40, 'a key has at most 40 characters')
-  .regex(KEY_PATTERN, 'a key starts with a lower-case letter and has only letters, digits and _ (for example run_log)')
-
-// Labels are names too: they head form fields, CSV columns and the feedback report.
-const LabelSchema = singleLineName({
-  field: 'label',
-  max: 200,
-  messages: { tooShort: 'the label must not be empty', tooLong: 'a label has at most 200 characters' },
-})
 
 const LOCAL_DATE_TIME = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/
 
@@ -472,6 +447,11 @@ export const AssignmentSchema = z
   .strictObject({
     tables: z.array(TableSchema).default([]),
     measurements: z.array(MeasurementSchema).default([]),
+    /** Photographs of the jet with marks (see image-spec.ts). */
+    images: z
+      .array(ImageSpecSchema)
+      .max(MAX_IMAGES, `an assignment asks for at most ${MAX_IMAGES} photographs`)
+      .default([]),
     results: z
       .array(ResultSpecSchema)
       .max(MAX_RESULTS, {
@@ -512,6 +492,32 @@ export const AssignmentSchema = z
     })
     a.measurements.forEach((m, i) => claim(m.key, ['measurements', i]))
     a.results.forEach((r, i) => claim(r.key, ['results', i]))
+    a.images.forEach((img, i) => {
+      claim(img.key, ['images', i])
+      for (const name of Object.values(imageNames(img.key))) {
+        if (seen.has(name)) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['images', i, 'key'],
+            message: `the photograph "${img.key}" gives the expressions the name ${name}, which is already used at assignment.${seen.get(name)}; choose another key`,
+          })
+        }
+      }
+      const refer = (field: 'scaleFrom' | 'takenAt', kind: 'length' | 'time') => {
+        const ref = img[field]
+        if (ref === undefined) return
+        const m = a.measurements.find((x) => x.key === ref)
+        if (!m || dataUnitKind(m.unit) !== kind) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['images', i, field],
+            message: `${field} names a measurement with a ${kind} unit; "${ref}" is ${m ? `in ${m.unit}` : 'not a measurement of this assignment'}`,
+          })
+        }
+      }
+      refer('scaleFrom', 'length')
+      refer('takenAt', 'time')
+    })
 
     const ruleKeys = new Set<string>()
     a.reviewRules.forEach((r, i) => {

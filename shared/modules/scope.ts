@@ -17,6 +17,7 @@ import { signalZeros, tareWithRun } from '../physics/thrust-run'
 import { cachedThrustRun } from './run-cache'
 import { DIMENSIONLESS, dataUnitKind, valueFromSI, valueToSI } from './quantities'
 import type { Assignment, ColumnSpec, MeasurementSpec, TableSpec } from './schema'
+import { imageNames } from './image-spec'
 
 /** Values an expression can see by name. */
 export type ExpressionValue = number | boolean | readonly number[]
@@ -40,6 +41,18 @@ export interface SubmissionData {
    * left out follow the spec. The ambient pressure is always absolute.
    */
   pressures?: Readonly<Record<string, PressureSense>>
+  /**
+   * What the marks on each photograph measure (image key → values), always in SI (m): the mean
+   * shock-cell spacing, the Mach-disk distance (NaN when not marked) and the number of cell ends.
+   */
+  images?: Readonly<Record<string, ImageMeasures>>
+}
+
+/** The measured values of one photograph that expressions see (see image-spec.ts for their names). */
+export interface ImageMeasures {
+  cellSpacing: number
+  machDisk: number
+  cellCount: number
 }
 
 /** Options of {@link buildExpressionScope}. */
@@ -267,6 +280,14 @@ export function buildExpressionScope(
       `measurement "${m.key}"`,
     )
   }
+  for (const img of assignment.images) {
+    const measured = data.images?.[img.key]
+    if (measured === undefined) throw new ScopeError(`the photograph "${img.key}" is missing`)
+    const names = imageNames(img.key)
+    scope[names.cellSpacing] = measured.cellSpacing
+    scope[names.machDisk] = measured.machDisk
+    scope[names.cellCount] = measured.cellCount
+  }
   if (options.withResults) {
     for (const r of assignment.results) {
       const value = data.results?.[r.key]
@@ -362,5 +383,8 @@ export function syntheticSubmission(assignment: Assignment): SubmissionData {
     }
     tables[table.key] = columns
   }
-  return { tables, measurements }
+  // A photograph of a 1 cm jet: three cells of 12 mm and a Mach disk 9 mm from the exit.
+  const images: Record<string, ImageMeasures> = {}
+  for (const img of assignment.images) images[img.key] = { cellSpacing: 0.012, machDisk: 0.009, cellCount: 3 }
+  return { tables, measurements, images }
 }
