@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { checkModule } from '../../../shared/modules/check'
 import { parseModuleSource } from '../../../shared/modules/front-matter'
 import type { ParsedModule } from '../../../shared/modules/front-matter'
-import { evaluateExpression } from '../../../shared/modules/expressions'
+import { evaluateExpression, validateAssignmentExpressions } from '../../../shared/modules/expressions'
 import { ScopeError, buildExpressionScope } from '../../../shared/modules/scope'
 
 /** A jet-photograph assignment: a barometer, the exit diameter, the time of the photograph, one image. */
@@ -38,6 +38,13 @@ const JET = [
 ]
 
 describe('assignment.images', () => {
+  it('holds a sheet with photographs back from saving until hand-ins carry them', () => {
+    const checked = checkModule(sheet(JET), 'jet', 'UTC')
+    expect(checked.issues.map((i) => `${i.path}: ${i.message}`)).toEqual([
+      expect.stringMatching(/^assignment\.images: .*photographs in hand-ins are not available yet/),
+    ])
+  })
+
   it('reads a photograph with its defaults', () => {
     const parsed = parseModuleSource(sheet(JET), 'jet')
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.errors))
@@ -87,20 +94,19 @@ describe('assignment.images', () => {
   })
 
   it('gives expressions the measured spacing, Mach disk and count, and says when a photograph is missing', () => {
-    const checked = checkModule(
-      sheet(JET, [
-        '    - key: spacing_ratio',
-        '      label: Measured over expected spacing',
-        '      unit: "1"',
-        '      expected: jet_cell_spacing / (1.31 * d_exit) + 0 * jet_mach_disk + 0 * jet_cell_count',
-        '      tolerance: { relative: 0.1 }',
-        '      points: 1',
-      ]),
-      'jet',
-      'UTC',
-    )
-    expect(checked.issues).toEqual([])
-    const assignment = checked.frontMatter!.assignment!
+    const source = sheet(JET, [
+      '    - key: spacing_ratio',
+      '      label: Measured over expected spacing',
+      '      unit: "1"',
+      '      expected: jet_cell_spacing / (1.31 * d_exit) + 0 * jet_mach_disk + 0 * jet_cell_count',
+      '      tolerance: { relative: 0.1 }',
+      '      points: 1',
+    ])
+    const parsed = parseModuleSource(source, 'jet')
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.errors))
+    const assignment = parsed.frontMatter.assignment!
+    // The expression sees the photograph's names in the save-time trial run.
+    expect(validateAssignmentExpressions(assignment)).toEqual([])
     const data = {
       tables: {},
       measurements: { p_ambient: 98.6, d_exit: 8, t_photo: 1.2 },
