@@ -14,6 +14,7 @@ import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { demoRuns } from './demo-runs'
 import type { DemoRun } from './demo-runs'
 import { hotFireRuns } from './hot-fire-runs'
+import { seedStandSessions } from './stand-sessions'
 import {
   DEMO_GROUP_WITHOUT_HAND_IN,
   DEFAULT_DEMO_PASSWORD,
@@ -38,11 +39,16 @@ export async function seedDemo(
     // A demo database from before modules existed gets them (and the seeded hand-ins) now.
     const courseId = existing[0].id
     const any = await db.select({ id: modules.id }).from(modules).where(eq(modules.courseId, courseId)).limit(1)
-    if (any.length > 0) return { created: false, users: 0, courseId }
+    if (any.length > 0) {
+      // A demo database from before stand sessions existed gets them now (nothing if it has them).
+      await db.transaction((tx) => seedStandSessions(tx, courseId))
+      return { created: false, users: 0, courseId }
+    }
     const [inst] = await db.select({ id: users.id }).from(users).where(eq(users.email, DEMO_INSTRUCTOR.email))
     if (!inst) return { created: false, users: 0, courseId }
     await db.transaction((tx) => seedModules(tx, courseId, inst.id))
     await seedHandIns(db, courseId)
+    await db.transaction((tx) => seedStandSessions(tx, courseId))
     return { created: false, users: 0, courseId, addedModules: true }
   }
 
@@ -109,6 +115,8 @@ export async function seedDemo(
     return id
   })
   await seedHandIns(db, courseId)
+  // The stand sessions last: the seeded hand-ins are linked to the runs they were made against.
+  await db.transaction((tx) => seedStandSessions(tx, courseId))
   return { created: true, users: people.length, courseId }
 }
 
