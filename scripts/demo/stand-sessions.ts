@@ -95,13 +95,22 @@ function slotTime(first: string, slot: number): string {
   return `${String(Math.floor(total / 60)).padStart(2, '0')}:${String(total % 60).padStart(2, '0')}`
 }
 
+/** The signed-off, completed run of each lab group and sheet: the run its hand-in is made against. */
+export interface DemoRunLink {
+  labGroupId: number
+  moduleId: number
+  runId: number
+}
+
 /**
- * Adds the stand sessions to the demo course, once: nothing happens when the course has stands
- * already. Run after the seeded hand-ins, which are linked to their signed-off runs.
+ * Adds the stand sessions to the demo course, once: nothing happens (and no runs are returned) when
+ * the course has stands already. Runs before the seeded hand-ins are made, as at a real stand;
+ * {@link linkHandInsToRuns} then points each hand-in at its run.
  */
-export async function seedStandSessions(tx: Transaction, courseId: number, now = new Date()): Promise<boolean> {
+export async function seedStandSessions(tx: Transaction, courseId: number, now = new Date()): Promise<DemoRunLink[]> {
   const have = await tx.select({ id: stands.id }).from(stands).where(eq(stands.courseId, courseId)).limit(1)
-  if (have.length > 0) return false
+  if (have.length > 0) return []
+  const links: DemoRunLink[] = []
 
   const sheetRows = await tx
     .select({
@@ -268,11 +277,7 @@ export async function seedStandSessions(tx: Transaction, courseId: number, now =
       const booking = await book(g.id, past.sheet, key(section.name, past.week, past.stand, slot), people[0] ?? null)
       if (!booking) continue
       const runId = await signedRun(booking, past.sheet, taId, people, { kind: 'completed' })
-      // The group's hand-in of the sheet was made against this run.
-      await tx
-        .update(submissions)
-        .set({ runRecordId: runId })
-        .where(and(eq(submissions.labGroupId, g.id), eq(submissions.moduleId, sheets.get(past.sheet)!.id)))
+      links.push({ labGroupId: g.id, moduleId: sheets.get(past.sheet)!.id, runId })
     }
   }
 
@@ -284,5 +289,15 @@ export async function seedStandSessions(tx: Transaction, courseId: number, now =
     const member = memberRows.find((m) => m.labGroupId === g.id)
     await book(g.id, u.sheet, key(section.name, u.week, u.stand, u.slot), member?.userId ?? null)
   }
-  return true
+  return links
+}
+
+/** Points each lab group's hand-ins of a stand sheet at the run they were made against. */
+export async function linkHandInsToRuns(tx: Transaction, links: DemoRunLink[]): Promise<void> {
+  for (const l of links) {
+    await tx
+      .update(submissions)
+      .set({ runRecordId: l.runId })
+      .where(and(eq(submissions.labGroupId, l.labGroupId), eq(submissions.moduleId, l.moduleId)))
+  }
 }

@@ -143,7 +143,7 @@ async function bookingEvents({ db, userId, appUrl, courses }: FeedContext): Prom
   })
 }
 
-/** For staff: every open slot of their section (a TA) or course (an instructor), with who holds it. */
+/** For staff: every slot that is not cancelled of their section (a TA) or course (an instructor), with who holds it. */
 async function sessionEvents({ db, userId, appUrl, courses }: FeedContext): Promise<FeedEvent[]> {
   const scopes = courses.flatMap((c): SlotScope[] =>
     c.role === 'instructor'
