@@ -249,10 +249,11 @@ describe('stand sessions in the feed', () => {
   let sheetTitle = ''
 
   const standEvents = (events: ParsedEvent[]) => events.filter((e) => e.uid.startsWith('stand-'))
-  async function feedOf(email: string): Promise<ParsedEvent[]> {
+  async function feedTextOf(email: string): Promise<string> {
     const c = await signedInAs(ctx, email)
-    return parseFeed((await fetchFeed(await makeFeed(c)).expect(200)).text)
+    return (await fetchFeed(await makeFeed(c)).expect(200)).text
   }
+  const feedOf = async (email: string) => parseFeed(await feedTextOf(email))
 
   beforeAll(async () => {
     fs = await seedFixture(ctx)
@@ -290,8 +291,12 @@ describe('stand sessions in the feed', () => {
   })
 
   it('gives a student their own group’s active bookings as spans with stand, place and sheet', async () => {
-    const mine = standEvents(await feedOf(fs.student.email))
+    const text = await feedTextOf(fs.student.email)
+    const mine = standEvents(parseFeed(text))
     expect(mine).toHaveLength(1)
+    // Written as UTC instants, not floating local times.
+    expect(text).toContain('DTSTART:20270302T200000Z')
+    expect(text).toContain('DTEND:20270302T203000Z')
     const [e] = mine
     expect(e!.uid).toBe(`stand-booking-${heldA1}-${fs.student.id}@isentrope`)
     expect(e!.summary).toBe(`${code}: ${sheetTitle} at Stand Q`)
