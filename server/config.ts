@@ -62,6 +62,8 @@ const ConfigSchema = z
     MAIL_POLL_MS: z.coerce.number().int().min(0).default(2000),
     /** Minutes between the teaching assistants' flag digests; 0 turns them off in this process. */
     FLAG_DIGEST_MINUTES: z.coerce.number().min(0).default(15),
+    /** Minutes between looks for stand sessions to remind groups of (the day before); 0 turns it off here. */
+    STAND_REMINDER_MINUTES: z.coerce.number().min(0).max(720).default(30),
     // Sign-in slow-down (README, "Sign-in policy"). Nothing locks an account: past a free
     // allowance each further failure doubles the wait before the next attempt from that address.
     /** Failures on one account from one client address before its attempts are slowed down. */

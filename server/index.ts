@@ -6,6 +6,7 @@ import { createLogger } from './logger'
 import { DEFAULT_OUTBOX_OPTIONS, startOutboxWorker } from './mail/outbox-worker'
 import { createSmtpSender } from './mail/transport'
 import { queueFlagDigests } from './services/flag-digest'
+import { queueStandReminders } from './services/stand-reminders'
 import { createGrader } from './grading/grading-pool'
 import { startGradingWorker } from './grading/grading-worker'
 
@@ -44,6 +45,18 @@ const digestTimer =
           .catch((err: unknown) => logger.warn({ err }, 'flag digest failed; will retry'))
       }, config.FLAG_DIGEST_MINUTES * 60_000)
     : null
+// Day-before stand reminders, on a timer in every process too: the outbox's dedupe key keeps each
+// reminder to one message however many processes and runs find it.
+const reminderTimer =
+  config.STAND_REMINDER_MINUTES > 0
+    ? setInterval(() => {
+        queueStandReminders(dbHandle.db, config.APP_URL)
+          .then((n) => {
+            if (n > 0) worker?.kick()
+          })
+          .catch((err: unknown) => logger.warn({ err }, 'stand reminders failed; will retry'))
+      }, config.STAND_REMINDER_MINUTES * 60_000)
+    : null
 const grader = createGrader(gradingBudget(config))
 // Load the grading threads now so the first hand-in does not wait for them.
 grader.warmUp().catch((err: unknown) => logger.error({ err }, 'grading threads failed to start'))
@@ -80,6 +93,7 @@ async function shutdown(signal: string): Promise<void> {
   server.close()
   server.closeAllConnections()
   if (digestTimer) clearInterval(digestTimer)
+  if (reminderTimer) clearInterval(reminderTimer)
   await gradingWorker?.stop().catch((err: unknown) => logger.warn({ err }, 'grading worker stop failed'))
   await grader.close().catch((err: unknown) => logger.warn({ err }, 'grading threads close failed'))
   await worker?.stop().catch((err: unknown) => logger.warn({ err }, 'outbox worker stop failed'))

@@ -14,6 +14,7 @@ import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { demoRuns } from './demo-runs'
 import type { DemoRun } from './demo-runs'
 import { hotFireRuns } from './hot-fire-runs'
+import { linkHandInsToRuns, seedStandSessions } from './stand-sessions'
 import {
   DEMO_GROUP_WITHOUT_HAND_IN,
   DEFAULT_DEMO_PASSWORD,
@@ -38,11 +39,17 @@ export async function seedDemo(
     // A demo database from before modules existed gets them (and the seeded hand-ins) now.
     const courseId = existing[0].id
     const any = await db.select({ id: modules.id }).from(modules).where(eq(modules.courseId, courseId)).limit(1)
-    if (any.length > 0) return { created: false, users: 0, courseId }
+    if (any.length > 0) {
+      // A demo database from before stand sessions existed gets them now (nothing if it has them).
+      await db.transaction(async (tx) => linkHandInsToRuns(tx, await seedStandSessions(tx, courseId)))
+      return { created: false, users: 0, courseId }
+    }
     const [inst] = await db.select({ id: users.id }).from(users).where(eq(users.email, DEMO_INSTRUCTOR.email))
     if (!inst) return { created: false, users: 0, courseId }
     await db.transaction((tx) => seedModules(tx, courseId, inst.id))
+    const runs = await db.transaction((tx) => seedStandSessions(tx, courseId))
     await seedHandIns(db, courseId)
+    await db.transaction((tx) => linkHandInsToRuns(tx, runs))
     return { created: false, users: 0, courseId, addedModules: true }
   }
 
@@ -108,7 +115,10 @@ export async function seedDemo(
     await seedModules(tx, id, uid(DEMO_INSTRUCTOR.email))
     return id
   })
+  // The stand runs first, as at a real stand; each group's hand-in is then linked to its run.
+  const runs = await db.transaction((tx) => seedStandSessions(tx, courseId))
   await seedHandIns(db, courseId)
+  await db.transaction((tx) => linkHandInsToRuns(tx, runs))
   return { created: true, users: people.length, courseId }
 }
 

@@ -41,6 +41,9 @@ export interface FeedCourse {
   timeZone: string
   role: CourseRole
   closed: boolean
+  /** A student's section, or the section a TA looks after. */
+  sectionId: number | null
+  labGroupId: number | null
 }
 
 export async function listFeedCourses(db: Executor, userId: number): Promise<FeedCourse[]> {
@@ -52,6 +55,8 @@ export async function listFeedCourses(db: Executor, userId: number): Promise<Fee
       timeZone: courses.timeZone,
       role: enrollments.role,
       closedAt: courses.closedAt,
+      sectionId: enrollments.sectionId,
+      labGroupId: enrollments.labGroupId,
     })
     .from(enrollments)
     .innerJoin(courses, eq(courses.id, enrollments.courseId))
@@ -63,6 +68,8 @@ export async function listFeedCourses(db: Executor, userId: number): Promise<Fee
     timeZone: r.timeZone,
     role: r.role,
     closed: r.closedAt !== null,
+    sectionId: r.sectionId,
+    labGroupId: r.labGroupId,
   }))
 }
 

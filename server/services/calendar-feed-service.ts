@@ -5,6 +5,8 @@ import { CalendarTokenSchema } from '../../shared/schemas/calendar-feed'
 import type { Database } from '../db/client'
 import { notFound } from '../errors'
 import type { FeedCourse } from '../repositories/calendar-feeds'
+import { listGroupBookings, listSlotSessions } from '../repositories/stand-calendar'
+import type { SlotScope } from '../repositories/stand-calendar'
 import {
   deleteCalendarToken,
   findCalendarToken,
@@ -41,12 +43,15 @@ export async function turnOffCalendarFeed(db: Database, userId: number): Promise
   await deleteCalendarToken(db, userId)
 }
 
-/** One entry in a feed. Every kind of event (due dates now; bookings and stand sessions later) becomes one of these. */
+/** One entry in a feed. Every kind of event (due dates, bookings, stand sessions) becomes one of these. */
 export interface FeedEvent {
   /** Stable across fetches, so a calendar app updates the entry instead of adding a second one. */
   uid: string
   summary: string
   start: Date
+  /** A span's end; none for a moment such as a due date. */
+  end?: Date
+  location?: string
   description: string
   url: string
 }
@@ -91,8 +96,89 @@ async function dueDateEvents({ db, userId, appUrl, courses }: FeedContext): Prom
   })
 }
 
-/** Where each kind of event comes from; a new kind (bookings, stand sessions) is one more entry here. */
-const EVENT_SOURCES: ((ctx: FeedContext) => Promise<FeedEvent[]>)[] = [dueDateEvents]
+/** A slot's span in the course's zone, in words: "Tuesday 2 March 2027, 13:00–13:30 (America/Denver)". */
+export function localSpan(start: Date, end: Date, timeZone: string): string {
+  // Put together from parts: how a locale punctuates a full date differs between ICU versions.
+  const parts = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    weekday: 'long',
+    day: 'numeric',
+    month: 'long',
+    year: 'numeric',
+  }).formatToParts(start)
+  const part = (type: Intl.DateTimeFormatPartTypes) => parts.find((p) => p.type === type)?.value ?? ''
+  const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
+  return `${part('weekday')} ${part('day')} ${part('month')} ${part('year')}, ${time.format(start)}–${time.format(end)} (${timeZone})`
+}
+
+const minutesAfter = (start: Date, minutes: number) => new Date(start.getTime() + minutes * 60_000)
+const place = (stand: string, location: string) => (location ? `${stand}, ${location}` : stand)
+
+/** A student's own lab group's active bookings (cancelled or moved ones and cancelled slots drop out). */
+async function bookingEvents({ db, userId, appUrl, courses }: FeedContext): Promise<FeedEvent[]> {
+  const mine = courses.filter((c) => c.role === 'student' && c.labGroupId !== null)
+  const byCourse = new Map(mine.map((c) => [c.courseId, c]))
+  const rows = await listGroupBookings(
+    db,
+    mine.map((c) => c.labGroupId!),
+  )
+  const base = appUrl.replace(/\/$/, '')
+  return rows.flatMap((b) => {
+    const course = byCourse.get(b.courseId)
+    if (!course) return []
+    const end = minutesAfter(b.startsAt, b.minutes)
+    return [
+      {
+        uid: `stand-booking-${b.bookingId}-${userId}@isentrope`,
+        summary: `${course.code}: ${b.sheetTitle} at ${b.standName}`,
+        start: b.startsAt,
+        end,
+        location: place(b.standName, b.location),
+        description:
+          `${b.groupName} has ${place(b.standName, b.location)} booked for ${b.sheetTitle}, ` +
+          `${localSpan(b.startsAt, end, course.timeZone)}.`,
+        url: `${base}/c/${course.slug}/stand-time`,
+      },
+    ]
+  })
+}
+
+/** For staff: every slot that is not cancelled of their section (a TA) or course (an instructor), with who holds it. */
+async function sessionEvents({ db, userId, appUrl, courses }: FeedContext): Promise<FeedEvent[]> {
+  const scopes = courses.flatMap((c): SlotScope[] =>
+    c.role === 'instructor'
+      ? [{ courseId: c.courseId, sectionId: null }]
+      : c.role === 'ta' && c.sectionId !== null
+        ? [{ courseId: c.courseId, sectionId: c.sectionId }]
+        : [],
+  )
+  const byCourse = new Map(courses.map((c) => [c.courseId, c]))
+  const rows = await listSlotSessions(db, scopes)
+  const base = appUrl.replace(/\/$/, '')
+  return rows.flatMap((s) => {
+    const course = byCourse.get(s.courseId)
+    if (!course) return []
+    const end = minutesAfter(s.startsAt, s.minutes)
+    const who = s.groupName ? `${s.groupName} (${s.sheetTitle})` : 'not booked'
+    return [
+      {
+        uid: `stand-slot-${s.slotId}-${userId}@isentrope`,
+        summary: `${course.code} ${s.sectionName}: ${s.standName}, ${who}`,
+        start: s.startsAt,
+        end,
+        location: place(s.standName, s.location),
+        description:
+          `Stand session of ${s.sectionName} at ${place(s.standName, s.location)}, ` +
+          `${localSpan(s.startsAt, end, course.timeZone)}. ` +
+          (s.groupName ? `Booked by ${s.groupName} for ${s.sheetTitle}.` : 'No group has booked it yet.'),
+        url: s.bookingId ? `${base}/c/${course.slug}/stand-time/${s.bookingId}` : `${base}/c/${course.slug}/stand-time`,
+      },
+    ]
+  })
+}
+
+/** Where each kind of event comes from; a new kind is one more entry here. */
+const EVENT_SOURCES: ((ctx: FeedContext) => Promise<FeedEvent[]>)[] = [dueDateEvents, bookingEvents, sessionEvents]
 
 /**
  * The feed of the person whose token this is, as iCalendar text. An unknown or malformed token gets
@@ -110,15 +196,16 @@ export async function calendarFeed(db: Database, token: string, appUrl: string):
   const cal = ical({ name: 'Isentrope', prodId: { company: 'Isentrope', product: 'course-calendar', language: 'EN' } })
   for (const e of events) {
     // A due date is a moment, not a span: DTSTART alone with a date-time value is an event that ends
-    // when it starts (RFC 5545 §3.6.1), which calendar apps show as a point at that time. It is
-    // written as a UTC instant (…Z): that is exact in every app, whereas a TZID would need a
-    // VTIMEZONE block for each zone, which none of our packages writes. The course's own zone and
-    // local time are given in the description.
+    // when it starts (RFC 5545 §3.6.1), which calendar apps show as a point at that time. A stand
+    // slot is a span with DTEND. Both are written as UTC instants (…Z): that is exact in every app,
+    // whereas a TZID would need a VTIMEZONE block for each zone, which none of our packages writes.
+    // The course's own zone and local time are given in the description.
     cal.createEvent({
       id: e.uid,
       summary: e.summary,
       start: e.start,
-      end: null,
+      end: e.end ?? null,
+      ...(e.location ? { location: e.location } : {}),
       description: e.description,
       url: e.url,
     })

@@ -314,6 +314,12 @@ const CASES: Case[] = [
     call: (c) => c.agent.get(`/api/calendar/${'A'.repeat(43)}.ics`),
     expect: { anon: 404, outsider: 404, student: 404, ta: 404, instructor: 404, admin: 404 },
   },
+  // The course home's week at the stand: every member reads it (each sees only their own share).
+  {
+    route: 'GET /api/courses/:courseId/week',
+    call: (c, fx) => c.agent.get(`${C(fx)}/week?start=2027-03-01`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
   {
     route: 'GET /api/courses/:courseId/extensions',
     call: (c, fx) => c.agent.get(`${C(fx)}/extensions`),

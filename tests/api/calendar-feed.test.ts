@@ -3,11 +3,13 @@ import { eq } from 'drizzle-orm'
 import ICAL from 'ical.js'
 import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { calendarTokens, courses, enrollments } from '../../server/db/schema'
+import { and } from 'drizzle-orm'
+import { calendarTokens, courses, enrollments, labGroups } from '../../server/db/schema'
 import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, signedInAs, seedFixture, startTestApp } from '../helpers/app'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
+import { cancelBooking, insertBooking, insertLabGroup, insertSlot, insertStand } from '../helpers/stand-rows'
 
 let ctx: TestContext
 let fx: Fixture
@@ -29,6 +31,9 @@ interface ParsedEvent {
   uid: string
   summary: string
   start: number
+  /** Null for an event without DTEND (a moment). */
+  end: number | null
+  location: string | null
   url: string | null
   description: string
 }
@@ -41,6 +46,8 @@ function parseFeed(text: string): ParsedEvent[] {
       uid: e.uid,
       summary: e.summary,
       start: e.startDate.toJSDate().getTime(),
+      end: v.hasProperty('dtend') ? e.endDate.toJSDate().getTime() : null,
+      location: e.location ?? null,
       url: (v.getFirstPropertyValue('url') as string | null) ?? null,
       description: e.description,
     }
@@ -229,5 +236,110 @@ describe('calendar feed authorization', () => {
     expect(del.body.error.code).toBe('csrf_failed')
     // Neither refused call changed anything: the address still works.
     await fetchFeed(url).expect(200)
+  })
+})
+
+describe('stand sessions in the feed', () => {
+  // A fixture of its own, so the due-date checks above keep their exact lists.
+  let fs: Fixture
+  let code = ''
+  const at = (iso: string) => new Date(iso)
+  const slot: Record<'a1' | 'a2' | 'a3' | 'aCancelled' | 'b1', number> = { a1: 0, a2: 0, a3: 0, aCancelled: 0, b1: 0 }
+  let heldA1 = 0
+  let sheetTitle = ''
+
+  const standEvents = (events: ParsedEvent[]) => events.filter((e) => e.uid.startsWith('stand-'))
+  async function feedTextOf(email: string): Promise<string> {
+    const c = await signedInAs(ctx, email)
+    return (await fetchFeed(await makeFeed(c)).expect(200)).text
+  }
+  const feedOf = async (email: string) => parseFeed(await feedTextOf(email))
+
+  beforeAll(async () => {
+    fs = await seedFixture(ctx)
+    const db = ctx.handle.db
+    await db.update(courses).set({ timeZone: 'America/Denver' }).where(eq(courses.id, fs.courseId))
+    const [row] = await db.select({ code: courses.code }).from(courses).where(eq(courses.id, fs.courseId))
+    code = row!.code
+    const inst = await signedInAs(ctx, fs.instructor.email)
+    sheetTitle = 'Cold flow on the stand'
+    const sheet = await createModuleAs(inst, fs.courseId, moduleSource(sheetTitle))
+    await publishAs(inst, fs.courseId, sheet)
+    const [g1] = await db
+      .select({ id: labGroups.id })
+      .from(labGroups)
+      .where(and(eq(labGroups.courseId, fs.courseId), eq(labGroups.name, 'G1')))
+    // The second student's group, in section B.
+    const g2 = await insertLabGroup(db, fs.courseId, fs.sectionB, 'G2')
+    await db
+      .update(enrollments)
+      .set({ labGroupId: g2 })
+      .where(and(eq(enrollments.userId, fs.student2.id), eq(enrollments.courseId, fs.courseId)))
+    const standId = await insertStand(db, fs.courseId, 'Stand Q', 'Bay 9')
+    const A = { standId, sectionId: fs.sectionA }
+    // 13:00 MST on Tuesday 2 March 2027, then every half hour.
+    slot.a1 = await insertSlot(db, { ...A, startsAt: at('2027-03-02T20:00:00Z') })
+    slot.a2 = await insertSlot(db, { ...A, startsAt: at('2027-03-02T20:30:00Z') })
+    slot.a3 = await insertSlot(db, { ...A, startsAt: at('2027-03-02T21:00:00Z') })
+    slot.aCancelled = await insertSlot(db, { ...A, startsAt: at('2027-03-02T21:30:00Z'), cancelled: true })
+    slot.b1 = await insertSlot(db, { standId, sectionId: fs.sectionB, startsAt: at('2027-03-04T16:00:00Z') })
+    const book = (slotId: number, labGroupId: number) => insertBooking(db, { slotId, labGroupId, moduleId: sheet.id })
+    heldA1 = await book(slot.a1, g1!.id)
+    await cancelBooking(db, await book(slot.a2, g1!.id))
+    await book(slot.aCancelled, g1!.id)
+    await book(slot.b1, g2)
+  })
+
+  it('gives a student their own group’s active bookings as spans with stand, place and sheet', async () => {
+    const text = await feedTextOf(fs.student.email)
+    const mine = standEvents(parseFeed(text))
+    expect(mine).toHaveLength(1)
+    // Written as UTC instants, not floating local times.
+    expect(text).toContain('DTSTART:20270302T200000Z')
+    expect(text).toContain('DTEND:20270302T203000Z')
+    const [e] = mine
+    expect(e!.uid).toBe(`stand-booking-${heldA1}-${fs.student.id}@isentrope`)
+    expect(e!.summary).toBe(`${code}: ${sheetTitle} at Stand Q`)
+    expect(e!.location).toBe('Stand Q, Bay 9')
+    expect(e!.start).toBe(Date.parse('2027-03-02T20:00:00Z'))
+    expect(e!.end).toBe(Date.parse('2027-03-02T20:30:00Z'))
+    expect(e!.description).toContain('13:00–13:30')
+    expect(e!.description).toContain('America/Denver')
+    expect(e!.url).toBe(`${ctx.config.APP_URL.replace(/\/$/, '')}/c/${fs.courseSlug}/stand-time`)
+
+    // The other section's student sees only their own group's booking.
+    const theirs = standEvents(await feedOf(fs.student2.email))
+    expect(theirs.map((t) => t.start)).toEqual([Date.parse('2027-03-04T16:00:00Z')])
+  })
+
+  it('gives a TA one event per open slot of their section, with who booked it', async () => {
+    const events = standEvents(await feedOf(fs.ta.email))
+    expect(events.map((e) => e.uid).sort()).toEqual(
+      [slot.a1, slot.a2, slot.a3].map((id) => `stand-slot-${id}-${fs.ta.id}@isentrope`).sort(),
+    )
+    const a1 = events.find((e) => e.uid.startsWith(`stand-slot-${slot.a1}-`))!
+    expect(a1.summary).toBe(`${code} A: Stand Q, G1 (${sheetTitle})`)
+    expect(a1.end! - a1.start).toBe(30 * 60_000)
+    // The cancelled booking frees its slot; the cancelled slot is gone.
+    const a2 = events.find((e) => e.uid.startsWith(`stand-slot-${slot.a2}-`))!
+    expect(a2.summary).toBe(`${code} A: Stand Q, not booked`)
+  })
+
+  it('gives the instructor every open slot of the course', async () => {
+    const events = standEvents(await feedOf(fs.instructor.email))
+    expect(events.map((e) => e.uid).sort()).toEqual(
+      [slot.a1, slot.a2, slot.a3, slot.b1].map((id) => `stand-slot-${id}-${fs.instructor.id}@isentrope`).sort(),
+    )
+    const b1 = events.find((e) => e.uid.startsWith(`stand-slot-${slot.b1}-`))!
+    expect(b1.summary).toBe(`${code} B: Stand Q, G2 (${sheetTitle})`)
+  })
+
+  it('drops a booking once it is cancelled, and the TA’s event for the slot keeps its UID', async () => {
+    const before = standEvents(await feedOf(fs.ta.email)).find((e) => e.uid.startsWith(`stand-slot-${slot.a1}-`))!
+    await cancelBooking(ctx.handle.db, heldA1)
+    expect(standEvents(await feedOf(fs.student.email))).toEqual([])
+    const after = standEvents(await feedOf(fs.ta.email)).find((e) => e.uid.startsWith(`stand-slot-${slot.a1}-`))!
+    expect(after.uid).toBe(before.uid)
+    expect(after.summary).toBe(`${code} A: Stand Q, not booked`)
   })
 })

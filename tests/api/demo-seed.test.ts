@@ -1,4 +1,4 @@
-import { and, eq } from 'drizzle-orm'
+import { and, eq, gt, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_WRONG_RUNS } from '../../scripts/demo/demo-runs'
 import { HOT_FIRE_STAND, HOT_FIRE_WRONG_RUNS } from '../../scripts/demo/hot-fire-runs'
@@ -10,9 +10,16 @@ import {
   DEMO_STUDENT,
 } from '../../scripts/demo/scenario'
 import { seedDemo } from '../../scripts/demo/seed-demo'
+import { DEMO_ABORTED_RUN, DEMO_STANDS } from '../../scripts/demo/stand-sessions'
 import {
+  bookings,
   courses,
   labGroups,
+  runEntries,
+  runRecords,
+  sections,
+  standSlots,
+  stands,
   moduleVersions,
   modules,
   submissionChecks,
@@ -167,5 +174,91 @@ describe('the demo seed', () => {
       for (const f of wrong.flags) expect(codes, `${wrong.group} ${f}`).toContain(f)
       expect(row.review, row.group).not.toBe('none')
     }
+  })
+
+  it('has two stands, a term of 30-minute slots for both sections, and the signed-off runs behind the hand-ins', async () => {
+    const db = ctx.handle.db
+    const standRows = await db
+      .select({ id: stands.id, name: stands.name })
+      .from(stands)
+      .where(eq(stands.courseId, courseId))
+    expect(standRows.map((r) => r.name).sort()).toEqual(DEMO_STANDS.map((s) => s.name).sort())
+    const slots = await db
+      .select({ id: standSlots.id, section: sections.name, minutes: standSlots.minutes })
+      .from(standSlots)
+      .innerJoin(sections, eq(sections.id, standSlots.sectionId))
+      .where(eq(sections.courseId, courseId))
+    expect(new Set(slots.map((s) => s.section))).toEqual(new Set(['Section A', 'Section B']))
+    expect(slots.every((s) => s.minutes === 30)).toBe(true)
+    // A term: more than ten weeks of six slots on two stands per section.
+    expect(slots.length).toBeGreaterThanOrEqual(2 * 10 * 6 * 2)
+    // A second seed adds no second term of slots.
+    await seedDemo(db)
+    const again = await db
+      .select({ id: standSlots.id })
+      .from(standSlots)
+      .innerJoin(stands, eq(stands.id, standSlots.standId))
+      .where(eq(stands.courseId, courseId))
+    expect(again).toHaveLength(slots.length)
+
+    // Every seeded hand-in of the two stand sheets points at a signed-off, completed run of its own group.
+    const handIns = await db
+      .select({
+        group: submissions.labGroupId,
+        slug: modules.slug,
+        run: submissions.runRecordId,
+        runGroup: bookings.labGroupId,
+        outcome: runRecords.outcome,
+        signedOffAt: runRecords.signedOffAt,
+        checklist: runRecords.checklist,
+      })
+      .from(submissions)
+      .innerJoin(modules, eq(modules.id, submissions.moduleId))
+      .innerJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+      .leftJoin(runRecords, eq(runRecords.id, submissions.runRecordId))
+      .leftJoin(bookings, eq(bookings.id, runRecords.bookingId))
+      .where(and(eq(submissions.courseId, courseId), inArray(modules.slug, ['cold-flow-characterisation', 'hot-fire'])))
+    const seeded = handIns.filter((h) => h.run !== null)
+    expect(seeded.length).toBeGreaterThanOrEqual(14)
+    for (const h of seeded) {
+      expect(h.runGroup, h.slug).toBe(h.group)
+      expect(h.outcome, h.slug).toBe('completed')
+      expect(h.signedOffAt, h.slug).not.toBeNull()
+      expect(h.checklist!.length, h.slug).toBeGreaterThan(0)
+      // Every item of the run's checklist was ticked before the sign-off.
+      const ticks = await db
+        .select({ item: runEntries.itemKey, kind: runEntries.kind })
+        .from(runEntries)
+        .where(eq(runEntries.runId, h.run!))
+      expect(new Set(ticks.filter((t) => t.kind === 'tick').map((t) => t.item))).toEqual(
+        new Set(h.checklist!.map((i) => i.key)),
+      )
+      expect(ticks.filter((t) => t.kind === 'sign-off')).toHaveLength(1)
+    }
+
+    // One run was aborted, with its reason.
+    const aborted = await db
+      .select({ reason: runRecords.outcomeReason, group: labGroups.name })
+      .from(runRecords)
+      .innerJoin(bookings, eq(bookings.id, runRecords.bookingId))
+      .innerJoin(labGroups, eq(labGroups.id, bookings.labGroupId))
+      .where(and(eq(runRecords.courseId, courseId), eq(runRecords.outcome, 'aborted')))
+    expect(aborted).toEqual([{ reason: DEMO_ABORTED_RUN.reason, group: `Group ${DEMO_ABORTED_RUN.group}` }])
+
+    // And the group without seeded hand-ins has bookings still to come.
+    const upcoming = await db
+      .select({ id: bookings.id })
+      .from(bookings)
+      .innerJoin(standSlots, eq(standSlots.id, bookings.slotId))
+      .innerJoin(labGroups, eq(labGroups.id, bookings.labGroupId))
+      .where(
+        and(
+          eq(labGroups.courseId, courseId),
+          eq(labGroups.name, `Group ${DEMO_GROUP_WITHOUT_HAND_IN}`),
+          eq(bookings.status, 'active'),
+          gt(standSlots.startsAt, new Date()),
+        ),
+      )
+    expect(upcoming.length).toBeGreaterThanOrEqual(1)
   })
 })

@@ -109,6 +109,24 @@ describe('the demo modules in content/', () => {
   })
 })
 
+describe('the stand sheets in content/', () => {
+  it.each(['02-cold-flow-characterisation.md', '03-hot-fire.md'])(
+    '%s declares stand runs and a checklist whose hold points include the leak check, the barrier and hearing protection',
+    (file) => {
+      const { frontMatter, body } = load(file)
+      expect(frontMatter.standRuns).toBeGreaterThanOrEqual(1)
+      const items = new Map((frontMatter.checklist ?? []).map((i) => [i.key, i]))
+      expect(items.get('leak-check')).toMatchObject({ staff: true, hold: true })
+      expect(items.get('barrier')).toMatchObject({ staff: true, hold: true })
+      expect(items.get('hearing-protection')).toMatchObject({ hold: true })
+      expect(items.get('receiver-vented')).toMatchObject({ hold: false })
+      // The module text says what the checklist is not, and defers to the institution.
+      expect(body).toContain('supports and does not replace the institution')
+      for (const phrase of [/local codes/i, /safety office/, /licensed practice/]) expect(body).toMatch(phrase)
+    },
+  )
+})
+
 // A hand-made cold-flow run whose results can be worked out on paper.
 // Nozzle: 4 mm throat, exit area 1.6875 × throat area, the area ratio of Mach 2 in air.
 // Log: 51 samples, t = 0, 0.2 … 10 s. The load cell reads a zero of 0.5 N at rest (samples 1–5 and
