@@ -127,7 +127,7 @@ async function runView(db: Database, run: RunRow, b: BookingRow, scope: Scope): 
       tickStudentItems: open,
       tickStaffItems: open && scope === 'staff',
       signOff: open && scope === 'staff',
-      write: true,
+      correct: scope === 'staff',
     },
   }
 }

@@ -161,7 +161,7 @@ export interface RunView {
   /** Who may be marked present: the group's members and the course's staff. */
   candidates: RunPersonView[]
   /** What the caller may do. */
-  can: { tickStudentItems: boolean; tickStaffItems: boolean; signOff: boolean; write: boolean }
+  can: { tickStudentItems: boolean; tickStaffItems: boolean; signOff: boolean; correct: boolean }
 }
 
 /** The 404 answer's details for a booking whose run is not opened yet. */
