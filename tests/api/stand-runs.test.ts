@@ -46,7 +46,11 @@ const c: Record<'ta' | 'taB' | 'student' | 'studentG2' | 'instructor', Client> =
 const C = () => `/api/courses/${fx.courseId}`
 
 /** A booking inserted as the booking pages would make it (that part is built elsewhere). */
-async function makeBooking(labGroupId: number, status: 'active' | 'cancelled' = 'active'): Promise<number> {
+async function makeBooking(
+  labGroupId: number,
+  status: 'active' | 'cancelled' = 'active',
+  moduleId = sheet.id,
+): Promise<number> {
   const db = ctx.handle.db
   slotSeq += 1
   const [slot] = await db
@@ -58,10 +62,7 @@ async function makeBooking(labGroupId: number, status: 'active' | 'cancelled' = 
       minutes: 30,
     })
     .$returningId()
-  const [b] = await db
-    .insert(bookings)
-    .values({ slotId: slot!.id, labGroupId, moduleId: sheet.id, status })
-    .$returningId()
+  const [b] = await db.insert(bookings).values({ slotId: slot!.id, labGroupId, moduleId, status }).$returningId()
   return b!.id
 }
 
@@ -182,6 +183,32 @@ describe('opening a run', () => {
     const read = await c.student.agent.get(`${C()}/bookings/${bookingId}/run`)
     expect(read.status).toBe(200)
     expect(read.body.id).toBe(res.body.id)
+  })
+
+  it('keeps the checklist a run was opened with when the sheet is issued again with other items', async () => {
+    const source = (items: string) =>
+      `---\ntitle: Checklist versions\nstandRuns: 2\nchecklist:\n${items}---\n\nInvented test sheet.\n`
+    const first = source('  - { key: first-item, text: The first wording, hold: true }\n')
+    const m = await createModuleAs(c.instructor, fx.courseId, first)
+    await publishAs(c.instructor, fx.courseId, m)
+    const before = await makeBooking(g1, 'active', m.id)
+    const opened = await post('ta', `${C()}/bookings/${before}/run`).expect(201)
+    const saved = await c.instructor.agent
+      .put(`${C()}/modules/${m.id}`)
+      .set('x-csrf-token', c.instructor.csrf)
+      .send({ source: source('  - { key: second-item, text: The second wording }\n'), baseVersionId: m.versionId })
+      .expect(200)
+    await publishAs(c.instructor, fx.courseId, { ...m, versionId: saved.body.current.id })
+    const kept = await c.ta.agent.get(`${C()}/bookings/${before}/run`).expect(200)
+    expect(kept.body.checklist.map((i: { key: string }) => i.key)).toEqual(['first-item'])
+    expect(kept.body.id).toBe(opened.body.id)
+    const after = await makeBooking(g1, 'active', m.id)
+    const fresh = await post('ta', `${C()}/bookings/${after}/run`).expect(201)
+    expect(fresh.body.checklist.map((i: { key: string }) => i.key)).toEqual(['second-item'])
+    // The old item cannot be ticked on the new run, and the new one not on the old run.
+    const wrong = await post('ta', `${C()}/runs/${kept.body.id}/entries`, { kind: 'tick', itemKey: 'second-item' })
+    expect(wrong.status).toBe(400)
+    expect(wrong.body.error.message).toContain('second-item')
   })
 
   it('refuses to open a run for a cancelled booking', async () => {
