@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { hashPassword } from '../../server/auth/password'
 import {
   bookings,
+  courses,
   enrollments,
   labGroups,
   runEntries,
@@ -508,5 +509,52 @@ describe('a hand-in that needs a signed-off run', () => {
       startedAt: '2027-03-02T14:05:00.000Z',
       signedOffBy: expect.stringContaining('ta'),
     })
+  })
+})
+
+describe('sign-off races and closed courses', () => {
+  it('two sign-offs at the same moment: exactly one is stored, the other gets 409', async () => {
+    const bookingId = await makeBooking(g1)
+    const runId = (await post('ta', `${C()}/bookings/${bookingId}/run`)).body.id as number
+    for (const itemKey of ['leak-check', 'barrier']) {
+      await post('ta', `${C()}/runs/${runId}/entries`, { kind: 'tick', itemKey }).expect(201)
+    }
+    const answers = await Promise.all([
+      post('ta', `${C()}/runs/${runId}/sign-off`, SIGN_OFF()),
+      post('instructor', `${C()}/runs/${runId}/sign-off`, { ...SIGN_OFF(), outcome: 'misfire', waitMinutes: 30 }),
+    ])
+    expect(answers.map((a) => a.status).sort()).toEqual([200, 409])
+    const winner = answers.find((a) => a.status === 200)!
+    const row = await runRow(runId)
+    expect(row.outcome).toBe(winner.body.signOff.outcome)
+    const signOffs = await ctx.handle.db
+      .select({ id: runEntries.id })
+      .from(runEntries)
+      .where(and(eq(runEntries.runId, runId), eq(runEntries.kind, 'sign-off')))
+    expect(signOffs).toHaveLength(1)
+  })
+
+  it('a closed course refuses every write to a run (409 course_closed) and still shows it to staff', async () => {
+    const bookingId = await makeBooking(g1)
+    const runId = (await post('ta', `${C()}/bookings/${bookingId}/run`)).body.id as number
+    const other = await makeBooking(g1)
+    await ctx.handle.db.update(courses).set({ closedAt: new Date() }).where(eq(courses.id, fx.courseId))
+    try {
+      const answers = [
+        await post('ta', `${C()}/runs/${runId}/entries`, { kind: 'tick', itemKey: 'goggles' }),
+        await post('ta', `${C()}/runs/${runId}/sign-off`, SIGN_OFF()),
+        await post('ta', `${C()}/bookings/${other}/run`),
+      ]
+      expect(answers.map((a) => [a.status, a.body.error.code])).toEqual([
+        [409, 'course_closed'],
+        [409, 'course_closed'],
+        [409, 'course_closed'],
+      ])
+      expect(await entryCount(runId)).toBe(0)
+      expect((await runRow(runId)).signedOffAt).toBeNull()
+      await c.ta.agent.get(`${C()}/bookings/${bookingId}/run`).expect(200)
+    } finally {
+      await ctx.handle.db.update(courses).set({ closedAt: null }).where(eq(courses.id, fx.courseId))
+    }
   })
 })
