@@ -36,6 +36,7 @@ import { reportRoutes } from './routes/reports'
 import { reviewRoutes } from './routes/review'
 import { rosterImportRoutes } from './routes/roster-import'
 import { standWeekRoutes } from './routes/stand-week'
+import { runRoutes } from './routes/runs'
 import { handInRoutes } from './routes/submissions'
 import { signInPolicy } from './services/sign-in-throttle'
 
@@ -215,6 +216,7 @@ export function createApp({
     handInRoutes(db, { uploadLimitMb: config.UPLOAD_LIMIT_MB, grading, onHandInStored: () => onHandInStored?.() }),
   )
   api.use('/courses/:courseId', reviewRoutes(db))
+  api.use('/courses/:courseId', runRoutes(db))
   api.use('/courses/:courseId', gradeRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   // Feedback reports; before the module router, so /modules/:moduleId/reports.zip is answered here.
   api.use('/courses/:courseId', reportRoutes(db))

@@ -38,6 +38,8 @@ export interface SubmissionRow {
   submittedAt: Date
   gradedAt: Date | null
   submittedBy: string
+  /** The signed-off stand run the hand-in was made against, if any. */
+  runRecordId: number | null
 }
 
 const cols = {
@@ -63,6 +65,7 @@ const cols = {
   submittedAt: submissions.submittedAt,
   gradedAt: submissions.gradedAt,
   submittedBy: users.displayName,
+  runRecordId: submissions.runRecordId,
 }
 
 /** Whose attempts count together: the lab group's when the module takes group hand-ins. */
@@ -107,6 +110,7 @@ export async function insertSubmission(
     isLate: boolean
     daysLate: number
     latePenalty: number
+    runRecordId?: number | null
   },
 ): Promise<number> {
   const [row] = await tx

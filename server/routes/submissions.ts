@@ -1,5 +1,6 @@
 import { Router } from 'express'
 import { ModuleParamsSchema } from '../../shared/schemas/modules'
+import { HandInRunFieldSchema } from '../../shared/schemas/runs'
 import {
   SubmissionFileParamsSchema,
   SubmissionParamsSchema,
@@ -23,7 +24,8 @@ interface Opts {
 
 /**
  * Who may call:
- * - POST /api/courses/:courseId/modules/:moduleId/submissions        student of the course (multipart hand-in)
+ * - POST /api/courses/:courseId/modules/:moduleId/submissions        student of the course (multipart hand-in;
+ *   `runRecordId`: the group's signed-off stand run, required when the sheet says requiresSignedRun)
  * - GET  /api/courses/:courseId/modules/:moduleId/submissions/mine   enrolled (a student's own or lab group's attempts)
  * - GET  /api/courses/:courseId/submissions/:submissionId             its submitter, their lab group, or course staff (others 404)
  * - GET  /api/courses/:courseId/submissions/:submissionId/files/:fileId   same as above (the raw upload)
@@ -56,13 +58,17 @@ export function handInRoutes(db: Database, opts: Opts): Router {
         })
       }
       const payload = SubmissionPayloadSchema.parse(raw)
+      const { runRecordId } = HandInRunFieldSchema.parse({ runRecordId: body.runRecordId || undefined })
       const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({
         field: f.fieldname,
         filename: f.originalname,
         contentType: f.mimetype,
         bytes: f.buffer,
       }))
-      const detail = await submitHandIn(db, enrollmentOf(res), moduleId, payload, files, { grading: opts.grading })
+      const detail = await submitHandIn(db, enrollmentOf(res), moduleId, payload, files, {
+        grading: opts.grading,
+        runRecordId,
+      })
       // Stored: when this request could not grade it, the background grader does.
       if (isAwaitingGrade(detail.status)) opts.onHandInStored()
       res.status(201).json(detail)

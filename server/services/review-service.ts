@@ -27,6 +27,7 @@ import {
 } from '../repositories/review'
 import { listSectionOptions } from '../repositories/grades'
 import { findSubmission } from '../repositories/submissions'
+import { linkedRun } from './run-service'
 import { RECHECK_REASON } from '../../shared/schemas/grades'
 
 /**
@@ -179,13 +180,18 @@ export async function setReviewStatus(
 /** What staff see beside the submission detail: the audit, the comments and the revision to edit. */
 export async function reviewExtras(db: Database, e: CourseEnrollment, submissionId: number): Promise<ReviewExtras> {
   const s = await inScope(db, e, submissionId)
-  const [changes, comments] = await Promise.all([listGradeChanges(db, submissionId), listComments(db, submissionId)])
+  const [changes, comments, run] = await Promise.all([
+    listGradeChanges(db, submissionId),
+    listComments(db, submissionId),
+    linkedRun(db, s.runRecordId),
+  ])
   return {
     revision: s.revision,
     reviewStatus: s.reviewStatus,
     scoreOverride: s.scoreOverride,
     gradeChanges: changes.map((c) => ({ ...c, at: c.at.toISOString() })),
     comments: comments.map((c) => ({ id: c.id, author: c.author, at: c.at.toISOString(), html: renderModule(c.body) })),
+    run,
   }
 }
 

@@ -41,6 +41,7 @@ import { dueFor } from '../../shared/grading/due'
 import { findUserById } from '../repositories/users'
 import { handInReceivedMail, pageLinks } from '../mail/templates'
 import { commentsFor } from './review-service'
+import { runForHandIn } from './run-service'
 import { handInRefusal, validateHandIn } from './hand-in-validation'
 import type { UploadedTable } from './hand-in-validation'
 import { gradeNow, gradingInputOf } from './grading-service'
@@ -159,7 +160,7 @@ export async function submitHandIn(
   moduleId: number,
   payload: SubmissionPayload,
   uploads: UploadedTable[],
-  opts: { now?: Date; grading?: GradingContext } = {},
+  opts: { now?: Date; grading?: GradingContext; runRecordId?: number } = {},
 ): Promise<SubmissionDetail> {
   if (e.role !== 'student')
     throw forbidden('Only students hand in work; staff can see submissions in the review queue.')
@@ -171,6 +172,7 @@ export async function submitHandIn(
   const owner = ownerOf(e, p.fm)
   // The submitter's own extension, also for a group hand-in (each member's extension is their own).
   const late = lateness(p, now, course.timeZone, await findExtensionDue(db, p.moduleId, e.userId))
+  const runRecordId = await runForHandIn(db, e, p.moduleId, p.fm.requiresSignedRun === true, opts.runRecordId)
 
   const v = validateHandIn(p.fm, payload, uploads)
   const refusal = handInRefusal(v)
@@ -195,6 +197,7 @@ export async function submitHandIn(
         isLate: late.isLate,
         daysLate: late.daysLate,
         latePenalty: late.penalty,
+        runRecordId,
       })
       for (const f of v.files) {
         await insertFile(tx, {

@@ -63,6 +63,14 @@ export const ERROR_CODES = [
   'points_out_of_range',
   'recheck_open',
   'recheck_answered',
+  'run_not_opened',
+  'run_exists',
+  'booking_not_active',
+  'unknown_checklist_item',
+  'run_signed_off',
+  'hold_points_open',
+  'not_at_run',
+  'signed_run_required',
 ] as const
 export type ErrorCode = (typeof ERROR_CODES)[number]
 

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import type { LinkedRunView } from './runs'
 
 /**
  * Where a hand-in stands with the staff: 'none' until a flag or a person opens it, then 'open',
@@ -123,4 +124,6 @@ export interface ReviewExtras {
   scoreOverride: number | null
   gradeChanges: GradeChangeView[]
   comments: CommentView[]
+  /** The signed-off stand run the hand-in was made against (null: none). */
+  run: LinkedRunView | null
 }

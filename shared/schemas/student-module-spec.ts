@@ -67,6 +67,8 @@ export const StudentModuleSpecSchema = z.object({
   showExpected: z.boolean().default(false),
   groupSubmission: z.boolean().default(false),
   assignment: StudentAssignmentSchema.optional(),
+  /** A hand-in needs a signed-off stand run of the student's lab group (the form says so and offers the runs). */
+  requiresSignedRun: z.boolean().default(false),
 })
 
 export type StudentModuleSpec = z.output<typeof StudentModuleSpecSchema>

@@ -39,9 +39,12 @@ export function submitHandIn(
   files: readonly HandInFile[],
   payload: SubmissionPayload,
   onProgress: (p: HandInProgress) => void,
+  runRecordId: number | null = null,
 ): Promise<SubmissionDetail> {
   const form = new FormData()
   form.append('payload', JSON.stringify(payload))
+  // The signed-off stand run the hand-in is made against (sheets that require one).
+  if (runRecordId !== null) form.append('runRecordId', String(runRecordId))
   for (const f of files) form.append(`table:${f.tableKey}`, f.file, f.filename)
 
   return new Promise((resolve, reject) => {

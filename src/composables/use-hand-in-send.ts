@@ -20,24 +20,31 @@ export function useHandInSend(courseId: Ref<number>, moduleId: Ref<number>) {
   /** Upload progress 0–100, or null while the size is not known yet. */
   const percent = ref<number | null>(null)
 
-  const action = useAction((files: HandInFile[], payload: SubmissionPayload) => {
+  const action = useAction((files: HandInFile[], payload: SubmissionPayload, runRecordId: number | null) => {
     phase.value = 'uploading'
     percent.value = null
-    return submitHandIn(courseId.value, moduleId.value, files, payload, (p) => {
-      if (p.phase === 'grading') {
-        percent.value = 100
-        phase.value = 'grading'
-      } else if (p.total > 0) {
-        percent.value = Math.min(100, Math.round((100 * p.loaded) / p.total))
-      }
-    })
+    return submitHandIn(
+      courseId.value,
+      moduleId.value,
+      files,
+      payload,
+      (p) => {
+        if (p.phase === 'grading') {
+          percent.value = 100
+          phase.value = 'grading'
+        } else if (p.total > 0) {
+          percent.value = Math.min(100, Math.round((100 * p.loaded) / p.total))
+        }
+      },
+      runRecordId,
+    )
   })
 
   const state = computed<SendState>(() => (action.busy.value ? phase.value : action.error.value ? 'error' : 'idle'))
 
   /** Sends the hand-in; the graded submission, or null when it failed (the reason is in `error`). */
-  async function send(files: HandInFile[], payload: SubmissionPayload) {
-    return (await action.run(files, payload)) ?? null
+  async function send(files: HandInFile[], payload: SubmissionPayload, runRecordId: number | null = null) {
+    return (await action.run(files, payload, runRecordId)) ?? null
   }
 
   return { state, percent, error: action.error, send }

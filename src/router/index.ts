@@ -129,6 +129,13 @@ const router = createRouter({
       meta: { title: 'Review' },
     },
     {
+      path: '/c/:course/stand-time/:bookingId(\\d+)',
+      name: 'stand-run',
+      component: () => import('@/views/StandRunView.vue'),
+      props: (r) => ({ courseId: courseIdOf(r), bookingId: Number(r.params.bookingId) }),
+      meta: { title: 'Run at the stand' },
+    },
+    {
       path: '/c/:course/sheets/:sheet',
       name: 'sheet',
       component: () => import('@/views/ModuleReadView.vue'),

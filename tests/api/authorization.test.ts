@@ -5,13 +5,17 @@ import type { Client, Fixture, TestContext } from '../helpers/app'
 import { anonymous, seedFixture, signedInAs, startTestApp, uniq } from '../helpers/app'
 import { and, eq } from 'drizzle-orm'
 import {
+  bookings,
   courses,
   dueExtensions,
   enrollments,
   labGroups,
   modules,
   recheckRequests,
+  runRecords,
   sections,
+  standSlots,
+  stands,
   users,
 } from '../../server/db/schema'
 import type { CreatedModule } from '../helpers/modules'
@@ -625,7 +629,80 @@ const CASES: Case[] = [
         .send({ ...newCourse(), startDate: '2027-08-30', shiftWeeks: 27 }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
   },
+  // Runs at the stand, on bookings of the fixture's group G1 in section A (made by standBooking).
+  {
+    route: 'GET /api/courses/:courseId/bookings/:bookingId/run',
+    call: async (c, fx) => c.agent.get(`${C(fx)}/bookings/${(await standRun(fx)).bookingId}/run`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/bookings/:bookingId/run',
+    call: async (c, fx) => c.agent.post(`${C(fx)}/bookings/${await standBooking(fx)}/run`).set('x-csrf-token', c.csrf),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 201, instructor: 201, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/runs/:runId/entries',
+    call: async (c, fx) =>
+      c.agent
+        .post(`${C(fx)}/runs/${(await standRun(fx)).runId}/entries`)
+        .set('x-csrf-token', c.csrf)
+        .send({ kind: 'note', text: 'Matrix note.' }),
+    expect: { anon: 401, outsider: 404, student: 201, ta: 201, instructor: 201, admin: 404 },
+  },
+  {
+    route: 'POST /api/courses/:courseId/runs/:runId/sign-off',
+    call: async (c, fx) =>
+      c.agent
+        .post(`${C(fx)}/runs/${(await standRun(fx, true)).runId}/sign-off`)
+        .set('x-csrf-token', c.csrf)
+        .send({
+          outcome: 'completed',
+          startedAt: '2027-03-02T14:00:00Z',
+          endedAt: '2027-03-02T14:20:00Z',
+          people: [fx.student.id],
+        }),
+    expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
+    route: 'GET /api/courses/:courseId/modules/:moduleId/signed-runs',
+    call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/signed-runs`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
 ]
+
+let standSeq = 0
+/** A fresh active booking of group G1 on a stand slot of section A, inserted as the booking pages would. */
+async function standBooking(fx: Fixture): Promise<number> {
+  const db = ctx.handle.db
+  standSeq += 1
+  const [stand] = await db
+    .insert(stands)
+    .values({ courseId: fx.courseId, name: `Matrix stand ${standSeq}` })
+    .$returningId()
+  const [slot] = await db
+    .insert(standSlots)
+    .values({ standId: stand!.id, sectionId: fx.sectionA, startsAt: new Date('2027-03-02T14:00:00Z'), minutes: 30 })
+    .$returningId()
+  const [b] = await db
+    .insert(bookings)
+    .values({ slotId: slot!.id, labGroupId: await groupG1(fx), moduleId: pub() })
+    .$returningId()
+  return b!.id
+}
+
+/** An open run (checklist without hold points) on a booking of G1; a fresh one when `fresh` (for one sign-off each). */
+let sharedRun: { bookingId: number; runId: number } | null = null
+async function standRun(fx: Fixture, fresh = false): Promise<{ bookingId: number; runId: number }> {
+  if (sharedRun && !fresh) return sharedRun
+  const bookingId = await standBooking(fx)
+  const [r] = await ctx.handle.db
+    .insert(runRecords)
+    .values({ courseId: fx.courseId, bookingId, moduleVersionId: mods.published!.versionId, checklist: [] })
+    .$returningId()
+  const made = { bookingId, runId: r!.id }
+  if (!fresh) sharedRun = made
+  return made
+}
 
 /** The revision the caller would have on screen (0 when they may not see it). */
 async function revisionSeenBy(c: Client, fx: Fixture): Promise<number> {
