@@ -35,6 +35,7 @@ import { moduleRoutes } from './routes/modules'
 import { reportRoutes } from './routes/reports'
 import { reviewRoutes } from './routes/review'
 import { rosterImportRoutes } from './routes/roster-import'
+import { standRoutes } from './routes/stands'
 import { handInRoutes } from './routes/submissions'
 import { signInPolicy } from './services/sign-in-throttle'
 
@@ -224,6 +225,7 @@ export function createApp({
   api.use('/courses/:courseId', courseAdminRoutes(db))
   api.use('/courses/:courseId', courseArchiveRoutes(db))
   api.use('/courses/:courseId', courseRolloverRoutes(db))
+  api.use('/courses/:courseId', standRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
   api.use(

@@ -63,6 +63,18 @@ export const ERROR_CODES = [
   'points_out_of_range',
   'recheck_open',
   'recheck_answered',
+  'stand_exists',
+  'slot_overlap',
+  'slot_in_past',
+  'slot_taken',
+  'slot_cancelled',
+  'booking_cut_off',
+  'wrong_section',
+  'sheet_not_on_stand',
+  'stand_runs_used',
+  'booking_not_active',
+  'already_waiting',
+  'slot_free',
 ] as const
 export type ErrorCode = (typeof ERROR_CODES)[number]
 

@@ -18,6 +18,7 @@ import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { listRoutes } from '../helpers/routes'
+import { standCases } from '../helpers/stand-matrix'
 
 /**
  * The authorization matrix: for every API route, the status each kind of caller gets.
@@ -619,6 +620,8 @@ const CASES: Case[] = [
         .send({ ...newCourse(), startDate: '2027-08-30', shiftWeeks: 27 }),
     expect: { anon: 401, outsider: 404, student: 403, ta: 403, instructor: 201, admin: 404 },
   },
+  // Stands, slots, bookings and waiting lists
+  ...standCases(() => ctx),
 ]
 
 /** The revision the caller would have on screen (0 when they may not see it). */
