@@ -1,5 +1,6 @@
 import type { BookingCancel, BookingList, BookingMove, BookingView } from '../../shared/schemas/stands'
 import { STAFF_REASON_MIN } from '../../shared/schemas/stands'
+import { formatInZone } from '../../shared/time'
 import type { Database, Executor } from '../db/client'
 import { retryOnLockConflict } from '../db/retry'
 import { AppError, notFound } from '../errors'
@@ -77,7 +78,7 @@ const noGroup = () =>
 const cutOff = (course: Course, startsAt: Date, what: string) =>
   new AppError(
     'booking_cut_off',
-    `Groups ${what} until ${course.cutoffHours} hours before the slot starts (${whenText(startsAt, 0, course.timeZone).replace(' (0 min)', '')}); ask your TA or instructor.`,
+    `Groups ${what} until ${course.cutoffHours} hours before the slot starts (${formatInZone(startsAt, course.timeZone)}); ask your TA or instructor.`,
     409,
   )
 
