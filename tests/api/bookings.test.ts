@@ -336,6 +336,65 @@ describe('cancelling, waiting lists, moving', () => {
   })
 })
 
+describe('scope', () => {
+  it('a TA acts on their own section only: another section’s booking and slot do not exist for them', async () => {
+    const g = await groupWithStudents(ctx, fx.courseId, fx.sectionB)
+    const id = await slot('2030-11-19', '09:00', { sectionId: fx.sectionB })
+    const b = (await book(g.students[0]!.client, id)).body
+    const before = await storedRows()
+    const cancel = await ta.agent
+      .post(`${C()}/bookings/${b.id}/cancel`)
+      .set('x-csrf-token', ta.csrf)
+      .send({ reason: 'Not my section' })
+    expect(cancel.status).toBe(404)
+    const move = await ta.agent
+      .post(`${C()}/bookings/${b.id}/move`)
+      .set('x-csrf-token', ta.csrf)
+      .send({ slotId: id, reason: 'Not my section' })
+    expect(move.status).toBe(404)
+    const drop = await ta.agent.delete(`${C()}/slots/${id}`).set('x-csrf-token', ta.csrf).send({ reason: 'Not mine' })
+    expect(drop.status).toBe(404)
+    const list = await ta.agent.get(`${C()}/bookings`).expect(200)
+    expect(list.body.bookings.some((x: { id: number }) => x.id === b.id)).toBe(false)
+    // Another group's student cannot cancel it either.
+    const stranger = await groupWithStudents(ctx, fx.courseId, fx.sectionB)
+    const c = stranger.students[0]!.client
+    expect((await c.agent.post(`${C()}/bookings/${b.id}/cancel`).set('x-csrf-token', c.csrf).send({})).status).toBe(404)
+    expect(await storedRows()).toEqual(before)
+  })
+
+  it('a group leaves a waiting list; leaving twice says it is not on it; a cancelled slot clears its list', async () => {
+    const holder = await groupWithStudents(ctx, fx.courseId, fx.sectionA)
+    const waiter = await groupWithStudents(ctx, fx.courseId, fx.sectionA)
+    const other = await groupWithStudents(ctx, fx.courseId, fx.sectionA)
+    const id = await slot('2030-11-26', '09:00')
+    expect((await book(holder.students[0]!.client, id)).status).toBe(201)
+    const w = waiter.students[0]!.client
+    const o = other.students[0]!.client
+    for (const c of [w, o]) {
+      await c.agent
+        .post(`${C()}/slots/${id}/waitlist`)
+        .set('x-csrf-token', c.csrf)
+        .send({ moduleId: sheet.id })
+        .expect(201)
+    }
+    await w.agent.delete(`${C()}/slots/${id}/waitlist`).set('x-csrf-token', w.csrf).expect(204)
+    const twice = await w.agent.delete(`${C()}/slots/${id}/waitlist`).set('x-csrf-token', w.csrf)
+    expect(twice.status).toBe(404)
+    const seen = await o.agent.get(`${C()}/slots?from=2030-11-26&to=2030-11-26`).expect(200)
+    expect(seen.body.slots[0]).toMatchObject({ state: 'taken', myWaitPlace: 1 })
+    await inst.agent
+      .delete(`${C()}/slots/${id}`)
+      .set('x-csrf-token', inst.csrf)
+      .send({ reason: 'Bay flooded' })
+      .expect(200)
+    const left = await ctx.handle.db.select().from(bookingWaitlist).where(eq(bookingWaitlist.slotId, id))
+    expect(left).toEqual([])
+    const after = await o.agent.get(`${C()}/slots?from=2030-11-26&to=2030-11-26`).expect(200)
+    expect(after.body.slots[0]).toMatchObject({ state: 'cancelled', cancelReason: 'Bay flooded', myWaitPlace: null })
+  })
+})
+
 describe('races', () => {
   it('20 groups racing for the last free slot: exactly one wins, the rest get a clear 409, nothing half-written', async () => {
     const groups = await Promise.all(Array.from({ length: 20 }, () => groupWithStudents(ctx, fx.courseId, fx.sectionA)))

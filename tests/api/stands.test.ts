@@ -329,6 +329,33 @@ describe('slots', () => {
     expect(row!.reason).toBe('Compressor service')
   })
 
+  it('keeps a pattern at the same wall-clock time across a daylight-saving change in the course’s zone', async () => {
+    await ctx.handle.db.update(courses).set({ timeZone: 'America/Denver' }).where(eq(courses.id, fx.courseId))
+    try {
+      // Denver moves from UTC−7 to UTC−6 on Sunday 10 March 2030.
+      const res = await inst.agent
+        .post(`${C()}/stands/${standId}/slots`)
+        .set('x-csrf-token', inst.csrf)
+        .send({
+          kind: 'pattern',
+          sectionId: fx.sectionA,
+          weekday: 5,
+          from: '2030-03-08',
+          to: '2030-03-15',
+          start: '13:00',
+          end: '14:00',
+          slotMinutes: 60,
+        })
+        .expect(201)
+      expect(res.body.slots.map((s: { startsAt: string }) => s.startsAt)).toEqual([
+        '2030-03-08T20:00:00.000Z',
+        '2030-03-15T19:00:00.000Z',
+      ])
+    } finally {
+      await ctx.handle.db.update(courses).set({ timeZone: 'UTC' }).where(eq(courses.id, fx.courseId))
+    }
+  })
+
   it('the instructor sets the booking cut-off; a negative one is refused', async () => {
     await inst.agent
       .patch(`${C()}/booking-settings`)

@@ -5,6 +5,7 @@ import { hashPassword } from '../../server/auth/password'
 import {
   bookings,
   courses,
+  mailOutbox,
   enrollments,
   labGroups,
   sections,
@@ -144,5 +145,43 @@ describe('stand time', () => {
     await noSideways(sp)
     await sp.screenshot({ path: screenshotPath('stand-time-375'), fullPage: true })
     await sctx.close()
+  }, 120_000)
+  it('the instructor moves the booking to another slot with a reason, and the group is e-mailed', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 375, height: 800 } })
+    const page = await ctx.newPage()
+    page.setDefaultTimeout(15_000)
+    await signIn(page, app.url, people.instructor.email, PASSWORD)
+    await page.getByRole('link', { name: title }).click()
+    await page.getByRole('navigation', { name: 'Course' }).getByRole('link', { name: 'Stand time' }).click()
+    await page.getByRole('heading', { level: 1, name: 'Stand time' }).waitFor()
+    const panel = page.getByRole('heading', { name: 'Bookings', exact: true }).locator('..')
+    await expect.poll(() => panel.innerText()).toMatch(/13:30–14:00 · North stand · Cold-flow stand runs · Group T1/)
+    await panel.getByRole('button', { name: 'Move or cancel' }).click()
+    const target = panel.getByLabel('Move to')
+    await expect.poll(() => target.locator('option').count()).toBeGreaterThan(1)
+    const value = await target
+      .locator('option', { hasText: '15:30–16:00' })
+      .first()
+      .evaluate((o) => (o as HTMLOptionElement).value)
+    await target.selectOption(value)
+    await panel.getByLabel('Reason (e-mailed to the group)').fill('The north bay is being recalibrated')
+    await panel.getByRole('button', { name: 'Move booking' }).click()
+    await expect.poll(() => panel.innerText()).toMatch(/15:30–16:00 · North stand · Cold-flow stand runs · Group T1/)
+    await noSideways(page)
+
+    const active = await app.db.db
+      .select({ id: bookings.id, reason: bookings.reason, status: bookings.status })
+      .from(bookings)
+      .where(eq(bookings.labGroupId, groupId))
+    expect(active.map((b) => b.status).sort()).toEqual(['active', 'moved'])
+    const moved = active.find((b) => b.status === 'moved')!
+    expect(moved.reason).toBe('The north bay is being recalibrated')
+    const mails = await app.db.db
+      .select({ to: mailOutbox.toAddress, text: mailOutbox.textBody })
+      .from(mailOutbox)
+      .where(eq(mailOutbox.dedupeKey, `booking-moved:${moved.id}`))
+    expect(mails.map((m) => m.to)).toEqual([people.student.email])
+    expect(mails[0]!.text).toContain('The north bay is being recalibrated')
+    await ctx.close()
   }, 120_000)
 })
