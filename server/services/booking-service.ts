@@ -1,20 +1,15 @@
 import type { BookingCancel, BookingList, BookingMove, BookingView } from '../../shared/schemas/stands'
 import { STAFF_REASON_MIN } from '../../shared/schemas/stands'
-import { formatInZone } from '../../shared/time'
 import type { Database, Executor } from '../db/client'
 import { retryOnLockConflict } from '../db/retry'
 import { AppError, notFound } from '../errors'
-import { bookingChangedMail, pageLinks, waitlistBookedMail } from '../mail/templates'
 import type { BookingRow } from '../repositories/bookings'
 import {
-  activeBookingCount,
   activeBookingOf,
   clearWaitlist,
   deleteWait,
   endBooking,
   findBooking,
-  findGroup,
-  groupMembers,
   insertBooking,
   insertWait,
   listBookings,
@@ -22,18 +17,24 @@ import {
   waitlistOf,
 } from '../repositories/bookings'
 import type { CourseEnrollment } from '../repositories/enrollments'
-import { enqueueMail } from '../repositories/outbox'
-import type { SlotRow } from '../repositories/stands'
-import {
-  cancelSlotRow,
-  courseBookingSettings,
-  findSlot,
-  listSheets,
-  lockSlots,
-  standAllows,
-} from '../repositories/stands'
+import { cancelSlotRow, courseBookingSettings, findSlot, lockSlots } from '../repositories/stands'
 import { findUserById } from '../repositories/users'
-import { fieldError, staffActsOn, staffSection, studentGroup, whenText } from './stand-service'
+import { mailChange, promote } from './booking-handover'
+import type { BookingDeps } from './booking-rules'
+import {
+  HOUR,
+  bookingRefusal,
+  cutOff,
+  isDuplicate,
+  myGroup,
+  noGroup,
+  notActive,
+  slotTaken,
+  view,
+} from './booking-rules'
+import { fieldError, staffActsOn, staffSection } from './stand-service'
+
+export type { BookingDeps } from './booking-rules'
 
 /**
  * Booking stand time. Every write runs in one transaction that first locks the lab-group rows it
@@ -41,93 +42,6 @@ import { fieldError, staffActsOn, staffSection, studentGroup, whenText } from '.
  * from booking past the sheet's stand runs, the slot lock makes racing groups take turns, and the
  * unique key on the active slot refuses a second holder whatever happens above it.
  */
-
-export interface BookingDeps {
-  appUrl: string
-}
-
-interface Course {
-  cutoffHours: number
-  timeZone: string
-  code: string
-  slug: string
-}
-
-const HOUR = 3_600_000
-
-function view(b: BookingRow): BookingView {
-  return {
-    id: b.id,
-    slotId: b.slotId,
-    status: b.status,
-    labGroup: { id: b.labGroupId, name: b.labGroupName },
-    module: { id: b.moduleId, title: b.moduleTitle },
-    startsAt: b.startsAt.toISOString(),
-    minutes: b.minutes,
-    stand: { id: b.standId, name: b.standName, location: b.standLocation },
-    sectionId: b.sectionId,
-    reason: b.reason,
-    endedAt: b.endedAt?.toISOString() ?? null,
-    createdAt: b.createdAt.toISOString(),
-  }
-}
-
-const noGroup = () =>
-  new AppError('no_lab_group', 'You are not in a lab group yet; ask your instructor to place you in one.', 409)
-
-const cutOff = (course: Course, startsAt: Date, what: string) =>
-  new AppError(
-    'booking_cut_off',
-    `Groups ${what} until ${course.cutoffHours} hours before the slot starts (${formatInZone(startsAt, course.timeZone)}); ask your TA or instructor.`,
-    409,
-  )
-
-/**
- * Why this group cannot hold this slot for this sheet right now, or null when it can. The same
- * rules decide a group's own booking, a place on the waiting list and a promotion from it.
- */
-async function bookingRefusal(
-  db: Executor,
-  course: Course,
-  courseId: number,
-  group: { id: number; sectionId: number | null },
-  slot: SlotRow & { standName: string },
-  moduleId: number,
-  opts: { boundByCutoff: boolean; now: Date },
-): Promise<AppError | null> {
-  if (slot.cancelledAt)
-    return new AppError('slot_cancelled', `This slot was cancelled (${slot.cancelReason ?? 'no reason given'}).`, 409)
-  if (group.sectionId !== slot.sectionId)
-    return new AppError(
-      'wrong_section',
-      'This slot belongs to another section; your group books its own section’s slots.',
-      403,
-    )
-  if (slot.startsAt.getTime() <= opts.now.getTime())
-    return new AppError('slot_in_past', 'This slot has already started; choose one still to come.', 409)
-  if (opts.boundByCutoff && slot.startsAt.getTime() - course.cutoffHours * HOUR < opts.now.getTime())
-    return cutOff(course, slot.startsAt, 'book')
-  const [sheet] = await listSheets(db, courseId, [moduleId])
-  if (!sheet) return fieldError('moduleId', 'moduleId: that is not a lab sheet of this course.')
-  if (sheet.status !== 'published')
-    return new AppError('not_published', `moduleId: “${sheet.title}” is not issued to the class.`, 409)
-  if (sheet.standRuns < 1 || !(await standAllows(db, slot.standId, moduleId)))
-    return new AppError('sheet_not_on_stand', `moduleId: “${sheet.title}” is not run on ${slot.standName}.`, 409)
-  const used = await activeBookingCount(db, group.id, moduleId)
-  if (used >= sheet.standRuns)
-    return new AppError(
-      'stand_runs_used',
-      `Your group already holds ${used} of the ${sheet.standRuns} stand run${sheet.standRuns === 1 ? '' : 's'} “${sheet.title}” allows; cancel one to book another.`,
-      409,
-    )
-  return null
-}
-
-async function myGroup(db: Executor, e: CourseEnrollment) {
-  const g = await studentGroup(db, e)
-  if (!g) throw noGroup()
-  return g
-}
 
 /** A group books a slot for one run of a sheet. */
 export async function bookSlot(
@@ -159,24 +73,6 @@ export async function bookSlot(
     throw err
   })
   return view((await findBooking(db, e.courseId, id))!)
-}
-
-const slotTaken = (ours: boolean) =>
-  ours
-    ? new AppError('slot_taken', 'Your group already holds this slot.', 409)
-    : new AppError(
-        'slot_taken',
-        'Another group has just booked this slot. Choose another slot or join its waiting list.',
-        409,
-      )
-
-function isDuplicate(err: unknown): boolean {
-  let x: unknown = err
-  for (let i = 0; x && i < 5; i++) {
-    if ((x as { code?: unknown }).code === 'ER_DUP_ENTRY') return true
-    x = (x as { cause?: unknown }).cause
-  }
-  return false
 }
 
 /** A group joins a taken slot's waiting list for a run of a sheet. */
@@ -284,9 +180,6 @@ export async function cancelBooking(
   return view((await findBooking(db, e.courseId, b.id))!)
 }
 
-const notActive = (b: { status: string }) =>
-  new AppError('booking_not_active', `This booking is already ${b.status}; nothing was changed.`, 409)
-
 /** Staff move a booking to another slot (same section, the sheet allowed there), with a reason e-mailed. */
 export async function moveBooking(
   db: Database,
@@ -375,89 +268,4 @@ export async function cancelSlot(
       return { slotId, cancelledBookings: n }
     }),
   )
-}
-
-async function mailChange(
-  tx: Executor,
-  courseId: number,
-  course: Course,
-  b: BookingRow,
-  c: { by: string; reason: string; dedupe: string; movedTo?: BookingRow },
-  deps: BookingDeps,
-): Promise<void> {
-  const members = await groupMembers(tx, courseId, b.labGroupId)
-  const link = `${pageLinks(deps.appUrl, course.slug).course}/stand-time`
-  const named = (x: BookingRow) => ({
-    sheetTitle: x.moduleTitle,
-    standName: x.standName,
-    when: whenText(x.startsAt, x.minutes, course.timeZone),
-  })
-  await enqueueMail(
-    tx,
-    members.map((m) => ({
-      dedupeKey: c.dedupe,
-      toAddress: m.email,
-      toName: m.displayName,
-      ...bookingChangedMail({
-        name: m.displayName,
-        courseCode: course.code,
-        groupName: b.labGroupName,
-        booking: named(b),
-        ...(c.movedTo ? { movedTo: named(c.movedTo) } : {}),
-        by: c.by,
-        reason: c.reason,
-        link,
-      }),
-    })),
-  )
-}
-
-/**
- * Gives a freed slot to the first waiting group that can still book it (its section, the sheet still
- * issued and allowed, runs left, before the cut-off) and e-mails that group. Only groups whose rows
- * this transaction locked are considered; one that joined the list since waits for the next turn.
- */
-async function promote(
-  tx: Executor,
-  courseId: number,
-  course: Course,
-  slotId: number,
-  locked: Set<number>,
-  deps: BookingDeps,
-  now: Date,
-): Promise<void> {
-  const slot = await findSlot(tx, courseId, slotId)
-  if (!slot || (await activeBookingOf(tx, slotId))) return
-  for (const w of await waitlistOf(tx, slotId)) {
-    if (!locked.has(w.labGroupId)) continue
-    const members = await groupMembers(tx, courseId, w.labGroupId)
-    const g = await findGroup(tx, courseId, w.labGroupId)
-    if (!g) continue
-    const no = await bookingRefusal(tx, course, courseId, g, slot, w.moduleId, { boundByCutoff: true, now })
-    if (no) continue
-    const id = await insertBooking(tx, { slotId, labGroupId: w.labGroupId, moduleId: w.moduleId, bookedBy: w.addedBy })
-    await deleteWait(tx, slotId, w.labGroupId)
-    const b = (await findBooking(tx, courseId, id))!
-    const link = `${pageLinks(deps.appUrl, course.slug).course}/stand-time`
-    await enqueueMail(
-      tx,
-      members.map((m) => ({
-        dedupeKey: `waitlist-booked:${id}`,
-        toAddress: m.email,
-        toName: m.displayName,
-        ...waitlistBookedMail({
-          name: m.displayName,
-          courseCode: course.code,
-          groupName: b.labGroupName,
-          booking: {
-            sheetTitle: b.moduleTitle,
-            standName: b.standName,
-            when: whenText(b.startsAt, b.minutes, course.timeZone),
-          },
-          link,
-        }),
-      })),
-    )
-    return
-  }
 }
