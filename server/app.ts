@@ -37,6 +37,7 @@ import { reviewRoutes } from './routes/review'
 import { rosterImportRoutes } from './routes/roster-import'
 import { standWeekRoutes } from './routes/stand-week'
 import { runRoutes } from './routes/runs'
+import { standRoutes } from './routes/stands'
 import { handInRoutes } from './routes/submissions'
 import { signInPolicy } from './services/sign-in-throttle'
 
@@ -228,6 +229,7 @@ export function createApp({
   api.use('/courses/:courseId', courseArchiveRoutes(db))
   api.use('/courses/:courseId', courseRolloverRoutes(db))
   api.use('/courses/:courseId', standWeekRoutes(db))
+  api.use('/courses/:courseId', standRoutes(db, { appUrl: config.APP_URL, onMailQueued: () => onMailQueued?.() }))
   api.use('/courses', courseRoutes(db))
   api.use('/auth/invitations', invitationRoutes(db, csrf))
   api.use(

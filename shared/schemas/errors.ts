@@ -71,6 +71,17 @@ export const ERROR_CODES = [
   'hold_points_open',
   'not_at_run',
   'signed_run_required',
+  'stand_exists',
+  'slot_overlap',
+  'slot_in_past',
+  'slot_taken',
+  'slot_cancelled',
+  'booking_cut_off',
+  'wrong_section',
+  'sheet_not_on_stand',
+  'stand_runs_used',
+  'already_waiting',
+  'slot_free',
 ] as const
 export type ErrorCode = (typeof ERROR_CODES)[number]
 

@@ -36,6 +36,8 @@ export function useCourseLinks(courseId: MaybeRefOrGetter<number>) {
     reviewQueue: () => page('review-queue', '/review'),
     marks: () => page('marks', '/gradebook'),
     myMarks: () => page('my-marks', '/grades'),
+    stands: () => page('stands', '/stands'),
+    standTime: () => page('stand-time', '/stand-time'),
     sheet: (moduleId: number) => sheetPage('sheet', moduleId, ''),
     sheetEdit: (moduleId: number) => sheetPage('sheet-edit', moduleId, '/edit'),
     handIn: (moduleId: number) => sheetPage('hand-in', moduleId, '/hand-in'),

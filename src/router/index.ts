@@ -38,6 +38,8 @@ async function oldAddress(to: RouteLocationNormalized): Promise<RouteLocationRaw
     review: 'review-queue',
     gradebook: 'marks',
     grades: 'my-marks',
+    stands: 'stands',
+    'stand-time': 'stand-time',
   }
   const name = plain[path]
   if (name) return { name, params: { course }, ...keep }
@@ -113,6 +115,20 @@ const router = createRouter({
       component: () => import('@/views/CourseRolloverView.vue'),
       props: (r) => ({ courseId: courseIdOf(r) }),
       meta: { title: 'Start next term' },
+    },
+    {
+      path: '/c/:course/stands',
+      name: 'stands',
+      component: () => import('@/views/StandsView.vue'),
+      props: (r) => ({ courseId: courseIdOf(r) }),
+      meta: { title: 'Stands' },
+    },
+    {
+      path: '/c/:course/stand-time',
+      name: 'stand-time',
+      component: () => import('@/views/StandTimeView.vue'),
+      props: (r) => ({ courseId: courseIdOf(r) }),
+      meta: { title: 'Stand time' },
     },
     {
       path: '/c/:course/review',

@@ -22,6 +22,7 @@ import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { listRoutes } from '../helpers/routes'
+import { standCases } from '../helpers/stand-matrix'
 
 /**
  * The authorization matrix: for every API route, the status each kind of caller gets.
@@ -668,6 +669,8 @@ const CASES: Case[] = [
     call: (c, fx) => c.agent.get(`${M(fx)}/${pub()}/signed-runs`),
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
+  // Stands, slots, bookings and waiting lists
+  ...standCases(() => ctx),
 ]
 
 let standSeq = 0
