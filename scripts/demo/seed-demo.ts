@@ -15,6 +15,7 @@ import { demoRuns } from './demo-runs'
 import type { DemoRun } from './demo-runs'
 import { hotFireRuns } from './hot-fire-runs'
 import { linkHandInsToRuns, seedStandSessions } from './stand-sessions'
+import type { DemoRunLink } from './stand-sessions'
 import {
   DEMO_GROUP_WITHOUT_HAND_IN,
   DEFAULT_DEMO_PASSWORD,
@@ -48,8 +49,7 @@ export async function seedDemo(
     if (!inst) return { created: false, users: 0, courseId }
     await db.transaction((tx) => seedModules(tx, courseId, inst.id))
     const runs = await db.transaction((tx) => seedStandSessions(tx, courseId))
-    await seedHandIns(db, courseId)
-    await db.transaction((tx) => linkHandInsToRuns(tx, runs))
+    await seedHandIns(db, courseId, runs)
     return { created: false, users: 0, courseId, addedModules: true }
   }
 
@@ -117,8 +117,7 @@ export async function seedDemo(
   })
   // The stand runs first, as at a real stand; each group's hand-in is then linked to its run.
   const runs = await db.transaction((tx) => seedStandSessions(tx, courseId))
-  await seedHandIns(db, courseId)
-  await db.transaction((tx) => linkHandInsToRuns(tx, runs))
+  await seedHandIns(db, courseId, runs)
   return { created: true, users: people.length, courseId }
 }
 
@@ -162,7 +161,7 @@ async function seedModules(
  * Some runs are wrong on purpose (scripts/demo/demo-runs.ts, hot-fire-runs.ts), so the review queue
  * has work.
  */
-async function seedHandIns(db: Database, courseId: number) {
+async function seedHandIns(db: Database, courseId: number, runs: readonly DemoRunLink[]) {
   // The seeded hand-ins go through the real service and are graded as a student's would be.
   const appUrl = process.env.APP_URL ?? 'http://127.0.0.1:3000'
   const grader = createGrader()
@@ -174,12 +173,12 @@ async function seedHandIns(db: Database, courseId: number) {
   try {
     const cold = await publishedAssignment(db, courseId, 'cold-flow-characterisation')
     const coldRuns = cold ? demoRuns(cold.assignment) : demoRuns()
-    if (cold) await seedGroupRuns(db, courseId, cold.moduleId, cold.assignment, coldRuns, 'run', grading)
+    if (cold) await seedGroupRuns(db, courseId, cold.moduleId, cold.assignment, coldRuns, 'run', grading, runs)
     // Each group carries its cold-flow specific impulse over to the hot-fire report.
     const hot = await publishedAssignment(db, courseId, 'hot-fire')
     if (hot) {
-      const runs = hotFireRuns(hot.assignment, coldRuns)
-      await seedGroupRuns(db, courseId, hot.moduleId, hot.assignment, runs, 'hot-fire', grading)
+      const hotRuns = hotFireRuns(hot.assignment, coldRuns)
+      await seedGroupRuns(db, courseId, hot.moduleId, hot.assignment, hotRuns, 'hot-fire', grading, runs)
     }
   } finally {
     await grader.close()
@@ -213,6 +212,7 @@ async function seedGroupRuns(
   runs: readonly DemoRun[],
   filePrefix: string,
   grading: GradingContext,
+  standRuns: readonly DemoRunLink[],
 ) {
   const table = a.tables[0]!
   for (const run of runs) {
@@ -247,7 +247,11 @@ async function seedGroupRuns(
           bytes: Buffer.from(run.csv, 'utf8'),
         },
       ],
-      { grading },
+      {
+        grading,
+        // The signed-off stand run the group's hand-in reports (the hot-fire sheet requires one).
+        runRecordId: standRuns.find((l) => l.labGroupId === e.labGroupId && l.moduleId === moduleId)?.runId,
+      },
     )
   }
 }
