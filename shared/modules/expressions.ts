@@ -81,6 +81,8 @@ import {
 import type { ThrustRun, ThrustRunOptions } from '../physics'
 import { combustion, equivalenceRatioFromMixtureRatio, mixtureRatioFromEquivalenceRatio } from '../thermo'
 import { runResult } from '../physics/thrust-run'
+import { windowOfCheckedSamples } from '../physics/window'
+import { knownFinite, knownIncreasing } from './checked-columns'
 import { cachedThrustRun } from './run-cache'
 import {
   CONSTANTS,
@@ -193,6 +195,22 @@ function reduceThrustRun(time: readonly number[], thrust: readonly number[], opt
   return runResult(cachedThrustRun(time, thrust, options))
 }
 
+/**
+ * windowIntegral and windowMean as expressions call them: on columns the scope has checked
+ * (checked-columns.ts) the library skips reading every sample again; anything else gets every
+ * check. Same results and messages either way.
+ */
+function windowIntegralInScope(time: readonly number[], values: readonly number[], start: number, end: number): number {
+  return knownIncreasing(time) && knownFinite(values)
+    ? windowOfCheckedSamples.integral(time, values, start, end)
+    : windowIntegral(time, values, start, end)
+}
+function windowMeanInScope(time: readonly number[], values: readonly number[], start: number, end: number): number {
+  return knownIncreasing(time) && knownFinite(values)
+    ? windowOfCheckedSamples.mean(time, values, start, end)
+    : windowMean(time, values, start, end)
+}
+
 /** regimeCode(regime): 1 subsonic, 2 shock in nozzle, 3 over-expanded, 4 ideal, 5 under-expanded. */
 function regimeCode(regime: unknown): number {
   const i = (NOZZLE_REGIMES as readonly unknown[]).indexOf(regime)
@@ -236,8 +254,8 @@ const scopeFunctions = {
   peakValue,
   areaFromDiameter,
   reduceThrustRun,
-  windowMean,
-  windowIntegral,
+  windowMean: windowMeanInScope,
+  windowIntegral: windowIntegralInScope,
   idealSpecificImpulse,
   combustion,
   mixtureRatioFromEquivalenceRatio,
@@ -288,6 +306,7 @@ function nearlyEqual(a: number, b: number): boolean {
   return Math.abs(a - b) <= Math.max(relTol * Math.max(Math.abs(a), Math.abs(b)), absTol)
 }
 const isNumberArray = (x: unknown): x is number[] => {
+  if (knownFinite(x)) return true
   if (!Array.isArray(x)) return false
   for (const v of x) if (typeof v !== 'number') return false
   return true
