@@ -271,10 +271,20 @@ function thrustAboveIdeal(d: RoleData): GradeFlag | undefined {
   // The peak read through the moving median, and the chamber pressure read the same way there, so
   // neither a ringing thrust sample nor a dropout in the chamber reading decides the check.
   const scratch = new Float64Array(THRUST_PEAK_MEDIAN_WINDOW)
+  const thrust = d.thrust
+  const n = thrust.length
+  const half = THRUST_PEAK_MEDIAN_WINDOW >> 1
   let i = 0
   let peak = -Infinity
-  for (let k = 0; k < d.thrust.length; k++) {
-    const smoothed = windowMedian(d.thrust, k, scratch)
+  for (let k = 0; k < n; k++) {
+    // A full window's median is above the peak so far only when more than half its samples are:
+    // most windows after the peak are passed over with a count instead of a sort.
+    if (k >= half && k < n - half) {
+      let above = 0
+      for (let m = k - half; m <= k + half; m++) if ((thrust[m] as number) > peak) above++
+      if (above <= half) continue
+    }
+    const smoothed = windowMedian(thrust, k, scratch)
     if (smoothed > peak) {
       peak = smoothed
       i = k
