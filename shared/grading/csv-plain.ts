@@ -114,8 +114,11 @@ export function readPlainRows(
   // Position in the file's row → position in `columns`, −1 for a column the table does not use.
   const slot = new Int32Array(width).fill(-1)
   for (let j = columns.length - 1; j >= 0; j--) slot[(columns[j] as PlainColumn).index] = j
-  // Grown by push: packed double arrays, which every later pass over a column reads fastest.
-  const values: number[][] = columns.map(() => [])
+  // Sized once for every line left (no regrowth, less garbage on a 50 000-row log), cut to the
+  // rows read at the end; every row fills its slot in every column.
+  let lines = 1
+  for (let i = text.indexOf('\n', layout.next); i >= 0; i = text.indexOf('\n', i + 1)) lines++
+  const values: number[][] = columns.map(() => new Array<number>(lines))
   let previousTime = Number.NaN
   let rows = 0
 
@@ -151,7 +154,7 @@ export function readPlainRows(
           if (!(si > previousTime) && !Number.isNaN(previousTime)) return undefined
           previousTime = si
         }
-        ;(values[j] as number[]).push(si)
+        ;(values[j] as number[])[rows] = si
       }
       cellStart = cellEnd + 1
     }
@@ -160,6 +163,10 @@ export function readPlainRows(
   }
   if (rows < minRows) return undefined
   const out: Record<string, number[]> = {}
-  columns.forEach((column, j) => (out[column.key] = values[j] as number[]))
+  columns.forEach((column, j) => {
+    const v = values[j] as number[]
+    v.length = rows
+    out[column.key] = v
+  })
   return { columns: out, rowCount: rows }
 }
