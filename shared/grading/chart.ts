@@ -145,12 +145,17 @@ export function chartSeries(assignment: Assignment, data: SubmissionData): Chart
   if (d.thrust && d.thrust.length === n) out.thrust = pick(d.thrust)
   if (d.chamber && d.chamber.length === n) {
     out.chamberPressure = pick(d.chamber)
-    // One nozzleFlow per plotted sample gives both the full-flowing and the separated estimate.
+    // One nozzleFlow per plotted reading gives both the full-flowing and the separated estimate.
     const ideal: number[] = []
     const separated: (number | null)[] = []
     let separates = false
+    // A logger's pressure steps repeat readings (a third of the plotted samples of a blow-down):
+    // each reading's nozzleFlow is solved once.
+    const ceilings = new Map<number, ReturnType<typeof thrustCeilingAt>>()
     for (const i of idx) {
-      const ceiling = thrustCeilingAt(d.chamber[i] as number, d)
+      const p0 = d.chamber[i] as number
+      let ceiling = ceilings.get(p0)
+      if (ceiling === undefined && !ceilings.has(p0)) ceilings.set(p0, (ceiling = thrustCeilingAt(p0, d)))
       if (ceiling === undefined) break
       ideal.push(ceiling.fullFlowing)
       separated.push(ceiling.separated)

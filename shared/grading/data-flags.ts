@@ -271,10 +271,20 @@ function thrustAboveIdeal(d: RoleData): GradeFlag | undefined {
   // The peak read through the moving median, and the chamber pressure read the same way there, so
   // neither a ringing thrust sample nor a dropout in the chamber reading decides the check.
   const scratch = new Float64Array(THRUST_PEAK_MEDIAN_WINDOW)
+  const thrust = d.thrust
+  const n = thrust.length
+  const half = THRUST_PEAK_MEDIAN_WINDOW >> 1
   let i = 0
   let peak = -Infinity
-  for (let k = 0; k < d.thrust.length; k++) {
-    const smoothed = windowMedian(d.thrust, k, scratch)
+  for (let k = 0; k < n; k++) {
+    // A full window's median is above the peak so far only when more than half its samples are:
+    // most windows after the peak are passed over with a count instead of a sort.
+    if (k >= half && k < n - half) {
+      let above = 0
+      for (let m = k - half; m <= k + half; m++) if ((thrust[m] as number) > peak) above++
+      if (above <= half) continue
+    }
+    const smoothed = windowMedian(thrust, k, scratch)
     if (smoothed > peak) {
       peak = smoothed
       i = k
@@ -408,21 +418,24 @@ function chamberAboveReceiver(d: RoleData): GradeFlag | undefined {
 function timeGap(d: RoleData): GradeFlag | undefined {
   const t = d.time
   if (!t || t.length < 3) return undefined
+  // The steps are selected in place for their median, and worked out again from the times below
+  // (the same subtraction, so the same numbers): one array of the log's length instead of two.
   const steps = new Float64Array(t.length - 1)
   for (let i = 1; i < t.length; i++) steps[i - 1] = (t[i] as number) - (t[i - 1] as number)
-  const typical = median(steps)
+  const typical = medianInPlace(steps)
   if (!(typical > 0)) return undefined
+  const step = (i: number) => (t[i + 1] as number) - (t[i] as number)
   let count = 0
   let largest = -1
-  for (let i = 0; i < steps.length; i++) {
-    const s = steps[i] as number
+  for (let i = 0; i < t.length - 1; i++) {
+    const s = step(i)
     if (s > TIME_GAP_FACTOR * typical) {
       count++
-      if (largest < 0 || s > (steps[largest] as number)) largest = i
+      if (largest < 0 || s > step(largest)) largest = i
     }
   }
   if (largest < 0) return undefined
-  const gap = steps[largest] as number
+  const gap = step(largest)
   return {
     code: 'time-gap',
     message: `The log has ${count === 1 ? 'a gap' : `${count} gaps`} between samples: the largest, ${fmt(gap)} s after t = ${fmt(t[largest] as number)} s, is ${fmt(gap / typical)} times the usual step of ${fmt(typical)} s. Samples may be missing; the impulse is integrated straight across a gap.`,
@@ -480,15 +493,22 @@ function thrustBelowIdeal(d: RoleData): GradeFlag | undefined {
   }
   // Choked while pa/p0 < chokeLimit, that is p0 above this.
   const chokedAbove = ambient / chokeLimit
-  const candidates: number[] = []
-  for (let i = 0; i < chamber.length; i++) if ((chamber[i] as number) > chokedAbove) candidates.push(i)
-  if (candidates.length < THRUST_BELOW_IDEAL_MIN_SAMPLES) return undefined
+  // The choked samples are counted, then walked again for every stride-th of them (no list of
+  // indices as long as the log).
+  let candidates = 0
+  for (let i = 0; i < chamber.length; i++) if ((chamber[i] as number) > chokedAbove) candidates++
+  if (candidates < THRUST_BELOW_IDEAL_MIN_SAMPLES) return undefined
   const half = THRUST_BELOW_IDEAL_MEDIAN >> 1
-  const stride = Math.max(1, candidates.length / THRUST_BELOW_IDEAL_SAMPLES)
+  const stride = Math.max(1, candidates / THRUST_BELOW_IDEAL_SAMPLES)
   const ratios: number[] = []
   const used: number[] = []
-  for (let k = 0; k < candidates.length; k += stride) {
-    const i = candidates[Math.floor(k)] as number
+  let k = 0
+  let c = 0
+  for (let i = 0; i < chamber.length && k < candidates; i++) {
+    if (!((chamber[i] as number) > chokedAbove)) continue
+    // i is choked sample number c; it is compared when it is the one the stride lands on.
+    if (c++ !== Math.floor(k)) continue
+    k += stride
     const p0 = medianWithin(chamber, i, half)
     if (!(p0 > chokedAbove)) continue
     const ideal = idealAt(p0, d)
@@ -510,7 +530,7 @@ function thrustBelowIdeal(d: RoleData): GradeFlag | undefined {
       "Check the unit chosen for the thrust column, then the load cell's calibration.",
     detail: {
       ratio,
-      chokedSamples: candidates.length,
+      chokedSamples: candidates,
       comparedSamples: ratios.length,
       ...(d.time ? { from: d.time[first] as number, to: d.time[last] as number } : {}),
       threshold: THRUST_BELOW_IDEAL_FRACTION,

@@ -238,15 +238,20 @@ function components(
       const moved = new Set([c.key])
       const offset = (c.uncertainty.absolute ?? 0) * unitScale(c.unit)
       if (offset > 0) {
-        const step = Math.max(offset, MIN_STEP * maxAbs(samples))
+        // The step needs a pass over the column: taken only when a result reads the column and
+        // the move is not taken away by the tare (the ratio is read only then).
+        let step: number | undefined
+        const stepOf = () => (step ??= Math.max(offset, MIN_STEP * maxAbs(samples)))
         out.push({
           key: c.key,
           part: 'offset',
           label: c.label,
           moved,
-          ratio: offset / step,
+          get ratio() {
+            return offset / stepOf()
+          },
           // The tare takes the moved zero away again: the tared column is the same.
-          scope: (sign) => (tared ? null : withEntries(scope, [[c.key, rescaledColumn(samples, sign * step, 1)]])),
+          scope: (sign) => (tared ? null : withEntries(scope, [[c.key, rescaledColumn(samples, sign * stepOf(), 1)]])),
         })
       }
       const gain = c.uncertainty.relative ?? 0

@@ -15,6 +15,7 @@
  */
 import { analyseThrustRun, runOfRescaledThrust } from '../physics/thrust-run'
 import type { ThrustRunAnalysis, ThrustRunOptions } from '../physics/thrust-run'
+import { knownFinite, markFinite } from './checked-columns'
 
 type Outcome = { run: ThrustRunAnalysis } | { error: unknown }
 
@@ -43,8 +44,22 @@ const rescaled = new WeakMap<object, Rescaled>()
  */
 export function rescaledColumn(samples: readonly number[], offset: number, gain: number): number[] {
   const out = new Array<number>(samples.length)
-  if (gain === 1) for (let i = 0; i < samples.length; i++) out[i] = (samples[i] as number) + offset
-  else for (let i = 0; i < samples.length; i++) out[i] = offset + gain * (samples[i] as number)
+  // A column made from checked samples is known finite too when every new sample is (checked-columns.ts).
+  let allFinite = knownFinite(samples)
+  if (gain === 1) {
+    for (let i = 0; i < samples.length; i++) {
+      const v = (samples[i] as number) + offset
+      if (!Number.isFinite(v)) allFinite = false
+      out[i] = v
+    }
+  } else {
+    for (let i = 0; i < samples.length; i++) {
+      const v = offset + gain * (samples[i] as number)
+      if (!Number.isFinite(v)) allFinite = false
+      out[i] = v
+    }
+  }
+  if (allFinite) markFinite(out)
   // Chained changes are remembered against the column they started from.
   const parent = rescaled.get(samples)
   rescaled.set(

@@ -14,6 +14,7 @@
  */
 import { gaugeToAbsolute, type PressureSense } from '../units'
 import { signalZeros, tareWithRun } from '../physics/thrust-run'
+import { markFinite } from './checked-columns'
 import { cachedThrustRun } from './run-cache'
 import { DIMENSIONLESS, dataUnitKind, valueFromSI, valueToSI } from './quantities'
 import type { Assignment, ColumnSpec, MeasurementSpec, TableSpec } from './schema'
@@ -119,6 +120,17 @@ function isGauge(data: SubmissionData, key: string, declared: PressureSense | un
   return (data.pressures?.[key] ?? declared) === 'gauge'
 }
 
+interface AbsoluteColumn {
+  ambient: number
+  column: readonly number[]
+}
+/**
+ * Gauge samples → the absolute column last made from them. The grading step builds a scope of the
+ * same hand-in twice (grading, then the chart), each making the same copies of the pressure
+ * columns; the second reuses the first's after comparing every sample.
+ */
+const absoluteColumns = new WeakMap<readonly number[], AbsoluteColumn>()
+
 /**
  * An SI column as the scope holds it: the same array when nothing changes (no copy of a 50 000-row
  * log), a new one with the ambient pressure added when it was read gauge.
@@ -129,12 +141,19 @@ function siColumn(
   ambient: number | undefined,
   what: string,
 ): readonly number[] {
+  // The absolute column made from these samples last time, kept while it holds exactly samples +
+  // ambient (compared here, sample by sample, so a changed sample or ambient makes a new one).
+  const last = gauge ? absoluteColumns.get(samples) : undefined
+  let same = last !== undefined && last.ambient === ambient && last.column.length === samples.length
   for (let i = 0; i < samples.length; i++) {
     const v = samples[i]
     if (typeof v !== 'number' || !Number.isFinite(v))
       throw new ScopeError(`${what}[row ${i + 1}] is not a finite number (got ${String(v)})`)
+    if (same && (last as AbsoluteColumn).column[i] !== v + (ambient as number)) same = false
   }
+  markFinite(samples)
   if (!gauge) return samples
+  if (same) return (last as AbsoluteColumn).column
   if (ambient === undefined)
     throw new ScopeError(`${what} is a gauge pressure, but the submission has no ambient pressure`)
   const out = new Array<number>(samples.length)
@@ -146,6 +165,9 @@ function siColumn(
       )
     out[i] = absolute
   }
+  // Finite samples plus a finite ambient of some 10⁵ Pa stay finite.
+  if (Number.isFinite(ambient)) markFinite(out)
+  absoluteColumns.set(samples, { ambient, column: out })
   return out
 }
 
@@ -191,14 +213,17 @@ function tareColumns(
     const zeros = signalZeros(time, values, run)
     if (Math.max(Math.abs(zeros.before - ambient), Math.abs(zeros.after - ambient)) > MAX_TARE_ZERO * ambient) continue
     const tared = tareWithRun(time, values, run)
+    let allFinite = true
     for (let i = 0; i < tared.length; i++) {
       const absolute = (tared[i] as number) + ambient
       if (absolute < 0)
         throw new ScopeError(
           `${column.key}[row ${i + 1}]: after its zero is taken, the gauge pressure ${tared[i]} Pa is below vacuum at an ambient of ${ambient} Pa`,
         )
+      if (!Number.isFinite(absolute)) allFinite = false
       tared[i] = absolute
     }
+    if (allFinite) markFinite(tared)
     scope[column.key] = tared
   }
 }

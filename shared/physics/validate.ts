@@ -182,16 +182,31 @@ export function requireOneOf<T extends string>(name: string, value: unknown, opt
  * requireSamples('thrust', [1, Number.NaN], 2) // throws RangeError: thrust[1] must be a finite number (got NaN)
  */
 export function requireSamples(name: string, values: readonly number[], minLength = 1): readonly number[] {
-  if (!Array.isArray(values)) fail(name, `an array of at least ${minLength} finite numbers`, values)
-  if (values.length < minLength) {
-    throw new RangeError(`${name} must have at least ${minLength} samples (got ${values.length})`)
-  }
+  requireSampleCount(name, values, minLength)
   // A plain loop: logs of 50 000 samples are checked several times per hand-in.
   for (let i = 0; i < values.length; i++) {
     const v = values[i]
     if (!isFiniteNumber(v)) fail(`${name}[${i}]`, 'a finite number', v)
   }
   return values
+}
+
+/**
+ * The part of {@link requireSamples} that does not read the entries: an array of at least
+ * `minLength` entries, with the same messages. For callers that know the entries are finite
+ * numbers already (checked once when they were made).
+ *
+ * @param name - the argument's name
+ * @param values - the array to check
+ * @param minLength - the fewest samples allowed
+ * @example
+ * requireSampleCount('time', [0], 2) // throws RangeError: time must have at least 2 samples (got 1)
+ */
+export function requireSampleCount(name: string, values: readonly number[], minLength = 1): void {
+  if (!Array.isArray(values)) fail(name, `an array of at least ${minLength} finite numbers`, values)
+  if (values.length < minLength) {
+    throw new RangeError(`${name} must have at least ${minLength} samples (got ${values.length})`)
+  }
 }
 
 /**

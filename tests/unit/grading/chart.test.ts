@@ -218,3 +218,20 @@ describe('chartSeries draws the separated estimate where the over-expanded flow 
     expect(chartSeries(assignment, cleanLog()).separatedThrust).toBeUndefined()
   })
 })
+
+describe('chartSeries ideal thrust on readings that repeat', () => {
+  it('gives each plotted sample the ideal thrust of its own chamber pressure (repeated readings solved once)', () => {
+    // Two plateaus visited in turn, 1 MPa and 0.6 MPa absolute, with rest between: every reading repeats.
+    const chamber = Array.from(
+      { length: 300 },
+      (_, i) => [STANDARD_ATMOSPHERE, 1e6, 6e5][Math.floor(i / 10) % 3] as number,
+    )
+    const chart = chartSeries(assignment, logFromChamber(chamber))
+    expect(chart.idealThrust).toHaveLength(300)
+    chamber.forEach((p0, i) => {
+      const expected =
+        p0 > STANDARD_ATMOSPHERE ? idealThrustCoefficientMach2(p0, STANDARD_ATMOSPHERE) * p0 * THROAT_AREA : 0
+      expectClose(chart.idealThrust?.[i] as number, expected, 1e-9, `sample ${i}`)
+    })
+  })
+})

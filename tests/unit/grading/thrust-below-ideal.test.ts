@@ -40,3 +40,27 @@ describe('thrust-below-ideal on hand-made plateaus', () => {
     expect(belowFlag(withColumn(clean, 'p_chamber', chamber))).toBeUndefined()
   })
 })
+
+describe('thrust-below-ideal on a long run', () => {
+  it('compares every stride-th choked sample, at most 200, from the first choked sample on', () => {
+    // 1 980 choked samples (t = 0.10 … 19.89 s): the stride is 1 980 / 200 = 9.9 samples, so the
+    // compared samples are choked samples number ⌊0⌋, ⌊9.9⌋, ⌊19.8⌋, … (the sum taken step by step).
+    const data = cleanLog({ samples: 2000, rest: 10, thrustRatio: 0.2 })
+    const t = (data.tables.run as Record<string, number[]>).t as number[]
+    const flag = belowFlag(data)
+    expect(flag).toBeDefined()
+    expect(flag!.detail!.chokedSamples).toBe(1980)
+    const stride = 1980 / 200
+    let last = 0
+    let compared = 0
+    for (let k = 0; k < 1980; k += stride) {
+      last = Math.floor(k)
+      compared++
+    }
+    expect(compared).toBe(200)
+    expect(flag!.detail!.comparedSamples).toBe(compared)
+    expect(flag!.detail!.from).toBe(t[10])
+    expect(flag!.detail!.to).toBe(t[10 + last])
+    expectClose(flag!.detail!.ratio as number, 0.2, 1e-9)
+  })
+})
