@@ -82,6 +82,7 @@ export const ERROR_CODES = [
   'stand_runs_used',
   'already_waiting',
   'slot_free',
+  'photo_refused',
 ] as const
 export type ErrorCode = (typeof ERROR_CODES)[number]
 
