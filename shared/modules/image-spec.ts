@@ -45,6 +45,11 @@ export const ImageSpecSchema = z
     scaleFrom: KeySchema.optional(),
     /** A time measurement: when, in the run log's time, the photograph was taken. */
     takenAt: KeySchema.optional(),
+    /**
+     * The results whose expected values are the theory's distances for this photograph (a length
+     * each): the feedback report and the pages set them beside the measured ones.
+     */
+    theory: z.strictObject({ cellSpacing: KeySchema.optional(), machDisk: KeySchema.optional() }).optional(),
   })
   .superRefine((spec, ctx) => {
     if (spec.cells.min > spec.cells.max) {

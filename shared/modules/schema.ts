@@ -517,6 +517,18 @@ export const AssignmentSchema = z
       }
       refer('scaleFrom', 'length')
       refer('takenAt', 'time')
+      for (const field of ['cellSpacing', 'machDisk'] as const) {
+        const ref = img.theory?.[field]
+        if (ref === undefined) continue
+        const r = a.results.find((x) => x.key === ref)
+        if (!r || dataUnitKind(r.unit) !== 'length') {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['images', i, 'theory', field],
+            message: `theory.${field} names a result with a length unit; "${ref}" is ${r ? `in ${r.unit}` : 'not a result of this assignment'}`,
+          })
+        }
+      }
     })
 
     const ruleKeys = new Set<string>()

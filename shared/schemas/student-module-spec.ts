@@ -51,9 +51,23 @@ const StudentResultSchema = z.object({
   regime: z.object({ margin: z.number().optional() }).optional(),
 })
 
+/** A photograph to hand in with marks (shared/modules/image-spec.ts); `theory` names results, kept back. */
+const StudentImageSchema = z.object({
+  key: z.string(),
+  label: z.string(),
+  instructions: z.string().optional(),
+  cells: z.object({ min: z.number(), max: z.number() }).default({ min: 1, max: 8 }),
+  machDisk: z.enum(['required', 'optional', 'none']).default('optional'),
+  /** The length measurement whose typed value is the scale's known length by default. */
+  scaleFrom: z.string().optional(),
+  /** The time measurement that says when the photograph was taken. */
+  takenAt: z.string().optional(),
+})
+
 export const StudentAssignmentSchema = z.object({
   tables: z.array(StudentTableSchema).default([]),
   measurements: z.array(StudentMeasurementSchema).default([]),
+  images: z.array(StudentImageSchema).default([]),
   results: z.array(StudentResultSchema).default([]),
 })
 
@@ -73,4 +87,5 @@ export const StudentModuleSpecSchema = z.object({
 
 export type StudentModuleSpec = z.output<typeof StudentModuleSpecSchema>
 export type StudentAssignment = z.output<typeof StudentAssignmentSchema>
+export type StudentImageSpec = StudentAssignment['images'][number]
 export type StudentResultSpec = StudentAssignment['results'][number]

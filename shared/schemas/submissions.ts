@@ -2,6 +2,8 @@ import { z } from 'zod'
 import type { UncertaintyContribution } from '../grading/uncertainty'
 import type { FlagStatus } from './review'
 import type { PressureSense } from '../units'
+import { JetMarksSchema, type JetMarks } from '../images/jet-marks'
+import { TableKeySchema } from '../modules/spec-names'
 
 const finite = (what: string) =>
   z.number({ error: `${what}: enter a number.` }).refine(Number.isFinite, `${what}: enter a finite number.`)
@@ -34,6 +36,8 @@ export const SubmissionPayloadSchema = z.object({
     )
     .default({}),
   reported: z.record(z.string(), z.object({ value: finite('result'), unit: z.string().min(1) })).default({}),
+  /** The marks on each photograph, by the photograph's key; the picture itself is the file `photo:<key>`. */
+  images: z.record(z.string(), JetMarksSchema).optional(),
 })
 export type SubmissionPayload = z.infer<typeof SubmissionPayloadSchema>
 
@@ -139,6 +143,26 @@ export interface SubmissionSummary {
   flagCount: number
 }
 
+/** A photograph of a hand-in, as stored: the re-encoded picture's size and hashes, and the student's marks. */
+export interface SubmissionImageView {
+  /** The photograph's key in the sheet's `images:`. */
+  key: string
+  contentType: 'image/png' | 'image/jpeg'
+  /** Pixels of the stored picture (the marks are in these coordinates). */
+  width: number
+  height: number
+  /** Bytes of the stored (re-encoded) picture. */
+  size: number
+  sha256: string
+  /** sha256 of the file as the student uploaded it. */
+  originalSha256: string
+  marks: JetMarks
+}
+
+export const SubmissionImageParamsSchema = SubmissionParamsSchema.extend({
+  imageKey: TableKeySchema,
+})
+
 export interface SubmissionDetail extends SubmissionSummary {
   courseId: number
   moduleId: number
@@ -153,6 +177,8 @@ export interface SubmissionDetail extends SubmissionSummary {
   flags: FlagView[]
   chart: ChartData | null
   files: { id: number; tableKey: string; filename: string; size: number; rowCount: number; sha256: string }[]
+  /** The photographs with their marks; the picture is GET …/submissions/:submissionId/images/:imageKey. */
+  images: SubmissionImageView[]
   inputs: {
     measurements: Record<string, { value: number; unit: string; pressure?: PressureSense }>
     reported: Record<string, { value: number; unit: string }>
