@@ -3,7 +3,8 @@
  * request). Layout, top to bottom: the course and module, who handed in and when, lateness, the
  * score (with a note when staff adjusted it), the checks table, the notes on the data (flags) with
  * their state, the staff comments as plain text, and the thrust and pressure against time drawn
- * as vector paths. Every page has a footer with its number and the generation date.
+ * as vector paths, and the photographs with their marks and the distances they measure
+ * (./photo-section.ts). Every page has a footer with its number and the generation date.
  *
  * Type: serif (Noto Serif) for course text, sans (Source Sans 3) for labels and headings, mono
  * (JetBrains Mono) for every number; all embedded from the app's own font files (./fonts.ts).
@@ -13,10 +14,33 @@ import PDFDocument from 'pdfkit'
 import { dominantInputsText, expectedWithUncertaintyText } from '../../shared/grading/uncertainty-text'
 import type { ChartData, CheckOutcome, CheckUncertaintyView } from '../../shared/schemas/submissions'
 import { formatInZone } from '../../shared/time'
-import { allFaces, defaultFont, fontRuns, fontStacks } from './fonts'
+import { allFaces, defaultFont } from './fonts'
 import type { FontRole } from './fonts'
 import { formatCompact, formatScore, percentText, valueText } from '../../shared/format'
 import type { FlagStatus } from '../../shared/schemas/review'
+import {
+  COPPER,
+  INK,
+  INK_700,
+  MUTED,
+  PAPER_DEEP,
+  RULE,
+  SPAN,
+  TEXT,
+  bottomOf,
+  contentWidth,
+  ensure,
+  heading,
+  heightOf,
+  paragraph,
+  put,
+  widthOf,
+} from './pdf-layout'
+import type { Doc } from './pdf-layout'
+import { photoSection } from './photo-section'
+import type { ReportImage } from './photo-section'
+
+export type { ReportImage } from './photo-section'
 
 export interface ReportCheck {
   label: string
@@ -70,18 +94,11 @@ export interface FeedbackReportData {
   flags: ReportFlag[]
   comments: ReportComment[]
   chart: ChartData | null
+  /** The hand-in's photographs with their marks (none, or left out, for a sheet without photographs). */
+  images?: ReportImage[]
   generatedAt: Date
 }
 
-// Colours of the app's palette (src/assets/main.css).
-const INK = '#1e2a44'
-const INK_700 = '#3b4d74'
-const TEXT = '#1f1d1a'
-const MUTED = '#5d574c'
-const RULE = '#d2cabb'
-const PAPER_DEEP = '#f3efe7'
-const COPPER = '#8c3f1e'
-const SPAN = '#2c62c9'
 const OUTCOME: Record<CheckOutcome, { word: string; colour: string }> = {
   pass: { word: 'Passed', colour: '#1f6b3a' },
   partial: { word: 'Partial credit', colour: '#7a4b00' },
@@ -90,79 +107,6 @@ const OUTCOME: Record<CheckOutcome, { word: string; colour: string }> = {
 }
 
 const MARGIN = { top: 56, bottom: 64, left: 50, right: 50 }
-
-type TextOptions = PDFKit.Mixins.TextOptions
-type Doc = PDFKit.PDFDocument
-
-/** Writes text in a role's fonts, switching subset fonts mid-string where a character needs it. */
-function put(
-  doc: Doc,
-  role: FontRole,
-  size: number,
-  text: string,
-  x?: number,
-  y?: number,
-  opts: TextOptions = {},
-): void {
-  const runs = fontRuns(text, role)
-  if (runs.length === 0) return
-  runs.forEach((r, i) => {
-    doc.font(r.font).fontSize(size)
-    const continued = i < runs.length - 1
-    if (i > 0) doc.text(r.text, { continued })
-    else if (x === undefined || y === undefined) doc.text(r.text, { ...opts, continued })
-    else doc.text(r.text, x, y, { ...opts, continued })
-  })
-}
-
-function widthOf(doc: Doc, role: FontRole, size: number, text: string): number {
-  let w = 0
-  for (const r of fontRuns(text, role)) w += doc.font(r.font).fontSize(size).widthOfString(r.text)
-  return w
-}
-
-/** Height of wrapped text, measured in the role's main font (other subsets differ little in width). */
-function heightOf(doc: Doc, role: FontRole, size: number, text: string, width: number, opts: TextOptions = {}): number {
-  const plain = fontRuns(text, role)
-    .map((r) => r.text)
-    .join('')
-  return doc
-    .font(fontStacks()[role][0]!.name)
-    .fontSize(size)
-    .heightOfString(plain, { ...opts, width })
-}
-
-const bottomOf = (doc: Doc) => doc.page.height - doc.page.margins.bottom
-const contentWidth = (doc: Doc) => doc.page.width - doc.page.margins.left - doc.page.margins.right
-
-/** A new page when `height` does not fit below the cursor. */
-function ensure(doc: Doc, height: number): void {
-  if (doc.y + height > bottomOf(doc)) doc.addPage()
-}
-
-function heading(doc: Doc, text: string, keepWith = 60): void {
-  doc.moveDown(0.8)
-  ensure(doc, 24 + keepWith)
-  const x = doc.page.margins.left
-  put(doc, 'sans-bold', 12.5, text, x, doc.y, { lineBreak: false })
-  doc.y += 17
-  doc
-    .moveTo(x, doc.y)
-    .lineTo(x + contentWidth(doc), doc.y)
-    .lineWidth(0.6)
-    .strokeColor(RULE)
-    .stroke()
-  doc.y += 7
-  doc.x = x
-}
-
-function paragraph(doc: Doc, role: FontRole, size: number, text: string, colour = TEXT, indent = 0): void {
-  const x = doc.page.margins.left + indent
-  doc.fillColor(colour)
-  put(doc, role, size, text, x, doc.y, { width: contentWidth(doc) - indent, lineGap: 1.5 })
-  doc.x = doc.page.margins.left
-  doc.fillColor(TEXT)
-}
 
 function titleBlock(doc: Doc, d: FeedbackReportData): void {
   const x = doc.page.margins.left
@@ -848,6 +792,8 @@ export function renderFeedbackPdf(d: FeedbackReportData): Doc {
     heading(doc, 'Your run against the ideal nozzle', 320)
     chartSection(doc, d.chart)
   }
+
+  if (d.images) photoSection(doc, d.images)
 
   footers(doc, d)
   doc.end()

@@ -121,3 +121,13 @@ export function readZip(bytes: Buffer): Promise<{ name: string; bytes: Buffer }[
     })
   })
 }
+
+/** The image XObjects a PDF holds: each one's pixel size and filter (DCTDecode for a JPEG as it came). */
+export function pdfImages(bytes: Buffer): { width: number; height: number; filter: string | null }[] {
+  const raw = bytes.toString('latin1')
+  return [...raw.matchAll(/<<((?:(?!>>)[\s\S])*?\/Subtype\s*\/Image(?:(?!>>)[\s\S])*)>>/g)].map((m) => {
+    const dict = m[1]!
+    const num = (key: string) => Number(new RegExp(`/${key}\\s+(\\d+)`).exec(dict)?.[1] ?? Number.NaN)
+    return { width: num('Width'), height: num('Height'), filter: /\/Filter\s*\/(\w+)/.exec(dict)?.[1] ?? null }
+  })
+}
