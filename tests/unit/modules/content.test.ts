@@ -29,8 +29,13 @@ function assignmentOf(file: string): Assignment {
 }
 
 describe('the demo modules in content/', () => {
-  it('are the three modules of the demo course', () => {
-    expect(files).toEqual(['01-nozzle-flow-fundamentals.md', '02-cold-flow-characterisation.md', '03-hot-fire.md'])
+  it('are the four modules of the demo course', () => {
+    expect(files).toEqual([
+      '01-nozzle-flow-fundamentals.md',
+      '02-cold-flow-characterisation.md',
+      '03-hot-fire.md',
+      '04-reading-the-jet.md',
+    ])
   })
 
   it.each(files)('%s passes front-matter validation', (file) => {
@@ -257,5 +262,98 @@ describe('the cold-flow module grades a run worked out by hand', () => {
     expect(rule('receiver_not_emptied', { ...run, results, measurements: { ...run.measurements, p_final: 600 } })).toBe(
       true,
     )
+  })
+})
+
+// A hand-made jet run: a converging nozzle of 6 mm bore (sonic exit), the chamber logged every
+// 0.5 s for 13 s from 700 kPa gauge falling by 50 kPa/s, the photograph taken at 2.25 s (half-way between
+// the samples at 2.0 s, 600 kPa, and 2.5 s, 575 kPa: 587.5 kPa gauge, 671.5 kPa absolute with the
+// 84 kPa barometer).
+describe('the jet sheet grades a photograph worked out by hand', () => {
+  const assignment = assignmentOf('04-reading-the-jet.md')
+  const T_JET = Array.from({ length: 27 }, (_, i) => i * 0.5)
+  const jetRun = (cellSpacing: number, photoAt = 2.25): SubmissionData => ({
+    tables: { run: { t: T_JET, p_chamber: T_JET.map((t) => 700 - 50 * t) } },
+    measurements: { p_ambient: 84, d_throat: 6, d_exit: 6, t_photo: photoAt },
+    images: { jet: { cellSpacing, machDisk: 0.0105, cellCount: 3 } },
+  })
+  const expected = (key: string, data: SubmissionData) => {
+    const result = assignment.results.find((r) => r.key === key)
+    if (!result) throw new Error(`no result ${key}`)
+    return evaluateExpression(result.expected, buildExpressionScope(assignment, data)) as number
+  }
+  const rule = (key: string, data: SubmissionData, results: Record<string, number>) => {
+    const r = assignment.reviewRules.find((x) => x.key === key)
+    if (!r) throw new Error(`no rule ${key}`)
+    return evaluateExpression(r.when, buildExpressionScope(assignment, { ...data, results }, { withResults: true }))
+  }
+
+  // By hand, γ = 1.4: Mj from p0/pa by the isentropic relation; Dj = Dt·√(A/A*) at Mj (area–Mach
+  // relation); Pack's L = (π / 2.4048255577)·Dj·√(Mj² − 1), j0,1 from Abramowitz & Stegun table 9.5;
+  // the Mach disk by Ashkenas & Sherman, 0.67·D·√(p0/pa).
+  const ratio = 671.5 / 84
+  const mj = Math.sqrt(5 * (ratio ** (0.4 / 1.4) - 1))
+  const areaRatio = (1 / mj) * ((2 / 2.4) * (1 + 0.2 * mj * mj)) ** 3
+  const dj = 0.006 * Math.sqrt(areaRatio)
+  const pack = (Math.PI / 2.4048255577) * dj * Math.sqrt(mj * mj - 1)
+
+  it('reads the chamber pressure at the photograph from the log and gives the jet, its cell spacing and its Mach disk', () => {
+    const run = jetRun(0.02)
+    expectClose(expected('jet_mach', run), mj, 1e-9)
+    expectClose(expected('cell_theory', run), pack, 1e-9)
+    expectClose(expected('disk_theory', run), 0.67 * 0.006 * Math.sqrt(ratio), 1e-12)
+    expectClose(expected('cell_measured', run), 0.02, 1e-12)
+    expectClose(expected('cell_ratio', run), 0.02 / pack, 1e-9)
+  })
+
+  it('uses Lewis and Carlson’s correlation for a supersonic exit', () => {
+    // A 4 mm throat and 5 mm exit (area ratio 1.5625): the exit Mach number is the supersonic root of
+    // the area–Mach relation (solved here by Newton's method from M = 2; about 1.906), and
+    // pe = p0 / (1 + 0.2·Me²)^3.5.
+    const run = jetRun(0.02)
+    run.measurements = { ...run.measurements, d_throat: 4, d_exit: 5 }
+    let me = 2
+    for (let i = 0; i < 60; i++) {
+      const f = (m: number) => (1 / m) * ((2 / 2.4) * (1 + 0.2 * m * m)) ** 3 - 1.5625
+      me -= f(me) / ((f(me + 1e-7) - f(me - 1e-7)) / 2e-7)
+    }
+    expect(me).toBeGreaterThan(1.8)
+    const pe = 671.5e3 / (1 + 0.2 * me * me) ** 3.5
+    expectClose(expected('disk_theory', run), 0.69 * 0.005 * me * Math.sqrt((1.4 * pe) / 84e3), 1e-9)
+  })
+
+  it('flags a measured spacing far from the theory’s (a scale set wrong) and passes one near it', () => {
+    const good = jetRun(pack * 1.1)
+    const results = { jet_mach: mj, disk_theory: 0.01, cell_ratio: 1.1, cell_measured: pack * 1.1, cell_theory: pack }
+    expect(rule('check_the_scale', good, results)).toBe(false)
+    // The scale across half the exit: every distance doubled.
+    expect(rule('check_the_scale', jetRun(pack * 2.2), results)).toBe(true)
+    expect(rule('check_the_scale', jetRun(pack * 0.5), results)).toBe(true)
+    expect(rule('reported_ratio_mismatch', good, results)).toBe(false)
+    expect(rule('reported_ratio_mismatch', good, { ...results, cell_ratio: 2.2 })).toBe(true)
+  })
+
+  it('flags a photograph taken after the chamber fell below about 20 psi gauge', () => {
+    const results = { jet_mach: mj, disk_theory: 0.01, cell_ratio: 1, cell_measured: pack, cell_theory: pack }
+    // At 11 s the log reads 700 − 550 = 150 kPa gauge; at 11.5 s, 125 kPa (below 137.9 kPa).
+    expect(rule('photo_after_stop', jetRun(pack, 11), results)).toBe(false)
+    expect(rule('photo_after_stop', jetRun(pack, 11.5), results)).toBe(true)
+  })
+
+  it('carries the jet’s safety cautions and defers to local rules', () => {
+    const { body } = load('04-reading-the-jet.md')
+    for (const phrase of [
+      'hearing protection',
+      'Never look directly into the source',
+      'laser',
+      'pressure vessel',
+      'supports and does not replace the institution',
+      'local codes',
+      'safety office',
+      'licensed practice',
+      'common practice, not a',
+    ]) {
+      expect(body, phrase).toContain(phrase)
+    }
   })
 })
