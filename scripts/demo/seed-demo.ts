@@ -14,6 +14,8 @@ import type { ModuleFrontMatter } from '../../shared/modules/schema'
 import { demoRuns } from './demo-runs'
 import type { DemoRun } from './demo-runs'
 import { hotFireRuns } from './hot-fire-runs'
+import { jetRuns } from './jet-runs'
+import type { DemoJetRun } from './jet-runs'
 import { linkHandInsToRuns, seedStandSessions } from './stand-sessions'
 import type { DemoRunLink } from './stand-sessions'
 import {
@@ -121,13 +123,13 @@ export async function seedDemo(
   return { created: true, users: people.length, courseId }
 }
 
-/** The three modules (fundamentals, cold flow, hot fire) are published. */
-const PUBLISHED_MODULES = 3
+/** The four modules (fundamentals, cold flow, hot fire, reading the jet) are published. */
+const PUBLISHED_MODULES = 4
 
 const CONTENT = path.resolve(import.meta.dirname, '..', '..', 'content')
 
 /**
- * The demo course's modules from content/*.md, in file-name order. The first three are published
+ * The demo course's modules from content/*.md, in file-name order. The first four are published
  * (without e-mail: nobody is waiting for them at seed time); any later ones stay drafts.
  */
 async function seedModules(
@@ -157,9 +159,9 @@ async function seedModules(
 
 /**
  * One cold-flow and one hot-fire hand-in per demo lab group (but one group, left for people to try
- * the forms), made through the real hand-in service so they are stored and graded like any other.
- * Some runs are wrong on purpose (scripts/demo/demo-runs.ts, hot-fire-runs.ts), so the review queue
- * has work.
+ * the forms), and a photograph of the jet from a few groups, made through the real hand-in service
+ * so they are stored and graded like any other. Some runs are wrong on purpose
+ * (scripts/demo/demo-runs.ts, hot-fire-runs.ts, jet-runs.ts), so the review queue has work.
  */
 async function seedHandIns(db: Database, courseId: number, runs: readonly DemoRunLink[]) {
   // The seeded hand-ins go through the real service and are graded as a student's would be.
@@ -180,6 +182,8 @@ async function seedHandIns(db: Database, courseId: number, runs: readonly DemoRu
       const hotRuns = hotFireRuns(hot.assignment, coldRuns)
       await seedGroupRuns(db, courseId, hot.moduleId, hot.assignment, hotRuns, 'hot-fire', grading, runs)
     }
+    const jet = await publishedAssignment(db, courseId, 'reading-the-jet')
+    if (jet) await seedJetHandIns(db, courseId, jet.moduleId, jet.assignment, await jetRuns(jet.assignment), grading)
   } finally {
     await grader.close()
   }
@@ -217,17 +221,11 @@ async function seedGroupRuns(
   const table = a.tables[0]!
   for (const run of runs) {
     if (run.group === DEMO_GROUP_WITHOUT_HAND_IN) continue
-    const member = DEMO_STUDENTS.find((s) => s.labGroup === run.group)
-    if (!member) continue
-    const [e] = await db
-      .select({ userId: enrollments.userId, sectionId: enrollments.sectionId, labGroupId: enrollments.labGroupId })
-      .from(enrollments)
-      .innerJoin(users, eq(users.id, enrollments.userId))
-      .where(and(eq(enrollments.courseId, courseId), eq(users.email, member.email)))
+    const e = await handingInMember(db, courseId, run.group)
     if (!e) continue
     await submitHandIn(
       db,
-      { courseId, userId: e.userId, role: 'student', sectionId: e.sectionId, labGroupId: e.labGroupId },
+      e,
       moduleId,
       {
         mappings: { [table.key]: { ...run.mapping } },
@@ -252,6 +250,68 @@ async function seedGroupRuns(
         // The signed-off stand run the group's hand-in reports (the hot-fire sheet requires one).
         runRecordId: standRuns.find((l) => l.labGroupId === e.labGroupId && l.moduleId === moduleId)?.runId,
       },
+    )
+  }
+}
+
+/** The student of a demo lab group who hands in for it, as an enrollment of the demo course. */
+async function handingInMember(db: Database, courseId: number, group: string) {
+  const member = DEMO_STUDENTS.find((s) => s.labGroup === group)
+  if (!member) return undefined
+  const [e] = await db
+    .select({ userId: enrollments.userId, sectionId: enrollments.sectionId, labGroupId: enrollments.labGroupId })
+    .from(enrollments)
+    .innerJoin(users, eq(users.id, enrollments.userId))
+    .where(and(eq(enrollments.courseId, courseId), eq(users.email, member.email)))
+  return e
+    ? { courseId, userId: e.userId, role: 'student' as const, sectionId: e.sectionId, labGroupId: e.labGroupId }
+    : undefined
+}
+
+/** The jet photographs: the run log, the picture (file field photo:<key>) and its marks (payload images). */
+async function seedJetHandIns(
+  db: Database,
+  courseId: number,
+  moduleId: number,
+  a: NonNullable<ModuleFrontMatter['assignment']>,
+  runs: readonly DemoJetRun[],
+  grading: GradingContext,
+) {
+  const table = a.tables[0]!
+  const image = a.images[0]!
+  for (const run of runs) {
+    const e = await handingInMember(db, courseId, run.group)
+    if (!e) continue
+    await submitHandIn(
+      db,
+      e,
+      moduleId,
+      {
+        mappings: { [table.key]: { ...run.mapping } },
+        measurements: Object.fromEntries(
+          a.measurements.map((m) => [
+            m.key,
+            { value: run.measurements[m.key]!, unit: m.unit, ...(m.pressure ? { pressure: m.pressure } : {}) },
+          ]),
+        ),
+        reported: Object.fromEntries(a.results.map((r) => [r.key, { value: run.reported[r.key]!, unit: r.unit }])),
+        images: { [image.key]: run.photo.marks },
+      },
+      [
+        {
+          field: `table:${table.key}`,
+          filename: `jet-run-${run.group.toLowerCase()}.csv`,
+          contentType: 'text/csv',
+          bytes: Buffer.from(run.csv, 'utf8'),
+        },
+        {
+          field: `photo:${image.key}`,
+          filename: run.photo.filename,
+          contentType: run.photo.contentType,
+          bytes: run.photo.bytes,
+        },
+      ],
+      { grading },
     )
   }
 }

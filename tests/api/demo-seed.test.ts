@@ -2,6 +2,7 @@ import { and, eq, gt, inArray } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_WRONG_RUNS } from '../../scripts/demo/demo-runs'
 import { HOT_FIRE_STAND, HOT_FIRE_WRONG_RUNS } from '../../scripts/demo/hot-fire-runs'
+import { DEMO_JET_GROUPS, DEMO_JET_WRONG_SCALE } from '../../scripts/demo/jet-runs'
 import {
   DEFAULT_DEMO_PASSWORD,
   DEMO_COURSE,
@@ -52,7 +53,7 @@ describe('the demo seed', () => {
     expect(found).toHaveLength(1)
   })
 
-  it('publishes the fundamentals, cold-flow and hot-fire modules', async () => {
+  it('publishes the fundamentals, cold-flow, hot-fire and jet modules', async () => {
     const rows = await ctx.handle.db
       .select({
         slug: modules.slug,
@@ -66,15 +67,15 @@ describe('the demo seed', () => {
       .innerJoin(moduleVersions, and(eq(moduleVersions.moduleId, modules.id), eq(moduleVersions.number, 1)))
       .where(eq(modules.courseId, courseId))
     const bySlug = Object.fromEntries(rows.map((r) => [r.slug, r]))
-    // The seed makes these three; browser tests that share the demo course may have added sheets of their own.
-    const seeded = ['cold-flow-characterisation', 'hot-fire', 'nozzle-flow-fundamentals']
+    // The seed makes these four; browser tests that share the demo course may have added sheets of their own.
+    const seeded = ['cold-flow-characterisation', 'hot-fire', 'nozzle-flow-fundamentals', 'reading-the-jet']
     expect(
       Object.keys(bySlug)
         .filter((slug) => seeded.includes(slug))
         .sort(),
     ).toEqual(seeded)
     // Version 1 of each, published at seed time.
-    for (const slug of ['nozzle-flow-fundamentals', 'cold-flow-characterisation', 'hot-fire']) {
+    for (const slug of seeded) {
       expect(bySlug[slug]!.publishedAt, slug).not.toBeNull()
       expect(bySlug[slug]!.status, slug).toBe('published')
     }
@@ -173,6 +174,48 @@ describe('the demo seed', () => {
       }
       for (const f of wrong.flags) expect(codes, `${wrong.group} ${f}`).toContain(f)
       expect(row.review, row.group).not.toBe('none')
+    }
+  })
+
+  it('hands in a photograph of the jet for a few groups; the group whose scale spans half the exit fails the spacing and ratio checks and is flagged to check its scale', async () => {
+    const db = ctx.handle.db
+    const rows = await db
+      .select({ id: submissions.id, status: submissions.status, group: labGroups.name })
+      .from(submissions)
+      .innerJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+      .innerJoin(modules, eq(modules.id, submissions.moduleId))
+      .where(and(eq(submissions.courseId, courseId), eq(modules.slug, 'reading-the-jet')))
+    const seeded = rows.filter((r) => DEMO_JET_GROUPS.some((g) => r.group === `Group ${g}`))
+    expect(seeded.map((r) => r.group).sort()).toEqual(DEMO_JET_GROUPS.map((g) => `Group ${g}`).sort())
+    expect(seeded.every((r) => r.status === 'graded')).toBe(true)
+    const inst = await signedInAs(ctx, DEMO_INSTRUCTOR.email, DEFAULT_DEMO_PASSWORD)
+    for (const row of seeded) {
+      const detail = await inst.agent.get(`/api/courses/${courseId}/submissions/${row.id}`).expect(200)
+      // The photograph is stored with the marks handed in.
+      expect(detail.body.images, row.group).toHaveLength(1)
+      expect(detail.body.images[0]).toMatchObject({ key: 'jet', contentType: 'image/png', width: 720, height: 320 })
+      expect(detail.body.images[0].marks.cellEnds.length, row.group).toBeGreaterThanOrEqual(2)
+      const outcomes = Object.fromEntries(
+        (detail.body.checks as { key: string; outcome: string }[]).map((c) => [c.key, c.outcome]),
+      )
+      const codes = (
+        await db
+          .select({ code: submissionFlags.code })
+          .from(submissionFlags)
+          .where(eq(submissionFlags.submissionId, row.id))
+      ).map((f) => f.code)
+      if (row.group === `Group ${DEMO_JET_WRONG_SCALE}`) {
+        expect(outcomes.cell_measured, row.group).toBe('fail')
+        expect(outcomes.cell_ratio, row.group).toBe('fail')
+        expect(outcomes.cell_theory, row.group).toBe('pass')
+        expect(codes, row.group).toContain('rule:check_the_scale')
+      } else {
+        expect(
+          Object.values(outcomes).every((o) => o === 'pass'),
+          `${row.group} ${JSON.stringify(outcomes)}`,
+        ).toBe(true)
+        expect(codes, row.group).toEqual([])
+      }
     }
   })
 
