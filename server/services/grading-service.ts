@@ -1,3 +1,5 @@
+import { measureJet } from '../../shared/images/jet-marks'
+import type { ImageMeasures } from '../../shared/modules/scope'
 import { logFingerprint, nearCopy, nearCopyMessage } from '../../shared/grading/fingerprint'
 import type { LogFingerprint, NearCopy } from '../../shared/grading/fingerprint'
 import type { GradeInput, GradeResult } from '../../shared/grading/grade'
@@ -89,7 +91,15 @@ export function gradingInputOf(
     const t = inputs.reported[r.key]
     if (t) reported[r.key] = toSpecUnit(t.value, t.unit, r.unit)
   }
-  return { assignment: a, data: { tables, measurements, pressures }, reported, latePenalty }
+  // Each photograph's distances, measured again from the stored marks the same way the pages do.
+  const images: Record<string, ImageMeasures> = {}
+  for (const img of a.images) {
+    const marks = inputs.images?.[img.key]
+    if (!marks) continue
+    const m = measureJet(marks)
+    images[img.key] = { cellSpacing: m.meanCellSpacing, machDisk: m.machDiskDistance, cellCount: marks.cellEnds.length }
+  }
+  return { assignment: a, data: { tables, measurements, pressures, images }, reported, latePenalty }
 }
 
 function checkWrites(result: GradeResult): CheckWrite[] {
