@@ -10,7 +10,7 @@ import { GRADING_FAILED_MESSAGE, isAwaitingGrade } from '../../shared/schemas/su
  *
  * The report is the student's document whoever downloads it: expected values appear only when
  * the module shows them to students, so a report staff hand on never shows more than the student's
- * own result page.
+ * own result page. The same holds for the theory's distances beside a photograph (./report-images.ts).
  */
 import { PassThrough } from 'node:stream'
 import type { Readable } from 'node:stream'
@@ -22,11 +22,13 @@ import type { CourseEnrollment } from '../repositories/enrollments'
 import { findModule, findVersion, findVersions } from '../repositories/modules'
 import { courseHeader, gradedSubmissionsOfModule, groupMemberNames } from '../repositories/reports'
 import { listComments } from '../repositories/review'
+import { listImagesWithBytes } from '../repositories/submission-images'
 import { findSubmission, listChecks, listFlags } from '../repositories/submissions'
 import { feedbackPdfBuffer } from '../reports/feedback-pdf'
 import type { FeedbackReportData } from '../reports/feedback-pdf'
 import { fileSlug } from '../reports/format'
 import { markdownToParagraphs } from '../reports/plain-text'
+import { reportImages } from './report-images'
 import { submissionDetail } from './submission-service'
 
 export interface FeedbackReport {
@@ -72,11 +74,12 @@ export async function feedbackReport(
   if (!row || !version || !course || !mod) throw notFound('That submission')
   const fm = version.frontMatter as unknown as ModuleFrontMatter | null
 
-  const [checkRows, flagRows, commentRows, members] = await Promise.all([
+  const [checkRows, flagRows, commentRows, members, pictures] = await Promise.all([
     listChecks(db, submissionId),
     listFlags(db, submissionId),
     listComments(db, submissionId),
     row.labGroupId !== null && fm?.groupSubmission ? groupMemberNames(db, row.labGroupId) : Promise.resolve(null),
+    detail.images.length > 0 ? listImagesWithBytes(db, submissionId) : Promise.resolve([]),
   ])
   const adjusted = new Set(checkRows.filter((c) => c.overridden).map((c) => c.id))
   const showExpected = fm?.showExpected ?? false
@@ -118,6 +121,13 @@ export async function feedbackReport(
     flags: flagRows.map((f) => ({ message: f.message, status: f.status, resolvedAt: f.resolvedAt })),
     comments: commentRows.map((c) => ({ author: c.author, at: c.at, paragraphs: markdownToParagraphs(c.body) })),
     chart: detail.chart,
+    images: reportImages(
+      detail.images,
+      fm?.assignment?.images ?? [],
+      detail.checks,
+      showExpected,
+      new Map(pictures.map((p) => [p.imageKey, p.bytes])),
+    ),
     generatedAt: now,
   }
   return { filename: `${fileSlug(mod.slug, 'module')}_${fileSlug(owner.name)}_attempt-${detail.attempt}.pdf`, data }

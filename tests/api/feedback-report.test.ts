@@ -11,7 +11,8 @@ import { hashPassword } from '../../server/auth/password'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { createModuleAs, publishAs } from '../helpers/modules'
 import type { CreatedModule } from '../helpers/modules'
-import { pdfFonts, readPdf, readZip, squash } from '../helpers/pdf'
+import { JET_SHEET, jetPayload, jetPhotoFile } from '../helpers/jet-photo'
+import { pdfFonts, pdfImages, readPdf, readZip, squash } from '../helpers/pdf'
 
 const COLD = currentDueDates(
   readFileSync(new URL('../../content/02-cold-flow-characterisation.md', import.meta.url), 'utf8'),
@@ -363,5 +364,45 @@ describe('feedback report: the uncertainty of the expected values', () => {
     expect(pdf.text).toContain('Where the uncertainty comes from')
     expect(pdf.text).toMatch(/Peak thrust: (mostly|all from) the thrust column's (gain|offset)/)
     expect(pdf.text).not.toContain('k = 2')
+  })
+})
+
+describe('feedback report of a hand-in with a photograph', () => {
+  async function photoReport(sheet: string) {
+    const jetMod = await createModuleAs(inst, fx.courseId, sheet)
+    await publishAs(inst, fx.courseId, jetMod)
+    const photo = await jetPhotoFile('png')
+    const res = await student.agent
+      .post(`${C()}/modules/${jetMod.id}/submissions`)
+      .set('x-csrf-token', student.csrf)
+      .field('payload', JSON.stringify(jetPayload({ jet: photo.marks })))
+      .attach('photo:jet', photo.bytes, 'jet.png')
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+    expect(res.body.status).toBe('graded')
+    const pdf = await download(student, `${C()}/submissions/${res.body.id}/report.pdf`)
+    expect(pdf.status).toBe(200)
+    return pdf.body
+  }
+
+  it('prints the stored picture at its pixel size, its label, and the measured spacing beside the theory', async () => {
+    const bytes = await photoReport(JET_SHEET)
+    // The test picture: 480 × 200 pixels, cells 72 px apart on a scale of 48 px for 8 mm (12 mm,
+    // 1.5 exit diameters); the sheet's theory result expects 12 mm, so the ratio is 1.
+    expect(pdfImages(bytes).map((i) => [i.width, i.height])).toEqual([[480, 200]])
+    const pdf = await readPdf(bytes)
+    expect(pdf.text).toContain('Shadowgraph of the jet')
+    const lines = pdf.lines.flat()
+    expect(lines).toContain('Mean cell spacing 12 mm (1.5 D) 12 mm (1.5 D) 1')
+    // The Mach disk is marked 6 mm from the exit; the sheet names no theory for it.
+    expect(lines).toContain('Exit plane to the Mach disk 6 mm (0.75 D) not shown —')
+  })
+
+  it('leaves the theory out where the sheet hides expected values from students', async () => {
+    const hidden = JET_SHEET.replace('showExpected: true', 'showExpected: false').replace(
+      /^title: .*$/m,
+      'title: Reading the jet, expected values hidden',
+    )
+    const pdf = await readPdf(await photoReport(hidden))
+    expect(pdf.lines.flat()).toContain('Mean cell spacing 12 mm (1.5 D) not shown —')
   })
 })
