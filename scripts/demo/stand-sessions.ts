@@ -32,7 +32,8 @@ export const DEMO_STANDS = [
     name: 'Blow-down stand 1',
     location: 'Test Bay 2, north wall',
     maxPressureNote: 'Receiver marked 1000 kPa gauge; demo runs charge to about 750 kPa',
-    sheets: ['cold-flow-characterisation'],
+    // The jet photographs are taken here too: the schlieren bench stands beside this stand.
+    sheets: ['cold-flow-characterisation', 'reading-the-jet'],
   },
   {
     name: 'Combustor cell',
@@ -60,7 +61,7 @@ export const DEMO_ABORTED_RUN = {
     'The receiver regulator did not hold its set point during the blow-down; the run was stopped from behind the barrier and the receiver vented before anyone approached.',
 } as const
 
-type DemoSheet = 'cold-flow-characterisation' | 'hot-fire'
+type DemoSheet = 'cold-flow-characterisation' | 'hot-fire' | 'reading-the-jet'
 
 /** Which week (relative to the week of seeding) and slot each group's run of a sheet took place in. */
 const PAST_RUNS: { sheet: DemoSheet; week: number; stand: number }[] = [
@@ -121,7 +122,12 @@ export async function seedStandSessions(tx: Transaction, courseId: number, now =
     })
     .from(modules)
     .innerJoin(moduleVersions, eq(moduleVersions.id, modules.publishedVersionId))
-    .where(and(eq(modules.courseId, courseId), inArray(modules.slug, ['cold-flow-characterisation', 'hot-fire'])))
+    .where(
+      and(
+        eq(modules.courseId, courseId),
+        inArray(modules.slug, ['cold-flow-characterisation', 'hot-fire', 'reading-the-jet']),
+      ),
+    )
   const sheets = new Map(
     sheetRows.map((r) => [
       r.slug as DemoSheet,

@@ -19,6 +19,7 @@ import {
   runEntries,
   runRecords,
   sections,
+  standModules,
   standSlots,
   stands,
   moduleVersions,
@@ -186,6 +187,17 @@ describe('the demo seed', () => {
       .innerJoin(modules, eq(modules.id, submissions.moduleId))
       .where(and(eq(submissions.courseId, courseId), eq(modules.slug, 'reading-the-jet')))
     const seeded = rows.filter((r) => DEMO_JET_GROUPS.some((g) => r.group === `Group ${g}`))
+    // Groups can book the blow-down stand for the sheet (its schlieren bench stands beside it).
+    const [jetSheet] = await db
+      .select({ id: modules.id })
+      .from(modules)
+      .where(and(eq(modules.courseId, courseId), eq(modules.slug, 'reading-the-jet')))
+    const allowedOn = await db
+      .select({ name: stands.name })
+      .from(standModules)
+      .innerJoin(stands, eq(stands.id, standModules.standId))
+      .where(eq(standModules.moduleId, jetSheet!.id))
+    expect(allowedOn.map((s) => s.name)).toEqual(['Blow-down stand 1'])
     expect(seeded.map((r) => r.group).sort()).toEqual(DEMO_JET_GROUPS.map((g) => `Group ${g}`).sort())
     expect(seeded.every((r) => r.status === 'graded')).toBe(true)
     const inst = await signedInAs(ctx, DEMO_INSTRUCTOR.email, DEFAULT_DEMO_PASSWORD)
