@@ -11,7 +11,7 @@
  */
 import { measureJet } from '../../shared/images/jet-marks'
 import type { JetMarks, JetMeasurement, Point } from '../../shared/images/jet-marks'
-import { formatCompact, valueText } from '../../shared/format'
+import { formatCompact, valueText, withUnit } from '../../shared/format'
 import type { FontRole } from './fonts'
 import {
   INK,
@@ -112,7 +112,7 @@ export function markShapes(marks: JetMarks, pointsPerPixel: number, origin: Poin
     scale: {
       line: [at(marks.scale.from), at(marks.scale.to)],
       ticks: [tickAt(marks.scale.from), tickAt(marks.scale.to)],
-      label: `${formatCompact(marks.scale.length, 4)} ${marks.scale.unit}`,
+      label: withUnit(formatCompact(marks.scale.length, 4), marks.scale.unit),
     },
     exitPlane: acrossAt(e, Math.max(0.75 * scalePts, 8)),
     cellEnds: marks.cellEnds
@@ -283,7 +283,7 @@ function measuredTables(doc: Doc, img: ReportImage, m: JetMeasurement): void {
     doc,
     'serif',
     9,
-    `Scale: ${formatCompact(img.marks.scale.length, 4)} ${img.marks.scale.unit} over ${formatCompact(pixels, 4)} pixels (${formatCompact(m.metresPerPixel * 1e3, 3)} mm per pixel). D is a distance divided by the scale's length, the exit diameter unless another length was set.`,
+    `Scale: ${withUnit(formatCompact(img.marks.scale.length, 4), img.marks.scale.unit)} over ${formatCompact(pixels, 4)} pixels (${formatCompact(m.metresPerPixel * 1e3, 3)} mm per pixel). D is a distance divided by the scale's length, the exit diameter unless another length was set.`,
     MUTED,
   )
   doc.y += 4
