@@ -18,4 +18,5 @@ CREATE TABLE `submission_images` (
 );
 --> statement-breakpoint
 ALTER TABLE `submission_images` ADD CONSTRAINT `submission_images_submission_id_submissions_id_fk` FOREIGN KEY (`submission_id`) REFERENCES `submissions`(`id`) ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
-ALTER TABLE `submission_images` ADD CONSTRAINT `submission_images_course_id_courses_id_fk` FOREIGN KEY (`course_id`) REFERENCES `courses`(`id`) ON DELETE cascade ON UPDATE no action;
+ALTER TABLE `submission_images` ADD CONSTRAINT `submission_images_course_id_courses_id_fk` FOREIGN KEY (`course_id`) REFERENCES `courses`(`id`) ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+CREATE INDEX `submission_images_course_original_idx` ON `submission_images` (`course_id`,`original_sha256`);

@@ -1,6 +1,7 @@
 import { and, asc, eq } from 'drizzle-orm'
 import type { Executor } from '../db/client'
-import { submissionImages } from '../db/schema'
+import { labGroups, submissionImages, submissions, users } from '../db/schema'
+import { notOwnedBy } from './submissions'
 
 export type NewSubmissionImage = typeof submissionImages.$inferInsert
 
@@ -46,4 +47,28 @@ export async function findImageBytes(db: Executor, submissionId: number, imageKe
     .where(and(eq(submissionImages.submissionId, submissionId), eq(submissionImages.imageKey, imageKey)))
     .limit(1)
   return rows[0] ?? null
+}
+
+/** Someone else's hand-ins in the course with a photograph uploaded byte for byte the same. */
+export function findIdenticalPhotos(
+  db: Executor,
+  courseId: number,
+  originalSha256: string,
+  owner: { userId: number; labGroupId: number | null },
+): Promise<{ submissionId: number; submittedBy: string; labGroupName: string | null }[]> {
+  return db
+    .select({ submissionId: submissions.id, submittedBy: users.displayName, labGroupName: labGroups.name })
+    .from(submissionImages)
+    .innerJoin(submissions, eq(submissions.id, submissionImages.submissionId))
+    .innerJoin(users, eq(users.id, submissions.userId))
+    .leftJoin(labGroups, eq(labGroups.id, submissions.labGroupId))
+    .where(
+      and(
+        eq(submissionImages.courseId, courseId),
+        eq(submissionImages.originalSha256, originalSha256),
+        notOwnedBy(owner),
+      ),
+    )
+    .orderBy(asc(submissions.id))
+    .limit(5)
 }

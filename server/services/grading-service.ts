@@ -1,4 +1,5 @@
 import { measureJet } from '../../shared/images/jet-marks'
+import { findIdenticalPhotos, listImages } from '../repositories/submission-images'
 import type { ImageMeasures } from '../../shared/modules/scope'
 import { logFingerprint, nearCopy, nearCopyMessage } from '../../shared/grading/fingerprint'
 import type { LogFingerprint, NearCopy } from '../../shared/grading/fingerprint'
@@ -254,6 +255,17 @@ async function copyFlags(
         otherSubmissionId: first.submissionId,
         columns: first.match.columns.map((c) => `${c.key} (${c.how})`).join(', '),
       },
+    })
+  }
+  for (const image of await listImages(db, s.id)) {
+    const same = await findIdenticalPhotos(db, s.courseId, image.originalSha256, owner)
+    if (!same.length) continue
+    const label = fm?.assignment?.images.find((i) => i.key === image.imageKey)?.label ?? image.imageKey
+    const who = [...new Set(same.map((x) => x.labGroupName ?? x.submittedBy))].join(', ')
+    flags.push({
+      code: 'identical-file',
+      message: `The photograph "${label}" is byte-for-byte the same file as a photograph handed in by ${who}.`,
+      detail: { otherSubmissionId: same[0]!.submissionId },
     })
   }
   return flags

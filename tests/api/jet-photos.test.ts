@@ -110,6 +110,23 @@ describe('handing in a photograph with marks', () => {
   })
 })
 
+describe('copies', () => {
+  it('flags a photograph that is byte for byte the same file as another student’s', async () => {
+    const copy = await jetPhotoFile('png', { width: 400, height: 180 })
+    const first = await handIn(student, [{ field: 'photo:jet', name: 'mine.png', body: copy.bytes }], {
+      jet: copy.marks,
+    })
+    expect(first.status).toBe(201)
+    expect(first.body.flags.map((f: { code: string }) => f.code)).not.toContain('identical-file')
+    const second = await handIn(student2, [{ field: 'photo:jet', name: 'also-mine.png', body: copy.bytes }], {
+      jet: copy.marks,
+    })
+    expect(second.status).toBe(201)
+    const flag = second.body.flags.find((f: { code: string }) => f.code === 'identical-file')
+    expect(flag?.message).toMatch(/photograph "Shadowgraph of the jet" is byte-for-byte the same file/)
+  })
+})
+
 describe('a photograph or marks that cannot be taken store nothing', () => {
   const cases: { name: string; status: number; field: RegExp; build: () => Promise<Parameters<typeof handIn>> }[] = [
     {

@@ -1,4 +1,4 @@
-import { char, customType, int, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
+import { char, customType, index, int, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core'
 import { id, ref, timestamps } from './columns'
 import { courses } from './courses'
 import { submissions } from './submissions'
@@ -34,5 +34,9 @@ export const submissionImages = mysqlTable(
     bytes: longBlob('bytes').notNull(),
     ...timestamps,
   },
-  (t) => [uniqueIndex('submission_images_submission_key_uq').on(t.submissionId, t.imageKey)],
+  (t) => [
+    uniqueIndex('submission_images_submission_key_uq').on(t.submissionId, t.imageKey),
+    // "The same photograph as another group's in this course" is one indexed lookup.
+    index('submission_images_course_original_idx').on(t.courseId, t.originalSha256),
+  ],
 )
