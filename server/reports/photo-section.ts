@@ -11,7 +11,7 @@
  */
 import { measureJet } from '../../shared/images/jet-marks'
 import type { JetMarks, JetMeasurement, Point } from '../../shared/images/jet-marks'
-import { formatCompact, valueText, withUnit } from '../../shared/format'
+import { formatCompact, withUnit } from '../../shared/format'
 import type { FontRole } from './fonts'
 import {
   INK,
@@ -200,10 +200,13 @@ function drawMarks(doc: Doc, img: ReportImage, box: Box): void {
 // ---------------------------------------------------------------------------------------------
 // The numbers.
 
-/** "15 mm (1.5 D)": a length in mm and in scale lengths, or a word when there is none. */
+/**
+ * "15 mm (1.5 D)": a length in mm and in scale lengths, or a word when there is none. Three
+ * significant figures: a mark on a photograph is good to a pixel or so, a few tenths of a millimetre.
+ */
 function lengthText(metres: number | null, scaleLength: number, missing: string): string {
   if (metres === null || !Number.isFinite(metres)) return missing
-  return `${valueText(metres * 1e3, 'mm')} (${formatCompact(metres / scaleLength, 3)} D)`
+  return `${withUnit(formatCompact(metres * 1e3, 3), 'mm')} (${formatCompact(metres / scaleLength, 3)} D)`
 }
 
 function ratioText(measured: number, expected: number | null): string {
