@@ -9,6 +9,7 @@
  */
 import { checkMarks, JetMarksSchema, MAX_CELL_ENDS, measureJet } from '@shared/images/jet-marks'
 import type { JetMarks, MarkProblem, MarkRules, Point } from '@shared/images/jet-marks'
+import { parseDecimal } from '@shared/grading/decimal'
 
 /** What a click (or Enter at the cross-hair) places. */
 export type MarkMode = 'scale' | 'exit-plane' | 'cell-end' | 'mach-disk'
@@ -289,6 +290,15 @@ export function nextMode(d: MarkDraft, mode: MarkMode): MarkMode {
 export interface ScaleLength {
   value: number
   unit: string
+}
+
+/**
+ * The scale length the marks use: what the student typed (a decimal point or comma), or, when the
+ * box is blank, the default (the sheet's typed exit diameter); null when there is neither.
+ */
+export function typedScale(text: string, unit: string, fallback: ScaleLength | null): ScaleLength | null {
+  if (text.trim() === '') return fallback
+  return { value: parseDecimal(text.trim()), unit }
 }
 
 /**
