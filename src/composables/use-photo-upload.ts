@@ -4,7 +4,7 @@
  * measuring tool, the marks being placed, and the scale length as typed. The measuring tool's own
  * rules are in src/components/photo/mark-draft.ts.
  */
-import { onScopeDispose, ref, shallowRef } from 'vue'
+import { getCurrentScope, onScopeDispose, ref, shallowRef } from 'vue'
 import type { Ref, ShallowRef } from 'vue'
 import { MAX_IMAGE_PIXELS } from '@shared/images/jet-marks'
 import type { StudentImageSpec } from '@shared/schemas/student-module-spec'
@@ -96,7 +96,8 @@ export function usePhotoUpload(spec: StudentImageSpec): PhotoUpload {
     if (url.value) URL.revokeObjectURL(url.value)
     url.value = null
   }
-  onScopeDispose(release)
+  // The page's scope frees the object URL when the form goes away.
+  if (getCurrentScope()) onScopeDispose(release)
 
   /** Which choice is current: a slow read of an earlier file must not overwrite a later one. */
   let latest = 0

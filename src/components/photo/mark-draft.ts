@@ -293,7 +293,7 @@ export interface ScaleLength {
 }
 
 /**
- * The scale length the marks use: what the student typed (a decimal point or comma), or, when the
+ * The scale length the marks use: what the student typed (read as the hand-in reads numbers), or, when the
  * box is blank, the default (the sheet's typed exit diameter); null when there is neither.
  */
 export function typedScale(text: string, unit: string, fallback: ScaleLength | null): ScaleLength | null {
