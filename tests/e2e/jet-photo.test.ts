@@ -226,6 +226,15 @@ describe('a photograph of the jet, marked in the browser', () => {
     await page.keyboard.press('Control+z')
     await expect.poll(() => first.innerText()).toBe(before)
 
+    // Zoom in (the marks keep their places in the picture's pixels), and back to the whole picture.
+    const viewBox = () => tool.locator('.picture svg').getAttribute('viewBox')
+    await tool.getByRole('button', { name: 'Zoom in' }).click()
+    await expect.poll(viewBox).not.toBe(`0 0 ${photo.width} ${photo.height}`)
+    expect((await viewBox())!.split(' ').slice(2).map(Number)).toEqual([photo.width / 1.5, photo.height / 1.5])
+    await tool.getByRole('button', { name: 'Pan right' }).click()
+    await tool.getByRole('button', { name: 'Whole picture' }).click()
+    await expect.poll(viewBox).toBe(`0 0 ${photo.width} ${photo.height}`)
+
     expect(await markKeys(page, '[data-photo="hand-in-p-jet"]')).toEqual([
       'scale-1',
       'scale-2',
