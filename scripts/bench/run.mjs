@@ -1,4 +1,4 @@
-// `npm run bench`: the formula library, the combustion library, the grading step, the feedback report PDF, hand-in throughput over HTTP on
+// `npm run bench`: the formula library, the combustion library, the grading step, the feedback report PDF, photographs, hand-in throughput over HTTP on
 // loopback (against a project-owned bench database, started and stopped here), and the bytes of JavaScript three
 // pages download in Chromium (after a fresh client build). Prints figures; speed goals are read from these, never
 // asserted in tests.
@@ -30,6 +30,7 @@ if (!onlyPages) {
   ok = runTs('scripts/bench/thermo.ts') && ok
   if (existsSync(path.join(ROOT, 'scripts/bench/grading.ts'))) ok = runTs('scripts/bench/grading.ts') && ok
   ok = runTs('scripts/bench/report.ts') && ok
+  ok = runTs('scripts/bench/photo.ts') && ok
 }
 
 let db = null

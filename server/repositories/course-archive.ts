@@ -10,6 +10,7 @@ import {
   submissionChecks,
   submissionComments,
   submissionFiles,
+  submissionImages,
   submissionFlags,
   submissions,
   users,
@@ -95,6 +96,38 @@ export async function pageParsedValues(db: Executor, courseId: number, afterId: 
     .where(and(eq(submissionFiles.courseId, courseId), gt(submissionFiles.id, afterId)))
     .orderBy(asc(submissionFiles.id))
     .limit(limit)
+}
+
+/** The photographs' descriptions, without their bytes (the marks are in the hand-ins' inputs). */
+export async function pagePhotos(db: Executor, courseId: number, afterId: number, limit = ARCHIVE_PAGE_SIZE) {
+  return db
+    .select({
+      id: submissionImages.id,
+      submissionId: submissionImages.submissionId,
+      imageKey: submissionImages.imageKey,
+      contentType: submissionImages.contentType,
+      width: submissionImages.width,
+      height: submissionImages.height,
+      size: submissionImages.size,
+      sha256: submissionImages.sha256,
+      originalSha256: submissionImages.originalSha256,
+      originalSize: submissionImages.originalSize,
+      createdAt: submissionImages.createdAt,
+    })
+    .from(submissionImages)
+    .where(and(eq(submissionImages.courseId, courseId), gt(submissionImages.id, afterId)))
+    .orderBy(asc(submissionImages.id))
+    .limit(limit)
+}
+
+/** One stored photograph's bytes (as stored: re-encoded, without metadata). */
+export async function photoBytes(db: Executor, courseId: number, photoId: number): Promise<Buffer | null> {
+  const rows = await db
+    .select({ bytes: submissionImages.bytes })
+    .from(submissionImages)
+    .where(and(eq(submissionImages.courseId, courseId), eq(submissionImages.id, photoId)))
+    .limit(1)
+  return rows[0]?.bytes ?? null
 }
 
 /** One stored file's raw bytes. */

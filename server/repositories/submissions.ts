@@ -235,19 +235,23 @@ export async function saveGrade(
 }
 
 /** Files in the course with these bytes that belong to someone else (another person and group). */
+/** Hand-ins of someone else: another person, and not the same lab group. */
+export function notOwnedBy(owner: { userId: number; labGroupId: number | null }) {
+  return owner.labGroupId !== null
+    ? and(
+        ne(submissions.userId, owner.userId),
+        or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`),
+      )
+    : ne(submissions.userId, owner.userId)
+}
+
 export async function findIdenticalFiles(
   db: Executor,
   courseId: number,
   sha256: string,
   owner: { userId: number; labGroupId: number | null },
 ): Promise<{ submissionId: number; submittedBy: string; labGroupName: string | null }[]> {
-  const notMine =
-    owner.labGroupId !== null
-      ? and(
-          ne(submissions.userId, owner.userId),
-          or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`),
-        )
-      : ne(submissions.userId, owner.userId)
+  const notMine = notOwnedBy(owner)
   return db
     .select({ submissionId: submissions.id, submittedBy: users.displayName, labGroupName: labGroups.name })
     .from(submissionFiles)
@@ -281,13 +285,7 @@ export async function findFingerprintsInModule(
     fingerprint: LogFingerprint | null
   }[]
 > {
-  const notMine =
-    owner.labGroupId !== null
-      ? and(
-          ne(submissions.userId, owner.userId),
-          or(ne(submissions.labGroupId, owner.labGroupId), sql`${submissions.labGroupId} IS NULL`),
-        )
-      : ne(submissions.userId, owner.userId)
+  const notMine = notOwnedBy(owner)
   return db
     .select({
       fileId: submissionFiles.id,

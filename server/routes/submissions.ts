@@ -3,6 +3,7 @@ import { ModuleParamsSchema } from '../../shared/schemas/modules'
 import { HandInRunFieldSchema } from '../../shared/schemas/runs'
 import {
   SubmissionFileParamsSchema,
+  SubmissionImageParamsSchema,
   SubmissionParamsSchema,
   SubmissionPayloadSchema,
   isAwaitingGrade,
@@ -13,7 +14,13 @@ import { ANY_MEMBER, courseMember, enrollmentOf } from '../middleware/authorize'
 import { handInUpload } from '../middleware/hand-in-upload'
 import { valid, validate } from '../middleware/validate'
 import { handInFileFields } from '../services/hand-in-spec'
-import { mySubmissions, submissionDetail, submissionFile, submitHandIn } from '../services/submission-service'
+import {
+  mySubmissions,
+  submissionDetail,
+  submissionFile,
+  submissionImage,
+  submitHandIn,
+} from '../services/submission-service'
 import type { GradingContext } from '../services/grading-service'
 
 interface Opts {
@@ -29,6 +36,7 @@ interface Opts {
  * - GET  /api/courses/:courseId/modules/:moduleId/submissions/mine   enrolled (a student's own or lab group's attempts)
  * - GET  /api/courses/:courseId/submissions/:submissionId             its submitter, their lab group, or course staff (others 404)
  * - GET  /api/courses/:courseId/submissions/:submissionId/files/:fileId   same as above (the raw upload)
+ * - GET  /api/courses/:courseId/submissions/:submissionId/images/:imageKey   same as above (the stored photograph)
  */
 export function handInRoutes(db: Database, opts: Opts): Router {
   const r = Router({ mergeParams: true })
@@ -104,6 +112,27 @@ export function handInRoutes(db: Database, opts: Opts): Router {
       const f = await submissionFile(db, enrollmentOf(res), submissionId, fileId)
       // Served as an attachment with a fixed type: the browser never renders student content.
       res.attachment(f.filename).type('text/csv; charset=utf-8').set('X-Content-Type-Options', 'nosniff').send(f.bytes)
+    },
+  )
+
+  r.get(
+    '/submissions/:submissionId/images/:imageKey',
+    courseMember(db, ANY_MEMBER),
+    validate('params', SubmissionImageParamsSchema),
+    async (_req, res) => {
+      const { submissionId, imageKey } = valid(res, 'params', SubmissionImageParamsSchema)
+      const image = await submissionImage(db, enrollmentOf(res), submissionId, imageKey)
+      // The stored picture was decoded and re-encoded by the server, so it is a plain PNG or JPEG
+      // and safe to show inline; the type is fixed and never sniffed.
+      res
+        .type(image.contentType)
+        .set('X-Content-Type-Options', 'nosniff')
+        .set('Cache-Control', 'private, max-age=3600')
+        .set(
+          'Content-Disposition',
+          `inline; filename="${imageKey}${image.contentType === 'image/png' ? '.png' : '.jpg'}"`,
+        )
+        .send(image.bytes)
     },
   )
 

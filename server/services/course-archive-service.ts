@@ -1,6 +1,6 @@
 /**
  * The end-of-term archive of a course: one zip with the roster, the gradebook, every hand-in with
- * its raw files, parsed values, checks, flags, staff changes to points, comments and re-check
+ * its raw files, photographs (as stored), parsed values, checks, flags, staff changes to points, comments and re-check
  * requests (each as JSON lines and CSV), and every feedback report that can be made; `manifest.json`,
  * written last, lists every other entry with its size and sha256 and the counts of what was written.
  *
@@ -19,6 +19,8 @@ import {
   pageChecks,
   pageComments,
   pageFiles,
+  pagePhotos,
+  photoBytes,
   pageFlags,
   pageGradeChanges,
   pageParsedValues,
@@ -47,6 +49,7 @@ export interface ArchiveManifest {
     rosterEntries: number
     handIns: number
     files: number
+    photos: number
     checks: number
     flags: number
     staffChanges: number
@@ -228,6 +231,21 @@ export async function courseArchiveZip(
       after = batch[batch.length - 1]!.id
     }
 
+    // The photographs' descriptions, then each stored picture.
+    const photos = await addTable('photos', async (after) =>
+      (await pagePhotos(db, courseId, after)).map((p) => ({ ...p, archivePath: photoPath(p) })),
+    )
+    for (let after = 0; ;) {
+      const batch = await pagePhotos(db, courseId, after)
+      if (batch.length === 0) break
+      for (const p of batch) {
+        const bytes = await photoBytes(db, courseId, p.id)
+        if (!bytes) continue
+        await addEntry(photoPath(p), (put) => put(bytes))
+      }
+      after = batch[batch.length - 1]!.id
+    }
+
     const checks = await addTable('checks', (after) => pageChecks(db, courseId, after))
     const flags = await addTable('flags', (after) => pageFlags(db, courseId, after))
     const staffChanges = await addTable('staff-changes', (after) => pageGradeChanges(db, courseId, after))
@@ -271,6 +289,7 @@ export async function courseArchiveZip(
         rosterEntries: roster.length,
         handIns,
         files,
+        photos,
         checks,
         flags,
         staffChanges,
@@ -299,6 +318,10 @@ export async function courseArchiveZip(
 }
 
 /** Where a raw file goes in the zip: under its hand-in, its id first so names never clash. */
+function photoPath(p: { id: number; submissionId: number; imageKey: string; contentType: string }): string {
+  return `photos/${p.submissionId}/${p.id}_${p.imageKey}.${p.contentType === 'image/png' ? 'png' : 'jpg'}`
+}
+
 function rawPath(f: { id: number; submissionId: number; filename: string }): string {
   const safe = f.filename.replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^[._]+/, '') || 'file'
   return `files/${f.submissionId}/${f.id}_${safe}`

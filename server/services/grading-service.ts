@@ -1,3 +1,6 @@
+import { measureJet } from '../../shared/images/jet-marks'
+import { findIdenticalPhotos, listImages } from '../repositories/submission-images'
+import type { ImageMeasures } from '../../shared/modules/scope'
 import { logFingerprint, nearCopy, nearCopyMessage } from '../../shared/grading/fingerprint'
 import type { LogFingerprint, NearCopy } from '../../shared/grading/fingerprint'
 import type { GradeInput, GradeResult } from '../../shared/grading/grade'
@@ -89,7 +92,15 @@ export function gradingInputOf(
     const t = inputs.reported[r.key]
     if (t) reported[r.key] = toSpecUnit(t.value, t.unit, r.unit)
   }
-  return { assignment: a, data: { tables, measurements, pressures }, reported, latePenalty }
+  // Each photograph's distances, measured again from the stored marks the same way the pages do.
+  const images: Record<string, ImageMeasures> = {}
+  for (const img of a.images) {
+    const marks = inputs.images?.[img.key]
+    if (!marks) continue
+    const m = measureJet(marks)
+    images[img.key] = { cellSpacing: m.meanCellSpacing, machDisk: m.machDiskDistance, cellCount: marks.cellEnds.length }
+  }
+  return { assignment: a, data: { tables, measurements, pressures, images }, reported, latePenalty }
 }
 
 function checkWrites(result: GradeResult): CheckWrite[] {
@@ -244,6 +255,17 @@ async function copyFlags(
         otherSubmissionId: first.submissionId,
         columns: first.match.columns.map((c) => `${c.key} (${c.how})`).join(', '),
       },
+    })
+  }
+  for (const image of await listImages(db, s.id)) {
+    const same = await findIdenticalPhotos(db, s.courseId, image.originalSha256, owner)
+    if (!same.length) continue
+    const label = fm?.assignment?.images.find((i) => i.key === image.imageKey)?.label ?? image.imageKey
+    const who = [...new Set(same.map((x) => x.labGroupName ?? x.submittedBy))].join(', ')
+    flags.push({
+      code: 'identical-file',
+      message: `The photograph "${label}" is byte-for-byte the same file as a photograph handed in by ${who}.`,
+      detail: { otherSubmissionId: same[0]!.submissionId },
     })
   }
   return flags

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto'
 import { logFingerprint } from '../../shared/grading/fingerprint'
 import { chartSeries } from '../../shared/grading/grade'
+import type { JetMarks } from '../../shared/images/jet-marks'
 import { resultsVisibility, type ModuleFrontMatter } from '../../shared/modules/schema'
 import { GRADING_FAILED_MESSAGE } from '../../shared/schemas/submissions'
 import type {
@@ -8,6 +9,7 @@ import type {
   CheckView,
   MySubmissions,
   SubmissionDetail,
+  SubmissionImageView,
   SubmissionPayload,
   SubmissionSummary,
 } from '../../shared/schemas/submissions'
@@ -43,6 +45,8 @@ import { handInReceivedMail, pageLinks } from '../mail/templates'
 import { commentsFor } from './review-service'
 import { runForHandIn } from './run-service'
 import { handInRefusal, validateHandIn } from './hand-in-validation'
+import { prepareHandInPhotos } from './hand-in-photos'
+import { findImageBytes, insertImage, listImages } from '../repositories/submission-images'
 import type { UploadedTable } from './hand-in-validation'
 import { gradeNow, gradingInputOf } from './grading-service'
 import type { GradingContext } from './grading-service'
@@ -175,8 +179,16 @@ export async function submitHandIn(
   const runRecordId = await runForHandIn(db, e, p.moduleId, p.fm.requiresSignedRun === true, opts.runRecordId)
 
   const v = validateHandIn(p.fm, payload, uploads)
-  const refusal = handInRefusal(v)
+  const pictures = await prepareHandInPhotos(p.fm, payload, uploads)
+  const refusal = handInRefusal({
+    issues: [...v.issues, ...pictures.issues],
+    totalIssues: v.totalIssues + pictures.issues.length,
+  })
   if (refusal) throw refusal
+  const inputs =
+    pictures.photos.length === 0
+      ? v.inputs
+      : { ...v.inputs, images: Object.fromEntries(pictures.photos.map((x) => [x.key, x.marks])) }
 
   // The whole transaction runs again if InnoDB picks it as a deadlock victim in a burst.
   const stored = await retryOnLockConflict(() =>
@@ -193,7 +205,7 @@ export async function submitHandIn(
         userId: e.userId,
         labGroupId: 'labGroupId' in owner ? owner.labGroupId : e.labGroupId,
         attempt: used + 1,
-        inputs: v.inputs,
+        inputs,
         isLate: late.isLate,
         daysLate: late.daysLate,
         latePenalty: late.penalty,
@@ -213,6 +225,21 @@ export async function submitHandIn(
           parsed: f.columns,
           rowCount: f.rowCount,
           fingerprint: logFingerprint(f.table, f.columns),
+        })
+      }
+      for (const { key, photo } of pictures.photos) {
+        await insertImage(tx, {
+          submissionId: id,
+          courseId: e.courseId,
+          imageKey: key,
+          contentType: photo.contentType,
+          width: photo.width,
+          height: photo.height,
+          size: photo.bytes.length,
+          sha256: photo.sha256,
+          originalSha256: photo.originalSha256,
+          originalSize: photo.originalSize,
+          bytes: photo.bytes,
         })
       }
       return { id, attempt: used + 1 }
@@ -256,8 +283,10 @@ export async function submitHandIn(
       flags: [],
       chart: null,
       files: [],
-      images: [],
-      inputs: v.inputs,
+      images: pictures.photos.map(({ key, photo, marks }) =>
+        imageView({ ...photo, imageKey: key, size: photo.bytes.length }, marks),
+      ),
+      inputs,
       attemptsAllowed: p.fm.attempts,
       attemptsUsed: stored.attempt,
       comments: [],
@@ -316,6 +345,30 @@ function uncertaintyView(
   }
 }
 
+function imageView(
+  i: {
+    imageKey: string
+    contentType: SubmissionImageView['contentType']
+    width: number
+    height: number
+    size: number
+    sha256: string
+    originalSha256: string
+  },
+  marks: JetMarks,
+): SubmissionImageView {
+  return {
+    key: i.imageKey,
+    contentType: i.contentType,
+    width: i.width,
+    height: i.height,
+    size: i.size,
+    sha256: i.sha256,
+    originalSha256: i.originalSha256,
+    marks,
+  }
+}
+
 export async function submissionDetail(
   db: Database,
   e: CourseEnrollment,
@@ -348,12 +401,13 @@ export async function submissionDetail(
         now,
         course.timeZone,
       )
-  const [checks, flags, files, groupName, comments] = await Promise.all([
+  const [checks, flags, files, groupName, comments, images] = await Promise.all([
     listChecks(db, s.id),
     listFlags(db, s.id),
     listFiles(db, s.id),
     labGroupName(db, s.labGroupId),
     commentsFor(db, s.id),
+    listImages(db, s.id),
   ])
   const showExpected = isStaff(e) || fm.showExpected
   const regimeKeys = new Set(fm.assignment?.results.filter((r) => r.regime).map((r) => r.key) ?? [])
@@ -409,7 +463,10 @@ export async function submissionDetail(
       rowCount: f.rowCount,
       sha256: f.sha256,
     })),
-    images: [],
+    images: images.flatMap((i) => {
+      const marks = s.inputs.images?.[i.imageKey]
+      return marks ? [imageView(i, marks)] : []
+    }),
     inputs: s.inputs,
     attemptsAllowed: fm.attempts,
     attemptsUsed: used,
@@ -462,6 +519,15 @@ export async function mySubmissions(
     labGroupName: await labGroupName(db, e.labGroupId),
     submissions: rows.map((r) => summary(r, vis.visible)),
   }
+}
+
+/** One photograph of a hand-in, for those who may see the hand-in. */
+export async function submissionImage(db: Database, e: CourseEnrollment, submissionId: number, imageKey: string) {
+  const s = await findSubmission(db, e.courseId, submissionId)
+  if (!s || !(await canSee(db, e, s))) throw notFound('That photograph')
+  const image = await findImageBytes(db, submissionId, imageKey)
+  if (!image) throw notFound('That photograph')
+  return image
 }
 
 export async function submissionFile(db: Database, e: CourseEnrollment, submissionId: number, fileId: number) {

@@ -22,6 +22,8 @@ export interface HandInSpec {
   tables: readonly TableSpec[]
   measurements: readonly MeasurementSpec[]
   results: readonly { key: string; label: string; unit: string; regime?: object | undefined }[]
+  /** Photographs; `takenAt` names the time measurement that says when, in the run log, each was taken. */
+  images?: readonly { key: string; label: string; takenAt?: string | undefined }[]
 }
 
 /** A typed value. `text` is what the form's field holds, for the message when it is not a number. */
@@ -330,5 +332,43 @@ export function checkHandIn(
     tables[t.key] = parsed.columns
     logs[t.key] = parsed
   }
+  for (const img of spec.images ?? []) {
+    const problem = photoTimeProblem(img, spec, measurements, tables)
+    if (problem) issues.push(problem)
+  }
   return { issues, totalIssues: issues.length + unlisted, measurements, reported, tables, pressures, logs }
+}
+
+/**
+ * The moment a photograph was taken must lie within the run log, whose pressures at that moment the
+ * expected values read: a time outside it is a mistyped time (or a log of another run).
+ */
+function photoTimeProblem(
+  img: { label: string; takenAt?: string | undefined },
+  spec: HandInSpec,
+  measurements: Readonly<Record<string, number>>,
+  tables: Readonly<Record<string, Record<string, number[]>>>,
+): HandInIssue | null {
+  const m = img.takenAt === undefined ? undefined : spec.measurements.find((x) => x.key === img.takenAt)
+  const at = m ? measurements[m.key] : undefined
+  if (!m || at === undefined) return null
+  for (const t of spec.tables) {
+    const timeColumn = t.columns.find((c) => c.role === 'time')
+    const times = timeColumn ? tables[t.key]?.[timeColumn.key] : undefined
+    if (!times || times.length === 0) continue
+    let lo = Infinity
+    let hi = -Infinity
+    for (const v of times) {
+      if (v < lo) lo = v
+      if (v > hi) hi = v
+    }
+    if (at >= lo && at <= hi) return null
+    const unit = UNITS[m.unit as keyof typeof UNITS]
+    const inUnit = (v: number) => fmt(unit ? unit.fromSI(v) : v)
+    return {
+      field: handInField.measurement(m.key),
+      message: `${m.label}: ${inUnit(at)} ${m.unit} is outside ${t.label.toLowerCase()} (${inUnit(lo)} to ${inUnit(hi)} ${m.unit}); give the time of "${img.label}" in the log's own time.`,
+    }
+  }
+  return null
 }

@@ -219,6 +219,7 @@ export function gradeSubmission(input: GradeInput): GradeResult {
     tables: input.data.tables,
     measurements: input.data.measurements,
     ...(input.data.pressures ? { pressures: input.data.pressures } : {}),
+    ...(input.data.images ? { images: input.data.images } : {}),
   }
   // Expressions see pressures with their transducer zero taken (tare: true); the data checks see them as logged.
   const logged = buildExpressionScope(assignment, data, { units: 'si', tare: false })

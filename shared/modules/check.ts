@@ -50,19 +50,6 @@ export function checkModule(
       for (const e of validateAssignmentExpressions(frontMatter.assignment)) {
         issues.push(moduleIssue(name, formatPath(e.path), e.message, lineOf(e.path)))
       }
-      // The hand-in does not carry photographs yet (upload, marks and their storage come next), so a
-      // sheet asking for them is held back rather than issued to a class that could not hand it in.
-      if (frontMatter.assignment.images.length > 0) {
-        const path = ['assignment', 'images']
-        issues.push(
-          moduleIssue(
-            name,
-            formatPath(path),
-            'photographs in hand-ins are not available yet: a sheet with "images:" cannot be saved until they are; remove it for now',
-            lineOf(path),
-          ),
-        )
-      }
     }
     if (frontMatter.due) {
       try {

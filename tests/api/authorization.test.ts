@@ -22,6 +22,7 @@ import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, moduleSource, publishAs } from '../helpers/modules'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { listRoutes } from '../helpers/routes'
+import { JET_SHEET, jetPayload, jetPhotoFile } from '../helpers/jet-photo'
 import { standCases } from '../helpers/stand-matrix'
 
 /**
@@ -45,8 +46,9 @@ const newCourse = () => ({
 })
 
 // Modules made in beforeAll: one published (read by everyone), one for the unpublish row.
-const mods: { published?: CreatedModule; toUnpublish?: CreatedModule; coldFlow?: CreatedModule } = {}
-const handIn: { submissionId?: number; fileId?: number; flagId?: number } = {}
+const mods: { published?: CreatedModule; toUnpublish?: CreatedModule; coldFlow?: CreatedModule; jet?: CreatedModule } =
+  {}
+const handIn: { submissionId?: number; fileId?: number; flagId?: number; photoSubmissionId?: number } = {}
 const M = (fx: Fixture) => `/api/courses/${fx.courseId}/modules`
 const pub = () => mods.published!.id
 const C = (fx: Fixture) => `/api/courses/${fx.courseId}`
@@ -470,6 +472,11 @@ const CASES: Case[] = [
     expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
   },
   {
+    route: 'GET /api/courses/:courseId/submissions/:submissionId/images/:imageKey',
+    call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/submissions/${handIn.photoSubmissionId}/images/jet`),
+    expect: { anon: 401, outsider: 404, student: 200, ta: 200, instructor: 200, admin: 404 },
+  },
+  {
     route: 'GET /api/courses/:courseId/review',
     call: (c, fx) => c.agent.get(`/api/courses/${fx.courseId}/review`),
     expect: { anon: 401, outsider: 404, student: 403, ta: 200, instructor: 200, admin: 404 },
@@ -743,6 +750,18 @@ beforeAll(async () => {
   handIn.submissionId = res.body.id
   handIn.fileId = res.body.files[0].id
   handIn.flagId = res.body.flags[0].id
+  // A sheet with a photograph and one hand-in with it.
+  mods.jet = await createModuleAs(inst, fx.courseId, JET_SHEET)
+  await publishAs(inst, fx.courseId, mods.jet)
+  const jet = await jetPhotoFile()
+  const withPhoto = await st.agent
+    .post(`${M(fx)}/${mods.jet.id}/submissions`)
+    .set('x-csrf-token', st.csrf)
+    .field('payload', JSON.stringify(jetPayload({ jet: jet.marks })))
+    .attach('photo:jet', jet.bytes, 'jet.png')
+  if (withPhoto.status !== 201)
+    throw new Error(`photo hand-in failed: ${withPhoto.status} ${JSON.stringify(withPhoto.body)}`)
+  handIn.photoSubmissionId = withPhoto.body.id
 })
 afterAll(async () => {
   await ctx.close()

@@ -14,6 +14,7 @@ import {
   submissionComments,
   submissionFiles,
   submissionFlags,
+  submissionImages,
   submissions,
 } from '../../server/db/schema'
 import type { ArchiveManifest } from '../../server/services/course-archive-service'
@@ -23,6 +24,7 @@ import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import type { CreatedModule } from '../helpers/modules'
 import { createModuleAs, publishAs } from '../helpers/modules'
 import { readZip } from '../helpers/pdf'
+import { JET_SHEET, jetPayload, jetPhotoFile } from '../helpers/jet-photo'
 
 /** The demo cold-flow sheet as an individual hand-in (the second fixture student is in no lab group). */
 const COLD = currentDueDates(
@@ -81,6 +83,9 @@ async function dbCounts() {
   return {
     handIns: await one(db.select({ n: count() }).from(submissions).where(eq(submissions.courseId, fx.courseId))),
     files: await one(db.select({ n: count() }).from(submissionFiles).where(eq(submissionFiles.courseId, fx.courseId))),
+    photos: await one(
+      db.select({ n: count() }).from(submissionImages).where(eq(submissionImages.courseId, fx.courseId)),
+    ),
     checks: await viaSubmission(submissionChecks),
     flags: await viaSubmission(submissionFlags),
     comments: await viaSubmission(submissionComments),
@@ -122,6 +127,16 @@ beforeAll(async () => {
   for (const r of [first, second, other]) {
     if (r.status !== 201) throw new Error(`hand-in failed: ${r.status} ${JSON.stringify(r.body)}`)
   }
+  // One hand-in of a sheet with a photograph.
+  const jetSheet = await createModuleAs(inst, fx.courseId, JET_SHEET)
+  await publishAs(inst, fx.courseId, jetSheet)
+  const jet = await jetPhotoFile()
+  const withPhoto = await student.agent
+    .post(`${C()}/modules/${jetSheet.id}/submissions`)
+    .set('x-csrf-token', student.csrf)
+    .field('payload', JSON.stringify(jetPayload({ jet: jet.marks })))
+    .attach('photo:jet', jet.bytes, 'jet.png')
+  if (withPhoto.status !== 201) throw new Error(`photo hand-in failed: ${withPhoto.status}`)
   const flagged = second.body.id as number
   if (!(second.body.flags as unknown[]).length) throw new Error('the scaled-up hand-in carries no flag')
 
@@ -186,7 +201,8 @@ describe('the end-of-term archive', () => {
 
     // The counts are the database's.
     const n = await dbCounts()
-    expect(n.handIns).toBe(3)
+    expect(n.handIns).toBe(4)
+    expect(n.photos).toBe(1)
     expect(n.flags).toBeGreaterThan(0)
     expect(n.comments).toBe(1)
     expect(n.staffChanges).toBe(1)
@@ -194,6 +210,7 @@ describe('the end-of-term archive', () => {
     expect(manifest.counts).toMatchObject({
       handIns: n.handIns,
       files: n.files,
+      photos: n.photos,
       checks: n.checks,
       flags: n.flags,
       comments: n.comments,
@@ -208,6 +225,7 @@ describe('the end-of-term archive', () => {
     const tables = {
       'hand-ins': n.handIns,
       files: n.files,
+      photos: n.photos,
       checks: n.checks,
       flags: n.flags,
       comments: n.comments,
@@ -258,6 +276,16 @@ describe('the end-of-term archive', () => {
       expect(bytes!.equals(f.bytes)).toBe(true)
       expect(manifest.files.find((m) => m.path === path)!.sha256).toBe(f.sha256)
     }
+    // Each photograph as stored (re-encoded, without metadata), with its marks in the hand-ins table.
+    const pictures = await ctx.handle.db
+      .select({ id: submissionImages.id, submissionId: submissionImages.submissionId, bytes: submissionImages.bytes })
+      .from(submissionImages)
+      .where(eq(submissionImages.courseId, fx.courseId))
+    for (const p of pictures) {
+      const path = `photos/${p.submissionId}/${p.id}_jet.png`
+      expect(byName.get(path)?.equals(p.bytes), path).toBe(true)
+    }
+    expect(byName.get('hand-ins.jsonl')!.toString('utf8')).toContain('"exitPlane"')
     const parsed = byName
       .get('parsed-values.jsonl')!
       .toString('utf8')

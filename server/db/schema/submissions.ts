@@ -1,3 +1,4 @@
+import type { JetMarks } from '../../../shared/images/jet-marks'
 import { sql } from 'drizzle-orm'
 import { boolean, double, index, int, json, mysqlEnum, mysqlTable, timestamp, varchar } from 'drizzle-orm/mysql-core'
 import { id, ref, timestamps } from './columns'
@@ -17,6 +18,8 @@ export { SUBMISSION_STATUSES }
 export interface SubmissionInputs {
   measurements: Record<string, { value: number; unit: string; pressure?: PressureSense }>
   reported: Record<string, { value: number; unit: string }>
+  /** The marks on each photograph (by the sheet's image key), in the stored picture's pixels. */
+  images?: Record<string, JetMarks>
 }
 
 /**

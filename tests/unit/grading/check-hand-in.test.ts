@@ -331,3 +331,34 @@ describe("the student's view of the spec is enough for the check", () => {
     expect(checkHandIn(student, p, { run: log(bad) })).toEqual(full)
   })
 })
+
+describe('the moment a photograph was taken', () => {
+  const withPhoto = AssignmentSchema.parse({
+    ...spec,
+    measurements: [...spec.measurements, { key: 't_photo', label: 'Time of the photograph', unit: 's' }],
+    images: [{ key: 'jet', label: 'Shadowgraph of the jet', takenAt: 't_photo' }],
+  })
+  const at = (value: number, unit = 's') => {
+    const p = good()
+    p.measurements.t_photo = { value, unit }
+    return p
+  }
+
+  it('passes within the run log, in any time unit', () => {
+    expect(checkHandIn(withPhoto, at(0.015), { run: log(CSV) }).issues).toEqual([])
+    expect(checkHandIn(withPhoto, at(20, 'ms'), { run: log(CSV) }).issues).toEqual([])
+  })
+
+  it('is refused outside the run log, naming the field, the log and its span', () => {
+    const v = checkHandIn(withPhoto, at(2.5), { run: log(CSV) })
+    expect(v.issues).toEqual([
+      {
+        field: 'measurements.t_photo',
+        message:
+          'Time of the photograph: 2.5 s is outside run log (0 to 0.03 s); give the time of "Shadowgraph of the jet" in the log\'s own time.',
+      },
+    ])
+    // The student's view of the spec gives the same problem in the browser.
+    expect(checkHandIn(StudentAssignmentSchema.parse(withPhoto), at(2.5), { run: log(CSV) }).issues).toEqual(v.issues)
+  })
+})

@@ -38,11 +38,25 @@ const JET = [
 ]
 
 describe('assignment.images', () => {
-  it('holds a sheet with photographs back from saving until hand-ins carry them', () => {
+  it('lets a sheet with a photograph be saved', () => {
     const checked = checkModule(sheet(JET), 'jet', 'UTC')
-    expect(checked.issues.map((i) => `${i.path}: ${i.message}`)).toEqual([
-      expect.stringMatching(/^assignment\.images: .*photographs in hand-ins are not available yet/),
-    ])
+    expect(checked.issues).toEqual([])
+  })
+
+  it('names theory results that are missing or not lengths', () => {
+    const results = [
+      '    - { key: spacing_theory, label: Cell spacing (theory), unit: mm, expected: "1", tolerance: { relative: 0.1 }, points: 1 }',
+      '    - { key: mach_jet, label: Jet Mach number, unit: "1", expected: "2", tolerance: { relative: 0.1 }, points: 1 }',
+    ]
+    const good = parseModuleSource(sheet([...JET, '      theory: { cellSpacing: spacing_theory }'], results), 'jet')
+    if (!good.ok) throw new Error(JSON.stringify(good.errors))
+    expect(good.frontMatter.assignment?.images[0]?.theory).toEqual({ cellSpacing: 'spacing_theory' })
+    const wrong = parseModuleSource(
+      sheet([...JET, '      theory: { cellSpacing: mach_jet, machDisk: nowhere }'], results),
+      'jet',
+    )
+    expect(messageAt(wrong, 'assignment.images[0].theory.cellSpacing')).toMatch(/length unit; "mach_jet" is in 1/)
+    expect(messageAt(wrong, 'assignment.images[0].theory.machDisk')).toMatch(/"nowhere" is not a result/)
   })
 
   it('reads a photograph with its defaults', () => {
