@@ -292,7 +292,10 @@ describe('a photograph of the jet, marked in the browser', () => {
       expect(Math.hypot(got.x - want.x, got.y - want.y)).toBeLessThan(1.5)
     }
     const measured = measureJet(stored)
-    const meanMm = (measured.meanCellSpacing * 1000).toFixed(1)
+    // The readout writes mm with three significant figures below 100 mm (two decimals below 10 mm).
+    const mm = measured.meanCellSpacing * 1000
+    const meanMm = mm.toFixed(mm < 10 ? 2 : 1)
+    expect(mm).toBeLessThan(100)
 
     // The result page shows the photograph with the same marks and distances.
     await page.getByRole('heading', { level: 2, name: 'Your photographs and marks' }).waitFor()
