@@ -226,12 +226,42 @@ describe('a photograph of the jet, marked in the browser', () => {
     await page.keyboard.press('Control+z')
     await expect.poll(() => first.innerText()).toBe(before)
 
+    // Delete from the list removes a mark; the Undo button brings it back.
+    const third = list.locator('button[data-mark="cell-end-3"]')
+    await third.focus()
+    await page.keyboard.press('Delete')
+    await expect.poll(() => announced(page)).toBe('Cell end 3 removed')
+    expect(await list.locator('button[data-mark="cell-end-3"]').count()).toBe(0)
+    await tool.getByRole('button', { name: 'Undo' }).click()
+    await expect.poll(() => list.locator('button[data-mark="cell-end-3"]').count()).toBe(1)
+
+    // A mark dragged with the pointer moves; undo puts it back.
+    const exitButton = list.locator('button[data-mark="exit-plane"]')
+    const exitBefore = await exitButton.innerText()
+    const grip = await screenAt(page, truth.exitPlane)
+    await page.mouse.move(grip.x, grip.y)
+    await page.mouse.down()
+    await page.mouse.move(grip.x + 10, grip.y + 15, { steps: 4 })
+    await page.mouse.up()
+    await expect.poll(() => announced(page)).toMatch(/^Exit plane moved to \d+, \d+ pixels$/)
+    expect(await exitButton.innerText()).not.toBe(exitBefore)
+    await tool.getByRole('button', { name: 'Undo' }).click()
+    await expect.poll(() => exitButton.innerText()).toBe(exitBefore)
+
     // Zoom in (the marks keep their places in the picture's pixels), and back to the whole picture.
     const viewBox = () => tool.locator('.picture svg').getAttribute('viewBox')
     await tool.getByRole('button', { name: 'Zoom in' }).click()
     await expect.poll(viewBox).not.toBe(`0 0 ${photo.width} ${photo.height}`)
     expect((await viewBox())!.split(' ').slice(2).map(Number)).toEqual([photo.width / 1.5, photo.height / 1.5])
     await tool.getByRole('button', { name: 'Pan right' }).click()
+    await tool.getByRole('button', { name: 'Whole picture' }).click()
+    await expect.poll(viewBox).toBe(`0 0 ${photo.width} ${photo.height}`)
+    // The wheel zooms about the pointer.
+    const middle = await screenAt(page, { x: photo.width / 2, y: photo.height / 2 })
+    await page.mouse.move(middle.x, middle.y)
+    await page.mouse.wheel(0, -100)
+    await expect.poll(viewBox).not.toBe(`0 0 ${photo.width} ${photo.height}`)
+    expect(Number((await viewBox())!.split(' ')[2])).toBeCloseTo(photo.width / 1.25, 6)
     await tool.getByRole('button', { name: 'Whole picture' }).click()
     await expect.poll(viewBox).toBe(`0 0 ${photo.width} ${photo.height}`)
 
