@@ -11,23 +11,24 @@ export const fetchMySubmissions = (courseId: number, moduleId: number) =>
 export const fetchSubmission = (courseId: number, submissionId: number) =>
   http<SubmissionDetail>('GET', submissionBase(courseId, submissionId))
 
+/** Where a hand-in's photograph is shown from (the stored, re-encoded picture, inline). */
+export const submissionImageUrl = (courseId: number, submissionId: number, imageKey: string) =>
+  `${submissionBase(courseId, submissionId)}/images/${encodeURIComponent(imageKey)}`
+
 /** Where the raw uploaded file is downloaded from (served as an attachment). */
 export const submissionFileUrl = (courseId: number, submissionId: number, fileId: number) =>
   `${submissionBase(courseId, submissionId)}/files/${fileId}`
 
-/** One log file of a hand-in, for the table of the assignment it fills. */
-export interface HandInFile {
-  tableKey: string
-  file: Blob
-  filename: string
-}
+/** One file of a hand-in: a log for a table of the assignment, or a photograph (`photo:<key>`). */
+export type HandInFile =
+  { tableKey: string; file: Blob; filename: string } | { photoKey: string; file: Blob; filename: string }
 
 /** How far a hand-in has got: bytes sent, then waiting for the server to grade it. */
 export type HandInProgress = { phase: 'uploading'; loaded: number; total: number } | { phase: 'grading' }
 
 /**
- * Sends a hand-in as multipart/form-data: the JSON `payload` field and one `table:<key>` file per
- * table. XMLHttpRequest rather than fetch because only it reports upload progress.
+ * Sends a hand-in as multipart/form-data: the JSON `payload` field, one `table:<key>` file per
+ * table and one `photo:<key>` file per photograph. XMLHttpRequest rather than fetch because only it reports upload progress.
  * https://developer.mozilla.org/en-US/docs/Web/API/XMLHttpRequest/upload
  *
  * @returns the graded submission (201)
@@ -45,7 +46,9 @@ export function submitHandIn(
   form.append('payload', JSON.stringify(payload))
   // The signed-off stand run the hand-in is made against (sheets that require one).
   if (runRecordId !== null) form.append('runRecordId', String(runRecordId))
-  for (const f of files) form.append(`table:${f.tableKey}`, f.file, f.filename)
+  for (const f of files) {
+    form.append('photoKey' in f ? `photo:${f.photoKey}` : `table:${f.tableKey}`, f.file, f.filename)
+  }
 
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest()

@@ -4,5 +4,5 @@
  * from `src/api`.
  */
 export { feedbackReportUrl, moduleReportsZipUrl } from '@/api/reports'
-export { submissionFileUrl } from '@/api/submissions'
+export { submissionFileUrl, submissionImageUrl } from '@/api/submissions'
 export { courseArchiveUrl } from '@/api/course-closing'

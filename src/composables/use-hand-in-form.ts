@@ -12,8 +12,14 @@ import { isPressureUnit } from '@shared/modules/quantities'
 import type { StudentAssignment } from '@shared/schemas/student-module-spec'
 import type { SubmissionFieldIssue, SubmissionPayload } from '@shared/schemas/submissions'
 import type { HandInFile } from '@/api/submissions'
+import { draftMarks, problemText, typedScale } from '@/components/photo/mark-draft'
+import type { ScaleLength } from '@/components/photo/mark-draft'
+import type { JetMarks, MarkProblem } from '@shared/images/jet-marks'
+import { valueToSI } from '@shared/modules/quantities'
 import { useLogUpload } from './use-log-upload'
 import type { LogUpload } from './use-log-upload'
+import { usePhotoUpload } from './use-photo-upload'
+import type { PhotoUpload } from './use-photo-upload'
 
 export interface TypedEntry {
   text: string
@@ -26,8 +32,14 @@ export const fieldId = {
   measurement: (key: string) => `hand-in-m-${key}`,
   result: (key: string) => `hand-in-r-${key}`,
   table: (key: string) => `hand-in-t-${key}`,
-  /** From a hand-in issue's `field` (`measurements.x`, `reported.x`, `table:x`). */
+  /** A photograph's file picker; the measuring tool's ids start with it too. */
+  photo: (key: string) => `hand-in-p-${key}`,
+  /** The picture in the measuring tool (focusable), where problems with the marks are shown. */
+  photoMarks: (key: string) => `hand-in-p-${key}-marks`,
+  /** From a hand-in issue's `field` (`measurements.x`, `reported.x`, `table:x`, `photo:x`, `images.x.mark`). */
   of(field: string): string {
+    if (field.startsWith('photo:')) return this.photo(field.slice('photo:'.length))
+    if (field.startsWith('images.')) return this.photoMarks(field.slice('images.'.length).split('.')[0] ?? '')
     if (field.startsWith('measurements.')) return this.measurement(field.slice('measurements.'.length))
     if (field.startsWith('reported.')) return this.result(field.slice('reported.'.length))
     if (field.startsWith('table:')) return this.table(field.slice('table:'.length))
@@ -63,8 +75,15 @@ function typedValue(e: TypedEntry | undefined, withPressure: boolean): TypedValu
   }
 }
 
+/** A photograph's marks as far as they go, and what is missing or wrong, in words naming the mark. */
+export interface PhotoCheck {
+  marks: JetMarks | null
+  problems: MarkProblem[]
+}
+
 export function useHandInForm(assignment: StudentAssignment) {
   const uploads = assignment.tables.map((t) => useLogUpload(t))
+  const photos = (assignment.images ?? []).map((spec) => usePhotoUpload(spec))
   const measurements = reactive<Record<string, TypedEntry>>(
     Object.fromEntries(
       assignment.measurements.map((m) => [
@@ -117,6 +136,62 @@ export function useHandInForm(assignment: StudentAssignment) {
     return { mappings, measurements: ms, reported: rs }
   }
 
+  /**
+   * The scale length a photograph's marks default to: the measurement its sheet names (`scaleFrom`,
+   * the exit diameter), as typed; null when the sheet names none or it is not typed yet.
+   */
+  function scaleDefault(p: PhotoUpload): (ScaleLength & { words: string }) | null {
+    const key = p.spec.scaleFrom
+    const m = key ? assignment.measurements.find((x) => x.key === key) : undefined
+    const e = key ? measurements[key] : undefined
+    if (!m || !e || e.text.trim() === '') return null
+    const value = typedNumber(e.text)
+    if (!Number.isFinite(value) || value <= 0) return null
+    return { value, unit: e.unit, words: `the ${m.label.toLowerCase()} typed above` }
+  }
+
+  /** The exit diameter for the readout (m): the `scaleFrom` measurement when typed, else the scale's length. */
+  function exitDiameter(p: PhotoUpload): number | undefined {
+    const d = scaleDefault(p)
+    if (!d) return undefined
+    try {
+      return valueToSI(d.value, d.unit)
+    } catch {
+      return undefined
+    }
+  }
+
+  /** Each photograph's marks checked with the sheet's rules (shared/images/jet-marks.ts checkMarks), by key. */
+  const photoChecks = computed<Record<string, PhotoCheck>>(() => {
+    const out: Record<string, PhotoCheck> = {}
+    for (const p of photos) {
+      const size = p.size.value
+      if (!size) continue
+      const scale = typedScale(p.scaleText.value, p.scaleUnit.value, scaleDefault(p))
+      out[p.spec.key] = draftMarks(p.editor.value.draft, scale, size, {
+        cells: p.spec.cells,
+        machDisk: p.spec.machDisk,
+      })
+    }
+    return out
+  })
+
+  /** The problems with each photograph: the file at its picker, the marks at the picture. */
+  function photoProblems(): Record<string, string> {
+    const out: Record<string, string> = {}
+    for (const p of photos) {
+      const label = p.spec.label
+      if (p.fileProblem.value) out[fieldId.photo(p.spec.key)] = p.fileProblem.value
+      else if (!p.file.value) out[fieldId.photo(p.spec.key)] = `${label}: choose the photograph (PNG or JPEG).`
+      else if (!p.size.value) out[fieldId.photo(p.spec.key)] = `${label}: the picture is still being read.`
+      else {
+        const problems = photoChecks.value[p.spec.key]?.problems ?? []
+        if (problems.length) out[fieldId.photoMarks(p.spec.key)] = `${label}: ${problems.map(problemText).join(' ')}`
+      }
+    }
+    return out
+  }
+
   /** The hand-in check over the form as it stands. */
   const check = computed(() => {
     const logs: Record<string, HandInLog | undefined> = {}
@@ -142,6 +217,7 @@ export function useHandInForm(assignment: StudentAssignment) {
       if (field.startsWith('table:')) continue
       out[fieldId.of(field)] = issues.map((i) => i.message).join(' ')
     }
+    Object.assign(out, photoProblems())
     return out
   })
 
@@ -203,17 +279,28 @@ export function useHandInForm(assignment: StudentAssignment) {
   function payload(): SubmissionPayload {
     const p = checkedPayload()
     const strip = (v: TypedValue) => ({ value: v.value, unit: v.unit, ...(v.pressure ? { pressure: v.pressure } : {}) })
+    const images: Record<string, JetMarks> = {}
+    for (const photo of photos) {
+      const marks = photoChecks.value[photo.spec.key]?.marks
+      if (marks) images[photo.spec.key] = marks
+    }
     return {
       mappings: p.mappings,
       measurements: Object.fromEntries(Object.entries(p.measurements).map(([k, v]) => [k, strip(v)])),
       reported: Object.fromEntries(Object.entries(p.reported).map(([k, v]) => [k, { value: v.value, unit: v.unit }])),
+      ...(photos.length ? { images } : {}),
     }
   }
 
   function files(): HandInFile[] {
-    return uploads.flatMap((u) =>
-      u.file.value ? [{ tableKey: u.table.key, file: u.file.value, filename: u.file.value.name }] : [],
-    )
+    return [
+      ...uploads.flatMap((u) =>
+        u.file.value ? [{ tableKey: u.table.key, file: u.file.value, filename: u.file.value.name }] : [],
+      ),
+      ...photos.flatMap((p) =>
+        p.file.value ? [{ photoKey: p.spec.key, file: p.file.value, filename: p.file.value.name }] : [],
+      ),
+    ]
   }
 
   /** The problems to list in the error summary, in form order (each linked to its control). */
@@ -221,6 +308,7 @@ export function useHandInForm(assignment: StudentAssignment) {
     const order = [
       ...uploads.map((u) => fieldId.table(u.table.key)),
       ...assignment.measurements.map((m) => fieldId.measurement(m.key)),
+      ...photos.flatMap((p) => [fieldId.photo(p.spec.key), fieldId.photoMarks(p.spec.key)]),
       ...assignment.results.map((r) => fieldId.result(r.key)),
     ]
     return order.flatMap((id) => (errors[id] ? [{ message: errors[id] as string, target: id }] : []))
@@ -237,6 +325,16 @@ export function useHandInForm(assignment: StudentAssignment) {
     serverMore.value = 0
   }
 
+  // A new photograph or new marks make the server's problems with that photograph stale.
+  watch(
+    () => photos.map((p) => [p.file.value, p.editor.value, p.scaleText.value, p.scaleUnit.value]),
+    () => {
+      const stale = (f: string) => f.startsWith('photo:') || f.startsWith('images.')
+      if (serverIssues.value.some((i) => stale(i.field)))
+        serverIssues.value = serverIssues.value.filter((i) => !stale(i.field))
+    },
+  )
+
   // A new file or mapping makes the server's earlier file problems stale.
   watch(
     () => uploads.map((u) => [u.file.value, u.mapping.value]),
@@ -250,6 +348,10 @@ export function useHandInForm(assignment: StudentAssignment) {
 
   return {
     uploads,
+    photos,
+    photoChecks,
+    scaleDefault,
+    exitDiameter,
     measurements,
     results,
     attempted,
@@ -265,4 +367,4 @@ export function useHandInForm(assignment: StudentAssignment) {
   }
 }
 
-export type { LogUpload }
+export type { LogUpload, PhotoUpload }

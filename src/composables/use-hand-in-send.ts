@@ -50,8 +50,28 @@ export function useHandInSend(courseId: Ref<number>, moduleId: Ref<number>) {
   return { state, percent, error: action.error, send }
 }
 
-/** The field problems of a 422 `invalid_submission` answer, checked before use. */
+/**
+ * The field problems of a refused hand-in, checked before use: a 422 `invalid_submission` answer's
+ * list; a refused photograph (400 `photo_refused`, details `{ field: 'photo:<key>' }`); and marks the
+ * server found wrong (400 `validation_failed` whose issues name `images.<key>.<mark>`).
+ */
 export function invalidSubmissionIssues(err: ApiError): { issues: SubmissionFieldIssue[]; more: number } | null {
+  if (err.code === 'photo_refused') {
+    const field = (err.details as { field?: unknown } | undefined)?.field
+    return typeof field === 'string' ? { issues: [{ field, message: err.message }], more: 0 } : null
+  }
+  if (err.code === 'validation_failed') {
+    const d = err.details as { issues?: unknown } | unknown[] | undefined
+    const list: unknown[] = Array.isArray(d) ? d : Array.isArray(d?.issues) ? d.issues : []
+    const issues = list.flatMap((i) => {
+      const o = i as { field?: unknown; path?: unknown; message?: unknown }
+      const field = typeof o.field === 'string' ? o.field : typeof o.path === 'string' ? o.path : ''
+      return (field.startsWith('images.') || field.startsWith('photo:')) && typeof o.message === 'string'
+        ? [{ field, message: o.message }]
+        : []
+    })
+    return issues.length ? { issues, more: 0 } : null
+  }
   if (err.code !== 'invalid_submission') return null
   const d = err.details as { issues?: unknown; more?: unknown } | undefined
   const issues = Array.isArray(d?.issues)

@@ -12,7 +12,7 @@ import { isAwaitingGrade } from '@shared/schemas/submissions'
 import { ApiError } from '@/api/http'
 import { fetchModule } from '@/api/modules'
 import { feedbackReportUrl } from '@/api/reports'
-import { fetchSubmission, submissionFileUrl } from '@/api/submissions'
+import { fetchSubmission, submissionFileUrl, submissionImageUrl } from '@/api/submissions'
 import { useModuleReading } from './use-modules'
 import { useResource } from './use-resource'
 import type { LoadState } from './use-resource'
@@ -21,7 +21,7 @@ import { useMySubmissions } from './use-my-submissions'
 // The shared wording of values, units and scores, for the hand-in and result pages.
 export { formatScore, percentText, unitText, valueText, withUnit }
 // Where a hand-in's file and its feedback report are downloaded from.
-export { feedbackReportUrl, submissionFileUrl }
+export { feedbackReportUrl, submissionFileUrl, submissionImageUrl }
 export type { StudentAssignment, StudentResultSpec }
 // Here too for the views that already import it from this file.
 export { useMySubmissions }
@@ -88,7 +88,7 @@ export function studentAssignment(frontMatter: Record<string, unknown> | null | 
     )
   }
   const a = parsed.data.assignment
-  return a && a.tables.length + a.measurements.length + a.results.length > 0 ? a : null
+  return a && a.tables.length + a.measurements.length + a.images.length + a.results.length > 0 ? a : null
 }
 
 /**
