@@ -356,6 +356,8 @@ describe('a photograph of the jet, marked in the browser', () => {
     expect(await markKeys(ta, '[data-photo="photo-jet"]')).toHaveLength(7)
     expect(await review.locator('tr[data-row="mean"] td').first().innerText()).toBe(meanMm)
     expect(await ta.getByRole('heading', { level: 3, name: 'Shadowgraph of the jet' }).count()).toBe(1)
+    // A hand-in of a photograph alone has no log file, and the files panel says where the picture is.
+    await ta.getByText('No log files; the photographs are shown with their marks.').waitFor()
     await ta.screenshot({ path: screenshotPath('jet-photo-review'), fullPage: true })
     await taCtx.close()
   }, 180_000)
