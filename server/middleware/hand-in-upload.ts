@@ -1,7 +1,9 @@
 import type { NextFunction, Request, RequestHandler, Response } from 'express'
 import multer from 'multer'
 import type { Readable, Writable } from 'node:stream'
+import { MAX_IMAGES } from '../../shared/modules/image-spec'
 import { AppError } from '../errors'
+import { PHOTO_LIMIT_BYTES } from '../images/photo'
 
 /**
  * Reading a hand-in's multipart body, with three limits enforced while it streams in:
@@ -24,6 +26,11 @@ import { AppError } from '../errors'
 
 /** Room for the form's text fields (the JSON payload) and the multipart framing, beyond the files. */
 export const FORM_ALLOWANCE_BYTES = 2 * 1024 * 1024
+/**
+ * Each photograph a sheet asks for (`photo:<key>`) adds its own 10 MB to the hand-in's limit, so a
+ * sheet's photographs do not eat into the room for its logs; no sheet asks for more than MAX_IMAGES.
+ */
+export const PHOTO_ALLOWANCE_BYTES = PHOTO_LIMIT_BYTES
 /** The JSON payload field; it names values and mappings, never data rows. */
 const FIELD_SIZE_BYTES = 2 * 1024 * 1024
 /** Text fields a hand-in form may have (it sends one, `payload`). */
@@ -40,18 +47,27 @@ const MALFORMED = 'The upload was cut off or is not a valid form upload.'
 
 export function handInUpload(opts: HandInUploadOptions): RequestHandler {
   const fileLimit = Math.round(opts.limitMb * 1024 * 1024)
-  const requestLimit = fileLimit + FORM_ALLOWANCE_BYTES
-  const tooLarge = () =>
-    new AppError('upload_too_large', `The upload is larger than the ${opts.limitMb} MB limit per hand-in.`, 413, {
-      limitMb: opts.limitMb,
-    })
+  const requestLimitFor = (photos: number) => fileLimit + photos * PHOTO_ALLOWANCE_BYTES + FORM_ALLOWANCE_BYTES
+  const tooLargeFor = (photos: number) => () =>
+    new AppError(
+      'upload_too_large',
+      `The upload is larger than the ${opts.limitMb} MB limit per hand-in${photos > 0 ? ` (with ${(photos * PHOTO_ALLOWANCE_BYTES) / 1048576} MB more for its ${photos === 1 ? 'photograph' : `${photos} photographs`})` : ''}.`,
+      413,
+      { limitMb: opts.limitMb },
+    )
 
   return async (req: Request, res: Response, next: NextFunction) => {
-    // Refused from its Content-Length before any of it is read (and before the database is asked).
+    // Refused from its Content-Length before any of it is read (and before the database is asked)
+    // when no sheet could take it; then against the limit of this sheet, once its files are known.
     const declared = Number(req.headers['content-length'] ?? 0)
+    let requestLimit = requestLimitFor(MAX_IMAGES)
     try {
-      if (declared > requestLimit) throw tooLarge()
+      if (declared > requestLimit) throw tooLargeFor(MAX_IMAGES)()
       const fields = await opts.fileFields(req, res)
+      const photos = fields.filter((f) => f.startsWith('photo:')).length
+      requestLimit = requestLimitFor(photos)
+      const tooLarge = tooLargeFor(photos)
+      if (declared > requestLimit) throw tooLarge()
       // Anything but a form upload would be left unread by the parser; say so instead.
       if (!req.is('multipart/form-data')) throw new AppError('bad_upload', MALFORMED, 400)
       await readForm(req, res, { fields, fileLimit, requestLimit, tooLarge, limitMb: opts.limitMb })
@@ -63,6 +79,11 @@ export function handInUpload(opts: HandInUploadOptions): RequestHandler {
     }
     next()
   }
+}
+
+/** The most bytes one file field may carry: a photograph its 10 MB, a log the hand-in's limit. */
+function fieldLimit(field: string, fileLimit: number): number {
+  return field.startsWith('photo:') ? PHOTO_ALLOWANCE_BYTES : fileLimit
 }
 
 interface FormLimits {
@@ -92,7 +113,8 @@ function readForm(req: Request, res: Response, limits: FormLimits): Promise<void
       // https://github.com/expressjs/multer#limits. One file more than declared still reaches the
       // file filter, which names it; a count limit alone would only say "too many files".
       limits: {
-        fileSize: limits.fileLimit,
+        // The largest any declared field may carry; each field's own limit is counted as it streams.
+        fileSize: Math.max(...limits.fields.map((f) => fieldLimit(f, limits.fileLimit)), limits.fileLimit),
         files: limits.fields.length + 1,
         fields: MAX_TEXT_FIELDS,
         fieldSize: FIELD_SIZE_BYTES,
@@ -119,7 +141,15 @@ function readForm(req: Request, res: Response, limits: FormLimits): Promise<void
         busboy.on('field', (name: string, _value: string, info: { valueTruncated: boolean }) => {
           if (info.valueTruncated) refuse('LIMIT_FIELD_VALUE', name)
         })
-        busboy.on('file', (name: string, stream: Readable) => stream.on('limit', () => refuse('LIMIT_FILE_SIZE', name)))
+        busboy.on('file', (name: string, stream: Readable) => {
+          stream.on('limit', () => refuse('LIMIT_FILE_SIZE', name))
+          const cap = fieldLimit(name, limits.fileLimit)
+          let received = 0
+          stream.on('data', (chunk: Buffer) => {
+            received += chunk.length
+            if (received > cap) refuse('LIMIT_FILE_SIZE', name)
+          })
+        })
         busboy.on('error', (error: unknown) => fail(uploadError(error, limits.limitMb)))
         let bytes = 0
         request.on('data', (chunk: Buffer) => {
@@ -163,9 +193,12 @@ function uploadError(err: unknown, limitMb: number): unknown {
     const field = err.field
     switch (err.code) {
       case 'LIMIT_FILE_SIZE':
-        return new AppError('upload_too_large', `${field ?? 'The file'} is larger than the ${limitMb} MB limit.`, 413, {
-          field,
-        })
+        return new AppError(
+          'upload_too_large',
+          `${field ?? 'The file'} is larger than the ${field?.startsWith('photo:') ? PHOTO_ALLOWANCE_BYTES / 1048576 : limitMb} MB limit.`,
+          413,
+          { field },
+        )
       case 'LIMIT_FIELD_VALUE':
         return new AppError(
           'bad_upload',
@@ -178,7 +211,7 @@ function uploadError(err: unknown, limitMb: number): unknown {
       case 'LIMIT_PART_COUNT':
         return new AppError(
           'bad_upload',
-          'The upload has more parts than a hand-in form sends (the payload and one file per table).',
+          'The upload has more parts than a hand-in form sends (the payload and one file per table or photograph).',
           400,
         )
       default:

@@ -11,6 +11,8 @@ import type { Client, Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, seedFixture, signedInAs, startTestApp } from '../helpers/app'
 import { coldFlowCsv, coldFlowPayload } from '../helpers/cold-flow'
 import { createModuleAs, publishAs } from '../helpers/modules'
+import { JET_SHEET, jetPayload, jetPhotoFile } from '../helpers/jet-photo'
+import sharp from 'sharp'
 import type { CreatedModule } from '../helpers/modules'
 
 /**
@@ -366,5 +368,52 @@ describe('a refused hand-in whose body has a length within the limit', () => {
     } finally {
       agent.destroy()
     }
+  })
+})
+
+describe('a photograph has its own 10 MB beside the hand-in limit', () => {
+  let jet: CreatedModule
+  // Noise compresses badly: about 3 MB of PNG, over the test app's 2 MB limit for logs.
+  const noisy = (width: number, height: number) =>
+    sharp({
+      create: { width, height, channels: 3, background: '#888', noise: { type: 'gaussian', mean: 128, sigma: 60 } },
+    })
+      .png({ compressionLevel: 1 })
+      .toBuffer()
+
+  beforeAll(async () => {
+    const inst = await signedInAs(ctx, fx.instructor.email)
+    jet = await createModuleAs(inst, fx.courseId, JET_SHEET)
+    await publishAs(inst, fx.courseId, jet)
+  })
+  const jetHandIns = async () =>
+    (await ctx.handle.db.select({ id: submissions.id }).from(submissions).where(eq(submissions.moduleId, jet.id)))
+      .length
+  const send = (body: Buffer, marks: unknown) =>
+    student.agent
+      .post(`/api/courses/${fx.courseId}/modules/${jet.id}/submissions`)
+      .set('x-csrf-token', student.csrf)
+      .field('payload', JSON.stringify(jetPayload({ jet: marks })))
+      .attach('photo:jet', body, 'jet.png')
+
+  it('takes a 3 MB photograph when the hand-in limit is 2 MB', async () => {
+    const { marks } = await jetPhotoFile('png', { width: 1100, height: 800 })
+    const body = await noisy(1100, 800)
+    expect(body.length).toBeGreaterThan(LIMIT_MB * MB)
+    const res = await send(body, marks)
+    expect(res.status, JSON.stringify(res.body)).toBe(201)
+    expect(res.body.images[0].originalSha256).toMatch(/^[0-9a-f]{64}$/)
+  })
+
+  it('refuses a photograph over 10 MB with a 413 naming it, and stores nothing', async () => {
+    const { marks } = await jetPhotoFile('png', { width: 2000, height: 1900 })
+    const body = await noisy(2000, 1900)
+    expect(body.length).toBeGreaterThan(10 * MB)
+    const before = await jetHandIns()
+    const res = await send(body, marks)
+    expect(res.status).toBe(413)
+    expect(res.body.error.details.field).toBe('photo:jet')
+    expect(res.body.error.message).toContain('10 MB')
+    expect(await jetHandIns()).toBe(before)
   })
 })
