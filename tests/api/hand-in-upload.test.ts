@@ -405,6 +405,27 @@ describe('a photograph has its own 10 MB beside the hand-in limit', () => {
     expect(res.body.images[0].originalSha256).toMatch(/^[0-9a-f]{64}$/)
   })
 
+  it('still stops a log at the hand-in limit on a sheet that also asks for a photograph', async () => {
+    const inst = await signedInAs(ctx, fx.instructor.email)
+    const both = await createModuleAs(
+      inst,
+      fx.courseId,
+      currentDueDates(readFileSync(new URL('../../content/04-reading-the-jet.md', import.meta.url), 'utf8')),
+    )
+    await publishAs(inst, fx.courseId, both)
+    const { bytes, marks } = await jetPhotoFile()
+    const bigLog = Buffer.alloc(Math.round(2.5 * MB), '0,101.3\n')
+    const res = await student.agent
+      .post(`/api/courses/${fx.courseId}/modules/${both.id}/submissions`)
+      .set('x-csrf-token', student.csrf)
+      .field('payload', JSON.stringify({ images: { jet: marks } }))
+      .attach('table:run', bigLog, 'run.csv')
+      .attach('photo:jet', bytes, 'jet.png')
+    expect(res.status).toBe(413)
+    expect(res.body.error.details.field).toBe('table:run')
+    expect(res.body.error.message).toContain(`${LIMIT_MB} MB`)
+  })
+
   it('refuses a photograph over 10 MB with a 413 naming it, and stores nothing', async () => {
     const { marks } = await jetPhotoFile('png', { width: 2000, height: 1900 })
     const body = await noisy(2000, 1900)
