@@ -65,13 +65,8 @@ function inRange(range: TimeRange): SQL[] {
   ]
 }
 
-/** Active bookings of these lab groups on slots that are not cancelled, earliest first. */
-export async function listGroupBookings(
-  db: Executor,
-  labGroupIds: number[],
-  range: TimeRange = {},
-): Promise<GroupBooking[]> {
-  if (labGroupIds.length === 0) return []
+/** Active bookings on slots that are not cancelled, with their course, earliest first: one query. */
+async function activeBookings(db: Executor, conditions: SQL[]): Promise<UpcomingBooking[]> {
   const rows = await db
     .select({
       bookingId: bookings.id,
@@ -85,23 +80,47 @@ export async function listGroupBookings(
       location: stands.location,
       moduleSlug: modules.slug,
       title: issuedVersion.title,
+      courseCode: courses.code,
+      courseTitle: courses.title,
+      courseSlug: courses.slug,
+      timeZone: courses.timeZone,
     })
     .from(bookings)
     .innerJoin(standSlots, eq(standSlots.id, bookings.slotId))
     .innerJoin(stands, eq(stands.id, standSlots.standId))
+    .innerJoin(courses, eq(courses.id, stands.courseId))
     .innerJoin(labGroups, eq(labGroups.id, bookings.labGroupId))
     .innerJoin(modules, eq(modules.id, bookings.moduleId))
     .leftJoin(issuedVersion, eq(issuedVersion.id, modules.publishedVersionId))
-    .where(
-      and(
-        inArray(bookings.labGroupId, labGroupIds),
-        eq(bookings.status, 'active'),
-        isNull(standSlots.cancelledAt),
-        ...inRange(range),
-      ),
-    )
+    .where(and(eq(bookings.status, 'active'), isNull(standSlots.cancelledAt), ...conditions))
     .orderBy(asc(standSlots.startsAt), asc(bookings.id))
-  return rows.map(({ moduleSlug, title, ...r }) => ({ ...r, sheetTitle: title ?? moduleSlug }))
+  return rows.map(({ moduleSlug, title, courseSlug, ...r }) => ({
+    ...r,
+    courseSlug: courseSlug ?? '',
+    sheetTitle: title ?? moduleSlug,
+  }))
+}
+
+/** Active bookings of these lab groups on slots that are not cancelled, earliest first. */
+export async function listGroupBookings(
+  db: Executor,
+  labGroupIds: number[],
+  range: TimeRange = {},
+): Promise<GroupBooking[]> {
+  if (labGroupIds.length === 0) return []
+  const rows = await activeBookings(db, [inArray(bookings.labGroupId, labGroupIds), ...inRange(range)])
+  return rows.map((r) => ({
+    bookingId: r.bookingId,
+    courseId: r.courseId,
+    labGroupId: r.labGroupId,
+    groupName: r.groupName,
+    slotId: r.slotId,
+    startsAt: r.startsAt,
+    minutes: r.minutes,
+    standName: r.standName,
+    location: r.location,
+    sheetTitle: r.sheetTitle,
+  }))
 }
 
 /** Which slots a caller looks at: a whole course (sectionId null) or one section of it. */
@@ -164,47 +183,8 @@ export interface UpcomingBooking extends GroupBooking {
 }
 
 /** Active bookings on slots starting in [from, to) of courses that are open, for the day-before reminders. */
-export async function listBookingsStartingBetween(db: Executor, from: Date, to: Date): Promise<UpcomingBooking[]> {
-  const rows = await db
-    .select({
-      bookingId: bookings.id,
-      courseId: stands.courseId,
-      labGroupId: bookings.labGroupId,
-      groupName: labGroups.name,
-      slotId: standSlots.id,
-      startsAt: standSlots.startsAt,
-      minutes: standSlots.minutes,
-      standName: stands.name,
-      location: stands.location,
-      moduleSlug: modules.slug,
-      title: issuedVersion.title,
-      courseCode: courses.code,
-      courseTitle: courses.title,
-      courseSlug: courses.slug,
-      timeZone: courses.timeZone,
-    })
-    .from(bookings)
-    .innerJoin(standSlots, eq(standSlots.id, bookings.slotId))
-    .innerJoin(stands, eq(stands.id, standSlots.standId))
-    .innerJoin(courses, eq(courses.id, stands.courseId))
-    .innerJoin(labGroups, eq(labGroups.id, bookings.labGroupId))
-    .innerJoin(modules, eq(modules.id, bookings.moduleId))
-    .leftJoin(issuedVersion, eq(issuedVersion.id, modules.publishedVersionId))
-    .where(
-      and(
-        eq(bookings.status, 'active'),
-        isNull(standSlots.cancelledAt),
-        isNull(courses.closedAt),
-        gte(standSlots.startsAt, from),
-        lt(standSlots.startsAt, to),
-      ),
-    )
-    .orderBy(asc(standSlots.startsAt), asc(bookings.id))
-  return rows.map(({ moduleSlug, title, courseSlug, ...r }) => ({
-    ...r,
-    courseSlug: courseSlug ?? '',
-    sheetTitle: title ?? moduleSlug,
-  }))
+export function listBookingsStartingBetween(db: Executor, from: Date, to: Date): Promise<UpcomingBooking[]> {
+  return activeBookings(db, [isNull(courses.closedAt), gte(standSlots.startsAt, from), lt(standSlots.startsAt, to)])
 }
 
 export interface GroupMember {
