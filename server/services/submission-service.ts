@@ -521,21 +521,31 @@ export async function mySubmissions(
   }
 }
 
-/** One photograph of a hand-in, for those who may see the hand-in. */
-export async function submissionImage(db: Database, e: CourseEnrollment, submissionId: number, imageKey: string) {
+/**
+ * A stored part of a hand-in (`what`, e.g. 'That file'), read by `find` only for those who may see the
+ * hand-in; anything else is the same 404 as a part that is not there.
+ */
+async function seenPart<T>(
+  db: Database,
+  e: CourseEnrollment,
+  submissionId: number,
+  what: string,
+  find: () => Promise<T | null>,
+): Promise<T> {
   const s = await findSubmission(db, e.courseId, submissionId)
-  if (!s || !(await canSee(db, e, s))) throw notFound('That photograph')
-  const image = await findImageBytes(db, submissionId, imageKey)
-  if (!image) throw notFound('That photograph')
-  return image
+  if (!s || !(await canSee(db, e, s))) throw notFound(what)
+  const part = await find()
+  if (!part) throw notFound(what)
+  return part
 }
 
-export async function submissionFile(db: Database, e: CourseEnrollment, submissionId: number, fileId: number) {
-  const s = await findSubmission(db, e.courseId, submissionId)
-  if (!s || !(await canSee(db, e, s))) throw notFound('That file')
-  const f = await findFileBytes(db, submissionId, fileId)
-  if (!f) throw notFound('That file')
-  return f
+/** One photograph of a hand-in, for those who may see the hand-in. */
+export function submissionImage(db: Database, e: CourseEnrollment, submissionId: number, imageKey: string) {
+  return seenPart(db, e, submissionId, 'That photograph', () => findImageBytes(db, submissionId, imageKey))
+}
+
+export function submissionFile(db: Database, e: CourseEnrollment, submissionId: number, fileId: number) {
+  return seenPart(db, e, submissionId, 'That file', () => findFileBytes(db, submissionId, fileId))
 }
 
 /**
