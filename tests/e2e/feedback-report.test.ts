@@ -1,10 +1,8 @@
 import { readFileSync } from 'node:fs'
-import request from 'supertest'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
 import {
-  DEFAULT_DEMO_PASSWORD,
   DEMO_COURSE,
   DEMO_GROUP_WITHOUT_HAND_IN,
   DEMO_INSTRUCTOR,
@@ -12,7 +10,7 @@ import {
   DEMO_STUDENTS,
 } from '../../scripts/demo/scenario'
 import type { MySubmissions } from '../../shared/schemas/submissions'
-import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { apiSignIn, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { readPdf, readZip, squash } from '../helpers/pdf'
 
 let app: Awaited<ReturnType<typeof serveApp>>
@@ -27,16 +25,6 @@ const ta = DEMO_SECTIONS[0].ta
 const COLD_FLOW_TITLE = /^Cold-flow characterisation/
 
 /** A signed-in API client on the served app (cookies kept, CSRF token at hand). */
-async function apiAs(email: string) {
-  const agent = request.agent(app.url)
-  const s = await agent.get('/api/auth/session').expect(200)
-  const signed = await agent
-    .post('/api/auth/sign-in')
-    .set('x-csrf-token', s.body.csrfToken)
-    .send({ email, password: DEFAULT_DEMO_PASSWORD })
-    .expect(200)
-  return { agent, csrf: signed.body.csrfToken as string }
-}
 
 /** The instructor releases the module's grades (the same call the gradebook's release button makes). */
 async function releaseGrades(moduleId: number): Promise<void> {
@@ -148,3 +136,5 @@ describe('journey 4: a student downloads the graded feedback report', () => {
     await ctx.close()
   }, 120_000)
 })
+
+const apiAs = (email: string) => apiSignIn(app.url, email)

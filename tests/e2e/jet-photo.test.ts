@@ -1,7 +1,6 @@
 import { mkdtempSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import path from 'node:path'
-import request from 'supertest'
 import sharp from 'sharp'
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -13,7 +12,7 @@ import type { MySubmissions, SubmissionDetail } from '../../shared/schemas/submi
 import type { Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, seedFixture } from '../helpers/app'
 import { axeFindings, formatFindings } from '../helpers/a11y'
-import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { apiSignIn, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -70,17 +69,6 @@ const photo = renderJetPhoto({
   seed: 11,
 })
 const truth = photo.truth
-
-async function apiAs(email: string) {
-  const agent = request.agent(app.url)
-  const s = await agent.get('/api/auth/session').expect(200)
-  const res = await agent
-    .post('/api/auth/sign-in')
-    .set('x-csrf-token', s.body.csrfToken)
-    .send({ email, password: PASSWORD })
-    .expect(200)
-  return { agent, csrf: res.body.csrfToken as string }
-}
 
 beforeAll(async () => {
   app = await serveApp()
@@ -362,3 +350,5 @@ describe('a photograph of the jet, marked in the browser', () => {
     await taCtx.close()
   }, 180_000)
 })
+
+const apiAs = (email: string) => apiSignIn(app.url, email, PASSWORD)

@@ -1,5 +1,4 @@
 import { count, eq } from 'drizzle-orm'
-import request from 'supertest'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import {
@@ -15,7 +14,7 @@ import {
 } from '../../server/db/schema'
 import type { Fixture, TestContext } from '../helpers/app'
 import { PASSWORD, seedFixture } from '../helpers/app'
-import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { apiSignIn, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 
 let app: Awaited<ReturnType<typeof serveApp>>
 let chrome: Awaited<ReturnType<typeof launchBrowser>>
@@ -57,17 +56,6 @@ Invented test sheet.
 `
 // π/4 · (6 mm)² = 9π mm², worked by hand.
 const THROAT_AREA_MM2 = (9 * Math.PI).toFixed(3)
-
-async function apiAs(email: string) {
-  const agent = request.agent(app.url)
-  const s = await agent.get('/api/auth/session').expect(200)
-  const res = await agent
-    .post('/api/auth/sign-in')
-    .set('x-csrf-token', s.body.csrfToken)
-    .send({ email, password: PASSWORD })
-    .expect(200)
-  return { agent, csrf: res.body.csrfToken as string }
-}
 
 beforeAll(async () => {
   app = await serveApp()
@@ -229,3 +217,5 @@ describe('a run at the stand, signed off on a phone, and the hand-in made agains
     await stCtx.close()
   })
 })
+
+const apiAs = (email: string) => apiSignIn(app.url, email, PASSWORD)

@@ -1,13 +1,12 @@
 import { eq } from 'drizzle-orm'
-import request from 'supertest'
 import type { Browser } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { seedDemo } from '../../scripts/demo/seed-demo'
-import { DEFAULT_DEMO_PASSWORD, DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
+import { DEMO_SECTIONS, DEMO_STUDENTS } from '../../scripts/demo/scenario'
 import { REGIME_CHOICES } from '../../shared/grading/regime'
 import { dominantInputsText, expectedWithUncertaintyText } from '../../shared/grading/uncertainty-text'
 import type { MySubmissions, SubmissionDetail } from '../../shared/schemas/submissions'
-import { launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
+import { apiSignIn, launchBrowser, noSideways, screenshotPath, serveApp, signIn } from '../helpers/browser'
 import { squash } from '../helpers/pdf'
 import { courses } from '../../server/db/schema'
 
@@ -21,17 +20,6 @@ let courseSlug: string
 const GROUP = 'A2'
 const student = DEMO_STUDENTS.find((s) => s.labGroup === GROUP)!
 const ta = DEMO_SECTIONS[0].ta
-
-async function apiAs(email: string) {
-  const agent = request.agent(app.url)
-  const s = await agent.get('/api/auth/session').expect(200)
-  await agent
-    .post('/api/auth/sign-in')
-    .set('x-csrf-token', s.body.csrfToken)
-    .send({ email, password: DEFAULT_DEMO_PASSWORD })
-    .expect(200)
-  return agent
-}
 
 beforeAll(async () => {
   app = await serveApp()
@@ -124,3 +112,5 @@ describe('the uncertainty of the expected values on the result pages', () => {
     await staff.close()
   }, 120_000)
 })
+
+const apiAs = async (email: string) => (await apiSignIn(app.url, email)).agent

@@ -4,6 +4,7 @@ import type { Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import path from 'node:path'
 import { chromium } from 'playwright-core'
+import request from 'supertest'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import { afterEach, expect } from 'vitest'
 import { DEFAULT_DEMO_PASSWORD } from '../../scripts/demo/scenario'
@@ -184,4 +185,20 @@ export async function openCourse(page: Page): Promise<{ courseId: number; course
     return ((await res.json()) as { courseId: number }).courseId
   }, courseSlug)
   return { courseId, courseSlug }
+}
+
+/** A signed-in API client for a served app (set-up through the API beside the browser): agent and CSRF token. */
+export async function apiSignIn(
+  baseUrl: string,
+  email: string,
+  password = DEFAULT_DEMO_PASSWORD,
+): Promise<{ agent: ReturnType<typeof request.agent>; csrf: string }> {
+  const agent = request.agent(baseUrl)
+  const s = await agent.get('/api/auth/session').expect(200)
+  const res = await agent
+    .post('/api/auth/sign-in')
+    .set('x-csrf-token', s.body.csrfToken)
+    .send({ email, password })
+    .expect(200)
+  return { agent, csrf: res.body.csrfToken as string }
 }
