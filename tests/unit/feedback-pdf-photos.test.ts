@@ -5,35 +5,12 @@ import type { FeedbackReportData, ReportImage } from '../../server/reports/feedb
 import { markShapes } from '../../server/reports/photo-section'
 import type { JetMarks } from '../../shared/images/jet-marks'
 import { renderJetPhoto } from '../../scripts/demo/jet-photo'
+import { reportData } from '../helpers/report-data'
 import { pdfImages, readPdf } from '../helpers/pdf'
 import { expectClose } from '../helpers/expect-close'
 
-function report(over: Partial<FeedbackReportData> = {}): FeedbackReportData {
-  const time = Array.from({ length: 60 }, (_, i) => i * 0.1)
-  return {
-    course: {
-      code: 'PRL 341',
-      title: 'Test lab',
-      term: 'Winter 2027',
-      institution: 'Test University',
-      timeZone: 'UTC',
-    },
-    module: { title: 'Reading the jet', version: 1 },
-    owner: { kind: 'student', name: 'Dalia Dunmere' },
-    attempt: 1,
-    attemptsAllowed: 3,
-    submittedAt: new Date('2027-02-09T17:00:00Z'),
-    submittedBy: 'Dalia Dunmere',
-    lateness: { isLate: false, daysLate: 0, penalty: 0 },
-    score: { score: 7, maxScore: 10, rawScore: 7, computedBeforeOverride: null },
-    checks: [],
-    flags: [],
-    comments: [],
-    chart: { time, thrust: time.map((t) => 30 * Math.exp(-t)), supersonicSpans: [] },
-    generatedAt: new Date('2027-02-10T09:00:00Z'),
-    ...over,
-  }
-}
+const report = (over: Partial<FeedbackReportData> = {}): FeedbackReportData =>
+  reportData({ module: { title: 'Reading the jet', version: 1 }, ...over })
 
 // Marks of known geometry: the scale spans 40 px for 8 mm (0.2 mm per pixel), the jet runs along
 // y = 100 to the right of the exit plane at x = 40. Cell ends 60 px and 132 px downstream (12 mm and

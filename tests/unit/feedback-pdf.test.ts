@@ -1,39 +1,14 @@
 import { describe, expect, it } from 'vitest'
 import { feedbackPdfBuffer, niceTicks } from '../../server/reports/feedback-pdf'
-import type { FeedbackReportData } from '../../server/reports/feedback-pdf'
 import { readFileSync } from 'node:fs'
 import { createRequire } from 'node:module'
 import { fontRuns, woffToSfnt } from '../../server/reports/fonts'
 import { fileSlug } from '../../server/reports/format'
 import { markdownToParagraphs } from '../../server/reports/plain-text'
+import { reportData } from '../helpers/report-data'
 import { pdfFonts, readPdf } from '../helpers/pdf'
 
-function report(over: Partial<FeedbackReportData> = {}): FeedbackReportData {
-  const time = Array.from({ length: 120 }, (_, i) => i * 0.05)
-  return {
-    course: {
-      code: 'PRL 341',
-      title: 'Test lab',
-      term: 'Winter 2027',
-      institution: 'Test University (fictional)',
-      timeZone: 'UTC',
-    },
-    module: { title: 'Cold-flow run', version: 3 },
-    owner: { kind: 'student', name: 'Dalia Dunmere' },
-    attempt: 1,
-    attemptsAllowed: 3,
-    submittedAt: new Date('2027-02-09T17:00:00Z'),
-    submittedBy: 'Dalia Dunmere',
-    lateness: { isLate: false, daysLate: 0, penalty: 0 },
-    score: { score: 7, maxScore: 10, rawScore: 7, computedBeforeOverride: null },
-    checks: [],
-    flags: [],
-    comments: [],
-    chart: { time, thrust: time.map((t) => 30 * Math.exp(-t)), supersonicSpans: [] },
-    generatedAt: new Date('2027-02-10T09:00:00Z'),
-    ...over,
-  }
-}
+const report = reportData
 
 describe('the feedback report layout', () => {
   it('breaks a long checks table and a long comment across pages, repeating the table header and numbering every page', async () => {
